@@ -1,0 +1,341 @@
+import { readFileSync } from "node:fs";
+import path from "node:path";
+import { LineCounter, parseDocument, isMap, isScalar, isSeq, type Node, type Pair } from "yaml";
+import { InputError } from "../errors.js";
+import { nearestName } from "./nearestName.js";
+
+export type InferenceMethod = "components" | "fdr" | "max-t";
+export type SizeMeasure = "extent" | "mass";
+export type Tail = "upper" | "lower" | "both";
+export type FdrVariant = "bh" | "by";
+export type Scheme = "auto" | "permute" | "sign-flip";
+export type BlockPermutation = "within" | "whole";
+
+export interface ContrastSpec {
+  name: string;
+  /** An expression such as `group[patient] - group[control]`, or a numeric vector over the design columns. */
+  expression: string | number[];
+  /** Design key, e.g. `contrasts.patient_gt_control`, and its line, for errors. */
+  key: string;
+  line?: number;
+}
+
+export interface InferenceSpec {
+  method: InferenceMethod;
+  threshold: number;
+  size: SizeMeasure;
+  permutations: number;
+  seed: number;
+  alpha: number;
+  blocks?: string;
+  blockPermutation: BlockPermutation;
+  tail: Tail;
+  fdr: FdrVariant;
+  scheme: Scheme;
+}
+
+/** A design file read and checked for shape; columns and files are checked later against the data. */
+export interface DesignSpec {
+  file: string;
+  baseDir: string;
+  subjects: string;
+  connectomes: string;
+  regions?: string;
+  model: string;
+  levels: Record<string, string[]>;
+  center: string[];
+  contrasts: ContrastSpec[];
+  transform: "none" | "fisher-z";
+  symmetrize: boolean;
+  asymmetryTolerance: number;
+  inference: InferenceSpec;
+  /** 1-based line of each key path (`inference.threshold`), for located errors later. */
+  lines: Map<string, number>;
+}
+
+const TOP_KEYS = [
+  "subjects",
+  "connectomes",
+  "regions",
+  "model",
+  "levels",
+  "center",
+  "contrasts",
+  "transform",
+  "symmetrize",
+  "asymmetry_tolerance",
+  "inference",
+] as const;
+const INFERENCE_KEYS = [
+  "method",
+  "threshold",
+  "size",
+  "permutations",
+  "seed",
+  "alpha",
+  "blocks",
+  "block_permutation",
+  "tail",
+  "fdr",
+  "scheme",
+] as const;
+
+export const DEFAULT_INFERENCE: InferenceSpec = {
+  method: "components",
+  threshold: 3,
+  size: "extent",
+  permutations: 5000,
+  seed: 1,
+  alpha: 0.05,
+  blockPermutation: "within",
+  tail: "upper",
+  fdr: "bh",
+  scheme: "auto",
+};
+
+/** Reads a design file from disk; see `parseDesign`. */
+export function readDesign(file: string): DesignSpec {
+  let text: string;
+  try {
+    text = readFileSync(file, "utf8");
+  } catch (error) {
+    throw new InputError(`cannot read the design file: ${(error as Error).message}`, { file });
+  }
+  return parseDesign(text, file);
+}
+
+/** Parses design-file YAML (1.2 core schema, no custom tags) into a checked DesignSpec. */
+export function parseDesign(text: string, file: string): DesignSpec {
+  const lineCounter = new LineCounter();
+  const doc = parseDocument(text.replace(/^\uFEFF/, ""), {
+    lineCounter,
+    version: "1.2",
+    schema: "core",
+    customTags: [],
+    uniqueKeys: true,
+    prettyErrors: false,
+  });
+  const lineAt = (offset: number | undefined) => (offset === undefined ? undefined : lineCounter.linePos(offset).line);
+  const problem = doc.errors[0];
+  if (problem) {
+    throw new InputError(`not valid YAML: ${problem.message.split("\n")[0]}`, {
+      file,
+      line: lineAt(problem.pos[0]),
+    });
+  }
+  if (doc.warnings.length > 0 && doc.warnings.some((w) => w.code === "TAG_RESOLVE_FAILED")) {
+    throw new InputError("custom YAML tags are not allowed in a design file", { file, line: lineAt(doc.warnings[0].pos[0]) });
+  }
+  const root = doc.contents;
+  if (!isMap(root)) {
+    throw new InputError("a design file is a YAML mapping of keys (subjects, connectomes, model, contrasts, …)", {
+      file,
+      line: 1,
+    });
+  }
+  const lines = new Map<string, number>();
+  const where = (key: string) => ({ file, key, line: lines.get(key) });
+
+  const checkKeys = (pairs: Pair[], allowed: readonly string[], prefix: string) => {
+    const out = new Map<string, Node | null>();
+    for (const pair of pairs) {
+      const keyNode = pair.key as Node | null;
+      const name = isScalar(keyNode) ? String(keyNode.value) : String(keyNode);
+      const line = lineAt(keyNode?.range?.[0]);
+      const full = prefix ? `${prefix}.${name}` : name;
+      if (line !== undefined) lines.set(full, line);
+      if (!allowed.includes(name)) {
+        const near = nearestName(name, allowed);
+        throw new InputError(
+          `unknown key '${full}'`,
+          { file, line, key: full },
+          near ? `did you mean '${prefix ? `${prefix}.` : ""}${near}'?` : `valid keys: ${allowed.join(", ")}`,
+        );
+      }
+      out.set(name, (pair.value as Node | null) ?? null);
+    }
+    return out;
+  };
+
+  const top = checkKeys(root.items as Pair[], TOP_KEYS, "");
+  const plain = (name: string): unknown => {
+    const node = top.get(name);
+    return node === undefined || node === null ? undefined : (node as Node).toJSON();
+  };
+  const requireString = (name: string): string => {
+    const value = plain(name);
+    if (value === undefined) throw new InputError(`the design needs '${name}'`, { file, key: name });
+    if (typeof value !== "string" || value.trim() === "") {
+      throw new InputError(`'${name}' must be a text value`, where(name));
+    }
+    return value.trim();
+  };
+  const optionalString = (name: string): string | undefined =>
+    plain(name) === undefined ? undefined : requireString(name);
+
+  // Contrasts: a mapping name -> expression or numeric vector.
+  const contrasts: ContrastSpec[] = [];
+  const contrastNode = top.get("contrasts");
+  if (contrastNode === undefined || contrastNode === null) {
+    throw new InputError("the design needs at least one contrast under 'contrasts'", { file, key: "contrasts" });
+  }
+  if (!isMap(contrastNode)) throw new InputError("'contrasts' must map names to contrasts", where("contrasts"));
+  for (const pair of contrastNode.items as Pair[]) {
+    const keyNode = pair.key as Node;
+    const name = isScalar(keyNode) ? String(keyNode.value) : String(keyNode);
+    const key = `contrasts.${name}`;
+    const line = lineAt(keyNode.range?.[0]);
+    if (line !== undefined) lines.set(key, line);
+    if (!/^[A-Za-z0-9][A-Za-z0-9_.-]*$/.test(name) || name.length > 100) {
+      throw new InputError(
+        `contrast name '${name}' is not usable as a folder name`,
+        { file, line, key },
+        "use letters, digits, '_', '-' and '.', starting with a letter or digit",
+      );
+    }
+    const valueNode = pair.value as Node | null;
+    let expression: string | number[];
+    if (isSeq(valueNode)) {
+      const values = valueNode.toJSON() as unknown[];
+      if (values.length === 0 || !values.every((v) => typeof v === "number" && Number.isFinite(v))) {
+        throw new InputError("a contrast vector must list finite numbers, one per design column", { file, line, key });
+      }
+      expression = values as number[];
+    } else if (isScalar(valueNode) && (typeof valueNode.value === "string" || typeof valueNode.value === "number")) {
+      expression = String(valueNode.value);
+    } else {
+      throw new InputError("a contrast is an expression such as `group[patient] - group[control]` or a list of numbers", {
+        file,
+        line,
+        key,
+      });
+    }
+    contrasts.push({ name, expression, key, line });
+  }
+  if (contrasts.length === 0) throw new InputError("'contrasts' lists no contrast", where("contrasts"));
+  const lowerNames = new Set<string>();
+  for (const c of contrasts) {
+    const lower = c.name.toLowerCase();
+    if (lowerNames.has(lower)) {
+      throw new InputError(`two contrasts differ only in letter case ('${c.name}'); their folders would collide`, {
+        file,
+        key: c.key,
+        line: c.line,
+      });
+    }
+    lowerNames.add(lower);
+  }
+
+  // levels: { factor: [level, ...] }
+  const levels: Record<string, string[]> = {};
+  const levelsValue = plain("levels");
+  if (levelsValue !== undefined) {
+    if (typeof levelsValue !== "object" || levelsValue === null || Array.isArray(levelsValue)) {
+      throw new InputError("'levels' maps a factor column to its level order, e.g. { group: [control, patient] }", where("levels"));
+    }
+    for (const [factor, list] of Object.entries(levelsValue)) {
+      if (!Array.isArray(list) || list.length < 2 || !list.every((v) => typeof v === "string" || typeof v === "number")) {
+        throw new InputError(`levels of '${factor}' must be a list of at least two level names`, where("levels"));
+      }
+      const names = list.map(String);
+      if (new Set(names).size !== names.length) {
+        throw new InputError(`levels of '${factor}' repeat a level`, where("levels"));
+      }
+      levels[factor] = names;
+    }
+  }
+
+  const centerValue = plain("center");
+  let center: string[] = [];
+  if (centerValue !== undefined) {
+    if (typeof centerValue === "string") center = [centerValue];
+    else if (Array.isArray(centerValue) && centerValue.every((v) => typeof v === "string")) center = centerValue as string[];
+    else throw new InputError("'center' lists numeric columns to centre, e.g. [age]", where("center"));
+  }
+
+  const transformValue = plain("transform") ?? "none";
+  if (transformValue !== "none" && transformValue !== "fisher-z") {
+    throw new InputError(`'transform' must be none or fisher-z, found '${String(transformValue)}'`, where("transform"));
+  }
+  const symmetrize = plain("symmetrize") ?? false;
+  if (typeof symmetrize !== "boolean") throw new InputError("'symmetrize' must be true or false", where("symmetrize"));
+  const tolerance = plain("asymmetry_tolerance") ?? 1e-6;
+  if (typeof tolerance !== "number" || !(tolerance >= 0)) {
+    throw new InputError("'asymmetry_tolerance' must be a number ≥ 0", where("asymmetry_tolerance"));
+  }
+
+  // inference
+  const inference: InferenceSpec = { ...DEFAULT_INFERENCE };
+  const inferenceNode = top.get("inference");
+  if (inferenceNode !== undefined && inferenceNode !== null) {
+    if (!isMap(inferenceNode)) throw new InputError("'inference' must be a mapping of options", where("inference"));
+    const opts = checkKeys(inferenceNode.items as Pair[], INFERENCE_KEYS, "inference");
+    const get = (name: string): unknown => {
+      const node = opts.get(name);
+      return node === undefined || node === null ? undefined : (node as Node).toJSON();
+    };
+    const choice = <T extends string>(name: string, allowed: readonly T[]): T | undefined => {
+      const value = get(name);
+      if (value === undefined) return undefined;
+      if (typeof value !== "string" || !allowed.includes(value as T)) {
+        throw new InputError(`'inference.${name}' must be one of ${allowed.join(", ")}; found '${String(value)}'`, where(`inference.${name}`));
+      }
+      return value as T;
+    };
+    const number = (name: string, check: (v: number) => boolean, rule: string): number | undefined => {
+      const value = get(name);
+      if (value === undefined) return undefined;
+      if (typeof value !== "number" || !Number.isFinite(value) || !check(value)) {
+        throw new InputError(`'inference.${name}' must be ${rule}; found '${String(value)}'`, where(`inference.${name}`));
+      }
+      return value;
+    };
+    inference.method = choice("method", ["components", "fdr", "max-t"] as const) ?? inference.method;
+    inference.size = choice("size", ["extent", "mass"] as const) ?? inference.size;
+    inference.tail = choice("tail", ["upper", "lower", "both"] as const) ?? inference.tail;
+    inference.fdr = choice("fdr", ["bh", "by"] as const) ?? inference.fdr;
+    inference.scheme = choice("scheme", ["auto", "permute", "sign-flip"] as const) ?? inference.scheme;
+    inference.blockPermutation = choice("block_permutation", ["within", "whole"] as const) ?? inference.blockPermutation;
+    inference.threshold = number("threshold", (v) => v > 0, "a positive number (the primary threshold on the statistic)") ?? inference.threshold;
+    inference.alpha = number("alpha", (v) => v > 0 && v < 1, "between 0 and 1 (exclusive)") ?? inference.alpha;
+    inference.permutations =
+      number("permutations", (v) => Number.isInteger(v) && v >= 1 && v <= 10_000_000, "a whole number from 1 to 10,000,000") ??
+      inference.permutations;
+    inference.seed = number("seed", (v) => Number.isInteger(v) && v >= 0 && v <= Number.MAX_SAFE_INTEGER, "a whole number ≥ 0") ?? inference.seed;
+    const blocks = get("blocks");
+    if (blocks !== undefined) {
+      if (typeof blocks !== "string" || blocks.trim() === "") {
+        throw new InputError("'inference.blocks' names a column of the participants table", where("inference.blocks"));
+      }
+      inference.blocks = blocks.trim();
+    }
+  }
+
+  const design: DesignSpec = {
+    file,
+    baseDir: path.dirname(path.resolve(file)),
+    subjects: requireString("subjects"),
+    connectomes: requireString("connectomes"),
+    regions: optionalString("regions"),
+    model: (() => {
+      const value = plain("model");
+      if (value === undefined) throw new InputError("the design needs 'model', e.g. `model: group + age + sex`", { file, key: "model" });
+      if (typeof value === "number") return String(value);
+      return requireString("model");
+    })(),
+    levels,
+    center,
+    contrasts,
+    transform: transformValue,
+    symmetrize,
+    asymmetryTolerance: tolerance,
+    inference,
+    lines,
+  };
+  return design;
+}
+
+/** The location of a design key, for errors raised after parsing. */
+export function designKeyLocation(design: DesignSpec, key: string) {
+  return { file: design.file, key, line: design.lines.get(key) };
+}

@@ -1,0 +1,346 @@
+import { endianness } from "node:os";
+import { InputError } from "../errors.js";
+
+/**
+ * Reader and writer for the NumPy `.npy` array format, versions 1.0, 2.0 and
+ * 3.0, as published in the NumPy documentation (numpy.lib.format; NEP 1,
+ * "A Simple File Format for NumPy Arrays", R. Kern, 2007):
+ *
+ *   bytes 0-5  magic "\x93NUMPY"; byte 6 major version; byte 7 minor version
+ *   1.0        bytes 8-9  header length, little-endian uint16, then a Latin-1 header
+ *   2.0, 3.0   bytes 8-11 header length, little-endian uint32; 3.0's header is UTF-8
+ *   header     a Python dict literal {'descr': ..., 'fortran_order': ..., 'shape': (...)},
+ *              padded with spaces and ended by '\n'; the data follows it.
+ *
+ * Values are read with typed arrays or a DataView, never parsed as text, and
+ * returned as float64 in C (row-major) order.
+ */
+export interface NpyArray {
+  shape: number[];
+  data: Float64Array;
+}
+
+const MAGIC = [0x93, 0x4e, 0x55, 0x4d, 0x50, 0x59]; // \x93 N U M P Y
+const HOST_IS_LITTLE_ENDIAN = endianness() === "LE";
+
+type Kind = "f" | "i" | "u" | "b";
+interface DType {
+  kind: Kind;
+  itemSize: number;
+  littleEndian: boolean;
+}
+
+const SUPPORTED_DTYPES = "<f8 >f8 <f4 >f4 <i8 >i8 <i4 >i4 <i2 >i2 |i1 <u8 >u8 <u4 >u4 <u2 >u2 |u1 |b1 ('=' for native little-endian)";
+
+export function parseNpy(bytes: Uint8Array, file: string): NpyArray {
+  const fail: (what: string) => never = (what) => {
+    throw new InputError(`not a readable .npy file: ${what}`, { file });
+  };
+  if (bytes.length < 10) fail(`only ${bytes.length} bytes, shorter than the smallest .npy preamble (10 bytes)`);
+  for (let k = 0; k < MAGIC.length; k++) {
+    if (bytes[k] !== MAGIC[k]) fail("it does not start with the magic string \\x93NUMPY");
+  }
+  const major = bytes[6];
+  const minor = bytes[7];
+  if (!((major === 1 || major === 2 || major === 3) && minor === 0)) {
+    fail(`format version ${major}.${minor} is not one of 1.0, 2.0, 3.0`);
+  }
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  let headerStart: number;
+  let headerLength: number;
+  if (major === 1) {
+    headerStart = 10;
+    headerLength = view.getUint16(8, true);
+  } else {
+    if (bytes.length < 12) fail(`only ${bytes.length} bytes, shorter than a version ${major}.0 preamble (12 bytes)`);
+    headerStart = 12;
+    headerLength = view.getUint32(8, true);
+  }
+  const dataStart = headerStart + headerLength;
+  if (dataStart > bytes.length) {
+    fail(`the header claims ${headerLength} bytes but the file ends ${bytes.length - headerStart} bytes after its start`);
+  }
+
+  let headerText: string;
+  try {
+    headerText = new TextDecoder(major === 3 ? "utf-8" : "latin1", { fatal: true }).decode(
+      bytes.subarray(headerStart, dataStart),
+    );
+  } catch {
+    return fail(`the header is not valid ${major === 3 ? "UTF-8" : "Latin-1"} text`);
+  }
+
+  let header: Map<string, PyValue>;
+  try {
+    const literal = parsePythonLiteral(headerText);
+    if (!(literal instanceof Map)) throw new LiteralError("the header is not a dict");
+    header = literal;
+  } catch (error) {
+    if (error instanceof LiteralError) return fail(`malformed header (${error.message}): ${quoteHeader(headerText)}`);
+    throw error;
+  }
+
+  const descr = header.get("descr");
+  const fortranOrder = header.get("fortran_order");
+  const shapeValue = header.get("shape");
+  if (descr === undefined || fortranOrder === undefined || shapeValue === undefined) {
+    fail(`the header needs the keys 'descr', 'fortran_order' and 'shape': ${quoteHeader(headerText)}`);
+  }
+  if (typeof descr !== "string") return fail(`unsupported dtype ${describeLiteral(descr)} (supported: ${SUPPORTED_DTYPES})`);
+  const dtype = parseDType(descr);
+  if (dtype === undefined) return fail(`unsupported dtype '${descr}' (supported: ${SUPPORTED_DTYPES})`);
+  if (typeof fortranOrder !== "boolean") return fail(`'fortran_order' must be True or False, found ${describeLiteral(fortranOrder)}`);
+  if (!isShape(shapeValue)) return fail(`'shape' must be a tuple of non-negative integers, found ${describeLiteral(shapeValue)}`);
+  const shape = shapeValue as number[];
+
+  let count = 1;
+  for (const extent of shape) count *= extent;
+  if (!Number.isSafeInteger(count)) fail(`the shape (${shape.join(", ")}) has too many elements`);
+  const available = bytes.length - dataStart;
+  const needed = count * dtype.itemSize;
+  if (available < needed) {
+    fail(`truncated data: shape (${shape.join(", ")}) of '${descr}' needs ${needed} bytes but ${available} follow the header`);
+  }
+  if (available > needed) {
+    fail(`${available - needed} bytes follow the data of shape (${shape.join(", ")}) of '${descr}'`);
+  }
+
+  const flat = decodeValues(bytes, view, dataStart, count, dtype);
+  const data = fortranOrder && shape.length > 1 ? fortranToC(flat, shape) : flat;
+  return { shape, data };
+}
+
+/** Writes a float64 array as a version 1.0 .npy ('<f8', C order) with the header padded to a multiple of 64 bytes. */
+export function encodeNpy(shape: number[], data: Float64Array): Uint8Array {
+  let count = 1;
+  for (const extent of shape) {
+    if (!Number.isSafeInteger(extent) || extent < 0) throw new RangeError(`encodeNpy: bad extent ${extent}`);
+    count *= extent;
+  }
+  if (count !== data.length) throw new RangeError(`encodeNpy: shape (${shape.join(", ")}) needs ${count} values, got ${data.length}`);
+  const shapeText = shape.length === 1 ? `(${shape[0]},)` : `(${shape.join(", ")})`;
+  let header = `{'descr': '<f8', 'fortran_order': False, 'shape': ${shapeText}, }`;
+  const unpadded = 10 + header.length + 1;
+  header += " ".repeat((64 - (unpadded % 64)) % 64) + "\n";
+  if (header.length > 0xffff) throw new RangeError("encodeNpy: header too long for version 1.0");
+
+  const out = new Uint8Array(10 + header.length + data.length * 8);
+  out.set(MAGIC, 0);
+  out[6] = 1;
+  out[7] = 0;
+  const view = new DataView(out.buffer);
+  view.setUint16(8, header.length, true);
+  for (let k = 0; k < header.length; k++) out[10 + k] = header.charCodeAt(k);
+  const dataStart = 10 + header.length;
+  if (HOST_IS_LITTLE_ENDIAN) {
+    out.set(new Uint8Array(data.buffer, data.byteOffset, data.byteLength), dataStart);
+  } else {
+    for (let k = 0; k < data.length; k++) view.setFloat64(dataStart + 8 * k, data[k], true);
+  }
+  return out;
+}
+
+function parseDType(descr: string): DType | undefined {
+  const match = /^([<>=|])([fiub])(\d)$/.exec(descr);
+  if (match === null) return undefined;
+  const [, order, kindText, sizeText] = match;
+  const kind = kindText as Kind;
+  const itemSize = Number(sizeText);
+  const allowed: Record<Kind, number[]> = { f: [4, 8], i: [1, 2, 4, 8], u: [1, 2, 4, 8], b: [1] };
+  if (!allowed[kind].includes(itemSize)) return undefined;
+  // '|' means "byte order does not apply", which numpy writes only for one-byte types.
+  if (order === "|" && itemSize !== 1) return undefined;
+  return { kind, itemSize, littleEndian: order !== ">" };
+}
+
+function decodeValues(bytes: Uint8Array, view: DataView, start: number, count: number, dtype: DType): Float64Array {
+  const out = new Float64Array(count);
+  const { kind, itemSize, littleEndian } = dtype;
+  if (kind === "f" && itemSize === 8 && littleEndian === HOST_IS_LITTLE_ENDIAN) {
+    // One copy of the raw bytes into the output's buffer, aligned or not.
+    new Uint8Array(out.buffer).set(bytes.subarray(start, start + count * 8));
+    return out;
+  }
+  if (kind === "b") {
+    for (let k = 0; k < count; k++) out[k] = bytes[start + k] !== 0 ? 1 : 0;
+    return out;
+  }
+  const read = elementReader(view, kind, itemSize, littleEndian);
+  for (let k = 0, offset = start; k < count; k++, offset += itemSize) out[k] = read(offset);
+  return out;
+}
+
+function elementReader(view: DataView, kind: Kind, itemSize: number, le: boolean): (offset: number) => number {
+  if (kind === "f") return itemSize === 8 ? (o) => view.getFloat64(o, le) : (o) => view.getFloat32(o, le);
+  if (kind === "i") {
+    switch (itemSize) {
+      case 1:
+        return (o) => view.getInt8(o);
+      case 2:
+        return (o) => view.getInt16(o, le);
+      case 4:
+        return (o) => view.getInt32(o, le);
+      default:
+        return (o) => Number(view.getBigInt64(o, le));
+    }
+  }
+  switch (itemSize) {
+    case 1:
+      return (o) => view.getUint8(o);
+    case 2:
+      return (o) => view.getUint16(o, le);
+    case 4:
+      return (o) => view.getUint32(o, le);
+    default:
+      return (o) => Number(view.getBigUint64(o, le));
+  }
+}
+
+/** Reorders column-major (first index fastest) values into row-major (last index fastest) order. */
+function fortranToC(source: Float64Array, shape: number[]): Float64Array {
+  const rank = shape.length;
+  const out = new Float64Array(source.length);
+  if (out.length === 0) return out;
+  const stride = new Array<number>(rank);
+  stride[0] = 1;
+  for (let d = 1; d < rank; d++) stride[d] = stride[d - 1] * shape[d - 1];
+  const index = new Array<number>(rank).fill(0);
+  let offset = 0;
+  for (let k = 0; k < out.length; k++) {
+    out[k] = source[offset];
+    for (let d = rank - 1; d >= 0; d--) {
+      index[d]++;
+      offset += stride[d];
+      if (index[d] < shape[d]) break;
+      offset -= stride[d] * shape[d];
+      index[d] = 0;
+    }
+  }
+  return out;
+}
+
+function isShape(value: PyValue): boolean {
+  return (
+    Array.isArray(value) &&
+    (value as PyValue[]).every((v) => typeof v === "number" && Number.isSafeInteger(v) && v >= 0)
+  );
+}
+
+function quoteHeader(text: string): string {
+  const trimmed = text.trimEnd();
+  return JSON.stringify(trimmed.length > 200 ? `${trimmed.slice(0, 200)}…` : trimmed);
+}
+
+function describeLiteral(value: PyValue): string {
+  if (value instanceof Map) return "a dict";
+  if (Array.isArray(value)) return "a tuple or list";
+  return JSON.stringify(value);
+}
+
+/* ---- the Python literal subset that .npy headers use ---- */
+
+/** Values of the header literal: str, int, bool, None, tuple/list (as arrays), dict (as Map). */
+export type PyValue = string | number | boolean | null | PyValue[] | Map<string, PyValue>;
+
+class LiteralError extends Error {}
+
+/** Parses a Python literal of dicts, tuples, lists, strings, integers, True, False and None. */
+export function parsePythonLiteral(text: string): PyValue {
+  let p = 0;
+  const maxDepth = 32;
+
+  const skipSpace = (): void => {
+    while (p < text.length && (text[p] === " " || text[p] === "\t" || text[p] === "\n" || text[p] === "\r")) p++;
+  };
+  const expect = (ch: string): void => {
+    skipSpace();
+    if (text[p] !== ch) throw new LiteralError(`expected '${ch}' at character ${p + 1}`);
+    p++;
+  };
+  const value = (depth: number): PyValue => {
+    if (depth > maxDepth) throw new LiteralError("nested too deeply");
+    skipSpace();
+    const c = text[p];
+    if (c === "{") return dict(depth);
+    if (c === "(") return sequence(")", depth, true);
+    if (c === "[") return sequence("]", depth, false);
+    if (c === "'" || c === '"') return string();
+    if (c !== undefined && /[-+0-9]/.test(c)) return integer();
+    for (const [word, result] of [
+      ["True", true],
+      ["False", false],
+      ["None", null],
+    ] as const) {
+      if (text.startsWith(word, p) && !/[A-Za-z0-9_]/.test(text[p + word.length] ?? "")) {
+        p += word.length;
+        return result;
+      }
+    }
+    throw new LiteralError(c === undefined ? "unexpected end of header" : `unexpected character '${c}' at character ${p + 1}`);
+  };
+  const dict = (depth: number): Map<string, PyValue> => {
+    p++; // {
+    const map = new Map<string, PyValue>();
+    for (;;) {
+      skipSpace();
+      if (text[p] === "}") {
+        p++;
+        return map;
+      }
+      const key = value(depth + 1);
+      if (typeof key !== "string") throw new LiteralError(`dict key at character ${p} is not a string`);
+      if (map.has(key)) throw new LiteralError(`key '${key}' appears twice`);
+      expect(":");
+      map.set(key, value(depth + 1));
+      skipSpace();
+      if (text[p] === ",") p++;
+      else if (text[p] !== "}") throw new LiteralError(`expected ',' or '}' at character ${p + 1}`);
+    }
+  };
+  const sequence = (close: string, depth: number, isTuple: boolean): PyValue => {
+    p++; // ( or [
+    const items: PyValue[] = [];
+    let sawComma = false;
+    for (;;) {
+      skipSpace();
+      if (text[p] === close) {
+        p++;
+        // (x) is just x in Python; a one-element tuple is written (x,)
+        if (isTuple && items.length === 1 && !sawComma) return items[0];
+        return items;
+      }
+      items.push(value(depth + 1));
+      skipSpace();
+      if (text[p] === ",") {
+        p++;
+        sawComma = true;
+      } else if (text[p] !== close) {
+        throw new LiteralError(`expected ',' or '${close}' at character ${p + 1}`);
+      }
+    }
+  };
+  const string = (): string => {
+    const quote = text[p++];
+    let out = "";
+    while (p < text.length && text[p] !== quote) {
+      if (text[p] === "\\" || text[p] === "\n") throw new LiteralError(`unsupported escape or line break in a string at character ${p + 1}`);
+      out += text[p++];
+    }
+    if (p >= text.length) throw new LiteralError("unterminated string");
+    p++;
+    return out;
+  };
+  const integer = (): number => {
+    const start = p;
+    if (text[p] === "-" || text[p] === "+") p++;
+    const digitsStart = p;
+    while (p < text.length && text[p] >= "0" && text[p] <= "9") p++;
+    if (p === digitsStart || /[A-Za-z_.]/.test(text[p] ?? "")) throw new LiteralError(`malformed integer at character ${start + 1}`);
+    return Number(text.slice(start, p));
+  };
+
+  const result = value(0);
+  skipSpace();
+  if (p !== text.length) throw new LiteralError(`unexpected text after the literal at character ${p + 1}`);
+  return result;
+}

@@ -1,0 +1,109 @@
+import { InputError } from "../errors.js";
+import { isMissingCell } from "./participants.js";
+import { readTextFile } from "./readInputFile.js";
+import { parseTsv } from "./tsv.js";
+
+/** One network node: its label and, optionally, coordinates, hemisphere and system (module). */
+export interface Region {
+  label: string;
+  x?: number;
+  y?: number;
+  z?: number;
+  hemisphere?: string;
+  system?: string;
+}
+
+const DECIMAL = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/;
+
+/**
+ * Parses a regions table (tab-separated, header row). `label` is required;
+ * `x`, `y`, `z` come all three or not at all and must be finite numbers;
+ * `hemisphere` and `system` are optional text (`n/a` or empty = absent); other
+ * columns are ignored. Labels must be unique, and when `expectedCount` is given
+ * (the matrices' N) the table must have exactly that many rows.
+ */
+export function parseRegions(text: string, file: string, expectedCount?: number): Region[] {
+  const { header, rows, lines, headerLine } = parseTsv(text, file);
+  const column = (name: string): number => header.indexOf(name);
+  const labelColumn = column("label");
+  if (labelColumn < 0) {
+    throw new InputError(`the regions table needs a 'label' column (found: ${header.join(", ")})`, {
+      file,
+      line: headerLine,
+    });
+  }
+  const coordinateColumns = [column("x"), column("y"), column("z")];
+  const coordinateCount = coordinateColumns.filter((c) => c >= 0).length;
+  if (coordinateCount !== 0 && coordinateCount !== 3) {
+    const missing = ["x", "y", "z"].filter((_, k) => coordinateColumns[k] < 0);
+    throw new InputError(`coordinates need all three columns x, y and z; missing ${missing.join(", ")}`, {
+      file,
+      line: headerLine,
+    });
+  }
+  const hemisphereColumn = column("hemisphere");
+  const systemColumn = column("system");
+
+  const regions: Region[] = [];
+  const lineOfLabel = new Map<string, number>();
+  for (let r = 0; r < rows.length; r++) {
+    const row = rows[r];
+    const line = lines[r];
+    const label = row[labelColumn];
+    if (isMissingCell(label)) {
+      throw new InputError(`region ${r + 1} has no label`, { file, line, column: labelColumn + 1 });
+    }
+    const earlier = lineOfLabel.get(label);
+    if (earlier !== undefined) {
+      throw new InputError(`duplicate region label '${label}' on lines ${earlier} and ${line}`, {
+        file,
+        line,
+        column: labelColumn + 1,
+      });
+    }
+    lineOfLabel.set(label, line);
+
+    const region: Region = { label };
+    if (coordinateCount === 3) {
+      const [x, y, z] = coordinateColumns.map((c) => {
+        const cell = row[c];
+        const value = DECIMAL.test(cell) ? Number(cell) : Number.NaN;
+        if (!Number.isFinite(value)) {
+          throw new InputError(`coordinate ${header[c]} of region '${label}' is not a finite number: '${cell}'`, {
+            file,
+            line,
+            column: c + 1,
+          });
+        }
+        return value;
+      });
+      region.x = x;
+      region.y = y;
+      region.z = z;
+    }
+    if (hemisphereColumn >= 0 && !isMissingCell(row[hemisphereColumn])) region.hemisphere = row[hemisphereColumn];
+    if (systemColumn >= 0 && !isMissingCell(row[systemColumn])) region.system = row[systemColumn];
+    regions.push(region);
+  }
+
+  if (expectedCount !== undefined && regions.length !== expectedCount) {
+    throw new InputError(
+      `the regions table has ${regions.length} rows but the matrices have ${expectedCount} regions`,
+      { file, line: regions.length > expectedCount ? lines[expectedCount] : (lines[lines.length - 1] ?? headerLine) },
+    );
+  }
+  if (regions.length === 0) {
+    throw new InputError("the regions table has no rows", { file, line: headerLine });
+  }
+  return regions;
+}
+
+/** Reads and parses a regions table; an unreadable file is an InputError naming it. */
+export function readRegions(path: string, expectedCount?: number): Region[] {
+  return parseRegions(readTextFile(path), path, expectedCount);
+}
+
+/** Regions labelled "1" … "N", for matrices given without a regions table. */
+export function defaultRegions(count: number): Region[] {
+  return Array.from({ length: count }, (_, k) => ({ label: String(k + 1) }));
+}

@@ -1,0 +1,206 @@
+import { InputError, type InputLocation } from "../errors.js";
+import type { DesignMatrix } from "./designMatrix.js";
+import { rankReport } from "./rank.js";
+
+/**
+ * A contrast c over the design columns; the tested quantity is c'β.
+ * Written as a term name (`age`, a slope), `factor[level]` (its treatment
+ * coefficient; the reference level's is 0), products of those with `:` for
+ * interactions (`group[patient]:age`), scalar multiples and sums
+ * (`0.5*site[b] + 0.5*site[c]`), `intercept`, or a numeric vector.
+ */
+export interface Contrast {
+  name: string;
+  vector: Float64Array;
+  /** The expression as written, for reports. */
+  expression: string;
+}
+
+type Atom = { variable: string; level?: string };
+
+function parseAtoms(text: string, where: InputLocation, whole: string): Atom[] {
+  return text.split(":").map((piece) => {
+    const trimmed = piece.trim();
+    const match = /^(`[^`]+`|[A-Za-z_.][A-Za-z0-9_.]*)(?:\[([^\]]+)\])?$/.exec(trimmed);
+    if (!match) {
+      throw new InputError(
+        `cannot read '${trimmed}' in the contrast '${whole}'`,
+        where,
+        "write a column name, factor[level], products with ':', scalar multiples and sums, e.g. `group[patient] - group[control]`",
+      );
+    }
+    const variable = match[1].replace(/^`|`$/g, "");
+    const level = match[2]?.trim();
+    return level === undefined ? { variable } : { variable, level };
+  });
+}
+
+/**
+ * Splits `a - 2*b + 0.5*c*3` into signed terms: each term is a product of
+ * numbers and exactly one reference (a name, `name[level]`, or such joined by `:`).
+ */
+function splitTerms(text: string, where: InputLocation): { coefficient: number; body: string }[] {
+  type Token = { kind: "number"; value: number } | { kind: "ref"; text: string } | { kind: "op"; text: string };
+  const tokens: Token[] = [];
+  const pattern =
+    /\s*(?:([0-9]*\.?[0-9]+(?:[eE][+-]?[0-9]+)?)|((?:`[^`]+`|[A-Za-z_.][A-Za-z0-9_.]*)(?:\[[^\]]*\])?(?:\s*:\s*(?:`[^`]+`|[A-Za-z_.][A-Za-z0-9_.]*)(?:\[[^\]]*\])?)*)|([-+*]))/y;
+  let pos = 0;
+  while (pos < text.length) {
+    if (/^\s*$/.test(text.slice(pos))) break;
+    pattern.lastIndex = pos;
+    const match = pattern.exec(text);
+    if (!match) {
+      throw new InputError(
+        `cannot read the contrast '${text}' at position ${pos + 1}`,
+        where,
+        "write a column name, factor[level], products with ':', scalar multiples and sums, e.g. `group[patient] - group[control]`",
+      );
+    }
+    if (match[1] !== undefined) tokens.push({ kind: "number", value: Number(match[1]) });
+    else if (match[2] !== undefined) tokens.push({ kind: "ref", text: match[2] });
+    else tokens.push({ kind: "op", text: match[3] });
+    pos = pattern.lastIndex;
+  }
+  const out: { coefficient: number; body: string }[] = [];
+  let i = 0;
+  while (i < tokens.length) {
+    let coefficient = 1;
+    while (tokens[i]?.kind === "op" && (tokens[i] as { text: string }).text !== "*") {
+      if ((tokens[i] as { text: string }).text === "-") coefficient = -coefficient;
+      i++;
+    }
+    let body: string | undefined;
+    let expectFactor = true;
+    while (i < tokens.length) {
+      const token = tokens[i];
+      if (expectFactor) {
+        if (token.kind === "number") coefficient *= token.value;
+        else if (token.kind === "ref") {
+          if (body !== undefined) throw new InputError(`a term of the contrast '${text}' multiplies two columns; use ':' for an interaction`, where);
+          body = token.text.replace(/\s*:\s*/g, ":");
+        } else throw new InputError(`misplaced '${token.text}' in the contrast '${text}'`, where);
+        expectFactor = false;
+        i++;
+      } else if (token.kind === "op" && token.text === "*") {
+        expectFactor = true;
+        i++;
+      } else if (token.kind === "op") {
+        break;
+      } else {
+        throw new InputError(`missing operator in the contrast '${text}'`, where);
+      }
+    }
+    if (expectFactor) throw new InputError(`the contrast '${text}' ends with an operator`, where);
+    if (body === undefined) throw new InputError(`a term of the contrast '${text}' is a number without a column`, where);
+    out.push({ coefficient, body });
+  }
+  return out;
+}
+
+function sameVariables(a: string[], b: string[]): boolean {
+  return a.length === b.length && [...a].sort().join("\u0000") === [...b].sort().join("\u0000");
+}
+
+/** Resolves a contrast against the design's columns; errors name the design key. */
+export function parseContrast(
+  name: string,
+  expression: string | number[],
+  design: DesignMatrix,
+  where: InputLocation,
+): Contrast {
+  const p = design.cols;
+  const vector = new Float64Array(p);
+  const columnNames = design.columns.map((c) => c.name);
+  let written: string;
+  if (Array.isArray(expression)) {
+    written = `[${expression.join(", ")}]`;
+    if (expression.length !== p) {
+      throw new InputError(
+        `the contrast vector has ${expression.length} numbers but the design has ${p} columns (${columnNames.join(", ")})`,
+        where,
+      );
+    }
+    expression.forEach((v, j) => (vector[j] = v));
+  } else {
+    written = expression.trim();
+    if (written === "") throw new InputError("the contrast is empty", where);
+    for (const { coefficient, body } of splitTerms(written, where)) {
+      if (body === "intercept" || body === "1") {
+        const j = columnNames.indexOf("intercept");
+        if (j < 0) throw new InputError("the contrast names the intercept, but the model has none", where);
+        vector[j] += coefficient;
+        continue;
+      }
+      const atoms = parseAtoms(body, where, written);
+      const variablesNamed = atoms.map((a) => a.variable);
+      for (const atom of atoms) {
+        const variable = design.variables.get(atom.variable);
+        if (!variable) {
+          throw new InputError(
+            `the contrast names '${atom.variable}', which is not in the model (${[...design.variables.keys()].join(", ") || "intercept only"})`,
+            where,
+          );
+        }
+        if (variable.kind === "factor" && atom.level === undefined) {
+          throw new InputError(
+            `'${atom.variable}' is a factor: name a level, e.g. ${atom.variable}[${variable.levels[1]}] - ${atom.variable}[${variable.levels[0]}]`,
+            where,
+          );
+        }
+        if (variable.kind === "factor" && !variable.levels.includes(atom.level!)) {
+          throw new InputError(
+            `'${atom.level}' is not a level of '${atom.variable}' (levels: ${variable.levels.join(", ")})`,
+            where,
+          );
+        }
+        if (variable.kind === "numeric" && atom.level !== undefined) {
+          throw new InputError(`'${atom.variable}' is numeric and has no levels; write it without [${atom.level}]`, where);
+        }
+      }
+      const termIndex = design.formula.terms.findIndex((t) => sameVariables(t, variablesNamed));
+      if (termIndex < 0) {
+        throw new InputError(
+          `the model has no term '${variablesNamed.join(":")}' (terms: ${design.formula.terms.map((t) => t.join(":")).join(", ")})`,
+          where,
+        );
+      }
+      const column = design.columns.findIndex(
+        (c) =>
+          c.term === termIndex &&
+          atoms.every((atom) => c.parts.some((part) => part.variable === atom.variable && part.level === atom.level)),
+      );
+      if (column >= 0) {
+        vector[column] += coefficient;
+        continue;
+      }
+      // No column: a factor at its reference level, whose treatment coefficient is 0.
+      const atReference = atoms.some((atom) => {
+        const variable = design.variables.get(atom.variable)!;
+        return variable.kind === "factor" && atom.level === variable.levels[0];
+      });
+      if (!atReference) {
+        throw new InputError(`the contrast term '${body}' matches no design column (${columnNames.join(", ")})`, where);
+      }
+    }
+  }
+  if (vector.every((v) => v === 0)) {
+    throw new InputError(
+      `the contrast '${written}' is zero on every design column, so it tests nothing (reference levels have coefficient 0)`,
+      where,
+    );
+  }
+  checkEstimable(vector, design, where, written);
+  return { name, vector, expression: written };
+}
+
+/**
+ * c'β is estimable when c lies in the row space of X (Searle, Linear Models,
+ * 1971, §5.4). With a full-rank X every c is; the check guards the library
+ * entry points that accept other designs.
+ */
+function checkEstimable(vector: Float64Array, design: DesignMatrix, where: InputLocation, written: string): void {
+  const report = rankReport(design.values, design.rows, design.cols);
+  if (report.rank === design.cols) return;
+  const involved = vector.reduce<string[]>((list, v, j) => (v !== 0 ? [...list, design.columns[j].name] : list), []);
+  throw new InputError(`the contrast '${written}' is not estimable in this design (columns ${involved.join(", ")})`, where);
+}

@@ -1,0 +1,86 @@
+import { existsSync, mkdirSync, readdirSync, renameSync, rmSync, writeFileSync } from "node:fs";
+import path from "node:path";
+import { InputError } from "../errors.js";
+
+/**
+ * A results folder written all at once: files go into a temporary sibling
+ * folder and only a complete set is renamed into place, so a failure at any
+ * point (including a full disk) leaves any earlier results exactly as they were.
+ */
+export class ResultsFolder {
+  readonly target: string;
+  readonly staging: string;
+  private finished = false;
+
+  private constructor(target: string, staging: string) {
+    this.target = target;
+    this.staging = staging;
+  }
+
+  /** Refuses an existing non-empty target unless `force`; creates the staging folder. */
+  static open(target: string, options: { force: boolean; optionName?: string }): ResultsFolder {
+    const resolved = path.resolve(target);
+    if (existsSync(resolved)) {
+      let entries: string[];
+      try {
+        entries = readdirSync(resolved);
+      } catch {
+        throw new InputError(`the output path exists and is not a folder`, { file: target });
+      }
+      if (entries.length > 0 && !options.force) {
+        throw new InputError(
+          "the output folder exists and is not empty",
+          { file: target },
+          `choose another folder, or add ${options.optionName ?? "--force"} to replace it`,
+        );
+      }
+    }
+    const parent = path.dirname(resolved);
+    try {
+      mkdirSync(parent, { recursive: true });
+    } catch (error) {
+      throw new InputError(`cannot create the folder ${parent}: ${(error as Error).message}`, { file: target });
+    }
+    const staging = path.join(parent, `.${path.basename(resolved)}.plexus-tmp-${process.pid}-${Date.now().toString(36)}`);
+    mkdirSync(staging, { recursive: true });
+    return new ResultsFolder(resolved, staging);
+  }
+
+  /** Path inside the staging folder for a relative name; refuses names that leave the folder. */
+  pathOf(relative: string): string {
+    const full = path.resolve(this.staging, relative);
+    if (full !== this.staging && !full.startsWith(this.staging + path.sep)) {
+      throw new Error(`refusing to write outside the results folder: ${relative}`);
+    }
+    return full;
+  }
+
+  write(relative: string, content: string | Uint8Array): void {
+    const full = this.pathOf(relative);
+    mkdirSync(path.dirname(full), { recursive: true });
+    writeFileSync(full, content);
+  }
+
+  /** Moves the complete results into place, replacing an earlier folder only now. */
+  commit(): void {
+    if (this.finished) return;
+    const old = `${this.staging}-old`;
+    const hadTarget = existsSync(this.target);
+    if (hadTarget) renameSync(this.target, old);
+    try {
+      renameSync(this.staging, this.target);
+    } catch (error) {
+      if (hadTarget) renameSync(old, this.target);
+      throw error;
+    }
+    if (hadTarget) rmSync(old, { recursive: true, force: true });
+    this.finished = true;
+  }
+
+  /** Removes the staging folder after a failure; the target is untouched. */
+  abandon(): void {
+    if (this.finished) return;
+    rmSync(this.staging, { recursive: true, force: true });
+    this.finished = true;
+  }
+}

@@ -1,0 +1,41 @@
+import { contrastStatistics, type EdgeStatistics } from "../edges/contrastStatistics.js";
+import { fitEdges, type EdgeFit } from "../edges/fitEdges.js";
+import { tailPValues } from "../edges/tailPValues.js";
+import type { ComponentSummary } from "../inference/components.js";
+import { adjustFdr } from "../inference/fdr.js";
+import { observedComponents } from "../inference/observedComponents.js";
+import type { Contrast } from "../model/contrast.js";
+import type { PreparedAnalysis } from "./prepareAnalysis.js";
+
+/** What a contrast yields before any permutation: edge statistics, FDR and the observed components. */
+export interface ObservedContrast {
+  contrast: Contrast;
+  statistics: EdgeStatistics;
+  /** Uncorrected p for the tail tested. */
+  pUncorrected: Float64Array;
+  qFdr: Float64Array;
+  labels: Int32Array;
+  components: ComponentSummary[];
+}
+
+export function fitAll(prepared: PreparedAnalysis): EdgeFit {
+  const { matrix, connectomes } = prepared;
+  return fitEdges(matrix.values, matrix.rows, matrix.cols, connectomes.data, connectomes.edgeCount);
+}
+
+export function observeContrast(prepared: PreparedAnalysis, fit: EdgeFit, contrast: Contrast): ObservedContrast {
+  const { inference } = prepared.design;
+  const statistics = contrastStatistics(fit, contrast.vector);
+  const pUncorrected = tailPValues(statistics.statistic, statistics.df, inference.tail);
+  const qFdr = adjustFdr(pUncorrected, inference.fdr);
+  const { labels, components } = observedComponents(
+    statistics.statistic,
+    prepared.pairs.regionA,
+    prepared.pairs.regionB,
+    prepared.pairs.regionCount,
+    inference.threshold,
+    inference.tail,
+    inference.size,
+  );
+  return { contrast, statistics, pUncorrected, qFdr, labels, components };
+}

@@ -1,0 +1,195 @@
+import path from "node:path";
+import { InputError } from "../errors.js";
+import { loadConnectomes, type ConnectomeSource, type LoadedConnectomes } from "../io/connectomes.js";
+import { designKeyLocation, readDesign, type DesignSpec } from "../io/designFile.js";
+import { nearestName } from "../io/nearestName.js";
+import { readParticipants, type ParticipantsTable } from "../io/participants.js";
+import { defaultRegions, readRegions, type Region } from "../io/regions.js";
+import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
+import { parseContrast, type Contrast } from "../model/contrast.js";
+import { buildDesignMatrix, type DesignMatrix } from "../model/designMatrix.js";
+import { formulaVariables, parseFormula, type Formula } from "../model/formula.js";
+import { codeVariable, type Variable } from "../model/variables.js";
+
+export interface ExcludedSubject {
+  id: string;
+  /** 1-based line in the participants table. */
+  line: number;
+  reason: string;
+}
+
+export interface KeptSubject {
+  id: string;
+  /** 0-based row of the participants table. */
+  tableRow: number;
+}
+
+/** Everything a run needs, validated: the `check` command stops here. */
+export interface PreparedAnalysis {
+  design: DesignSpec;
+  formula: Formula;
+  participants: ParticipantsTable;
+  kept: KeptSubject[];
+  excluded: ExcludedSubject[];
+  matrix: DesignMatrix;
+  contrasts: Contrast[];
+  regions: Region[];
+  pairs: EdgePairs;
+  connectomes: LoadedConnectomes;
+  /** Exchangeability block of each kept subject (0-based codes), when `inference.blocks` is set. */
+  blocks?: { column: string; codes: Int32Array; labels: string[] };
+  /** Input files with their roles, for provenance (hashes are computed by the writer). */
+  inputs: { role: string; path: string }[];
+  warnings: string[];
+}
+
+export function connectomeSource(design: DesignSpec): ConnectomeSource {
+  const spec = design.connectomes;
+  if (spec.includes("{")) return { kind: "template", template: spec, baseDir: design.baseDir };
+  if (spec.toLowerCase().endsWith(".npy")) return { kind: "npy", path: path.resolve(design.baseDir, spec) };
+  throw new InputError(
+    `'connectomes' must be a path template with {participant_id} (one text matrix per subject) or a .npy stack; found '${spec}'`,
+    designKeyLocation(design, "connectomes"),
+  );
+}
+
+/** Reads and validates every input of a design file, in the order a user would fix them. */
+export function prepareAnalysis(designFile: string): PreparedAnalysis {
+  const design = readDesign(designFile);
+  return prepareFromDesign(design);
+}
+
+export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
+  const where = (key: string) => designKeyLocation(design, key);
+  const formula = parseFormula(design.model, where("model"));
+  const participantsPath = path.resolve(design.baseDir, design.subjects);
+  const participants = readParticipants(participantsPath);
+  const available = participants.header;
+
+  const needed = formulaVariables(formula);
+  for (const name of needed) {
+    if (!participants.columns.has(name)) {
+      const near = nearestName(name, available);
+      throw new InputError(
+        `the model uses '${name}', which is not a column of ${participants.file}`,
+        where("model"),
+        near ? `did you mean '${near}'?` : `columns: ${available.join(", ")}`,
+      );
+    }
+  }
+  for (const factor of Object.keys(design.levels)) {
+    if (!needed.includes(factor)) {
+      throw new InputError(`'levels' names '${factor}', which is not in the model`, where("levels"));
+    }
+  }
+  for (const name of design.center) {
+    if (!needed.includes(name)) throw new InputError(`'center' names '${name}', which is not in the model`, where("center"));
+  }
+  const blockColumn = design.inference.blocks;
+  if (blockColumn !== undefined && !participants.columns.has(blockColumn)) {
+    const near = nearestName(blockColumn, available);
+    throw new InputError(
+      `the exchangeability blocks column '${blockColumn}' is not in ${participants.file}`,
+      where("inference.blocks"),
+      near ? `did you mean '${near}'?` : `columns: ${available.join(", ")}`,
+    );
+  }
+
+  // Listwise deletion over the model and block columns.
+  const checked = blockColumn ? [...needed, blockColumn] : needed;
+  const kept: KeptSubject[] = [];
+  const excluded: ExcludedSubject[] = [];
+  participants.ids.forEach((id, row) => {
+    const missing = checked.filter((name) => participants.columns.get(name)![row] === null);
+    if (missing.length > 0) excluded.push({ id, line: participants.lines[row], reason: `missing ${missing.join(", ")}` });
+    else kept.push({ id, tableRow: row });
+  });
+  if (kept.length === 0) {
+    throw new InputError(
+      `no subject has values in every model column (${checked.join(", ")})`,
+      { file: participants.file },
+      "check for n/a cells in those columns",
+    );
+  }
+  const warnings: string[] = [];
+  if (excluded.length > 0) {
+    warnings.push(
+      `${excluded.length} subject${excluded.length > 1 ? "s" : ""} left out for missing values: ${excluded
+        .map((x) => `${x.id} (${x.reason})`)
+        .join("; ")}`,
+    );
+  }
+
+  const variables = new Map<string, Variable>();
+  for (const name of needed) {
+    const column = participants.columns.get(name)!;
+    variables.set(
+      name,
+      codeVariable(
+        name,
+        {
+          values: kept.map((k) => column[k.tableRow]!),
+          lines: kept.map((k) => participants.lines[k.tableRow]),
+          file: participants.file,
+        },
+        {
+          levels: design.levels[name],
+          center: design.center.includes(name),
+          levelsKey: where("levels"),
+          centerKey: where("center"),
+        },
+      ),
+    );
+  }
+  const matrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
+  const contrasts = design.contrasts.map((spec) =>
+    parseContrast(spec.name, spec.expression, matrix, { file: design.file, key: spec.key, line: spec.line }),
+  );
+
+  let blocks: PreparedAnalysis["blocks"];
+  if (blockColumn) {
+    const column = participants.columns.get(blockColumn)!;
+    const values = kept.map((k) => column[k.tableRow]!);
+    const labels = [...new Set(values)];
+    blocks = { column: blockColumn, codes: Int32Array.from(values, (v) => labels.indexOf(v)), labels };
+  }
+
+  const source = connectomeSource(design);
+  const connectomes = loadConnectomes(
+    source,
+    kept.map((k) => ({
+      id: k.id,
+      tableRow: k.tableRow,
+      values: Object.fromEntries(participants.header.map((name) => [name, participants.columns.get(name)![k.tableRow]])),
+    })),
+    { symmetrize: design.symmetrize, asymmetryTolerance: design.asymmetryTolerance, transform: design.transform },
+  );
+  if (connectomes.regionCount < 2) {
+    throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
+  }
+  const regions = design.regions
+    ? readRegions(path.resolve(design.baseDir, design.regions), connectomes.regionCount)
+    : defaultRegions(connectomes.regionCount);
+
+  const inputs = [
+    { role: "design", path: path.resolve(design.file) },
+    { role: "participants", path: participantsPath },
+    ...(design.regions ? [{ role: "regions", path: path.resolve(design.baseDir, design.regions) }] : []),
+    ...connectomes.files.map((file) => ({ role: "connectome", path: file })),
+  ];
+  return {
+    design,
+    formula,
+    participants,
+    kept,
+    excluded,
+    matrix,
+    contrasts,
+    regions,
+    pairs: edgePairs(connectomes.regionCount),
+    connectomes,
+    blocks,
+    inputs,
+    warnings,
+  };
+}

@@ -1,0 +1,117 @@
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import fc from "fast-check";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { parseParticipants, readParticipants } from "../../../src/io/participants.js";
+import { expectInputError, parsesOrInputError, resultOrInputError } from "./inputErrorAssertions.js";
+
+const TABLE = [
+  "participant_id\tgroup\tage\tsite",
+  "sub-ash01\tpatient\t34\tnorth",
+  "sub-ash02\tcontrol\tn/a\t",
+  "sub-ash03\tcontrol\t29\tsouth",
+].join("\n");
+
+describe("parseParticipants", () => {
+  it("returns the IDs, every column by name (participant_id included) and the file lines", () => {
+    const table = parseParticipants(TABLE, "participants.tsv");
+    expect(table.ids).toEqual(["sub-ash01", "sub-ash02", "sub-ash03"]);
+    expect(table.header).toEqual(["participant_id", "group", "age", "site"]);
+    expect(table.lines).toEqual([2, 3, 4]);
+    expect([...table.columns.keys()]).toEqual(table.header);
+    expect(table.columns.get("participant_id")).toEqual(table.ids);
+    expect(table.columns.get("group")).toEqual(["patient", "control", "control"]);
+  });
+
+  it("reads n/a and empty cells as null (the BIDS missing-value marker)", () => {
+    const table = parseParticipants(TABLE, "participants.tsv");
+    expect(table.columns.get("age")).toEqual(["34", null, "29"]);
+    expect(table.columns.get("site")).toEqual(["north", null, "south"]);
+  });
+
+  it("a first column other than participant_id is an error on line 1, column 1", () => {
+    expectInputError(() => parseParticipants("subject\tage\ns1\t3\n", "p.tsv"), {
+      file: "p.tsv",
+      line: 1,
+      column: 1,
+      message: ["participant_id", "'subject'"],
+    });
+  });
+
+  it("a repeated participant_id is an error naming both lines", () => {
+    expectInputError(() => parseParticipants("participant_id\tage\ns1\t3\ns2\t4\n\ns1\t5\n", "p.tsv"), {
+      file: "p.tsv",
+      line: 5,
+      column: 1,
+      message: ["duplicate participant_id 's1'", "lines 2 and 5"],
+    });
+  });
+
+  it("an empty or n/a participant_id is an error naming the line", () => {
+    expectInputError(() => parseParticipants("participant_id\tage\n\t3\n", "p.tsv"), { file: "p.tsv", line: 2, column: 1 });
+    expectInputError(() => parseParticipants("participant_id\tage\ns1\t3\nn/a\t4\n", "p.tsv"), {
+      file: "p.tsv",
+      line: 3,
+      column: 1,
+    });
+  });
+
+  it("a header without rows is an 'empty participants table'", () => {
+    expectInputError(() => parseParticipants("participant_id\tage\n\n", "p.tsv"), {
+      file: "p.tsv",
+      line: 1,
+      message: ["empty participants table"],
+    });
+  });
+
+  it("field-count errors of the underlying TSV keep their line", () => {
+    expectInputError(() => parseParticipants("participant_id\tage\ns1\n", "p.tsv"), { file: "p.tsv", line: 2 });
+  });
+
+  it("random tables either parse into consistent columns or raise an InputError", () => {
+    const cell = fc.constantFrom("", "n/a", "s1", "s2", "participant_id", "x y", "7");
+    const line = fc.array(cell, { minLength: 0, maxLength: 4 }).map((cells) => cells.join("\t"));
+    const text = fc
+      .tuple(fc.boolean(), fc.array(line, { maxLength: 6 }), fc.constantFrom("\n", "\r\n"))
+      .map(([bom, lines, eol]) => (bom ? "\uFEFF" : "") + lines.join(eol));
+    fc.assert(
+      fc.property(text, (t) => {
+        const table = resultOrInputError(() => parseParticipants(t, "p.tsv"));
+        if (table === undefined) return true;
+        expect(table.header[0]).toBe("participant_id");
+        expect(new Set(table.ids).size).toBe(table.ids.length);
+        for (const values of table.columns.values()) expect(values.length).toBe(table.ids.length);
+        return true;
+      }),
+      { numRuns: 5000 },
+    );
+  });
+
+  it("arbitrary text never raises anything but an InputError", () => {
+    const unit = fc.constantFrom("participant_id", "\t", "\n", "\r", " ", "n/a", "a", "\uFEFF");
+    fc.assert(
+      fc.property(fc.string({ unit, maxLength: 60 }), (t) => parsesOrInputError(() => parseParticipants(t, "p.tsv"))),
+      { numRuns: 5000 },
+    );
+  });
+});
+
+describe("readParticipants", () => {
+  let dir: string;
+  beforeAll(() => {
+    dir = mkdtempSync(join(tmpdir(), "plexus-io-participants-"));
+  });
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+  it("reads a participants file", () => {
+    const path = join(dir, "participants.tsv");
+    writeFileSync(path, TABLE);
+    expect(readParticipants(path)).toMatchObject({ file: path, ids: ["sub-ash01", "sub-ash02", "sub-ash03"] });
+  });
+
+  it("a missing participants file is an InputError naming it", () => {
+    const path = join(dir, "nope.tsv");
+    expectInputError(() => readParticipants(path), { file: path, message: ["cannot read"] });
+  });
+});
