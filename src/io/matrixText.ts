@@ -86,15 +86,6 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
 
     let column = 0;
     for (;;) {
-      const start = p;
-      while (p < stop) {
-        const c = text.charCodeAt(p);
-        if (c === SPACE || c === TAB || (commaSeparated && c === COMMA)) break;
-        p++;
-      }
-      if (p === start) {
-        throw new InputError(`empty cell in column ${column + 1}`, { file, line, column: column + 1 });
-      }
       if (size >= 0 && column >= size) {
         throw new InputError(`matrix is not square: row ${row + 1} has more than ${size} values`, {
           file,
@@ -102,9 +93,18 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
           column: column + 1,
         });
       }
-
-      let value = parseDecimalSpan(text, start, p);
+      const start = p;
+      let value = scanDecimal(text, start, stop);
+      p = scanEnd;
+      if (p < stop) {
+        const c = text.charCodeAt(p);
+        if (!(c === SPACE || c === TAB || (commaSeparated && c === COMMA))) value = NOT_DECIMAL;
+      }
       if (value !== value) {
+        p = tokenEnd(text, start, stop, commaSeparated);
+        if (p === start) {
+          throw new InputError(`empty cell in column ${column + 1}`, { file, line, column: column + 1 });
+        }
         const word = nonFiniteWord(text, start, p);
         if (word === "") {
           throw new InputError(
@@ -176,6 +176,19 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
  * Number(text.slice(start, end)) whenever the syntax is decimal.
  */
 export function parseDecimalSpan(text: string, start: number, end: number): number {
+  const value = scanDecimal(text, start, end);
+  return scanEnd === end ? value : NOT_DECIMAL;
+}
+
+/** Where the last scanDecimal stopped: one past its number, or its start if none was there. */
+let scanEnd = 0;
+
+/**
+ * Reads the longest decimal number at text[start …] (not beyond `stop`), sets
+ * `scanEnd` one past it and returns its value (NaN and scanEnd = start if no
+ * number starts there). The value equals Number() of the scanned text.
+ */
+function scanDecimal(text: string, start: number, stop: number): number {
   let p = start;
   let negative = false;
   let c = text.charCodeAt(p);
@@ -192,7 +205,7 @@ export function parseDecimalSpan(text: string, start: number, end: number): numb
   let sawDigit = false;
   let exact = true;
 
-  while (p < end) {
+  for (; p < stop; p++) {
     c = text.charCodeAt(p);
     if (c < ZERO || c > NINE) break;
     sawDigit = true;
@@ -204,11 +217,9 @@ export function parseDecimalSpan(text: string, start: number, end: number): numb
         exact = false;
       }
     }
-    p++;
   }
-  if (p < end && text.charCodeAt(p) === DOT) {
-    p++;
-    while (p < end) {
+  if (p < stop && text.charCodeAt(p) === DOT) {
+    for (p++; p < stop; p++) {
       c = text.charCodeAt(p);
       if (c < ZERO || c > NINE) break;
       sawDigit = true;
@@ -223,43 +234,47 @@ export function parseDecimalSpan(text: string, start: number, end: number): numb
       } else {
         exponent--;
       }
-      p++;
     }
   }
-  if (!sawDigit) return NOT_DECIMAL;
+  if (!sawDigit) {
+    scanEnd = start;
+    return NOT_DECIMAL;
+  }
 
-  if (p < end) {
-    c = text.charCodeAt(p);
-    if (c !== LOWER_E && c !== UPPER_E) return NOT_DECIMAL;
-    p++;
+  if (p < stop && ((c = text.charCodeAt(p)) === LOWER_E || c === UPPER_E)) {
+    let q = p + 1;
     let exponentNegative = false;
-    c = text.charCodeAt(p);
-    if (c === MINUS) {
-      exponentNegative = true;
-      p++;
-    } else if (c === PLUS) {
-      p++;
+    if (q < stop) {
+      c = text.charCodeAt(q);
+      if (c === MINUS) {
+        exponentNegative = true;
+        q++;
+      } else if (c === PLUS) {
+        q++;
+      }
     }
+    const digitsStart = q;
     let explicit = 0;
-    let sawExponentDigit = false;
-    while (p < end) {
-      c = text.charCodeAt(p);
+    for (; q < stop; q++) {
+      c = text.charCodeAt(q);
       if (c < ZERO || c > NINE) break;
-      sawExponentDigit = true;
       if (explicit < 100000) explicit = explicit * 10 + (c - ZERO);
-      p++;
     }
-    if (!sawExponentDigit || p !== end) return NOT_DECIMAL;
-    exponent += exponentNegative ? -explicit : explicit;
+    // Without exponent digits the "e" is not part of the number.
+    if (q > digitsStart) {
+      p = q;
+      exponent += exponentNegative ? -explicit : explicit;
+    }
   }
+  scanEnd = p;
 
-  if (mantissa === 0 && exact) return negative ? -0 : 0;
+  if (mantissa === 0) return negative ? -0 : 0;
   if (exact && mantissa < TWO_TO_53 && exponent >= -22 && exponent <= 22) {
     const magnitude =
       exponent >= 0 ? mantissa * EXACT_POWERS_OF_TEN[exponent] : mantissa / EXACT_POWERS_OF_TEN[-exponent];
     return negative ? -magnitude : magnitude;
   }
-  return Number(text.slice(start, end));
+  return Number(text.slice(start, p));
 }
 
 /** The Number() spelling of a non-finite word ("NaN", "Infinity", "-Infinity"), or "" if it is not one. */
@@ -275,6 +290,16 @@ function nonFiniteWord(text: string, start: number, end: number): string {
   if (word === "nan") return "NaN";
   if (word === "inf" || word === "infinity") return `${sign}Infinity`;
   return "";
+}
+
+/** End of the cell that starts at `start`: the next separator or the end of the line. */
+function tokenEnd(text: string, start: number, stop: number, commaSeparated: boolean): number {
+  let p = start;
+  for (; p < stop; p++) {
+    const c = text.charCodeAt(p);
+    if (c === SPACE || c === TAB || (commaSeparated && c === COMMA)) break;
+  }
+  return p;
 }
 
 function skipWhitespace(text: string, p: number, stop: number): number {

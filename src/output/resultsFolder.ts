@@ -41,6 +41,7 @@ export class ResultsFolder {
     } catch (error) {
       throw new InputError(`cannot create the folder ${parent}: ${(error as Error).message}`, { file: target });
     }
+    removeAbandonedStaging(parent, path.basename(resolved));
     const staging = path.join(parent, `.${path.basename(resolved)}.plexus-tmp-${process.pid}-${Date.now().toString(36)}`);
     mkdirSync(staging, { recursive: true });
     return new ResultsFolder(resolved, staging);
@@ -82,5 +83,31 @@ export class ResultsFolder {
     if (this.finished) return;
     rmSync(this.staging, { recursive: true, force: true });
     this.finished = true;
+  }
+}
+
+/** Removes staging folders left by runs that were killed (their process no longer exists). */
+function removeAbandonedStaging(parent: string, base: string): void {
+  const prefix = `.${base}.plexus-tmp-`;
+  let entries: string[];
+  try {
+    entries = readdirSync(parent);
+  } catch {
+    return;
+  }
+  for (const name of entries) {
+    if (!name.startsWith(prefix)) continue;
+    const pid = Number(name.slice(prefix.length).split("-")[0]);
+    if (!Number.isInteger(pid) || pid === process.pid || processAlive(pid)) continue;
+    rmSync(path.join(parent, name), { recursive: true, force: true });
+  }
+}
+
+function processAlive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (error) {
+    return (error as NodeJS.ErrnoException).code === "EPERM";
   }
 }

@@ -162,7 +162,12 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
       tableRow: k.tableRow,
       values: Object.fromEntries(participants.header.map((name) => [name, participants.columns.get(name)![k.tableRow]])),
     })),
-    { symmetrize: design.symmetrize, asymmetryTolerance: design.asymmetryTolerance, transform: design.transform },
+    {
+      symmetrize: design.symmetrize,
+      asymmetryTolerance: design.asymmetryTolerance,
+      transform: design.transform,
+      participantRowCount: participants.ids.length,
+    },
   );
   if (connectomes.regionCount < 2) {
     throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));

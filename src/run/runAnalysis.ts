@@ -1,9 +1,24 @@
+import { createHash } from "node:crypto";
 import path from "node:path";
+import { InputError } from "../errors.js";
 import { VERSION } from "../version.js";
+import { silentProgress, type Progress } from "../cli/progress.js";
+import { Checkpoint } from "../permute/checkpoint.js";
+import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs, type InputRecord } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
-import { componentsTable, edgesTable } from "../output/resultTables.js";
+import { nullTable } from "../output/nullTable.js";
+import { componentsTable, edgesTable, type ExtraEdgeColumn } from "../output/resultTables.js";
+import { SHARD_MANIFEST, type ShardManifest } from "../output/shardManifest.js";
 import { fitAll, observeContrast, type ObservedContrast } from "./analyzeContrasts.js";
+import {
+  computeNull,
+  familywiseInference,
+  needsPermutations,
+  setupNull,
+  type ContrastNull,
+  type FamilywiseResult,
+} from "./permutationInference.js";
 import { prepareAnalysis, type PreparedAnalysis } from "./prepareAnalysis.js";
 
 /** What the user asked for (CLI flags or library call). */
@@ -12,6 +27,14 @@ export interface RunOptions {
   out: string;
   force?: boolean;
   quiet?: boolean;
+  /** Worker threads for the permutations (default: the available cores). */
+  threads?: number;
+  /** Compute only this share of the permutations and write a shard folder for `merge`. */
+  shard?: { index: number; count: number };
+  /** Continue an interrupted run from its checkpoint. */
+  resume?: boolean;
+  /** Relabelings per checkpoint chunk. */
+  chunkSize?: number;
   /** The command line as typed, for provenance. */
   commandLine?: string[];
 }
@@ -24,67 +47,222 @@ export interface RunLog {
 export interface RunResult {
   prepared: PreparedAnalysis;
   contrasts: ObservedContrast[];
+  nulls: (ContrastNull | undefined)[];
   outputFolder: string;
   inputs: InputRecord[];
 }
 
-/** Runs a design end to end and writes the results folder atomically. */
-export function runAnalysis(options: RunOptions, log: RunLog): RunResult {
+export const DEFAULT_CHUNK_SIZE = 250;
+
+/**
+ * The fingerprint that ties a checkpoint or a shard to its run: the tool
+ * version, the inputs' hashes and every option that changes the null.
+ */
+export function runFingerprint(prepared: PreparedAnalysis, inputs: InputRecord[]): string {
+  const { inference } = prepared.design;
+  const payload = {
+    version: VERSION,
+    inputs: inputs.map((i) => [i.role, i.sha256]),
+    model: prepared.matrix.columns.map((c) => c.name),
+    contrasts: prepared.contrasts.map((c) => [c.name, [...c.vector]]),
+    transform: prepared.design.transform,
+    symmetrize: prepared.design.symmetrize,
+    inference: {
+      threshold: inference.threshold,
+      tail: inference.tail,
+      permutations: inference.permutations,
+      seed: inference.seed,
+      scheme: inference.scheme,
+      blocks: inference.blocks ?? null,
+      blockPermutation: inference.blockPermutation,
+    },
+  };
+  return createHash("sha256").update(JSON.stringify(payload)).digest("hex");
+}
+
+/** Runs a design end to end and writes the results (or one shard) folder atomically. */
+export async function runAnalysis(options: RunOptions, log: RunLog, progress: Progress = silentProgress): Promise<RunResult> {
   const prepared = prepareAnalysis(options.designFile);
   for (const warning of prepared.warnings) log.warn(warning);
+  const permutations = needsPermutations(prepared);
+  if (options.shard && !permutations) {
+    throw new InputError("--shard splits the permutations, but this design's method (fdr) draws none", {
+      file: prepared.design.file,
+      key: "inference.method",
+    });
+  }
+  const chunkSize = options.chunkSize ?? DEFAULT_CHUNK_SIZE;
+  const threads = options.threads ?? defaultThreads();
   const folder = ResultsFolder.open(options.out, { force: options.force ?? false });
+  let checkpoint: Checkpoint | undefined;
   try {
     const inputs = hashInputs(prepared.inputs);
+    const fingerprint = runFingerprint(prepared, inputs);
+    if (permutations && !options.shard) {
+      if (options.resume) {
+        checkpoint = Checkpoint.resume(options.out, fingerprint);
+      } else if (Checkpoint.exists(options.out) && !options.force) {
+        throw new InputError(
+          "an interrupted run left a checkpoint for this output folder",
+          { file: Checkpoint.folderFor(options.out) },
+          "add --resume to continue it, or --force to start over",
+        );
+      } else {
+        checkpoint = Checkpoint.create(options.out, fingerprint);
+      }
+    }
     const fit = fitAll(prepared);
     const contrasts = prepared.contrasts.map((contrast) => observeContrast(prepared, fit, contrast));
-    for (const result of contrasts) {
-      const { statistics } = result;
-      folder.write(
-        `${result.contrast.name}/edges.tsv`,
-        edgesTable(
-          prepared.pairs,
-          prepared.regions,
-          statistics.statistic,
-          statistics.estimate,
-          result.pUncorrected,
-          result.qFdr,
-          result.labels,
-          [
-            { name: "partial_r", values: statistics.partialR },
-            { name: "standard_error", values: statistics.standardError },
-          ],
-        ),
+    const nulls: (ContrastNull | undefined)[] = [];
+    for (const observed of contrasts) {
+      if (!permutations) {
+        nulls.push(undefined);
+        continue;
+      }
+      const setup = setupNull(prepared, observed);
+      nulls.push(
+        await computeNull(setup, observed.contrast.name, {
+          threads,
+          chunkSize,
+          shard: options.shard,
+          checkpoint,
+          progress: options.quiet ? silentProgress : progress,
+        }),
       );
-      folder.write(`${result.contrast.name}/components.tsv`, componentsTable(result.components, {}));
-      if (statistics.degenerate > 0) {
-        log.warn(
-          `${result.contrast.name}: ${statistics.degenerate} edge${statistics.degenerate > 1 ? "s have" : " has"} zero residual variance (e.g. absent in every subject) and no statistic`,
-        );
-      }
     }
-    folder.write("summary.json", `${JSON.stringify(buildSummary(prepared, contrasts, inputs, options), null, 2)}\n`);
+    if (options.shard) {
+      writeShard(folder, prepared, contrasts, nulls, inputs, fingerprint, options);
+    } else {
+      writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
+    }
     folder.commit();
+    checkpoint?.remove();
     if (!options.quiet) {
-      for (const result of contrasts) {
-        const significant = result.qFdr.filter((q) => q <= prepared.design.inference.alpha).length;
-        log.info(
-          `${result.contrast.name}: ${result.components.length} supra-threshold component(s) at t > ${prepared.design.inference.threshold}; ${significant} edge(s) with q_fdr ≤ ${prepared.design.inference.alpha}`,
+      if (!options.shard) for (const line of resultLines(prepared, contrasts, nulls)) log.info(line);
+      log.info(`${options.shard ? "shard" : "results"} written to ${folder.target}`);
+    }
+    for (const observed of contrasts) {
+      const degenerate = observed.statistics.degenerate;
+      if (degenerate > 0) {
+        log.warn(
+          `${observed.contrast.name}: ${degenerate} edge${degenerate > 1 ? "s have" : " has"} zero residual variance (e.g. absent in every subject) and no statistic`,
         );
       }
-      log.info(`results written to ${folder.target}`);
     }
-    return { prepared, contrasts, outputFolder: folder.target, inputs };
+    return { prepared, contrasts, nulls, outputFolder: folder.target, inputs };
   } catch (error) {
     folder.abandon();
     throw error;
   }
 }
 
+function resultLines(prepared: PreparedAnalysis, contrasts: ObservedContrast[], nulls: (ContrastNull | undefined)[]): string[] {
+  const { inference } = prepared.design;
+  return contrasts.map((observed, i) => {
+    const rule =
+      inference.tail === "both" ? `|t| > ${inference.threshold}` : inference.tail === "lower" ? `t < -${inference.threshold}` : `t > ${inference.threshold}`;
+    const head = `${observed.contrast.name}: ${observed.components.length} supra-threshold component(s) at ${rule}`;
+    const rows = nulls[i]?.rows;
+    if (!rows) {
+      const significant = observed.qFdr.filter((q) => q <= inference.alpha).length;
+      return `${head}; ${significant} edge(s) with q_fdr ≤ ${inference.alpha}`;
+    }
+    const fwe = familywiseInference(prepared, observed, rows, nulls[i]!.setup.context.plan.exact);
+    const significant = fwe.componentP.filter((r) => r.p <= inference.alpha).length;
+    const edges = fwe.edgeP ? `; ${fwe.edgeP.filter((p) => p <= inference.alpha).length} edge(s) with p_fwe ≤ ${inference.alpha}` : "";
+    return `${head}; ${significant} with p_fwe ≤ ${inference.alpha}${edges}`;
+  });
+}
+
+/** Writes every result file into the (staging) results folder. */
+export function writeResults(
+  folder: ResultsFolder,
+  prepared: PreparedAnalysis,
+  contrasts: ObservedContrast[],
+  nulls: (ContrastNull | undefined)[],
+  inputs: InputRecord[],
+  commandLine: string[] | null,
+): void {
+  const fwes: (FamilywiseResult | undefined)[] = [];
+  contrasts.forEach((observed, i) => {
+    const contrastNull = nulls[i];
+    const fwe = contrastNull
+      ? familywiseInference(prepared, observed, contrastNull.rows, contrastNull.setup.context.plan.exact)
+      : undefined;
+    fwes.push(fwe);
+    const { statistics } = observed;
+    const extra: ExtraEdgeColumn[] = [];
+    if (fwe?.edgeP) extra.push({ name: "p_fwe", values: fwe.edgeP });
+    extra.push({ name: "partial_r", values: statistics.partialR }, { name: "standard_error", values: statistics.standardError });
+    const name = observed.contrast.name;
+    folder.write(
+      `${name}/edges.tsv`,
+      edgesTable(
+        prepared.pairs,
+        prepared.regions,
+        statistics.statistic,
+        statistics.estimate,
+        observed.pUncorrected,
+        observed.qFdr,
+        observed.labels,
+        extra,
+      ),
+    );
+    folder.write(
+      `${name}/components.tsv`,
+      componentsTable(
+        observed.components,
+        fwe
+          ? {
+              pFwe: fwe.componentP.map((r) => r.p),
+              ...(fwe.exact ? {} : { pFweLow: fwe.componentP.map((r) => r.low), pFweHigh: fwe.componentP.map((r) => r.high) }),
+            }
+          : {},
+      ),
+    );
+    if (contrastNull) folder.write(`${name}/null.tsv`, nullTable(contrastNull.rows));
+  });
+  const summary = buildSummary(prepared, contrasts, nulls, fwes, inputs, commandLine);
+  folder.write("summary.json", `${JSON.stringify(summary, null, 2)}\n`);
+}
+
+function writeShard(
+  folder: ResultsFolder,
+  prepared: PreparedAnalysis,
+  contrasts: ObservedContrast[],
+  nulls: (ContrastNull | undefined)[],
+  inputs: InputRecord[],
+  fingerprint: string,
+  options: RunOptions,
+): void {
+  const first = nulls[0]!;
+  const manifest: ShardManifest = {
+    tool: { name: "plexus", version: VERSION },
+    design: path.resolve(prepared.design.file),
+    fingerprint,
+    seed: prepared.design.inference.seed,
+    shard: options.shard!,
+    range: { from: first.rows.from, to: first.rows.to - 1 },
+    total: first.setup.context.plan.count,
+    mode: first.setup.context.plan.exact ? "exact" : "monte-carlo",
+    contrasts: contrasts.map((c) => c.contrast.name),
+    inputs,
+  };
+  folder.write(SHARD_MANIFEST, `${JSON.stringify(manifest, null, 2)}\n`);
+  contrasts.forEach((observed, i) => folder.write(`${observed.contrast.name}/null.tsv`, nullTable(nulls[i]!.rows)));
+}
+
+function finiteOrNull(value: number): number | null {
+  return Number.isFinite(value) ? value : null;
+}
+
 export function buildSummary(
   prepared: PreparedAnalysis,
   contrasts: ObservedContrast[],
+  nulls: (ContrastNull | undefined)[],
+  fwes: (FamilywiseResult | undefined)[],
   inputs: InputRecord[],
-  options: RunOptions,
+  commandLine: string[] | null,
 ): Record<string, unknown> {
   const { design, matrix, connectomes } = prepared;
   const designDir = path.dirname(path.resolve(design.file));
@@ -94,9 +272,10 @@ export function buildSummary(
     if (variable.kind === "numeric" && design.center.includes(variable.name)) centers[variable.name] = variable.center;
     if (variable.kind === "factor") levels[variable.name] = variable.levels;
   }
+  const { inference } = design;
   return {
     tool: { name: "plexus", version: VERSION },
-    command: options.commandLine ?? null,
+    command: commandLine,
     inputs: inputs.map((input) => ({
       role: input.role,
       path: path.relative(designDir, input.path) || path.basename(input.path),
@@ -118,32 +297,56 @@ export function buildSummary(
       levels,
       centered: centers,
       rank: matrix.cols,
-      df: matrix.rows - matrix.cols,
     },
     df: matrix.rows - matrix.cols,
-    contrasts: contrasts.map((result) => ({
-      name: result.contrast.name,
-      expression: result.contrast.expression,
-      vector: [...result.contrast.vector],
-      edges_without_statistic: result.statistics.degenerate,
-      supra_threshold_components: result.components.length,
-    })),
+    contrasts: contrasts.map((observed, i) => {
+      const contrastNull = nulls[i];
+      const fwe = fwes[i];
+      const plan = contrastNull?.setup.context.plan;
+      return {
+        name: observed.contrast.name,
+        expression: observed.contrast.expression,
+        vector: [...observed.contrast.vector],
+        df: observed.statistics.df,
+        edges_without_statistic: observed.statistics.degenerate,
+        supra_threshold_components: observed.components.length,
+        significant_components: fwe ? fwe.componentP.filter((r) => r.p <= inference.alpha).length : null,
+        significant_edges_fdr: observed.qFdr.filter((q) => q <= inference.alpha).length,
+        ...(contrastNull && plan && fwe
+          ? {
+              mode: plan.exact ? "exact" : "monte-carlo",
+              permutations: plan.count,
+              distinct_relabelings: Number.isFinite(plan.distinct) ? plan.distinct : null,
+              scheme: contrastNull.setup.scheme,
+              scheme_reason: contrastNull.setup.schemeReason,
+              seed: plan.seed,
+              exchangeability_blocks: prepared.blocks
+                ? { column: prepared.blocks.column, count: prepared.blocks.labels.length, permutation: inference.blockPermutation }
+                : null,
+              critical_size: finiteOrNull(fwe.criticalSize),
+              critical_size_measure: inference.size,
+              critical_statistic: finiteOrNull(fwe.criticalStatistic),
+              smallest_possible_p: plan.exact ? 1 / plan.count : 1 / (plan.count + 1),
+            }
+          : { mode: null }),
+      };
+    }),
     options: {
       transform: design.transform,
       symmetrize: design.symmetrize,
       asymmetry_tolerance: design.asymmetryTolerance,
       inference: {
-        method: design.inference.method,
-        threshold: design.inference.threshold,
-        size: design.inference.size,
-        tail: design.inference.tail,
-        fdr: design.inference.fdr,
-        alpha: design.inference.alpha,
-        permutations: design.inference.permutations,
-        seed: design.inference.seed,
-        scheme: design.inference.scheme,
-        blocks: design.inference.blocks ?? null,
-        block_permutation: design.inference.blockPermutation,
+        method: inference.method,
+        threshold: inference.threshold,
+        size: inference.size,
+        tail: inference.tail,
+        fdr: inference.fdr,
+        alpha: inference.alpha,
+        permutations: inference.permutations,
+        seed: inference.seed,
+        scheme: inference.scheme,
+        blocks: inference.blocks ?? null,
+        block_permutation: inference.blockPermutation,
       },
     },
     warnings: prepared.warnings,

@@ -63,7 +63,9 @@ function roundCorrelation(z: number): number {
  *   + subject offset + edge noise          (SD σ together; see residualSd)
  *   + site offset + age effect · (age − 70)  (only when covariates are on)
  *   + planted shift                          (patients, planted edges only).
- * Cohen's d is defined with the pooled SD √((σ_c² + σ_p²)/2), where patients'
+ * Correlations live on the Fisher z = atanh(r) scale (Fisher 1915, Biometrika
+ * 10(4):507–521). Cohen's d (Cohen 1988, Statistical Power Analysis for the
+ * Behavioral Sciences, 2nd ed.) uses the pooled SD √((σ_c² + σ_p²)/2), where patients'
  * planted edges have SD σ√(1 + γ²) from the severity coupling, so the mean
  * shift is Δ = d·σ·√(1 + γ²/2). Effects and covariates never change which
  * random numbers the rest of the cohort draws, so the same seed with and

@@ -104,13 +104,13 @@ export function writeCohort(dir: string, cohort: SimulatedCohort, options: Write
   let targetState: "absent" | "empty" | "full" = "absent";
   if (existsSync(target)) {
     if (!statSync(target).isDirectory()) {
-      throw new InputError(`output path '${dir}' exists and is not a folder`, { file: dir });
+      throw new InputError("the output path exists and is not a folder", { file: dir });
     }
     targetState = readdirSync(target).length === 0 ? "empty" : "full";
   }
   if (targetState === "full" && options.force !== true) {
     throw new InputError(
-      `output folder '${dir}' already exists and is not empty`,
+      "the output folder already exists and is not empty",
       { file: dir },
       "choose a new folder, or pass --force to replace the cohort files in it",
     );

@@ -2,10 +2,17 @@ import type { Command } from "commander";
 import { formatFormula } from "../../model/formula.js";
 import { prepareAnalysis } from "../../run/prepareAnalysis.js";
 import { runAnalysis } from "../../run/runAnalysis.js";
+import { mergeShards } from "../../run/mergeShards.js";
+import { InputError } from "../../errors.js";
+import { silentProgress, stderrProgress } from "../progress.js";
 import type { OutputSink } from "../main.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */
 export function registerAnalysisCommands(program: Command, sink: OutputSink, argv: () => string[]): void {
+  const log = {
+    info: (text: string) => sink.err(`${text}\n`),
+    warn: (text: string) => sink.err(`plexus: warning: ${text}\n`),
+  };
   program
     .command("check")
     .description("validate a design file and every input it names, and print the model that would be fitted")
@@ -34,15 +41,63 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
     .description("fit the model at every edge, run the inference and write the results folder")
     .argument("<design>", "design file (YAML)")
     .requiredOption("-o, --out <dir>", "results folder (must not exist or be empty, unless --force)")
-    .option("-f, --force", "replace an existing results folder", false)
+    .option("-f, --force", "replace an existing results folder (and start over from any checkpoint)", false)
     .option("-q, --quiet", "print nothing but errors", false)
-    .action((designFile: string, flags: { out: string; force: boolean; quiet: boolean }) => {
-      runAnalysis(
-        { designFile, out: flags.out, force: flags.force, quiet: flags.quiet, commandLine: ["plexus", ...argv()] },
+    .option("-t, --threads <n>", "worker threads for the permutations (default: all cores)")
+    .option("--shard <k/n>", "compute only the k-th of n equal shares of the permutations; combine with `plexus merge`")
+    .option("--resume", "continue an interrupted run from its checkpoint", false)
+    .action(async (designFile: string, flags: RunFlags) => {
+      await runAnalysis(
         {
-          info: (text) => sink.err(`${text}\n`),
-          warn: (text) => sink.err(`plexus: warning: ${text}\n`),
+          designFile,
+          out: flags.out,
+          force: flags.force,
+          quiet: flags.quiet,
+          threads: flags.threads === undefined ? undefined : parseThreads(flags.threads),
+          shard: flags.shard === undefined ? undefined : parseShard(flags.shard),
+          resume: flags.resume,
+          commandLine: ["plexus", ...argv()],
         },
+        log,
+        flags.quiet ? silentProgress : stderrProgress(sink),
       );
     });
+
+  program
+    .command("merge")
+    .description("combine shard folders written by `plexus run --shard k/n` into one results folder")
+    .argument("<shards...>", "the shard folders, in any order")
+    .requiredOption("-o, --out <dir>", "results folder (must not exist or be empty, unless --force)")
+    .option("-f, --force", "replace an existing results folder", false)
+    .option("-q, --quiet", "print nothing but errors", false)
+    .action((shards: string[], flags: { out: string; force: boolean; quiet: boolean }) => {
+      mergeShards(shards, { out: flags.out, force: flags.force, quiet: flags.quiet, commandLine: ["plexus", ...argv()] }, log);
+    });
+}
+
+interface RunFlags {
+  out: string;
+  force: boolean;
+  quiet: boolean;
+  threads?: string;
+  shard?: string;
+  resume: boolean;
+}
+
+export function parseThreads(text: string): number {
+  const value = Number(text);
+  if (!Number.isInteger(value) || value < 1 || value > 256) {
+    throw new InputError(`--threads takes a whole number from 1 to 256, found '${text}'`, { key: "--threads" });
+  }
+  return value;
+}
+
+export function parseShard(text: string): { index: number; count: number } {
+  const match = /^(\d+)\/(\d+)$/.exec(text.trim());
+  const index = match ? Number(match[1]) : NaN;
+  const count = match ? Number(match[2]) : NaN;
+  if (!match || count < 1 || index < 1 || index > count || count > 100_000) {
+    throw new InputError(`--shard takes k/n with 1 ≤ k ≤ n (e.g. 3/10), found '${text}'`, { key: "--shard" });
+  }
+  return { index, count };
 }

@@ -8,19 +8,28 @@ import type { OutputSink } from "../main.js";
 interface SimulateFlags {
   out?: string;
   seed?: string;
-  regions: string;
-  patients: string;
-  controls: string;
-  kind: string;
-  effectRegions: string;
+  regions?: string;
+  patients?: string;
+  controls?: string;
+  kind?: string;
+  effectRegions?: string;
   effectSize?: string;
   effect: boolean;
   covariates: boolean;
-  format: string;
+  format?: string;
   force?: boolean;
 }
 
-const DEFAULT_EFFECT_SIZE = 1.2;
+/** Defaults, applied after parsing so that help shows them as plain values. */
+const DEFAULTS = {
+  regions: "60",
+  patients: "30",
+  controls: "30",
+  kind: "correlation",
+  effectRegions: "6",
+  effectSize: 1.2,
+  format: "tsv",
+} as const;
 
 function wholeNumber(text: string, key: string, minimum: number): number {
   const value = /^\s*\d+\s*$/.test(text) ? Number(text) : Number.NaN;
@@ -46,24 +55,24 @@ export function resolveSimulateFlags(flags: SimulateFlags): SimulationRun {
     throw new InputError("a seed is required, so the cohort can be made again", { key: "--seed" });
   }
   const seed = wholeNumber(flags.seed, "--seed", 0);
-  const regions = wholeNumber(flags.regions, "--regions", 2);
-  const patients = wholeNumber(flags.patients, "--patients", 0);
-  const controls = wholeNumber(flags.controls, "--controls", 0);
+  const regions = wholeNumber(flags.regions ?? DEFAULTS.regions, "--regions", 2);
+  const patients = wholeNumber(flags.patients ?? DEFAULTS.patients, "--patients", 0);
+  const controls = wholeNumber(flags.controls ?? DEFAULTS.controls, "--controls", 0);
   if (patients + controls === 0) {
     throw new InputError("the cohort needs at least one participant", { key: "--patients" });
   }
-  const kind = choice(flags.kind, "--kind", ["correlation", "counts"] as const);
-  const format = choice(flags.format, "--format", ["tsv", "npy"] as const);
+  const kind = choice(flags.kind ?? DEFAULTS.kind, "--kind", ["correlation", "counts"] as const);
+  const format = choice(flags.format ?? DEFAULTS.format, "--format", ["tsv", "npy"] as const);
 
   let effect: SimulationRun["simulation"]["effect"] = null;
   if (flags.effect) {
-    const effectRegions = wholeNumber(flags.effectRegions, "--effect-regions", 2);
+    const effectRegions = wholeNumber(flags.effectRegions ?? DEFAULTS.effectRegions, "--effect-regions", 2);
     if (effectRegions > regions) {
       throw new InputError(`the effect cannot span ${effectRegions} regions when there are ${regions}`, {
         key: "--effect-regions",
       });
     }
-    let size = DEFAULT_EFFECT_SIZE;
+    let size: number = DEFAULTS.effectSize;
     if (flags.effectSize !== undefined) {
       size = /^\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*$/.test(flags.effectSize) ? Number(flags.effectSize) : Number.NaN;
       if (!Number.isFinite(size) || size === 0) {
@@ -92,15 +101,15 @@ export function registerSimulate(program: Command, sink: OutputSink): void {
     .description("Write an invented cohort of connectivity matrices, optionally with a planted group effect.")
     .option("--out <dir>", "folder to write the cohort into (required)")
     .option("--seed <n>", "seed of the random generator; the same seed writes identical files (required)")
-    .option("--regions <n>", "number of regions", "60")
-    .option("--patients <n>", "number of patients", "30")
-    .option("--controls <n>", "number of controls", "30")
-    .option("--kind <kind>", "correlation (Fisher z model scale) or counts (log1p model scale)", "correlation")
-    .option("--effect-regions <n>", "regions in the planted subnetwork (every edge among them)", "6")
-    .option("--effect-size <d>", `Cohen's d of patients minus controls on the planted edges (default ${DEFAULT_EFFECT_SIZE})`)
+    .option("--regions <n>", `number of regions (default ${DEFAULTS.regions})`)
+    .option("--patients <n>", `number of patients (default ${DEFAULTS.patients})`)
+    .option("--controls <n>", `number of controls (default ${DEFAULTS.controls})`)
+    .option("--kind <kind>", `correlation (model scale Fisher z) or counts (model scale log1p) (default ${DEFAULTS.kind})`)
+    .option("--effect-regions <n>", `regions in the planted subnetwork, every edge among them (default ${DEFAULTS.effectRegions})`)
+    .option("--effect-size <d>", `Cohen's d of patients minus controls on the planted edges (default ${DEFAULTS.effectSize})`)
     .option("--no-effect", "plant no group effect")
     .option("--no-covariates", "write only participant_id and group, with no age or site effects")
-    .option("--format <format>", "tsv (one file per participant) or npy (one S×N×N array)", "tsv")
+    .option("--format <format>", `tsv (one file per participant) or npy (one S×N×N array) (default ${DEFAULTS.format})`)
     .option("--force", "replace the cohort files in a non-empty output folder")
     .action((flags: SimulateFlags) => {
       const run = resolveSimulateFlags(flags);

@@ -66,6 +66,17 @@ describe("plexus simulate", () => {
     expect(readFileSync(join(out, "participants.tsv"), "utf8").split("\n")[0]).toBe("participant_id\tgroup");
   });
 
+  it("applies the defaults: 60 regions, 30 patients, 30 controls, correlation, a 6-region effect of d = 1.2, tsv", async () => {
+    const out = join(scratchDir(), "defaults");
+    const sink = capture();
+    expect(await main(["simulate", "--out", out, "--seed", "3"], sink)).toBe(0);
+    expect(sink.stdout).toBe(
+      `plexus simulate: wrote 60 participants (30 patients, 30 controls), 60 regions, correlation matrices as tsv, planted 15 edges among 6 regions (d = 1.2), seed 3 to ${out}\n`,
+    );
+    expect(readdirSync(join(out, "connectomes"))).toHaveLength(60);
+    expect(readFileSync(join(out, "connectomes", "sub-001.tsv"), "utf8").trimEnd().split("\n")).toHaveLength(60);
+  });
+
   const mistakes: Array<[string[], string]> = [
     [["--seed", "1"], "--out"],
     [["--out", "X"], "--seed"],

@@ -149,7 +149,7 @@ describe("writeCohort", () => {
     }
     expect(caught).toBeInstanceOf(InputError);
     expect((caught as InputError).location.file).toBe(out);
-    expect((caught as InputError).message).toContain(out);
+    expect((caught as InputError).format()).toContain(out);
     expect(readdirSync(out)).toEqual(["notes.txt"]);
     expect(readdirSync(root)).toEqual(["taken"]);
   });

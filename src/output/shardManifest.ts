@@ -1,0 +1,19 @@
+import type { InputRecord } from "./provenance.js";
+
+/** shard.json: what a shard folder holds and what it must match to be merged. */
+export const SHARD_MANIFEST = "shard.json";
+
+export interface ShardManifest {
+  tool: { name: string; version: string };
+  /** Absolute path of the design file the shard ran. */
+  design: string;
+  fingerprint: string;
+  seed: number;
+  shard: { index: number; count: number };
+  /** 1-based, inclusive range of relabelings computed. */
+  range: { from: number; to: number };
+  total: number;
+  mode: "exact" | "monte-carlo";
+  contrasts: string[];
+  inputs: InputRecord[];
+}

@@ -1,0 +1,128 @@
+import { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
+import path from "node:path";
+import { createHash } from "node:crypto";
+import { InputError } from "../errors.js";
+import type { NullChunk } from "./nullRange.js";
+
+/**
+ * The null distribution saved chunk by chunk beside the results folder, so
+ * an interrupted run (even kill -9) can continue with `--resume` and end with
+ * exactly the results of an uninterrupted run. Each chunk file is written to
+ * a temporary name and renamed (atomic on one file system) and carries a
+ * SHA-256 of its rows; the manifest's fingerprint ties the checkpoint to the
+ * design, the inputs' hashes, the seed and the plan.
+ */
+export class Checkpoint {
+  private constructor(
+    readonly folder: string,
+    readonly fingerprint: string,
+  ) {}
+
+  static folderFor(outputFolder: string): string {
+    const resolved = path.resolve(outputFolder);
+    return path.join(path.dirname(resolved), `.${path.basename(resolved)}.plexus-checkpoint`);
+  }
+
+  static exists(outputFolder: string): boolean {
+    return existsSync(path.join(Checkpoint.folderFor(outputFolder), "manifest.json"));
+  }
+
+  /** Starts a new checkpoint, removing any earlier one. */
+  static create(outputFolder: string, fingerprint: string): Checkpoint {
+    const folder = Checkpoint.folderFor(outputFolder);
+    rmSync(folder, { recursive: true, force: true });
+    mkdirSync(folder, { recursive: true });
+    writeAtomically(path.join(folder, "manifest.json"), `${JSON.stringify({ fingerprint }, null, 2)}\n`);
+    return new Checkpoint(folder, fingerprint);
+  }
+
+  /** Opens an earlier checkpoint for --resume; refuses one made for other inputs or options. */
+  static resume(outputFolder: string, fingerprint: string): Checkpoint {
+    const folder = Checkpoint.folderFor(outputFolder);
+    const manifestPath = path.join(folder, "manifest.json");
+    if (!existsSync(manifestPath)) return Checkpoint.create(outputFolder, fingerprint);
+    let recorded: unknown;
+    try {
+      recorded = JSON.parse(readFileSync(manifestPath, "utf8")).fingerprint;
+    } catch {
+      throw new InputError("the checkpoint's manifest is damaged", { file: manifestPath }, `delete ${folder} and run again without --resume`);
+    }
+    if (recorded !== fingerprint) {
+      throw new InputError(
+        "the checkpoint was made for a different design, inputs, seed or options",
+        { file: manifestPath },
+        `run without --resume to start over (the checkpoint will be replaced), or restore the original inputs`,
+      );
+    }
+    return new Checkpoint(folder, fingerprint);
+  }
+
+  private chunkPath(contrast: string, from: number, to: number): string {
+    return path.join(this.folder, `${contrast}.${from}-${to}.json`);
+  }
+
+  save(contrast: string, chunk: NullChunk): void {
+    const rows = {
+      from: chunk.from,
+      to: chunk.to,
+      maxExtent: Array.from(chunk.maxExtent),
+      maxMass: Array.from(chunk.maxMass),
+      maxStatistic: Array.from(chunk.maxStatistic, (v) => (Number.isNaN(v) ? "NaN" : v)),
+    };
+    const body = JSON.stringify(rows);
+    const record = { sha256: sha256(body), rows: body };
+    writeAtomically(this.chunkPath(contrast, chunk.from, chunk.to), JSON.stringify(record));
+  }
+
+  /** The saved chunks of a contrast, keyed by first k; a damaged chunk is refused. */
+  load(contrast: string): Map<number, NullChunk> {
+    const out = new Map<number, NullChunk>();
+    const prefix = `${contrast}.`;
+    for (const name of readdirSync(this.folder)) {
+      if (!name.startsWith(prefix) || !name.endsWith(".json") || !/^\d+-\d+\.json$/.test(name.slice(prefix.length))) continue;
+      const file = path.join(this.folder, name);
+      let chunk: NullChunk;
+      try {
+        const record = JSON.parse(readFileSync(file, "utf8")) as { sha256: string; rows: string };
+        if (sha256(record.rows) !== record.sha256) throw new Error("checksum mismatch");
+        const rows = JSON.parse(record.rows) as {
+          from: number;
+          to: number;
+          maxExtent: number[];
+          maxMass: number[];
+          maxStatistic: (number | string)[];
+        };
+        chunk = {
+          from: rows.from,
+          to: rows.to,
+          maxExtent: Float64Array.from(rows.maxExtent),
+          maxMass: Float64Array.from(rows.maxMass),
+          maxStatistic: Float64Array.from(rows.maxStatistic, (v) => (v === "NaN" ? NaN : Number(v))),
+        };
+        if (chunk.maxExtent.length !== chunk.to - chunk.from) throw new Error("wrong length");
+      } catch (error) {
+        throw new InputError(
+          `a checkpoint chunk is damaged (${(error as Error).message})`,
+          { file },
+          "run without --resume to start over",
+        );
+      }
+      out.set(chunk.from, chunk);
+    }
+    return out;
+  }
+
+  remove(): void {
+    rmSync(this.folder, { recursive: true, force: true });
+  }
+}
+
+function sha256(text: string): string {
+  return createHash("sha256").update(text).digest("hex");
+}
+
+function writeAtomically(file: string, content: string): void {
+  const temporary = `${file}.tmp-${process.pid}`;
+  writeFileSync(temporary, content);
+  renameSync(temporary, file);
+}

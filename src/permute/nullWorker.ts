@@ -1,0 +1,9 @@
+import { parentPort, workerData } from "node:worker_threads";
+import { computeNullRange, type NullContext } from "./nullRange.js";
+
+/** A worker thread: receives ranges of relabelings, returns their null rows. */
+const context = workerData as NullContext;
+parentPort!.on("message", (range: { from: number; to: number }) => {
+  const chunk = computeNullRange(context, range.from, range.to);
+  parentPort!.postMessage(chunk, [chunk.maxExtent.buffer, chunk.maxMass.buffer, chunk.maxStatistic.buffer] as ArrayBuffer[]);
+});

@@ -1,0 +1,78 @@
+import { createHash } from "node:crypto";
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { dirname, join, relative, resolve } from "node:path";
+import { fileURLToPath } from "node:url";
+import { afterAll, describe, expect, it } from "vitest";
+import { readDesign } from "../../../src/io/designFile.js";
+import { runSimulation } from "../../../src/simulate/runSimulation.js";
+
+const ROOT = resolve(dirname(fileURLToPath(import.meta.url)), "../../..");
+const DEMO = join(ROOT, "demo-cohort");
+/** Files in demo-cohort/ that are not written by the simulator. */
+const NOT_GENERATED = new Set(["README.md", "make.sh"]);
+
+function treeDigest(dir: string): Record<string, string> {
+  const out: Record<string, string> = {};
+  const walk = (folder: string) => {
+    for (const entry of readdirSync(folder, { withFileTypes: true })) {
+      const full = join(folder, entry.name);
+      if (entry.isDirectory()) walk(full);
+      else if (!NOT_GENERATED.has(relative(dir, full))) {
+        out[relative(dir, full)] = createHash("sha256").update(readFileSync(full)).digest("hex");
+      }
+    }
+  };
+  walk(dir);
+  return out;
+}
+
+const scratch = mkdtempSync(join(tmpdir(), "plexus-demo-cohort-"));
+afterAll(() => rmSync(scratch, { recursive: true, force: true }));
+
+describe("demo-cohort/", () => {
+  it("is exactly what make.sh's command writes (seed 2026, 30 + 30, 60 regions, d = 1.2 on 6 regions)", () => {
+    const makeScript = readFileSync(join(DEMO, "make.sh"), "utf8");
+    expect(makeScript).toContain(
+      "--seed 2026 \\\n  --regions 60 --patients 30 --controls 30 --kind correlation \\\n  --effect-regions 6 --effect-size 1.2 --format tsv --force",
+    );
+    const out = join(scratch, "demo");
+    runSimulation({
+      out,
+      seed: 2026,
+      simulation: {
+        regions: 60,
+        patients: 30,
+        controls: 30,
+        kind: "correlation",
+        effect: { regions: 6, size: 1.2 },
+        covariates: true,
+      },
+      format: "tsv",
+      force: false,
+    });
+    const expected = treeDigest(out);
+    expect(Object.keys(expected)).toHaveLength(63);
+    expect(treeDigest(DEMO)).toEqual(expected);
+  });
+
+  it("README.md names every planted region and the columns of participants.tsv", () => {
+    const readme = readFileSync(join(DEMO, "README.md"), "utf8");
+    const planted = readFileSync(join(DEMO, "planted.tsv"), "utf8").trimEnd().split("\n").slice(1);
+    for (const label of new Set(planted.flatMap((line) => line.split("\t")))) expect(readme).toContain(`\`${label}\``);
+    const header = readFileSync(join(DEMO, "participants.tsv"), "utf8").split("\n")[0].split("\t");
+    for (const column of header) expect(readme).toContain(`\`${column}\``);
+  });
+});
+
+describe("designs/ on the demo cohort", () => {
+  for (const name of ["clinic-contrast", "symptom-within-patients", "one-sample"]) {
+    it(`designs/${name}.yaml reads as a design whose files exist`, () => {
+      const design = readDesign(join(ROOT, "designs", `${name}.yaml`));
+      expect(existsSync(resolve(design.baseDir, design.subjects))).toBe(true);
+      expect(existsSync(resolve(design.baseDir, design.regions as string))).toBe(true);
+      expect(existsSync(resolve(design.baseDir, design.connectomes.replace("{participant_id}", "sub-001")))).toBe(true);
+      expect(design.transform).toBe("fisher-z");
+    });
+  }
+});
