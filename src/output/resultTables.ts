@@ -1,4 +1,6 @@
 import type { Region } from "../io/regions.js";
+import { formulaVariables } from "../model/formula.js";
+import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { ComponentSummary } from "../inference/components.js";
 import { formatTsv, type Cell } from "./tsvWriter.js";
@@ -61,4 +63,38 @@ export function componentsTable(components: ComponentSummary[], inference: Compo
     ...(inference.pFweLow ? [inference.pFweLow[k], inference.pFweHigh![k]] : []),
   ]);
   return formatTsv([...COMPONENT_COLUMNS, ...extraNames], rows);
+}
+
+/**
+ * subjects.tsv: every participant of the table with the model (and block)
+ * columns as read, whether the analysis used them, and why not.
+ */
+export function subjectsTable(prepared: PreparedAnalysis): string {
+  const columns = formulaVariables(prepared.formula);
+  if (prepared.blocks && !columns.includes(prepared.blocks.column)) columns.push(prepared.blocks.column);
+  const excluded = new Map(prepared.excluded.map((x) => [x.id, x.reason]));
+  const { participants } = prepared;
+  const rows: Cell[][] = participants.ids.map((id, row) => [
+    id,
+    ...columns.map((name) => participants.columns.get(name)![row] ?? "n/a"),
+    excluded.has(id) ? "no" : "yes",
+    excluded.get(id) ?? "",
+  ]);
+  return formatTsv(["participant_id", ...columns, "included", "exclusion_reason"], rows);
+}
+
+/** regions.tsv: the regions in matrix order, as used (generated labels when none were given). */
+export function regionsTable(regions: Region[]): string {
+  const hasCoordinates = regions.some((r) => r.x !== undefined);
+  const hasHemisphere = regions.some((r) => r.hemisphere !== undefined);
+  const hasSystem = regions.some((r) => r.system !== undefined);
+  const header = ["index", "label", ...(hasCoordinates ? ["x", "y", "z"] : []), ...(hasHemisphere ? ["hemisphere"] : []), ...(hasSystem ? ["system"] : [])];
+  const rows: Cell[][] = regions.map((r, i) => [
+    i + 1,
+    r.label,
+    ...(hasCoordinates ? [r.x ?? null, r.y ?? null, r.z ?? null] : []),
+    ...(hasHemisphere ? [r.hemisphere ?? ""] : []),
+    ...(hasSystem ? [r.system ?? ""] : []),
+  ]);
+  return formatTsv(header, rows);
 }

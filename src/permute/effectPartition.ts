@@ -116,18 +116,21 @@ export function partitionEffect(design: Float64Array, subjects: number, columns:
 
 /**
  * Residuals of the reduced (nuisance-only) model at every edge, R_z = (I − H_Z)Y,
- * and their sums of squares; subject-major like the data.
+ * and their sums of squares. The data are subject-major (data[s·E + e]); the
+ * residuals are returned edge-major (residuals[e·S + s]) for the permutation kernel.
  */
 export function reducedResiduals(
   data: Float64Array,
   subjects: number,
   edges: number,
   nuisanceBasis: Float64Array[],
+  residuals: Float64Array = new Float64Array(subjects * edges),
 ): { residuals: Float64Array; sumSquares: Float64Array } {
+  const S = subjects;
   const E = edges;
   const k = nuisanceBasis.length;
   const projections = new Float64Array(k * E);
-  for (let s = 0; s < subjects; s++) {
+  for (let s = 0; s < S; s++) {
     const row = s * E;
     for (let j = 0; j < k; j++) {
       const w = nuisanceBasis[j][s];
@@ -135,17 +138,22 @@ export function reducedResiduals(
       for (let e = 0; e < E; e++) projections[out + e] += w * data[row + e];
     }
   }
-  const residuals = new Float64Array(subjects * E);
   const sumSquares = new Float64Array(E);
-  for (let s = 0; s < subjects; s++) {
-    const row = s * E;
-    for (let e = 0; e < E; e++) residuals[row + e] = data[row + e];
+  const column = new Float64Array(S);
+  for (let e = 0; e < E; e++) {
+    for (let s = 0; s < S; s++) column[s] = data[s * E + e];
     for (let j = 0; j < k; j++) {
-      const w = nuisanceBasis[j][s];
-      const from = j * E;
-      for (let e = 0; e < E; e++) residuals[row + e] -= w * projections[from + e];
+      const f = projections[j * E + e];
+      const u = nuisanceBasis[j];
+      for (let s = 0; s < S; s++) column[s] -= f * u[s];
     }
-    for (let e = 0; e < E; e++) sumSquares[e] += residuals[row + e] * residuals[row + e];
+    let ss = 0;
+    const at = e * S;
+    for (let s = 0; s < S; s++) {
+      residuals[at + s] = column[s];
+      ss += column[s] * column[s];
+    }
+    sumSquares[e] = ss;
   }
   return { residuals, sumSquares };
 }

@@ -63,9 +63,8 @@ export function buildNullContext(options: {
   const { scheme, reason } = chooseScheme(partition, inference.scheme, options.where);
   const usesConstant = scheme === "sign-flip" || !partition.constantInNuisance;
   const nuisance = usesConstant ? partition.nuisanceBasis : partition.nuisanceBasis.slice(1);
-  const reduced = reducedResiduals(data, S, edges, partition.nuisanceBasis);
   const residuals = sharedFloat64(S * edges);
-  residuals.set(reduced.residuals);
+  const reduced = reducedResiduals(data, S, edges, partition.nuisanceBasis, residuals);
   const valid = Uint8Array.from(observed, (t) => (Number.isFinite(t) ? 1 : 0));
   const blocks = options.blocks ? [...options.blocks] : undefined;
   if (blocks && inference.blockPermutation === "whole") {

@@ -47,7 +47,7 @@ export function computeNullRange(context: NullContext, from: number, to: number)
   const maxima = new NullMaxima(context.regionA, context.regionB, context.regionCount, context.threshold, context.tail);
   const weights = new Float64Array(RELABELING_BATCH * c * S);
   const statistics = new Float64Array(RELABELING_BATCH * E);
-  const scratch = new Float64Array(RELABELING_BATCH * c * EDGE_BLOCK);
+  const products = new Float64Array(RELABELING_BATCH * c * EDGE_BLOCK);
   const permutation = new Int32Array(S);
   const signs = new Float64Array(S);
 
@@ -84,7 +84,7 @@ export function computeNullRange(context: NullContext, from: number, to: number)
         }
       }
     }
-    permutedStatistics(kernel, weights, batch, c, statistics, scratch);
+    permutedStatistics(kernel, weights, batch, c, statistics, products);
     for (let b = 0; b < batch; b++) record(k + b, statistics.subarray(b * E, (b + 1) * E));
     k += batch;
   }

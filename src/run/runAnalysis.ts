@@ -8,7 +8,7 @@ import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs, type InputRecord } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
 import { nullTable } from "../output/nullTable.js";
-import { componentsTable, edgesTable, type ExtraEdgeColumn } from "../output/resultTables.js";
+import { componentsTable, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "../output/resultTables.js";
 import { SHARD_MANIFEST, type ShardManifest } from "../output/shardManifest.js";
 import { fitAll, observeContrast, type ObservedContrast } from "./analyzeContrasts.js";
 import {
@@ -222,6 +222,8 @@ export function writeResults(
     );
     if (contrastNull) folder.write(`${name}/null.tsv`, nullTable(contrastNull.rows));
   });
+  folder.write("subjects.tsv", subjectsTable(prepared));
+  folder.write("regions.tsv", regionsTable(prepared.regions));
   const summary = buildSummary(prepared, contrasts, nulls, fwes, inputs, commandLine);
   folder.write("summary.json", `${JSON.stringify(summary, null, 2)}\n`);
 }

@@ -1,0 +1,51 @@
+/**
+ * plexus as a library: the public API. Everything else under src/ is internal.
+ * The data's path: read inputs → build the model → edge statistics →
+ * permutation engine → inference → outputs.
+ */
+export { InputError, isInputError, type InputLocation } from "./errors.js";
+export { VERSION } from "./version.js";
+
+// 1. Inputs
+export { readDesign, parseDesign, type DesignSpec, type InferenceSpec, type ContrastSpec } from "./io/designFile.js";
+export { readParticipants, parseParticipants, type ParticipantsTable } from "./io/participants.js";
+export { parseMatrixText } from "./io/matrixText.js";
+export { parseNpy, encodeNpy, type NpyArray } from "./io/npy.js";
+export { readRegions, parseRegions, defaultRegions, type Region } from "./io/regions.js";
+export { loadConnectomes, type ConnectomeSource, type LoadedConnectomes } from "./io/connectomes.js";
+
+// 2. The model
+export { parseFormula, formatFormula, type Formula } from "./model/formula.js";
+export { codeVariable, type Variable } from "./model/variables.js";
+export { buildDesignMatrix, type DesignMatrix, type DesignColumn } from "./model/designMatrix.js";
+export { parseContrast, type Contrast } from "./model/contrast.js";
+export { thinQr } from "./model/qr.js";
+export { rankReport } from "./model/rank.js";
+
+// 3. Edge statistics
+export { edgePairs, edgeIndexOf, edgeCountFor, type EdgePairs } from "./edges/edgeIndex.js";
+export { fitEdges, unscaledCovariance, contrastVarianceFactor, type EdgeFit } from "./edges/fitEdges.js";
+export { contrastStatistics, type EdgeStatistics } from "./edges/contrastStatistics.js";
+export { tailPValues } from "./edges/tailPValues.js";
+export { studentTUpperTail, studentTCdf, studentTQuantile, studentTDensity } from "./distributions/studentT.js";
+
+// 4. Permutation engine
+export { partitionEffect, reducedResiduals, type EffectPartition } from "./permute/effectPartition.js";
+export { permutedStatistics, type KernelData } from "./permute/permutedStatistics.js";
+export { planRelabelings, Relabeler, designRowTypes, type RelabelingPlan } from "./permute/relabelings.js";
+export { computeNullRange, type NullChunk, type NullContext } from "./permute/nullRange.js";
+export { runNullEngine } from "./permute/nullEngine.js";
+
+// 5. Inference
+export { adjustFdr } from "./inference/fdr.js";
+export { labelComponents, largestComponent, type ComponentSummary } from "./inference/components.js";
+export { observedComponents } from "./inference/observedComponents.js";
+export { familywiseP, criticalValue, clopperPearson } from "./inference/familywiseP.js";
+
+// 6. Running and outputs
+export { prepareAnalysis, type PreparedAnalysis } from "./run/prepareAnalysis.js";
+export { runAnalysis, type RunOptions, type RunResult } from "./run/runAnalysis.js";
+export { mergeShards } from "./run/mergeShards.js";
+export { simulateCohort, type SimulationOptions, type SimulatedCohort } from "./simulate/simulateCohort.js";
+export { writeCohort } from "./simulate/writeCohort.js";
+export { main } from "./cli/main.js";
