@@ -20,7 +20,8 @@ export interface FamilywiseP {
 
 /** Counts of null values ≥ each query, via one sort (O((K + Q) log K)). */
 export function exceedanceCounts(nullValues: ArrayLike<number>, queries: ArrayLike<number>): Int32Array {
-  const sorted = Float64Array.from(nullValues).sort();
+  // A NaN null value (a relabeling without any statistic) exceeds nothing: sort it as −∞, not last.
+  const sorted = Float64Array.from(nullValues, (v) => (Number.isNaN(v) ? -Infinity : v)).sort();
   const out = new Int32Array(queries.length);
   for (let i = 0; i < queries.length; i++) {
     const q = queries[i];
@@ -71,6 +72,6 @@ export function criticalValue(nullValues: ArrayLike<number>, alpha: number, exac
   const allowed = exact ? Math.floor(alpha * n + 1e-9) : Math.floor(alpha * (1 + n) - 1 + 1e-9);
   if (allowed < 0) return Infinity;
   if (allowed >= n) return -Infinity;
-  const sorted = Float64Array.from(nullValues).sort();
+  const sorted = Float64Array.from(nullValues, (v) => (Number.isNaN(v) ? -Infinity : v)).sort();
   return sorted[n - 1 - allowed];
 }
