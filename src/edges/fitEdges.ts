@@ -3,8 +3,8 @@ import { thinQr, solveUpperTransposed, type ThinQr } from "../model/qr.js";
 /**
  * Ordinary least squares at every edge at once, from one QR factorisation of
  * the design (X = QR, so β̂ = R⁻¹Q'y and the residual is y − QQ'y; Golub &
- * Van Loan 2013, §5.3). The data are subject-major (data[s·E + e]), so each
- * pass streams over subjects and runs along contiguous edge rows.
+ * Van Loan 2013, §5.3). The data are edge-major (data[e·S + s]), so each
+ * edge's fit runs over one contiguous vector.
  */
 export interface EdgeFit {
   subjects: number;
@@ -23,47 +23,43 @@ export interface EdgeFit {
 export function fitEdges(design: Float64Array, subjects: number, columns: number, data: Float64Array, edges: number): EdgeFit {
   const qr = thinQr(design, subjects, columns);
   const { q, r } = qr;
+  const S = subjects;
   const p = columns;
   const E = edges;
-  // Q'y for every edge: qty[k·E + e] = Σ_s Q[s,k] y[s,e].
-  const qty = new Float64Array(p * E);
-  const sumSquares = new Float64Array(E);
-  for (let s = 0; s < subjects; s++) {
-    const row = s * E;
-    for (let k = 0; k < p; k++) {
-      const weight = q[s * p + k];
-      const out = k * E;
-      for (let e = 0; e < E; e++) qty[out + e] += weight * data[row + e];
-    }
-    for (let e = 0; e < E; e++) {
-      const y = data[row + e];
-      sumSquares[e] += y * y;
-    }
-  }
-  // Residuals formed explicitly (not ‖y‖² − ‖Q'y‖², which cancels when the fit is close).
-  const sse = new Float64Array(E);
-  const fitted = new Float64Array(E);
-  for (let s = 0; s < subjects; s++) {
-    const row = s * E;
-    fitted.fill(0);
-    for (let k = 0; k < p; k++) {
-      const weight = q[s * p + k];
-      const from = k * E;
-      for (let e = 0; e < E; e++) fitted[e] += weight * qty[from + e];
-    }
-    for (let e = 0; e < E; e++) {
-      const residual = data[row + e] - fitted[e];
-      sse[e] += residual * residual;
-    }
-  }
-  // β̂ = R⁻¹ Q'y by back substitution, all edges together.
+  // Q by column (p × S), so that each Q'y is a contiguous dot product.
+  const qColumns = new Float64Array(p * S);
+  for (let s = 0; s < S; s++) for (let k = 0; k < p; k++) qColumns[k * S + s] = q[s * p + k];
   const coefficients = new Float64Array(p * E);
-  for (let i = p - 1; i >= 0; i--) {
-    const diagonal = r[i * p + i];
-    for (let e = 0; e < E; e++) {
-      let sum = qty[i * E + e];
-      for (let j = i + 1; j < p; j++) sum -= r[i * p + j] * coefficients[j * E + e];
-      coefficients[i * E + e] = sum / diagonal;
+  const sse = new Float64Array(E);
+  const sumSquares = new Float64Array(E);
+  const qty = new Float64Array(p);
+  const beta = new Float64Array(p);
+  for (let e = 0; e < E; e++) {
+    const at = e * S;
+    let yy = 0;
+    for (let s = 0; s < S; s++) yy += data[at + s] * data[at + s];
+    sumSquares[e] = yy;
+    for (let k = 0; k < p; k++) {
+      const from = k * S;
+      let sum = 0;
+      for (let s = 0; s < S; s++) sum += qColumns[from + s] * data[at + s];
+      qty[k] = sum;
+    }
+    // Residuals formed explicitly (not ‖y‖² − ‖Q'y‖², which cancels when the fit is close).
+    let rss = 0;
+    for (let s = 0; s < S; s++) {
+      let fitted = 0;
+      for (let k = 0; k < p; k++) fitted += q[s * p + k] * qty[k];
+      const residual = data[at + s] - fitted;
+      rss += residual * residual;
+    }
+    sse[e] = rss;
+    // β̂ = R⁻¹ Q'y by back substitution.
+    for (let i = p - 1; i >= 0; i--) {
+      let sum = qty[i];
+      for (let j = i + 1; j < p; j++) sum -= r[i * p + j] * beta[j];
+      beta[i] = sum / r[i * p + i];
+      coefficients[i * E + e] = beta[i];
     }
   }
   return { subjects, columns, edges, df: subjects - columns, qr, coefficients, sse, sumSquares };

@@ -23,7 +23,8 @@ export const SYMMETRIZE_HINT = "set `symmetrize: true` in the design to average 
 
 /**
  * Writes the upper-triangle edges (row-major, i < j; src/edges/edgeIndex.ts) of
- * the N × N row-major matrix at `matrix[matrixOffset …]` into `out[outOffset …]`.
+ * the N × N row-major matrix at `matrix[matrixOffset …]` into
+ * `out[outOffset + e·outStride]` (stride S fills one subject of an edge-major array).
  * The diagonal is ignored. Off-diagonal cells must be finite; unless
  * symmetrizing, a_ij and a_ji must agree within the tolerance (the edge is then
  * a_ij), and with symmetrizing the edge is (a_ij + a_ji) / 2. The "fisher-z"
@@ -38,6 +39,7 @@ export function writeMatrixEdges(
   outOffset: number,
   options: EdgeExtractionOptions,
   origin: MatrixOrigin,
+  outStride = 1,
 ): void {
   const n = pairs.regionCount;
   const { regionA, regionB, edgeCount } = pairs;
@@ -69,7 +71,7 @@ export function writeMatrixEdges(
       if (!(Math.abs(lower) < 1)) throw fisherError(origin, j, i, lower);
       value = Math.atanh(value);
     }
-    out[outOffset + e] = value;
+    out[outOffset + e * outStride] = value;
   }
 }
 

@@ -34,7 +34,10 @@ export interface LoadedConnectomes {
   regionCount: number;
   edgeCount: number;
   subjectCount: number;
-  /** data[s * edgeCount + e]. */
+  /**
+   * Edge-major, in memory that worker threads share: data[e * subjectCount + s]
+   * (each edge's values over subjects are contiguous).
+   */
   data: Float64Array;
   /** Resolved path of each file read (one entry for an .npy stack). */
   files: string[];
@@ -116,7 +119,7 @@ function loadFromTemplate(
   }
   const files: string[] = [];
   let pairs: EdgePairs | undefined;
-  let data = new Float64Array(0);
+  let data: Float64Array = new Float64Array(0);
   let firstFile = "";
   for (let s = 0; s < subjects.length; s++) {
     const subject = subjects[s];
@@ -126,7 +129,7 @@ function loadFromTemplate(
     if (pairs === undefined) {
       requireTwoRegions(matrix.size, { file, line: matrix.rowLines[0] });
       pairs = edgePairs(matrix.size);
-      data = new Float64Array(subjects.length * pairs.edgeCount);
+      data = sharedEdgeArray(subjects.length * pairs.edgeCount);
       firstFile = file;
     } else if (matrix.size !== pairs.regionCount) {
       throw new InputError(
@@ -134,7 +137,7 @@ function loadFromTemplate(
         { file, line: matrix.rowLines[0] },
       );
     }
-    writeMatrixEdges(matrix.values, 0, pairs, data, s * pairs.edgeCount, options, { file, rowLines: matrix.rowLines });
+    writeMatrixEdges(matrix.values, 0, pairs, data, s, options, { file, rowLines: matrix.rowLines }, subjects.length);
     files.push(file);
   }
   const regionPairs = pairs as EdgePairs;
@@ -172,13 +175,19 @@ function loadFromStack(file: string, subjects: ConnectomeSubject[], options: Con
   }
   requireTwoRegions(n, { file });
   const pairs = edgePairs(n);
-  const data = new Float64Array(subjects.length * pairs.edgeCount);
+  const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
   for (let s = 0; s < subjects.length; s++) {
     const subject = subjects[s];
-    writeMatrixEdges(stack.data, subject.tableRow * n * n, pairs, data, s * pairs.edgeCount, options, {
-      file,
-      label: `matrix ${subject.tableRow + 1} of the stack (participant '${subject.id}')`,
-    });
+    writeMatrixEdges(
+      stack.data,
+      subject.tableRow * n * n,
+      pairs,
+      data,
+      s,
+      options,
+      { file, label: `matrix ${subject.tableRow + 1} of the stack (participant '${subject.id}')` },
+      subjects.length,
+    );
   }
   return { regionCount: n, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data, files: [file] };
 }
@@ -187,4 +196,9 @@ function requireTwoRegions(size: number, location: InputLocation): void {
   if (size < 2) {
     throw new InputError(`a ${size} × ${size} matrix has no edges; at least 2 regions are needed`, location);
   }
+}
+
+/** A Float64Array in a SharedArrayBuffer, so permutation workers read the data without copies. */
+export function sharedEdgeArray(length: number): Float64Array {
+  return new Float64Array(new SharedArrayBuffer(length * Float64Array.BYTES_PER_ELEMENT));
 }

@@ -112,6 +112,7 @@ export function parseDesign(text: string, file: string): DesignSpec {
     version: "1.2",
     schema: "core",
     customTags: [],
+    resolveKnownTags: false, // else YAML 1.1 tags (!!binary, !!set, !!omap, !!timestamp) still resolve under the core schema
     uniqueKeys: true,
     prettyErrors: false,
   });

@@ -116,8 +116,8 @@ export function partitionEffect(design: Float64Array, subjects: number, columns:
 
 /**
  * Residuals of the reduced (nuisance-only) model at every edge, R_z = (I − H_Z)Y,
- * and their sums of squares. The data are subject-major (data[s·E + e]); the
- * residuals are returned edge-major (residuals[e·S + s]) for the permutation kernel.
+ * and their sums of squares. Data and residuals are edge-major (x[e·S + s]);
+ * `residuals` may be `data` itself, to overwrite it in place.
  */
 export function reducedResiduals(
   data: Float64Array,
@@ -128,27 +128,17 @@ export function reducedResiduals(
 ): { residuals: Float64Array; sumSquares: Float64Array } {
   const S = subjects;
   const E = edges;
-  const k = nuisanceBasis.length;
-  const projections = new Float64Array(k * E);
-  for (let s = 0; s < S; s++) {
-    const row = s * E;
-    for (let j = 0; j < k; j++) {
-      const w = nuisanceBasis[j][s];
-      const out = j * E;
-      for (let e = 0; e < E; e++) projections[out + e] += w * data[row + e];
-    }
-  }
   const sumSquares = new Float64Array(E);
   const column = new Float64Array(S);
   for (let e = 0; e < E; e++) {
-    for (let s = 0; s < S; s++) column[s] = data[s * E + e];
-    for (let j = 0; j < k; j++) {
-      const f = projections[j * E + e];
-      const u = nuisanceBasis[j];
+    const at = e * S;
+    for (let s = 0; s < S; s++) column[s] = data[at + s];
+    for (const u of nuisanceBasis) {
+      let f = 0;
+      for (let s = 0; s < S; s++) f += u[s] * data[at + s];
       for (let s = 0; s < S; s++) column[s] -= f * u[s];
     }
     let ss = 0;
-    const at = e * S;
     for (let s = 0; s < S; s++) {
       residuals[at + s] = column[s];
       ss += column[s] * column[s];

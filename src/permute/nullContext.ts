@@ -56,6 +56,8 @@ export function buildNullContext(options: {
   inference: InferenceSpec;
   blocks?: Int32Array;
   where: InputLocation;
+  /** Overwrite `data` with the residuals (when no later step needs the data; must be shared memory). */
+  inPlace?: boolean;
 }): NullSetup {
   const { matrix, contrast, data, edges, pairs, observed, inference } = options;
   const S = matrix.rows;
@@ -63,7 +65,8 @@ export function buildNullContext(options: {
   const { scheme, reason } = chooseScheme(partition, inference.scheme, options.where);
   const usesConstant = scheme === "sign-flip" || !partition.constantInNuisance;
   const nuisance = usesConstant ? partition.nuisanceBasis : partition.nuisanceBasis.slice(1);
-  const residuals = sharedFloat64(S * edges);
+  const reuse = options.inPlace === true && data.buffer instanceof SharedArrayBuffer;
+  const residuals = reuse ? data : sharedFloat64(S * edges);
   const reduced = reducedResiduals(data, S, edges, partition.nuisanceBasis, residuals);
   const valid = Uint8Array.from(observed, (t) => (Number.isFinite(t) ? 1 : 0));
   const blocks = options.blocks ? [...options.blocks] : undefined;

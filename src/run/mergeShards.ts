@@ -83,8 +83,8 @@ export function mergeShards(
   try {
     const fit = fitAll(prepared);
     const contrasts = prepared.contrasts.map((contrast) => observeContrast(prepared, fit, contrast));
-    const nulls: ContrastNull[] = contrasts.map((observed) => {
-      const setup = setupNull(prepared, observed);
+    const nulls: ContrastNull[] = contrasts.map((observed, index) => {
+      const setup = setupNull(prepared, observed, index === contrasts.length - 1);
       const chunks: NullChunk[] = [];
       for (let k = 1; k <= first.shard.count; k++) {
         const { folder: shardFolder } = byIndex.get(k)!;

@@ -26,7 +26,11 @@ export function needsPermutations(prepared: PreparedAnalysis): boolean {
   return prepared.design.inference.method !== "fdr";
 }
 
-export function setupNull(prepared: PreparedAnalysis, observed: ObservedContrast): NullSetup {
+/**
+ * `lastUse`: no later step needs the connectome data, so the residuals may
+ * overwrite it (peak memory of one copy of the data for a single contrast).
+ */
+export function setupNull(prepared: PreparedAnalysis, observed: ObservedContrast, lastUse = false): NullSetup {
   const spec = prepared.design.contrasts.find((c) => c.name === observed.contrast.name)!;
   return buildNullContext({
     matrix: prepared.matrix,
@@ -38,6 +42,7 @@ export function setupNull(prepared: PreparedAnalysis, observed: ObservedContrast
     inference: prepared.design.inference,
     blocks: prepared.blocks?.codes,
     where: { file: prepared.design.file, key: spec.key, line: spec.line },
+    inPlace: lastUse,
   });
 }
 

@@ -114,12 +114,12 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
     const fit = fitAll(prepared);
     const contrasts = prepared.contrasts.map((contrast) => observeContrast(prepared, fit, contrast));
     const nulls: (ContrastNull | undefined)[] = [];
-    for (const observed of contrasts) {
+    for (const [index, observed] of contrasts.entries()) {
       if (!permutations) {
         nulls.push(undefined);
         continue;
       }
-      const setup = setupNull(prepared, observed);
+      const setup = setupNull(prepared, observed, index === contrasts.length - 1);
       nulls.push(
         await computeNull(setup, observed.contrast.name, {
           threads,

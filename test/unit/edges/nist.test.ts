@@ -31,11 +31,13 @@ function designOf(dataset: NistDataset): { values: Float64Array; rows: number; c
   return { values, rows, cols };
 }
 
-/** Subject-major edge data: data[s·E + e] = scale[e] · y[s]. */
+/** Edge-major edge data (fitEdges' layout): data[e·S + s] = scale[e] · y[s]. */
 function scaledCopies(y: number[], scales: number[]): Float64Array {
-  const E = scales.length;
-  const data = new Float64Array(y.length * E);
-  for (let s = 0; s < y.length; s++) for (let e = 0; e < E; e++) data[s * E + e] = scales[e] * y[s];
+  const S = y.length;
+  const data = new Float64Array(S * scales.length);
+  scales.forEach((scale, e) => {
+    for (let s = 0; s < S; s++) data[e * S + s] = scale * y[s];
+  });
   return data;
 }
 

@@ -90,7 +90,7 @@ describe("resolveTemplate", () => {
 });
 
 describe("loadConnectomes from text files", () => {
-  it("stores each subject's upper triangle, row-major (i<j), subject-major", () => {
+  it("stores each subject's upper triangle, row-major (i<j), edge-major (data[e·S + s])", () => {
     const base = folder("order");
     const subjects = [subject("s1", 0), subject("s2", 2)];
     writeFileSync(join(base, "s1.txt"), matrixText(labelledMatrix(4, 0)));
@@ -98,8 +98,8 @@ describe("loadConnectomes from text files", () => {
     const loaded = loadConnectomes({ kind: "template", template: "{participant_id}.txt", baseDir: base }, subjects, PLAIN);
     expect(loaded).toMatchObject({ regionCount: 4, edgeCount: 6, subjectCount: 2 });
     expect(loaded.files).toEqual([join(base, "s1.txt"), join(base, "s2.txt")]);
-    // Edge order (0,1) (0,2) (0,3) (1,2) (1,3) (2,3); value 10(i+1) + (j+1) (+100 for s2).
-    expect(Array.from(loaded.data)).toEqual([12, 13, 14, 23, 24, 34, 112, 113, 114, 123, 124, 134]);
+    // Edge order (0,1) (0,2) (0,3) (1,2) (1,3) (2,3); value 10(i+1) + (j+1) (+100 for s2); each edge's subjects together.
+    expect(Array.from(loaded.data)).toEqual([12, 112, 13, 113, 14, 114, 23, 123, 24, 124, 34, 134]);
   });
 
   it("ignores the diagonal, even NaN or infinite", () => {
@@ -253,7 +253,7 @@ describe("loadConnectomes from an .npy stack", () => {
     const path = writeStack("stack.npy", [3, 3, 3], stackValues);
     const loaded = loadConnectomes({ kind: "npy", path }, [subject("c", 2), subject("a", 0)], { ...PLAIN, participantRowCount: 3 });
     expect(loaded).toMatchObject({ regionCount: 3, edgeCount: 3, subjectCount: 2, files: [resolve(path)] });
-    expect(Array.from(loaded.data)).toEqual([212, 213, 223, 12, 13, 23]);
+    expect(Array.from(loaded.data)).toEqual([212, 12, 213, 13, 223, 23]); // edge-major
   });
 
   it("a stack whose length differs from the participants table is an error naming file and shapes", () => {

@@ -102,10 +102,10 @@ function buildFor(formulaText: string): DesignMatrix {
   return buildDesignMatrix(formula, codeVariables(formula), subjects, MODEL_KEY);
 }
 
-/** y1, y2, y3 as three edges, subject-major. */
+/** y1, y2, y3 as three edges, edge-major (fitEdges' layout: data[e·S + s]). */
 function responseData(): Float64Array {
   const data = new Float64Array(subjects * RESPONSES.length);
-  for (let s = 0; s < subjects; s++) RESPONSES.forEach((r, e) => (data[s * RESPONSES.length + e] = lm.data[r][s]));
+  RESPONSES.forEach((r, e) => data.set(lm.data[r], e * subjects));
   return data;
 }
 
@@ -230,11 +230,9 @@ describe("contrastStatistics on degenerate edges (common practice: zero residual
   it("an edge that the model fits exactly (here: constant) gets NaN t, p and r, and is counted", () => {
     const design = buildFor("group + age + sex");
     const S = subjects;
-    const data = new Float64Array(S * 2);
-    for (let s = 0; s < S; s++) {
-      data[s * 2] = 0.25; // constant: residual 0
-      data[s * 2 + 1] = lm.data.y1[s];
-    }
+    const data = new Float64Array(S * 2); // edge-major: edge 0 then edge 1
+    data.fill(0.25, 0, S); // edge 0 constant: residual 0
+    data.set(lm.data.y1, S); // edge 1 = y1
     const fit = fitEdges(design.values, design.rows, design.cols, data, 2);
     const statistics = contrastStatistics(fit, [0, 1, 0, 0]);
     expect(statistics.degenerate).toBe(1);

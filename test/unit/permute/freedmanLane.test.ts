@@ -100,7 +100,7 @@ describe("Freedman–Lane statistics without refitting equal a naive full refit"
         const x = new Matrix(rows);
         const expected = new Float64Array(batch * E);
         for (let e = 0; e < E; e++) {
-          const y = Array.from({ length: S }, (_, s) => data[s * E + e]);
+          const y = Array.from({ length: S }, (_, s) => data[e * S + s]); // edge-major
           const zBasis = partition.nuisanceBasis.map((u) => Array.from(u));
           const fittedZ = new Array<number>(S).fill(0);
           for (const u of zBasis) {

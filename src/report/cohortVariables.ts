@@ -1,0 +1,58 @@
+import type { LoadedResults } from "./loadResults.js";
+
+/**
+ * The participant characteristics the cohort table describes, read from
+ * subjects.tsv: the grouping factor (the first factor of the model, if any),
+ * and every other model (or block) column as numeric or categorical. A column
+ * the design coded as a factor is categorical; any other column is numeric
+ * when every value present reads as a number, categorical otherwise.
+ */
+export interface CohortVariables {
+  /** The grouping factor and its levels in the design's order; null when the model has no factor. */
+  group: { column: string; levels: string[]; codes: Int32Array } | null;
+  /** Rows of subjects.tsv that the analysis used, in file order. */
+  used: number[];
+  variables: CohortVariable[];
+}
+
+export type CohortVariable =
+  | { kind: "numeric"; column: string; values: (number | null)[] }
+  | { kind: "categorical"; column: string; levels: string[]; values: (string | null)[] };
+
+const NUMBER = /^\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*$/;
+
+export function cohortVariables(results: LoadedResults): CohortVariables {
+  const { subjects, summary } = results;
+  const used = subjects.rows.map((row, k) => (row.included ? k : -1)).filter((k) => k >= 0);
+  const factorLevels = summary.design.levels ?? {};
+  const columnValues = (c: number) => used.map((k) => subjects.rows[k].values[c]);
+
+  const groupIndex = subjects.columns.findIndex((name) => Object.hasOwn(factorLevels, name));
+  let group: CohortVariables["group"] = null;
+  if (groupIndex >= 0) {
+    const column = subjects.columns[groupIndex];
+    const values = columnValues(groupIndex);
+    const levels = orderedLevels(factorLevels[column], values);
+    group = { column, levels, codes: Int32Array.from(values, (v) => (v === null ? -1 : levels.indexOf(v))) };
+  }
+
+  const variables: CohortVariable[] = [];
+  subjects.columns.forEach((column, c) => {
+    if (c === groupIndex) return;
+    const values = columnValues(c);
+    const present = values.filter((v): v is string => v !== null);
+    if (!Object.hasOwn(factorLevels, column) && present.length > 0 && present.every((v) => NUMBER.test(v))) {
+      variables.push({ kind: "numeric", column, values: values.map((v) => (v === null ? null : Number(v))) });
+    } else {
+      variables.push({ kind: "categorical", column, levels: orderedLevels(factorLevels[column], values), values });
+    }
+  });
+  return { group, used, variables };
+}
+
+/** The design's level order when known, then any other value in order of first appearance. */
+function orderedLevels(designLevels: string[] | undefined, values: (string | null)[]): string[] {
+  const levels = [...(designLevels ?? [])];
+  for (const v of values) if (v !== null && !levels.includes(v)) levels.push(v);
+  return levels;
+}

@@ -1,0 +1,354 @@
+import { existsSync, statSync } from "node:fs";
+import path from "node:path";
+import { InputError } from "../errors.js";
+import { edgePairs } from "../edges/edgeIndex.js";
+import type { Region } from "../io/regions.js";
+import { readTextFile } from "../io/readInputFile.js";
+import { parseTsv, type LocatedTsvTable } from "../io/tsv.js";
+import { parseNullTable } from "../output/nullTable.js";
+import type { NullChunk } from "../permute/nullRange.js";
+import { tsvCellText } from "./tsvCellText.js";
+
+/**
+ * A results folder read back from disk, as `plexus run` wrote it:
+ * summary.json, subjects.tsv, regions.tsv and, per contrast, edges.tsv,
+ * components.tsv and (with permutations) null.tsv. Nothing is recomputed.
+ */
+export interface LoadedResults {
+  dir: string;
+  summary: ResultsSummary;
+  subjects: SubjectsTable;
+  regions: Region[];
+  contrasts: ContrastResults[];
+}
+
+export interface ResultsSummary {
+  tool: { name: string; version: string };
+  command: string[] | null;
+  inputs: { role: string; path: string; sha256: string }[];
+  subjects: {
+    in_table: number;
+    used: number;
+    used_ids: string[];
+    excluded: { participant_id: string; line: number; reason: string }[];
+  };
+  regions: number;
+  edges: number;
+  design: {
+    model: string;
+    intercept: boolean;
+    columns: string[];
+    coding: string;
+    levels: Record<string, string[]>;
+    centered: Record<string, number>;
+    rank: number;
+  };
+  df: number;
+  contrasts: ContrastSummary[];
+  options: {
+    transform: string;
+    symmetrize: boolean;
+    asymmetry_tolerance: number;
+    inference: {
+      method: "components" | "fdr" | "max-t";
+      threshold: number;
+      size: "extent" | "mass";
+      tail: "upper" | "lower" | "both";
+      fdr: "bh" | "by";
+      alpha: number;
+      permutations: number;
+      seed: number;
+      scheme: string;
+      blocks: string | null;
+      block_permutation: string;
+    };
+  };
+  warnings: string[];
+}
+
+export interface ContrastSummary {
+  name: string;
+  expression: string;
+  vector: number[];
+  df: number;
+  edges_without_statistic: number;
+  supra_threshold_components: number;
+  significant_components: number | null;
+  significant_edges_fdr: number;
+  mode: "exact" | "monte-carlo" | null;
+  permutations?: number;
+  distinct_relabelings?: number | null;
+  scheme?: "permute" | "sign-flip";
+  scheme_reason?: string;
+  seed?: number;
+  exchangeability_blocks?: { column: string; count: number; permutation: string } | null;
+  critical_size?: number | null;
+  critical_size_measure?: "extent" | "mass";
+  critical_statistic?: number | null;
+  smallest_possible_p?: number;
+}
+
+/** subjects.tsv: every participant of the table, the model (and block) columns as read; null = missing. */
+export interface SubjectsTable {
+  columns: string[];
+  rows: SubjectRow[];
+}
+
+export interface SubjectRow {
+  id: string;
+  values: (string | null)[];
+  included: boolean;
+  reason: string;
+}
+
+/** One contrast's edge table as columns in the fixed edge order (i < j, row-major). */
+export interface EdgeColumns {
+  regionA: Uint32Array;
+  regionB: Uint32Array;
+  statistic: Float64Array;
+  estimate: Float64Array;
+  pUncorrected: Float64Array;
+  qFdr: Float64Array;
+  /** Component id, 0 when the edge is below the threshold. */
+  component: Int32Array;
+  /** Edge-level family-wise p (max-statistic method only). */
+  pFwe?: Float64Array;
+  partialR: Float64Array;
+  standardError: Float64Array;
+}
+
+export interface ComponentRow {
+  id: number;
+  extent: number;
+  nodes: number;
+  mass: number;
+  /** NaN when no permutations ran. */
+  pFwe: number;
+  sign: 1 | -1;
+  /** Clopper–Pearson interval of a Monte Carlo p_fwe; NaN when exact or absent. */
+  pFweLow: number;
+  pFweHigh: number;
+}
+
+export interface ContrastResults {
+  summary: ContrastSummary;
+  edges: EdgeColumns;
+  components: ComponentRow[];
+  nullDistribution?: NullChunk;
+}
+
+/** Reads a results folder; a missing folder or file, or a malformed one, is an InputError naming it. */
+export function loadResults(dir: string): LoadedResults {
+  if (!existsSync(dir) || !statSync(dir).isDirectory()) {
+    throw new InputError("not a results folder: the folder does not exist", { file: dir }, "give the folder that `plexus run --out` wrote");
+  }
+  const summaryFile = path.join(dir, "summary.json");
+  if (!existsSync(summaryFile)) {
+    throw new InputError("not a results folder: summary.json is missing", { file: summaryFile }, "give the folder that `plexus run --out` wrote");
+  }
+  const summary = readSummary(summaryFile);
+  const regions = readRegionsTable(path.join(dir, "regions.tsv"), summary.regions);
+  const subjects = readSubjects(path.join(dir, "subjects.tsv"));
+  const contrasts = summary.contrasts.map((contrast) => readContrast(dir, contrast, regions));
+  return { dir, summary, subjects, regions, contrasts };
+}
+
+function readSummary(file: string): ResultsSummary {
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(readTextFile(file));
+  } catch (error) {
+    if (error instanceof InputError) throw error;
+    throw new InputError(`summary.json is not valid JSON: ${(error as Error).message}`, { file });
+  }
+  const expect = (value: unknown, key: string, kind: "object" | "array" | "number" | "string"): void => {
+    const ok =
+      kind === "array" ? Array.isArray(value) : kind === "object" ? typeof value === "object" && value !== null && !Array.isArray(value) : typeof value === kind;
+    if (!ok) throw new InputError(`expected ${kind === "array" ? "an array" : `a${kind === "object" ? "n" : ""} ${kind}`} in summary.json`, { file, key });
+  };
+  expect(parsed, "(top level)", "object");
+  const root = parsed as Record<string, unknown>;
+  for (const key of ["tool", "subjects", "design", "options"]) expect(root[key], key, "object");
+  for (const key of ["inputs", "contrasts", "warnings"]) expect(root[key], key, "array");
+  for (const key of ["regions", "edges", "df"]) expect(root[key], key, "number");
+  const subjects = root.subjects as Record<string, unknown>;
+  expect(subjects.excluded, "subjects.excluded", "array");
+  expect(subjects.in_table, "subjects.in_table", "number");
+  expect(subjects.used, "subjects.used", "number");
+  const design = root.design as Record<string, unknown>;
+  expect(design.model, "design.model", "string");
+  expect(design.columns, "design.columns", "array");
+  expect(design.levels, "design.levels", "object");
+  const options = root.options as Record<string, unknown>;
+  expect(options.inference, "options.inference", "object");
+  const inference = options.inference as Record<string, unknown>;
+  for (const key of ["threshold", "alpha"]) expect(inference[key], `options.inference.${key}`, "number");
+  for (const key of ["method", "size", "tail", "fdr"]) expect(inference[key], `options.inference.${key}`, "string");
+  (root.contrasts as unknown[]).forEach((contrast, k) => {
+    expect(contrast, `contrasts[${k}]`, "object");
+    const c = contrast as Record<string, unknown>;
+    expect(c.name, `contrasts[${k}].name`, "string");
+    expect(c.vector, `contrasts[${k}].vector`, "array");
+    if (!/^[^/\\]+$/.test(c.name as string) || c.name === "." || c.name === "..") {
+      throw new InputError(`contrast name '${String(c.name)}' cannot name a folder`, { file, key: `contrasts[${k}].name` });
+    }
+  });
+  return parsed as ResultsSummary;
+}
+
+function readTable(file: string): LocatedTsvTable {
+  return parseTsv(readTextFile(file), file);
+}
+
+/** Index of each named column; a missing one is an InputError on the header line. */
+function columnsOf(table: LocatedTsvTable, names: readonly string[]): Map<string, number> {
+  const found = new Map<string, number>();
+  for (const name of names) {
+    const index = table.header.indexOf(name);
+    if (index < 0) {
+      throw new InputError(`the column '${name}' is missing (found: ${table.header.join(", ")})`, {
+        file: table.file,
+        line: table.headerLine,
+      });
+    }
+    found.set(name, index);
+  }
+  return found;
+}
+
+/** A numeric cell; empty means "no value" (NaN); anything else unreadable is located. */
+function numberCell(table: LocatedTsvTable, row: number, column: number): number {
+  const text = table.rows[row][column];
+  if (text === "") return NaN;
+  const value = Number(text);
+  if (!Number.isFinite(value)) {
+    throw new InputError(`'${text}' is not a number`, { file: table.file, line: table.lines[row], column: column + 1 });
+  }
+  return value;
+}
+
+function readRegionsTable(file: string, count: number): Region[] {
+  const table = readTable(file);
+  const columns = columnsOf(table, ["label"]);
+  const label = columns.get("label")!;
+  const optional = (name: string) => table.header.indexOf(name);
+  const [x, y, z, hemisphere, system] = ["x", "y", "z", "hemisphere", "system"].map(optional);
+  if (table.rows.length !== count) {
+    throw new InputError(`expected ${count} regions (summary.json), found ${table.rows.length}`, { file, line: table.headerLine });
+  }
+  return table.rows.map((cells, row) => {
+    const region: Region = { label: tsvCellText(cells[label]) };
+    if (x >= 0 && y >= 0 && z >= 0 && cells[x] !== "" && cells[y] !== "" && cells[z] !== "") {
+      region.x = numberCell(table, row, x);
+      region.y = numberCell(table, row, y);
+      region.z = numberCell(table, row, z);
+    }
+    if (hemisphere >= 0 && cells[hemisphere] !== "") region.hemisphere = tsvCellText(cells[hemisphere]);
+    if (system >= 0 && cells[system] !== "") region.system = tsvCellText(cells[system]);
+    return region;
+  });
+}
+
+function readSubjects(file: string): SubjectsTable {
+  const table = readTable(file);
+  const fixed = columnsOf(table, ["participant_id", "included", "exclusion_reason"]);
+  const id = fixed.get("participant_id")!;
+  const included = fixed.get("included")!;
+  const reason = fixed.get("exclusion_reason")!;
+  const valueColumns = table.header.map((_, k) => k).filter((k) => k !== id && k !== included && k !== reason);
+  return {
+    columns: valueColumns.map((k) => tsvCellText(table.header[k])),
+    rows: table.rows.map((cells, row) => {
+      const flag = cells[included];
+      if (flag !== "yes" && flag !== "no") {
+        throw new InputError(`'included' must be yes or no, found '${flag}'`, { file, line: table.lines[row], column: included + 1 });
+      }
+      return {
+        id: tsvCellText(cells[id]),
+        values: valueColumns.map((k) => (cells[k] === "n/a" || cells[k] === "" ? null : tsvCellText(cells[k]))),
+        included: flag === "yes",
+        reason: tsvCellText(cells[reason]),
+      };
+    }),
+  };
+}
+
+const EDGE_COLUMNS = ["region_a", "region_b", "statistic", "estimate", "p_unc", "q_fdr", "component", "partial_r", "standard_error"] as const;
+
+function readContrast(dir: string, summary: ContrastSummary, regions: Region[]): ContrastResults {
+  const folder = path.join(dir, summary.name);
+  const edgesFile = path.join(folder, "edges.tsv");
+  const table = readTable(edgesFile);
+  const columns = columnsOf(table, EDGE_COLUMNS);
+  const pairs = edgePairs(regions.length);
+  if (table.rows.length !== pairs.edgeCount) {
+    throw new InputError(`expected ${pairs.edgeCount} edges for ${regions.length} regions, found ${table.rows.length}`, {
+      file: edgesFile,
+      line: table.headerLine,
+    });
+  }
+  const count = pairs.edgeCount;
+  const numeric = (name: string): Float64Array => {
+    const column = columns.get(name) ?? table.header.indexOf(name);
+    const out = new Float64Array(count);
+    for (let e = 0; e < count; e++) out[e] = numberCell(table, e, column);
+    return out;
+  };
+  const a = columns.get("region_a")!;
+  const b = columns.get("region_b")!;
+  for (let e = 0; e < count; e++) {
+    const labelA = tsvCellText(table.rows[e][a]);
+    const labelB = tsvCellText(table.rows[e][b]);
+    if (labelA !== regions[pairs.regionA[e]].label || labelB !== regions[pairs.regionB[e]].label) {
+      throw new InputError(
+        `expected the edge ${regions[pairs.regionA[e]].label} – ${regions[pairs.regionB[e]].label} (regions.tsv order), found ${labelA} – ${labelB}`,
+        { file: edgesFile, line: table.lines[e] },
+      );
+    }
+  }
+  const componentValues = numeric("component");
+  const edges: EdgeColumns = {
+    regionA: pairs.regionA,
+    regionB: pairs.regionB,
+    statistic: numeric("statistic"),
+    estimate: numeric("estimate"),
+    pUncorrected: numeric("p_unc"),
+    qFdr: numeric("q_fdr"),
+    component: Int32Array.from(componentValues, (v) => (Number.isFinite(v) ? v : 0)),
+    partialR: numeric("partial_r"),
+    standardError: numeric("standard_error"),
+  };
+  if (table.header.includes("p_fwe")) edges.pFwe = numeric("p_fwe");
+
+  const components = readComponents(path.join(folder, "components.tsv"));
+  let nullDistribution: NullChunk | undefined;
+  if (summary.mode !== null && summary.mode !== undefined) {
+    const nullFile = path.join(folder, "null.tsv");
+    nullDistribution = parseNullTable(readTextFile(nullFile), nullFile);
+  }
+  return { summary, edges, components, nullDistribution };
+}
+
+function readComponents(file: string): ComponentRow[] {
+  const table = readTable(file);
+  const columns = columnsOf(table, ["component", "extent", "nodes", "mass", "p_fwe", "sign"]);
+  const low = table.header.indexOf("p_fwe_low");
+  const high = table.header.indexOf("p_fwe_high");
+  return table.rows.map((cells, row) => {
+    const sign = cells[columns.get("sign")!];
+    if (sign !== "positive" && sign !== "negative") {
+      throw new InputError(`'sign' must be positive or negative, found '${sign}'`, { file, line: table.lines[row] });
+    }
+    const number = (name: string) => numberCell(table, row, columns.get(name)!);
+    return {
+      id: number("component"),
+      extent: number("extent"),
+      nodes: number("nodes"),
+      mass: number("mass"),
+      pFwe: number("p_fwe"),
+      sign: sign === "positive" ? 1 : -1,
+      pFweLow: low >= 0 ? numberCell(table, row, low) : NaN,
+      pFweHigh: high >= 0 ? numberCell(table, row, high) : NaN,
+    };
+  });
+}
