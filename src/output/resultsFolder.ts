@@ -56,10 +56,20 @@ export class ResultsFolder {
     return full;
   }
 
+  /** Writes a file; a failure of the file system (e.g. a full disk) is reported as an InputError naming the file. */
   write(relative: string, content: string | Uint8Array): void {
     const full = this.pathOf(relative);
-    mkdirSync(path.dirname(full), { recursive: true });
-    writeFileSync(full, content);
+    try {
+      mkdirSync(path.dirname(full), { recursive: true });
+      writeFileSync(full, content);
+    } catch (error) {
+      const code = (error as NodeJS.ErrnoException).code;
+      throw new InputError(
+        `cannot write the results (${code ?? (error as Error).message})${code === "ENOSPC" ? ": the disk is full" : ""}`,
+        { file: path.join(this.target, relative) },
+        "nothing was changed in the output folder; free space or choose another folder, then run again (add --resume to reuse the finished permutations)",
+      );
+    }
   }
 
   /** Moves the complete results into place, replacing an earlier folder only now. */

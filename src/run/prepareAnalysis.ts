@@ -62,6 +62,14 @@ export function prepareAnalysis(designFile: string): PreparedAnalysis {
 export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
   const where = (key: string) => designKeyLocation(design, key);
   const formula = parseFormula(design.model, where("model"));
+  const { inference } = design;
+  if (inference.method !== "fdr" && 1 / (inference.permutations + 1) > inference.alpha) {
+    throw new InputError(
+      `with ${inference.permutations} permutations no p-value can fall below 1/(K+1) = ${(1 / (inference.permutations + 1)).toPrecision(3)}, which is above alpha = ${inference.alpha}`,
+      where("inference.permutations"),
+      `use at least ${Math.ceil(1 / inference.alpha)} permutations (thousands are usual)`,
+    );
+  }
   const participantsPath = path.resolve(design.baseDir, design.subjects);
   const participants = readParticipants(participantsPath);
   const available = participants.header;
