@@ -5,6 +5,8 @@ import type { ComponentSummary } from "../inference/components.js";
 import { adjustFdr } from "../inference/fdr.js";
 import { observedComponents } from "../inference/observedComponents.js";
 import type { Contrast } from "../model/contrast.js";
+import type { EdgePairs } from "../edges/edgeIndex.js";
+import type { InferenceSpec } from "../io/designFile.js";
 import type { PreparedAnalysis } from "./prepareAnalysis.js";
 
 /** What a contrast yields before any permutation: edge statistics, FDR and the observed components. */
@@ -24,15 +26,19 @@ export function fitAll(prepared: PreparedAnalysis): EdgeFit {
 }
 
 export function observeContrast(prepared: PreparedAnalysis, fit: EdgeFit, contrast: Contrast): ObservedContrast {
-  const { inference } = prepared.design;
+  return observeContrastOn(fit, contrast, prepared.pairs, prepared.design.inference);
+}
+
+/** Edge statistics, FDR and observed components of a contrast, from a fit and the inference options alone. */
+export function observeContrastOn(fit: EdgeFit, contrast: Contrast, pairs: EdgePairs, inference: InferenceSpec): ObservedContrast {
   const statistics = contrastStatistics(fit, contrast.vector);
   const pUncorrected = tailPValues(statistics.statistic, statistics.df, inference.tail);
   const qFdr = adjustFdr(pUncorrected, inference.fdr);
   const { labels, components } = observedComponents(
     statistics.statistic,
-    prepared.pairs.regionA,
-    prepared.pairs.regionB,
-    prepared.pairs.regionCount,
+    pairs.regionA,
+    pairs.regionB,
+    pairs.regionCount,
     inference.threshold,
     inference.tail,
     inference.size,

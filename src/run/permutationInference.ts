@@ -5,6 +5,7 @@ import { buildNullContext, type NullSetup } from "../permute/nullContext.js";
 import { runNullEngine } from "../permute/nullEngine.js";
 import type { NullChunk } from "../permute/nullRange.js";
 import type { ObservedContrast } from "./analyzeContrasts.js";
+import type { InferenceSpec } from "../io/designFile.js";
 import type { PreparedAnalysis } from "./prepareAnalysis.js";
 
 /** A contrast's null distribution (full, or one shard's share) with how it was drawn. */
@@ -84,8 +85,12 @@ export interface FamilywiseResult {
   criticalStatistic: number;
 }
 
-export function familywiseInference(prepared: PreparedAnalysis, observed: ObservedContrast, nullRows: NullChunk, exact: boolean): FamilywiseResult {
-  const { inference } = prepared.design;
+export function familywiseInference(
+  inference: InferenceSpec,
+  observed: ObservedContrast,
+  nullRows: NullChunk,
+  exact: boolean,
+): FamilywiseResult {
   const sizeNull = inference.size === "mass" ? nullRows.maxMass : nullRows.maxExtent;
   const sizes = observed.components.map((c) => (inference.size === "mass" ? c.mass : c.extent));
   const componentP = familywiseP(sizeNull, sizes, exact);

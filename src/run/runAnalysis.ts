@@ -167,7 +167,7 @@ function resultLines(prepared: PreparedAnalysis, contrasts: ObservedContrast[], 
       const significant = observed.qFdr.filter((q) => q <= inference.alpha).length;
       return `${head}; ${significant} edge(s) with q_fdr ≤ ${inference.alpha}`;
     }
-    const fwe = familywiseInference(prepared, observed, rows, nulls[i]!.setup.context.plan.exact);
+    const fwe = familywiseInference(inference, observed, rows, nulls[i]!.setup.context.plan.exact);
     const significant = fwe.componentP.filter((r) => r.p <= inference.alpha).length;
     const edges = fwe.edgeP ? `; ${fwe.edgeP.filter((p) => p <= inference.alpha).length} edge(s) with p_fwe ≤ ${inference.alpha}` : "";
     return `${head}; ${significant} with p_fwe ≤ ${inference.alpha}${edges}`;
@@ -187,7 +187,7 @@ export function writeResults(
   contrasts.forEach((observed, i) => {
     const contrastNull = nulls[i];
     const fwe = contrastNull
-      ? familywiseInference(prepared, observed, contrastNull.rows, contrastNull.setup.context.plan.exact)
+      ? familywiseInference(prepared.design.inference, observed, contrastNull.rows, contrastNull.setup.context.plan.exact)
       : undefined;
     fwes.push(fwe);
     const { statistics } = observed;

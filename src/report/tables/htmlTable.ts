@@ -1,0 +1,25 @@
+import { escapeHtml } from "../escapeHtml.js";
+import type { ReportTable } from "../reportTable.js";
+
+/** A table as HTML with its caption and notes; every cell escaped. */
+export function htmlTable(table: ReportTable, number: number): string {
+  const align = (k: number) => (table.columns[k]?.align === "right" ? ' class="num"' : "");
+  const head = table.columns.map((c, k) => `<th${align(k)}>${escapeHtml(c.header)}</th>`).join("");
+  const body = table.rows
+    .map((row) => {
+      const cells = row.cells.map((cell, k) => `<td${k === 0 && row.indent ? ' class="indent"' : align(k)}>${escapeHtml(cell)}</td>`).join("");
+      return `<tr>${cells}</tr>`;
+    })
+    .join("\n");
+  const notes = table.notes.map((note) => `<p class="note">${escapeHtml(note)}</p>`).join("\n");
+  return [
+    `<div class="table-wrap" id="${escapeHtml(`table-${table.id}`)}">`,
+    `<table>`,
+    `<caption>Table ${number}. ${escapeHtml(table.title)}</caption>`,
+    `<thead><tr>${head}</tr></thead>`,
+    `<tbody>\n${body}\n</tbody>`,
+    `</table>`,
+    notes,
+    `</div>`,
+  ].join("\n");
+}
