@@ -6,8 +6,11 @@ import { regularizedIncompleteBeta } from "./incompleteBeta.js";
  * 1964, 26.7.1 and 26.5.27). Each tail is computed directly, never as
  * 1 − CDF, so that p-values for large t keep their precision.
  */
+/** Degrees of freedom beyond which the tails lose accuracy (error grows like ν·ε); NaN is returned there. */
+export const MAX_DEGREES_OF_FREEDOM = 1e10;
+
 export function studentTUpperTail(t: number, df: number): number {
-  if (Number.isNaN(t) || !(df > 0)) return NaN;
+  if (Number.isNaN(t) || !(df > 0) || !(df <= MAX_DEGREES_OF_FREEDOM)) return NaN;
   if (t === Infinity) return 0;
   if (t === -Infinity) return 1;
   const t2 = t * t;
@@ -28,7 +31,7 @@ export function studentTCdf(t: number, df: number): number {
  * tail that is smaller (so that p near 1 keeps its precision).
  */
 export function studentTQuantile(p: number, df: number): number {
-  if (!(p >= 0 && p <= 1) || !(df > 0)) return NaN;
+  if (!(p >= 0 && p <= 1) || !(df > 0) || !(df <= MAX_DEGREES_OF_FREEDOM)) return NaN;
   if (p === 0) return -Infinity;
   if (p === 1) return Infinity;
   if (p === 0.5) return 0;

@@ -120,12 +120,13 @@ export function parseContrast(
         where,
       );
     }
+    if (!expression.every(Number.isFinite)) throw new InputError("a contrast vector must list finite numbers", where);
     expression.forEach((v, j) => (vector[j] = v));
   } else {
     written = expression.trim();
     if (written === "") throw new InputError("the contrast is empty", where);
     for (const { coefficient, body } of splitTerms(written, where)) {
-      if (body === "intercept" || body === "1") {
+      if (body === "intercept") {
         const j = columnNames.indexOf("intercept");
         if (j < 0) throw new InputError("the contrast names the intercept, but the model has none", where);
         vector[j] += coefficient;

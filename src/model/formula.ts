@@ -31,6 +31,7 @@ function tokenize(source: string, where: InputLocation): Token[] {
     } else if (ch === "`") {
       const end = source.indexOf("`", i + 1);
       if (end < 0) throw new InputError(`unclosed backtick in model formula '${source}'`, where);
+      if (end === i + 1) throw new InputError(`empty column name in backticks in model formula '${source}'`, where);
       tokens.push({ kind: "name", text: source.slice(i + 1, end), at: i });
       i = end + 1;
     } else if (/[0-9]/.test(ch)) {
@@ -137,7 +138,8 @@ export function parseFormula(source: string, where: InputLocation = { key: "mode
 
 /** The formula written back in canonical form, e.g. `1 + group + age + group:age`. */
 export function formatFormula(formula: Formula): string {
-  const parts = [formula.intercept ? "1" : "0", ...formula.terms.map((term) => term.join(":"))];
+  const quote = (name: string) => (/^[A-Za-z_.][A-Za-z0-9_.]*$/.test(name) ? name : `\`${name}\``);
+  const parts = [formula.intercept ? "1" : "0", ...formula.terms.map((term) => term.map(quote).join(":"))];
   return parts.join(" + ");
 }
 

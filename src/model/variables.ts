@@ -72,7 +72,11 @@ export function codeVariable(
       }
     }
   } else {
-    levels = [...new Set(values)].sort(compareLevels);
+    const distinct = [...new Set(values)];
+    // Numeric order only when every level is a number; otherwise code-point order (a consistent total order).
+    levels = distinct.every(isNumericText)
+      ? distinct.sort((a, b) => Number(a) - Number(b) || (a < b ? -1 : a > b ? 1 : 0))
+      : distinct.sort((a, b) => (a < b ? -1 : a > b ? 1 : 0));
   }
   const codes = Int32Array.from(values, (v) => levels.indexOf(v));
   const counts = levels.map((_, k) => codes.filter((c) => c === k).length);

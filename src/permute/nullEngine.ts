@@ -95,9 +95,14 @@ export async function runNullEngine(context: NullContext, options: EngineOptions
               worker.postMessage(range);
             };
             worker.on("message", (chunk: NullChunk) => {
-              results.set(chunk.from, chunk);
-              report();
-              feed();
+              // A failing onChunk (e.g. a checkpoint write on a full disk) must reject the run, not escape the handler.
+              try {
+                results.set(chunk.from, chunk);
+                report();
+                feed();
+              } catch (error) {
+                reject(error);
+              }
             });
             worker.on("error", reject);
             worker.on("exit", (code) => {

@@ -1,6 +1,7 @@
 import type { Tail } from "../io/designFile.js";
 import { NullMaxima } from "./nullMaxima.js";
-import { permutedStatistics, EDGE_BLOCK, type KernelData } from "./permutedStatistics.js";
+import type { KernelData } from "./permutedStatistics.js";
+import { selectKernel, type KernelChoice } from "./kernels/selectKernel.js";
 import { Relabeler, type RelabelingPlan } from "./relabelings.js";
 
 /** Everything needed to compute null rows for one contrast (plain data; shareable with workers). */
@@ -27,10 +28,15 @@ export interface NullChunk {
   maxStatistic: Float64Array;
 }
 
-/** Relabelings per kernel call: each residual value loaded is used this many times. */
+/** Relabelings per call of the TypeScript kernel (the SIMD kernel takes more: see kernels/selectKernel.ts). */
 export const RELABELING_BATCH = 8;
 
-export function computeNullRange(context: NullContext, from: number, to: number): NullChunk {
+export interface NullRangeOptions {
+  /** The kernel (default "auto": WebAssembly SIMD where available; PLEXUS_KERNEL overrides). Results are identical. */
+  kernel?: KernelChoice;
+}
+
+export function computeNullRange(context: NullContext, from: number, to: number, options: NullRangeOptions = {}): NullChunk {
   const { kernel, vectors, plan } = context;
   const S = kernel.subjects;
   const E = kernel.edges;
@@ -45,9 +51,10 @@ export function computeNullRange(context: NullContext, from: number, to: number)
   };
   const relabeler = new Relabeler(plan);
   const maxima = new NullMaxima(context.regionA, context.regionB, context.regionCount, context.threshold, context.tail);
-  const weights = new Float64Array(RELABELING_BATCH * c * S);
-  const statistics = new Float64Array(RELABELING_BATCH * E);
-  const products = new Float64Array(RELABELING_BATCH * c * EDGE_BLOCK);
+  const statisticsKernel = selectKernel(options.kernel);
+  const batchSize = statisticsKernel.batchSize(c, E);
+  const weights = new Float64Array(batchSize * c * S);
+  const statistics = new Float64Array(batchSize * E);
   const permutation = new Int32Array(S);
   const signs = new Float64Array(S);
 
@@ -66,7 +73,7 @@ export function computeNullRange(context: NullContext, from: number, to: number)
       k++;
       continue;
     }
-    const batch = Math.min(RELABELING_BATCH, to - k);
+    const batch = Math.min(batchSize, to - k);
     for (let b = 0; b < batch; b++) {
       if (plan.kind === "permute") {
         relabeler.permutation(k + b, permutation);
@@ -84,7 +91,7 @@ export function computeNullRange(context: NullContext, from: number, to: number)
         }
       }
     }
-    permutedStatistics(kernel, weights, batch, c, statistics, products);
+    statisticsKernel.statistics(kernel, weights, batch, c, statistics);
     for (let b = 0; b < batch; b++) record(k + b, statistics.subarray(b * E, (b + 1) * E));
     k += batch;
   }

@@ -2,9 +2,11 @@ import type { Command } from "commander";
 import type { OutputSink } from "../main.js";
 import { registerAnalysisCommands } from "./analysisCommands.js";
 import { registerSimulate } from "./simulate.js";
+import { registerStrength } from "./strength.js";
 
 /** Every subcommand registers itself here; each lives in its own file. */
 export function registerCommands(program: Command, sink: OutputSink, argv: string[]): void {
   registerAnalysisCommands(program, sink, () => argv);
   registerSimulate(program, sink);
+  registerStrength(program, sink, () => argv);
 }

@@ -73,3 +73,8 @@ export function tickLabel(value: number, step: number): string {
   const decimals = step >= 1 ? 0 : Math.min(6, Math.ceil(-Math.log10(step)));
   return value.toFixed(decimals).replace(/^-(0\.?0*)$/, "$1");
 }
+
+/** Shortens a label to `max` characters with an ellipsis. */
+export function clip(label: string, max: number): string {
+  return label.length <= max ? label : `${label.slice(0, Math.max(1, max - 1))}…`;
+}

@@ -308,6 +308,16 @@ describe("buildDesignMatrix refuses designs it cannot estimate, naming the colum
     });
   });
 
+  it("units do not decide the rank: age in seconds (~1e9) beside 0/1 columns is full rank (common practice: column scaling before the SVD)", () => {
+    const variables = new Map<string, Variable>([
+      ["group", factor("group", lm.data.group)],
+      ["seconds", numeric("seconds", lm.data.age.map((a) => a * 31_557_600))],
+      ["sex", factor("sex", lm.data.sex)],
+    ]);
+    const design = buildDesignMatrix(parseFormula("group + seconds + sex"), variables, subjects, MODEL_KEY);
+    expect(design.columns.map((c) => c.name)).toEqual(["intercept", "group[patient]", "seconds", "sex[M]"]);
+  });
+
   it("more columns than subjects: InputError on the model key", () => {
     const few = 3;
     const variables = new Map<string, Variable>([

@@ -1,0 +1,73 @@
+import { permutedStatistics, EDGE_BLOCK, type KernelData } from "../permutedStatistics.js";
+import { WasmPermutationKernel } from "./wasmKernel.js";
+
+/**
+ * Which kernel computes the permuted statistics. Both give bit-identical
+ * results (test/unit/permute/kernels.test.ts); "auto" takes the WebAssembly
+ * SIMD kernel where the engine runs it and the TypeScript reference elsewhere.
+ * The environment variable PLEXUS_KERNEL (auto, wasm, typescript) overrides
+ * "auto", for benchmarks and for exercising the fallback.
+ */
+export type KernelChoice = "auto" | "wasm" | "typescript";
+
+export interface StatisticsKernel {
+  name: "wasm-simd" | "typescript";
+  /** Relabelings per call that use the kernel well for c vectors and E edges. */
+  batchSize(vectors: number, edges: number): number;
+  /** Same contract as permutedStatistics: weights batch × vectors × S, out batch × E. */
+  statistics(data: KernelData, weights: Float64Array, batch: number, vectors: number, out: Float64Array): void;
+}
+
+/** Rows (relabelings × vectors) per call for the SIMD kernel: each residual copied in is used this many times. */
+const WASM_ROWS = 96;
+/** Upper bound on the batch's statistics (batch × E values) per thread. */
+const STATISTICS_BYTES = 48 * 1024 * 1024;
+
+function referenceKernel(): StatisticsKernel {
+  let products = new Float64Array(0);
+  return {
+    name: "typescript",
+    batchSize: () => 8,
+    statistics(data, weights, batch, vectors, out) {
+      const needed = batch * vectors * EDGE_BLOCK;
+      if (products.length < needed) products = new Float64Array(needed);
+      permutedStatistics(data, weights, batch, vectors, out, products);
+    },
+  };
+}
+
+function wasmKernel(instance: WasmPermutationKernel): StatisticsKernel {
+  return {
+    name: "wasm-simd",
+    batchSize(vectors, edges) {
+      const wanted = Math.max(8, Math.ceil(WASM_ROWS / Math.max(1, vectors)));
+      const fits = Math.floor(STATISTICS_BYTES / (8 * Math.max(1, edges)));
+      return Math.max(1, Math.min(wanted, fits));
+    },
+    statistics: (data, weights, batch, vectors, out) => instance.statistics(data, weights, batch, vectors, out),
+  };
+}
+
+export function kernelChoiceFromEnvironment(): KernelChoice {
+  const value = (typeof process === "object" ? process.env.PLEXUS_KERNEL : undefined)?.trim().toLowerCase();
+  return value === "wasm" || value === "typescript" ? value : "auto";
+}
+
+let sharedWasm: WasmPermutationKernel | null | undefined;
+
+/** One WebAssembly instance per thread, made on first use; null where SIMD is missing. */
+function threadWasmKernel(): WasmPermutationKernel | null {
+  if (sharedWasm === undefined) sharedWasm = WasmPermutationKernel.create() ?? null;
+  return sharedWasm;
+}
+
+/**
+ * The kernel for this thread. "wasm" where WebAssembly SIMD is missing falls
+ * back to the reference, like "auto": the results are the same either way.
+ */
+export function selectKernel(choice: KernelChoice = "auto"): StatisticsKernel {
+  const resolved = choice === "auto" ? kernelChoiceFromEnvironment() : choice;
+  if (resolved === "typescript") return referenceKernel();
+  const wasm = threadWasmKernel();
+  return wasm ? wasmKernel(wasm) : referenceKernel();
+}

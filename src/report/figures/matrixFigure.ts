@@ -1,0 +1,141 @@
+import type { Region } from "../../io/regions.js";
+import type { ContrastResults } from "../loadResults.js";
+import type { SignificantEdges } from "../significantEdges.js";
+import { colourBar } from "./colourBar.js";
+import { statisticColour, statisticLimit } from "./colourScale.js";
+import { regionOrder } from "./regionOrder.js";
+import { clip, line, n, rect, svgDocument, text } from "./svgElements.js";
+
+/**
+ * Figure: the edge-statistic matrix as a heatmap (both triangles), regions in
+ * the drawing order of regionOrder (hemisphere, then system), the statistic on
+ * the shared cividis scale, and every edge of the significant finding outlined
+ * (a black and a white frame, visible on any colour). Cells are quantised to
+ * 41 colours and drawn as one path per colour, so the file stays small for a
+ * few hundred regions.
+ */
+const LEVELS = 41;
+const TARGET = 560;
+
+export function matrixFigure(contrast: ContrastResults, regions: Region[], finding: SignificantEdges): string {
+  const count = regions.length;
+  const cell = Math.max(1.5, Math.min(14, TARGET / Math.max(count, 1)));
+  const size = cell * count;
+  const { order, position, blocks } = regionOrder(regions);
+  const hasGroups = regions.some((r) => r.hemisphere !== undefined || r.system !== undefined);
+  const left = hasGroups ? 112 : 40;
+  const top = 70;
+  const highlightNodes = new Set<number>();
+  for (const e of finding.edges) {
+    highlightNodes.add(contrast.edges.regionA[e]);
+    highlightNodes.add(contrast.edges.regionB[e]);
+  }
+  const labelRight = cell >= 6 && highlightNodes.size > 0;
+  const right = labelRight ? 150 : 30;
+  const width = left + size + right;
+  const height = top + size + 70;
+  const { edges } = contrast;
+  const limit = statisticLimit(edges.statistic);
+
+  // One path per quantised colour; each cell is a unit square in matrix coordinates.
+  const paths = new Map<number, string[]>();
+  let missing = 0;
+  for (let e = 0; e < edges.statistic.length; e++) {
+    const t = edges.statistic[e];
+    if (!Number.isFinite(t)) {
+      missing++;
+      continue;
+    }
+    const level = Math.round(((Math.max(-limit, Math.min(limit, t)) + limit) / (2 * limit)) * (LEVELS - 1));
+    const p = position[edges.regionA[e]];
+    const q = position[edges.regionB[e]];
+    const list = paths.get(level) ?? [];
+    list.push(`M${q} ${p}h1v1h-1z`, `M${p} ${q}h1v1h-1z`);
+    paths.set(level, list);
+  }
+  const body: string[] = [];
+  body.push(text(left, 20, `Edge statistics (t): ${contrast.summary.name}`, { size: 13, weight: "bold" }));
+  body.push(
+    text(
+      left,
+      37,
+      finding.edges.length > 0
+        ? `${finding.edges.length} edge${finding.edges.length > 1 ? "s" : ""} of the ${finding.kind === "components" ? "significant subnetworks" : "FDR-significant set"} outlined`
+        : "no significant edges to outline",
+      { size: 10, fill: "#444444" },
+    ),
+  );
+  body.push(rect(left, top, size, size, "#ffffff", 'stroke="#999999" stroke-width="0.5"'));
+  body.push(`<g transform="translate(${n(left)} ${n(top)}) scale(${n(cell)})" shape-rendering="crispEdges">`);
+  for (const level of [...paths.keys()].sort((a, b) => a - b)) {
+    const colour = statisticColour(-limit + (2 * limit * level) / (LEVELS - 1), limit);
+    body.push(`<path fill="${colour}" d="${paths.get(level)!.join("")}"/>`);
+  }
+  body.push(`<path fill="#d9d9d9" d="${order.map((_, p) => `M${p} ${p}h1v1h-1z`).join("")}"/>`);
+  body.push("</g>");
+
+  // Block separators and labels.
+  const hemisphereOf = (b: (typeof blocks)[number]) => b.hemisphere ?? "";
+  blocks.forEach((block, k) => {
+    if (k === 0) return;
+    const at = top + block.start * cell;
+    const atX = left + block.start * cell;
+    const major = hemisphereOf(blocks[k - 1]) !== hemisphereOf(block);
+    const stroke = major ? 1.6 : 0.7;
+    body.push(line(left, at, left + size, at, "#ffffff", stroke), line(atX, top, atX, top + size, "#ffffff", stroke));
+  });
+  if (hasGroups) {
+    for (const block of blocks) {
+      const span = (block.end - block.start) * cell;
+      const mid = top + ((block.start + block.end) / 2) * cell;
+      body.push(line(left - 6, top + block.start * cell + 1, left - 6, top + block.end * cell - 1, "#555555", 1));
+      if (span >= 9) {
+        const label = [block.hemisphere, block.system].filter((v) => v !== undefined).join(" · ");
+        body.push(text(left - 10, mid + 3.5, clip(label, 18), { anchor: "end", size: Math.min(10, span - 1) }));
+      }
+    }
+    // Hemisphere names across the top.
+    let start = 0;
+    blocks.forEach((block, k) => {
+      const next = blocks[k + 1];
+      if (next && hemisphereOf(next) === hemisphereOf(block)) return;
+      const from = blocks[start].start;
+      const span = (block.end - from) * cell;
+      if (block.hemisphere !== undefined && span >= 30) {
+        body.push(text(left + ((from + block.end) / 2) * cell, top - 8, clip(block.hemisphere, Math.floor(span / 6)), { anchor: "middle", size: 10 }));
+      }
+      start = k + 1;
+    });
+  }
+
+  // Outlines of the significant edges.
+  if (finding.edges.length > 0) {
+    const outline: string[] = [];
+    for (const e of finding.edges) {
+      const p = position[edges.regionA[e]];
+      const q = position[edges.regionB[e]];
+      outline.push(`M${n(left + q * cell)} ${n(top + p * cell)}h${n(cell)}v${n(cell)}h${n(-cell)}z`);
+      outline.push(`M${n(left + p * cell)} ${n(top + q * cell)}h${n(cell)}v${n(cell)}h${n(-cell)}z`);
+    }
+    const d = outline.join("");
+    body.push(`<path d="${d}" fill="none" stroke="#000000" stroke-width="${n(Math.max(1, cell * 0.28))}"/>`);
+    body.push(`<path d="${d}" fill="none" stroke="#ffffff" stroke-width="${n(Math.max(0.5, cell * 0.1))}"/>`);
+  }
+
+  // Labels of the regions in the finding, beside their rows.
+  if (labelRight) {
+    for (const region of [...highlightNodes].sort((a, b) => position[a] - position[b])) {
+      const y = top + (position[region] + 0.5) * cell;
+      body.push(line(left + size + 2, y, left + size + 8, y, "#555555", 0.8));
+      body.push(text(left + size + 11, y + 3.2, clip(regions[region].label, 22), { size: Math.min(9, cell) }));
+    }
+  }
+
+  const barWidth = Math.min(260, Math.max(160, size * 0.6));
+  body.push(...colourBar(left + (size - barWidth) / 2, top + size + 30, barWidth, 10, limit, "t-statistic"));
+  if (missing > 0) {
+    body.push(text(left, top + size + 18, `white: ${missing} edge${missing > 1 ? "s" : ""} with no statistic (zero variance)`, { size: 9, fill: "#444444" }));
+  }
+  return svgDocument(width, height, `Edge-statistic matrix for ${contrast.summary.name}`, body);
+}
+

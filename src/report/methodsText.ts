@@ -1,0 +1,246 @@
+import { cohortVariables } from "./cohortVariables.js";
+import { escapeHtml } from "./escapeHtml.js";
+import type { LoadedResults } from "./loadResults.js";
+import { count, plain, significant } from "./printNumbers.js";
+
+/**
+ * The methods paragraph: every choice in force, read from summary.json, in
+ * sentences a user can paste into a manuscript and edit, with the references
+ * they rely on. Text from the user's files (formula, column names, contrast
+ * names and expressions, levels) is kept apart as `user` segments, so each
+ * writer can quote it safely (a Markdown code span, an HTML <code>).
+ */
+export type Segment = string | { user: string };
+
+export interface MethodsText {
+  paragraphs: Segment[][];
+  references: string[];
+}
+
+const REFERENCES = {
+  benjaminiHochberg: "Benjamini Y, Hochberg Y (1995). Journal of the Royal Statistical Society, Series B 57:289–300.",
+  benjaminiYekutieli: "Benjamini Y, Yekutieli D (2001). The Annals of Statistics 29:1165–1188.",
+  clopperPearson: "Clopper CJ, Pearson ES (1934). Biometrika 26:404–413.",
+  fisherExact: "Fisher RA (1935). Journal of the Royal Statistical Society 98:39–82.",
+  fisherZ: "Fisher RA (1915). Biometrika 10:507–521.",
+  freedmanLane: "Freedman D, Lane D (1983). Journal of Business & Economic Statistics 1:292–298.",
+  pearson: "Pearson K (1900). Philosophical Magazine, Series 5, 50:157–175.",
+  phipsonSmyth: "Phipson B, Smyth GK (2010). Statistical Applications in Genetics and Molecular Biology 9:39.",
+  welch1947: "Welch BL (1947). Biometrika 34:28–35.",
+  welch1951: "Welch BL (1951). Biometrika 38:330–336.",
+  westfallYoung: "Westfall PH, Young SS (1993). Resampling-Based Multiple Testing. New York: Wiley.",
+  winkler: "Winkler AM, Ridgway GR, Webster MA, Smith SM, Nichols TE (2014). NeuroImage 92:381–397.",
+  zalesky: "Zalesky A, Fornito A, Bullmore ET (2010). NeuroImage 53:1197–1207.",
+} as const;
+
+type ReferenceKey = keyof typeof REFERENCES;
+
+const TAIL_WORDS: Record<string, string> = {
+  upper: "one-sided (positive t)",
+  lower: "one-sided (negative t)",
+  both: "two-sided",
+};
+
+export function methodsText(results: LoadedResults): MethodsText {
+  const { summary } = results;
+  const { design, options, subjects } = summary;
+  const { inference } = options;
+  const cited = new Set<ReferenceKey>();
+  const cite = (key: ReferenceKey, text: string) => {
+    cited.add(key);
+    return text;
+  };
+  const list = <T>(items: T[], render: (item: T) => Segment[]): Segment[] =>
+    items.flatMap((item, k) => [...(k === 0 ? [] : [k === items.length - 1 ? (items.length > 2 ? ", and " : " and ") : ", "]), ...render(item)]);
+
+  // 1. Participants, data and model.
+  const model: Segment[] = [];
+  const excluded = subjects.excluded.length;
+  model.push(`Connectivity matrices of ${subjects.used} participants were analysed`);
+  if (excluded > 0) {
+    const reasons = new Map<string, number>();
+    for (const x of subjects.excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
+    model.push(` (${excluded} of the ${subjects.in_table} participants listed were excluded: `);
+    model.push(...list([...reasons], ([reason, count]) => [{ user: reason }, ` (${count})`]));
+    model.push(")");
+  }
+  model.push(` with plexus ${summary.tool.version}. Each matrix described ${summary.regions} regions and ${summary.edges} edges`);
+  if (options.symmetrize) model.push("; each edge was the mean of its two entries in the matrix");
+  model.push(".");
+  if (options.transform === "fisher-z") {
+    model.push(` Correlations were Fisher z-transformed (z = atanh r; ${cite("fisherZ", "Fisher 1915")}) before analysis.`);
+  }
+  model.push(" At every edge, the general linear model ", { user: design.model });
+  model.push(design.intercept ? " (with an intercept)" : " (without an intercept)");
+  model.push(" was fitted by ordinary least squares");
+  const factors = Object.entries(design.levels ?? {});
+  if (factors.length > 0) {
+    model.push(design.coding.startsWith("treatment") ? ", with categorical variables in treatment coding (reference level: " : `, with categorical variables coded as ${design.coding} (reference level: `);
+    model.push(...list(factors, ([name, levels]) => [{ user: name }, " ", { user: levels[0] ?? "" }]));
+    model.push(")");
+  }
+  const centred = Object.entries(design.centered ?? {});
+  if (centred.length > 0) {
+    model.push(factors.length > 0 ? " and " : ", with ");
+    model.push("numeric variables centred at their mean (");
+    model.push(...list(centred, ([name, centre]) => [{ user: name }, ` at ${significant(centre, 4)}`]));
+    model.push(")");
+  }
+  model.push(`. The design matrix had ${design.rank} columns (`);
+  model.push(...list(design.columns, (column) => [{ user: column }]));
+  model.push(`), leaving ${summary.df} residual degrees of freedom.`);
+
+  // 2. Contrasts.
+  const contrasts: Segment[] = [];
+  contrasts.push(summary.contrasts.length === 1 ? "One contrast was tested" : `${summary.contrasts.length} contrasts were tested`);
+  contrasts.push(" with a t-statistic at every edge: ");
+  contrasts.push(
+    ...list(summary.contrasts, (c) => [{ user: c.name }, " (", { user: c.expression }, `, c = [${c.vector.map((v) => plain(v)).join(", ")}])`]),
+  );
+  contrasts.push(`. Uncorrected p-values were ${TAIL_WORDS[inference.tail] ?? inference.tail}.`);
+  const degenerate = summary.contrasts.filter((c) => c.edges_without_statistic > 0);
+  if (degenerate.length > 0) {
+    const most = Math.max(...degenerate.map((c) => c.edges_without_statistic));
+    contrasts.push(` ${most} edge${most > 1 ? "s" : ""} had zero residual variance (for example, absent in every participant) and no statistic; ${most > 1 ? "they were" : "it was"} left out of the inference.`);
+  }
+
+  // 3. Inference.
+  const inferenceText: Segment[] = [];
+  const permuted = summary.contrasts.filter((c) => c.mode === "exact" || c.mode === "monte-carlo");
+  if (permuted.length > 0) {
+    const rule =
+      inference.tail === "both"
+        ? `whose |t| exceeded ${plain(inference.threshold)} (positive and negative edges separately)`
+        : inference.tail === "lower"
+          ? `whose t fell below −${plain(inference.threshold)}`
+          : `whose t exceeded ${plain(inference.threshold)}`;
+    inferenceText.push(
+      `Family-wise error was controlled for connected subnetworks (${cite("zalesky", "Zalesky, Fornito & Bullmore 2010")}): edges ${rule} were kept, the connected components they formed were found, and the size of each was measured by its `,
+    );
+    inferenceText.push(
+      inference.size === "mass"
+        ? "mass, the sum over its edges of the amount by which |t| exceeded the threshold."
+        : "extent, the number of its edges.",
+    );
+    inferenceText.push(" Each observed component was compared with the distribution, over relabelings of the data, of the largest component's size.");
+    const schemes = [...new Set(permuted.map((c) => c.scheme ?? "permute"))];
+    for (const scheme of schemes) {
+      const which = schemes.length > 1 ? permuted.filter((c) => (c.scheme ?? "permute") === scheme) : [];
+      const prefix: Segment[] = which.length > 0 ? [" For ", ...list(which, (c) => [{ user: c.name }]), ","] : [];
+      if (scheme === "sign-flip") {
+        inferenceText.push(
+          ...prefix,
+          ` ${prefix.length > 0 ? "r" : "R"}elabelings flipped the signs of the residuals of the model without the effect of interest at random (sign-flipping, which assumes symmetric rather than exchangeable errors; ${cite("winkler", "Winkler et al. 2014")}).`,
+        );
+      } else {
+        inferenceText.push(
+          ...prefix,
+          ` ${prefix.length > 0 ? "r" : "R"}elabelings permuted the residuals of the model without the effect of interest, added back its fitted values and refitted the full model (${cite("freedmanLane", "Freedman & Lane 1983")}; ${cite("winkler", "Winkler et al. 2014")}).`,
+        );
+      }
+    }
+    const blocks = permuted.find((c) => c.exchangeability_blocks)?.exchangeability_blocks;
+    if (blocks) {
+      inferenceText.push(" Relabelings respected exchangeability blocks given by ", { user: blocks.column }, ` (${blocks.count} blocks; `);
+      inferenceText.push(blocks.permutation === "whole" ? "whole blocks were exchanged as units" : "participants were exchanged only within their block");
+      inferenceText.push(`; ${cite("winkler", "Winkler et al. 2014")}).`);
+    }
+    const exact = permuted.filter((c) => c.mode === "exact");
+    const monteCarlo = permuted.filter((c) => c.mode === "monte-carlo");
+    if (monteCarlo.length > 0) {
+      const counts = [...new Set(monteCarlo.map((c) => c.permutations))];
+      const seeds = [...new Set(monteCarlo.map((c) => c.seed))];
+      inferenceText.push(
+        ` ${counts.map((k) => plain(k ?? NaN)).join(" or ")} relabelings were drawn at random (Monte Carlo; seed ${seeds.map((s) => plain(s ?? NaN)).join(", ")})` +
+          `${exact.length > 0 ? ` for ${monteCarlo.length} contrast${monteCarlo.length > 1 ? "s" : ""}` : ""}, and a component's family-wise error-corrected p-value was p_FWE = (1 + b)/(1 + K), where b of the K relabelings had a largest component at least as large (${cite("phipsonSmyth", "Phipson & Smyth 2010")}); 95% Clopper–Pearson intervals give its Monte Carlo uncertainty (${cite("clopperPearson", "Clopper & Pearson 1934")}).`,
+      );
+    }
+    if (exact.length > 0) {
+      const counts = [...new Set(exact.map((c) => c.permutations))];
+      inferenceText.push(
+        ` For ${exact.length === permuted.length ? "every contrast" : `${exact.length} contrast${exact.length > 1 ? "s" : ""}`}, all ${counts.map((k) => plain(k ?? NaN)).join(" or ")} distinct relabelings were enumerated (an exact test), and p_FWE = b/M, where b of the M relabelings, the observed labelling among them, had a largest component at least as large.`,
+      );
+    }
+    inferenceText.push(` Subnetworks with p_FWE ≤ ${plain(inference.alpha)} are reported as significant`);
+    const critical = permuted.filter((c) => c.critical_size !== null && c.critical_size !== undefined && Number.isFinite(c.critical_size));
+    if (critical.length > 0) {
+      const unit = inference.size === "mass" ? "" : " edges";
+      inferenceText.push("; at this level a subnetwork had to be larger than ");
+      if (new Set(critical.map((c) => c.critical_size)).size === 1) {
+        inferenceText.push(`${count(critical[0].critical_size!)}${unit}`);
+      } else {
+        inferenceText.push(...list(critical, (c) => [`${count(c.critical_size!)}${unit} for `, { user: c.name }]));
+      }
+    }
+    inferenceText.push(".");
+    if (inference.method === "max-t") {
+      inferenceText.push(
+        ` Edge-level family-wise error was controlled by the maximum statistic over edges (${cite("westfallYoung", "Westfall & Young 1993")}): an edge's p_FWE compares its ${inference.tail === "both" ? "|t|" : "t"} with the largest one in each relabeling.`,
+      );
+    }
+  }
+  const fdrName =
+    inference.fdr === "by"
+      ? `the Benjamini–Yekutieli procedure, valid under any dependence between edges (${cite("benjaminiYekutieli", "Benjamini & Yekutieli 2001")})`
+      : `the Benjamini–Hochberg procedure (${cite("benjaminiHochberg", "Benjamini & Hochberg 1995")})`;
+  if (permuted.length === 0) {
+    inferenceText.push(`The false discovery rate over edges was controlled by ${fdrName}; edges with q ≤ ${plain(inference.alpha)} are reported.`);
+  } else {
+    inferenceText.push(` Edge-wise q-values controlling the false discovery rate by ${fdrName} are also reported.`);
+  }
+
+  // 4. The cohort table's tests.
+  const paragraphs: Segment[][] = [model, contrasts, inferenceText];
+  const cohort = cohortVariables(results);
+  if (cohort.group) {
+    const groups = cohort.group.levels.filter((_, g) => cohort.group!.codes.some((c) => c === g)).length;
+    if (groups >= 2) {
+      const numeric =
+        groups === 2 ? `Welch's t-test (${cite("welch1947", "Welch 1947")})` : `Welch's one-way analysis of variance (${cite("welch1951", "Welch 1951")})`;
+      paragraphs.push([
+        "Participant characteristics were compared between the levels of ",
+        { user: cohort.group.column },
+        ` with ${numeric} for numeric variables and Pearson's chi-square test without continuity correction (${cite("pearson", "Pearson 1900")}) for categorical ones, or Fisher's exact test (${cite("fisherExact", "Fisher 1935")}) for a 2 × 2 table with an expected count below 5.`,
+      ]);
+    }
+  }
+
+  const references = [...cited].map((key) => REFERENCES[key]).sort();
+  return { paragraphs, references };
+}
+
+/** A Markdown code span that survives backticks inside the text. */
+function codeSpan(text: string): string {
+  const clean = text.replace(/[\r\n]+/g, " ");
+  const runs = clean.match(/`+/g) ?? [];
+  const fence = "`".repeat(Math.max(0, ...runs.map((r) => r.length)) + 1);
+  const pad = clean.startsWith("`") || clean.endsWith("`") ? " " : "";
+  return `${fence}${pad}${clean}${pad}${fence}`;
+}
+
+/** methods.md: a heading, the paragraphs (user text as code spans) and the references. */
+export function methodsMarkdown(methods: MethodsText): string {
+  // Plain segments are plexus's own wording (no markup); only user text needs quoting.
+  const render = (segments: Segment[]) => segments.map((s) => (typeof s === "string" ? s : codeSpan(s.user))).join("");
+  return [
+    "## Statistical analysis",
+    "",
+    ...methods.paragraphs.flatMap((p) => [render(p), ""]),
+    "### References",
+    "",
+    ...methods.references.map((r) => `- ${r}`),
+    "",
+  ].join("\n");
+}
+
+/** The paragraphs and references as HTML (user text in <code>, everything escaped). */
+export function methodsHtml(methods: MethodsText): string {
+  const render = (segments: Segment[]) => segments.map((s) => (typeof s === "string" ? escapeHtml(s) : `<code>${escapeHtml(s.user)}</code>`)).join("");
+  return [
+    ...methods.paragraphs.map((p) => `<p>${render(p)}</p>`),
+    `<h3>References</h3>`,
+    `<ul class="references">`,
+    ...methods.references.map((r) => `<li>${escapeHtml(r)}</li>`),
+    `</ul>`,
+  ].join("\n");
+}

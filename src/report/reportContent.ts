@@ -1,0 +1,91 @@
+import { cohortTables, excludedTables, type CohortOptions } from "./cohortTable.js";
+import { matrixFigure } from "./figures/matrixFigure.js";
+import { networkFigure } from "./figures/networkFigure.js";
+import { nullFigure } from "./figures/nullFigure.js";
+import type { LoadedResults } from "./loadResults.js";
+import { methodsText, type MethodsText } from "./methodsText.js";
+import type { ReportTable, TsvTable } from "./reportTable.js";
+import type { SignificantEdges } from "./significantEdges.js";
+import { subnetworkTables } from "./subnetworkTables.js";
+
+/**
+ * Everything the report shows, built once from a loaded results folder and
+ * shared by every writer (tables.md, tables.tex, report.html), so that table
+ * numbers and contents agree across them. Pure: no I/O.
+ */
+export interface ReportContent {
+  /** Tables in print order, numbered from 1; `contrast` is set for per-contrast tables. */
+  tables: { number: number; table: ReportTable; contrast?: string }[];
+  tsv: TsvTable[];
+  contrasts: ContrastContent[];
+  methods: MethodsText;
+  /** Excluded participants, for the report's warnings (always listed there in full). */
+  excluded: ReportTable;
+}
+
+export interface ContrastContent {
+  name: string;
+  finding: SignificantEdges;
+  /** Figures as SVG text, with their file names under figures/. */
+  figures: { file: string; caption: string; svg: string }[];
+}
+
+/** The excluded-participants table is printed in tables.md/.tex only up to this many rows. */
+export const PRINTED_EXCLUDED_LIMIT = 20;
+
+export function reportContent(results: LoadedResults, options: CohortOptions = {}): ReportContent {
+  const cohort = cohortTables(results, options);
+  const excluded = excludedTables(results);
+  const subnetworks = subnetworkTables(results);
+  const tables: ReportContent["tables"] = [];
+  const add = (table: ReportTable | null, contrast?: string) => {
+    if (table) tables.push({ number: tables.length + 1, table, contrast });
+  };
+  add(cohort.print);
+  if (excluded.print.rows.length > 0 && excluded.print.rows.length <= PRINTED_EXCLUDED_LIMIT) add(excluded.print);
+  add(subnetworks.subnetworks);
+  for (const c of subnetworks.perContrast) {
+    add(c.edges, c.name);
+    add(c.hubs, c.name);
+  }
+
+  const { summary } = results;
+  const alpha = summary.options.inference.alpha;
+  const contrasts: ContrastContent[] = results.contrasts.map((contrast, k) => {
+    const finding = subnetworks.perContrast[k].finding;
+    const name = contrast.summary.name;
+    const figures: ContrastContent["figures"] = [];
+    const nullSvg = nullFigure(contrast, summary);
+    if (nullSvg) {
+      figures.push({
+        file: `figures/${name}-null.svg`,
+        caption: `Permutation distribution of the largest component ${summary.options.inference.size} (grey bars), the critical value at α = ${alpha} (dashed line) and the observed components (solid lines, dark when p_FWE ≤ α).`,
+        svg: nullSvg,
+      });
+    }
+    figures.push({
+      file: `figures/${name}-matrix.svg`,
+      caption: "The t-statistic of every edge (both triangles), regions grouped by hemisphere and system when the regions table gives them; the edges of the significant finding are outlined. Colour scale: cividis, dark blue (most negative) to yellow (most positive), lightness increasing throughout.",
+      svg: matrixFigure(contrast, results.regions, finding),
+    });
+    const networkSvg = networkFigure(contrast, results.regions, finding);
+    if (networkSvg) {
+      figures.push({
+        file: `figures/${name}-network.svg`,
+        caption: results.regions.every((r) => r.x !== undefined)
+          ? "The significant edges on three orthogonal projections of the region coordinates; edge colour: t (cividis scale); node size: degree within the finding; grey dots: all other regions."
+          : "The significant edges on a circle of regions (no coordinates were given), ordered by hemisphere and system; edge colour: t (cividis scale); node size: degree within the finding.",
+        svg: networkSvg,
+      });
+    }
+    return { name, finding, figures };
+  });
+
+  return {
+    tables,
+    tsv: [...cohort.tsv, excluded.tsv, ...subnetworks.tsv],
+    contrasts,
+    methods: methodsText(results),
+    excluded: excluded.print,
+  };
+}

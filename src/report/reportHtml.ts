@@ -1,0 +1,184 @@
+import { escapeHtml } from "./escapeHtml.js";
+import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
+import type { LoadedResults } from "./loadResults.js";
+import { methodsHtml } from "./methodsText.js";
+import { plain } from "./printNumbers.js";
+import type { ReportContent } from "./reportContent.js";
+import { REPORT_STYLE } from "./reportStyle.js";
+import { thresholdRule } from "./subnetworkTables.js";
+import { htmlTable } from "./tables/htmlTable.js";
+
+/**
+ * report.html: one self-contained page (inline CSS and SVG; no script, no
+ * external resource, and a Content-Security-Policy that forbids both), to
+ * open offline or send to a co-author. Every string that came from the
+ * user's files is escaped.
+ */
+export const RESEARCH_NOTICE =
+  "plexus is a research tool for group statistics on brain networks. It is not a medical device: its results describe groups and must not be used to diagnose, treat or make decisions about any individual. Use it, and share this report, only as your ethics approval, data-protection rules and local practice allow.";
+
+export function reportHtml(results: LoadedResults, content: ReportContent): string {
+  const { summary } = results;
+  const { inference } = summary.options;
+  const h = escapeHtml;
+  const code = (text: string) => `<code>${h(text)}</code>`;
+  let figureNumber = 0;
+
+  const permuted = summary.contrasts.filter((c) => c.mode === "exact" || c.mode === "monte-carlo");
+  const summaryRows: [string, string][] = [
+    ["Model", code(summary.design.model)],
+    ["Design columns", summary.design.columns.map(code).join(", ")],
+    ["Participants", `${summary.subjects.used} analysed of ${summary.subjects.in_table} listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} excluded)` : ""}`],
+    ["Network", `${summary.regions} regions, ${summary.edges} edges${summary.options.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`],
+    ["Residual df", String(summary.df)],
+    [
+      "Inference",
+      inference.method === "fdr"
+        ? `false discovery rate over edges (${inference.fdr === "by" ? "Benjamini–Yekutieli" : "Benjamini–Hochberg"}), α = ${plain(inference.alpha)}`
+        : `connected subnetworks, threshold ${h(thresholdRule(inference.tail, inference.threshold))}, size measure ${h(inference.size)}, α = ${plain(inference.alpha)}` +
+          (inference.method === "max-t" ? "; edge-level maximum statistic" : "") +
+          `; FDR q-values by ${inference.fdr === "by" ? "Benjamini–Yekutieli" : "Benjamini–Hochberg"}`,
+    ],
+  ];
+  if (permuted.length > 0) {
+    const c = permuted[0];
+    summaryRows.push([
+      "Relabelings",
+      `${c.mode === "exact" ? `all ${c.permutations} (exact)` : `${c.permutations} Monte Carlo, seed ${c.seed}`}; ${c.scheme === "sign-flip" ? "sign-flipping" : "Freedman–Lane permutation"}` +
+        (c.exchangeability_blocks ? `; blocks ${code(c.exchangeability_blocks.column)} (${c.exchangeability_blocks.count}, ${h(c.exchangeability_blocks.permutation)})` : ""),
+    ]);
+  }
+  summaryRows.push(["Software", `plexus ${h(summary.tool.version)}`]);
+
+  const findings = summary.contrasts.map((c, k) => {
+    const found = content.contrasts[k].finding;
+    const parts =
+      c.mode === "exact" || c.mode === "monte-carlo"
+        ? `${c.supra_threshold_components} supra-threshold component${c.supra_threshold_components === 1 ? "" : "s"}, <strong>${found.components.length} significant</strong> (p_FWE ≤ ${plain(inference.alpha)}); ${c.significant_edges_fdr} edge${c.significant_edges_fdr === 1 ? "" : "s"} with q_FDR ≤ ${plain(inference.alpha)}`
+        : `<strong>${c.significant_edges_fdr} edge${c.significant_edges_fdr === 1 ? "" : "s"}</strong> with q_FDR ≤ ${plain(inference.alpha)}`;
+    return `<li><a href="#contrast-${k + 1}">${h(c.name)}</a> (${code(c.expression)}): ${parts}</li>`;
+  });
+
+  // Warnings: the run's own, excluded participants, edges without a statistic.
+  const warnings: string[] = summary.warnings.map((w) => `<li>${h(w)}</li>`);
+  if (summary.subjects.excluded.length > 0) {
+    warnings.push(
+      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table} participants were excluded from the analysis.` +
+        `<details><summary>Show the excluded participants</summary>${htmlTable(content.excluded, 0).replace(/<caption>.*?<\/caption>/, "")}</details></li>`,
+    );
+  }
+  for (const c of summary.contrasts) {
+    if (c.edges_without_statistic > 0) {
+      warnings.push(
+        `<li>${h(c.name)}: ${c.edges_without_statistic} edge${c.edges_without_statistic > 1 ? "s have" : " has"} zero residual variance (for example, absent in every participant) and no statistic; ${c.edges_without_statistic > 1 ? "they are" : "it is"} left out of the inference.</li>`,
+      );
+    }
+  }
+
+  const tablesFor = (contrast?: string) =>
+    content.tables.filter((t) => t.contrast === contrast).map(({ table, number }) => htmlTable(table, number));
+  const general = content.tables.filter((t) => t.contrast === undefined);
+  const cohortTables = general.filter((t) => t.table.id === "cohort" || t.table.id === "excluded").map(({ table, number }) => htmlTable(table, number));
+  const subnetworkTable = general.filter((t) => t.table.id === "subnetworks").map(({ table, number }) => htmlTable(table, number));
+
+  const contrastSections = content.contrasts.map((contrast, k) => {
+    const c = summary.contrasts[k];
+    const figures = contrast.figures.map((figure) => {
+      figureNumber += 1;
+      return [
+        `<figure>`,
+        `<div class="svg">${figure.svg.trim()}</div>`,
+        `<figcaption><strong>Figure ${figureNumber}.</strong> ${h(figure.caption)} <span class="file">(${h(figure.file)})</span></figcaption>`,
+        `</figure>`,
+      ].join("\n");
+    });
+    const none =
+      contrast.finding.edges.length === 0
+        ? `<p class="none">No ${contrast.finding.kind === "components" ? "subnetwork reached" : "edge reached"} ${contrast.finding.kind === "components" ? "p_FWE" : "q_FDR"} ≤ ${plain(inference.alpha)} for this contrast.</p>`
+        : "";
+    return [
+      `<section id="contrast-${k + 1}">`,
+      `<h2>Contrast ${h(c.name)}</h2>`,
+      `<p>${code(c.expression)}, c = [${c.vector.map((v) => plain(v)).join(", ")}], df = ${plain(c.df)}.</p>`,
+      none,
+      ...figures,
+      ...tablesFor(contrast.name),
+      `</section>`,
+    ].join("\n");
+  });
+
+  const inputs = summary.inputs;
+  const mainInputs = inputs.filter((i) => i.role !== "connectome");
+  const connectomeInputs = inputs.filter((i) => i.role === "connectome");
+  const inputRows = (list: typeof inputs) =>
+    list.map((i) => `<tr><td>${h(i.role)}</td><td><code>${h(i.path)}</code></td><td class="hash"><code>${h(i.sha256)}</code></td></tr>`).join("\n");
+  const inputTable = (list: typeof inputs) =>
+    `<div class="table-wrap"><table><thead><tr><th>Role</th><th>Path (relative to the design file)</th><th>SHA-256</th></tr></thead><tbody>\n${inputRows(list)}\n</tbody></table></div>`;
+  const seeds = [...new Set(permuted.map((c) => c.seed))];
+
+  return [
+    "<!DOCTYPE html>",
+    '<html lang="en">',
+    "<head>",
+    '<meta charset="utf-8">',
+    '<meta name="viewport" content="width=device-width, initial-scale=1">',
+    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:">`,
+    `<title>plexus report: ${h(summary.design.model)}</title>`,
+    `<style>\n${REPORT_STYLE}</style>`,
+    "</head>",
+    "<body>",
+    "<header>",
+    "<h1>plexus results</h1>",
+    `<p class="subtitle">Model ${code(summary.design.model)} · ${summary.subjects.used} participants · ${summary.regions} regions · plexus ${h(summary.tool.version)}</p>`,
+    "</header>",
+    `<aside class="notice" role="note"><strong>Research use only.</strong> ${h(RESEARCH_NOTICE)}</aside>`,
+    "<nav><h2>Contents</h2><ol>",
+    '<li><a href="#summary">Run summary</a></li>',
+    '<li><a href="#warnings">Warnings</a></li>',
+    '<li><a href="#cohort">Cohort</a></li>',
+    ...(subnetworkTable.length > 0 ? ['<li><a href="#subnetworks">Significant subnetworks</a></li>'] : []),
+    ...summary.contrasts.map((c, k) => `<li><a href="#contrast-${k + 1}">Contrast ${h(c.name)}</a></li>`),
+    '<li><a href="#methods">Methods</a></li>',
+    '<li><a href="#provenance">Provenance</a></li>',
+    "</ol></nav>",
+    "<main>",
+    '<section id="summary">',
+    "<h2>Run summary</h2>",
+    `<dl>${summaryRows.map(([k, v]) => `<dt>${h(k)}</dt><dd>${v}</dd>`).join("")}</dl>`,
+    `<h3>Findings</h3><ul>${findings.join("\n")}</ul>`,
+    "</section>",
+    '<section id="warnings">',
+    "<h2>Warnings</h2>",
+    warnings.length > 0 ? `<ul class="warnings">${warnings.join("\n")}</ul>` : "<p>None: every listed participant was analysed and every edge has a statistic.</p>",
+    "</section>",
+    '<section id="cohort">',
+    "<h2>Cohort</h2>",
+    ...cohortTables,
+    "</section>",
+    ...(subnetworkTable.length > 0 ? ['<section id="subnetworks">', "<h2>Significant subnetworks</h2>", ...subnetworkTable, "</section>"] : []),
+    ...contrastSections,
+    '<section id="methods">',
+    "<h2>Methods</h2>",
+    '<p class="hint">The same text is in methods.md, ready to paste and edit.</p>',
+    methodsHtml(content.methods),
+    "</section>",
+    '<section id="provenance">',
+    "<h2>Provenance</h2>",
+    "<dl>",
+    `<dt>Software</dt><dd>${h(summary.tool.name)} ${h(summary.tool.version)}</dd>`,
+    `<dt>Command line</dt><dd>${summary.command ? code(summary.command.join(" ")) : "not recorded (run through the library)"}</dd>`,
+    `<dt>Seed</dt><dd>${seeds.length > 0 ? seeds.map((s) => h(String(s))).join(", ") : `${h(String(inference.seed))} (no relabelings drawn)`}</dd>`,
+    "</dl>",
+    inputTable(mainInputs),
+    connectomeInputs.length > 0
+      ? `<details><summary>${connectomeInputs.length} connectome file${connectomeInputs.length > 1 ? "s" : ""} with their SHA-256</summary>${inputTable(connectomeInputs)}</details>`
+      : "",
+    `<p class="hint">Figures use the ${h(COLOUR_SCALE_NAME)} colour scale, whose lightness rises steadily from dark blue to yellow, so they read in grayscale and for colour-blind readers. The tables, figures and methods are also in this folder as tables.md, tables.tex, tables/*.tsv, figures/*.svg and methods.md; <code>plexus report</code> rewrites them from the results without recomputing.</p>`,
+    "</section>",
+    "</main>",
+    `<footer>${h(RESEARCH_NOTICE)}</footer>`,
+    "</body>",
+    "</html>",
+    "",
+  ].join("\n");
+}

@@ -1,0 +1,119 @@
+import { silentProgress, type Progress } from "../cli/progress.js";
+import { defaultThreads } from "../permute/nullEngine.js";
+import { hashInputs } from "../output/provenance.js";
+import { ResultsFolder } from "../output/resultsFolder.js";
+import { pValue } from "../report/printNumbers.js";
+import { prepareAnalysis, type PreparedAnalysis } from "../run/prepareAnalysis.js";
+import { circularityWarning, sampleOverlap, type SampleOverlap } from "./sampleOverlap.js";
+import { selectEdgeSets } from "./selectEdgeSets.js";
+import { analyzeStrength, type StrengthAnalysis } from "./strengthAnalysis.js";
+import { strengthMarkdown } from "./strengthMarkdown.js";
+import { resolveMeasure, type StrengthOptions } from "./strengthOptions.js";
+import { strengthSummary } from "./strengthSummary.js";
+import type { SubnetworkSource } from "./subnetworksFromResults.js";
+import { measuresTable, nodesTable, valuesTable } from "./strengthTables.js";
+
+/**
+ * `plexus strength`: checks the options, reads the design and its inputs,
+ * computes the measures, fits the contrasts, draws the permutations and
+ * writes the results folder atomically:
+ *   <contrast>/nodes.tsv     (nodal)  or  <contrast>/measures.tsv (global, subnetwork)
+ *   strength_values.tsv, results.md, summary.json
+ */
+export interface StrengthLog {
+  info(text: string): void;
+  warn(text: string): void;
+}
+
+export interface StrengthResult {
+  prepared: PreparedAnalysis;
+  analysis: StrengthAnalysis;
+  outputFolder: string;
+  warnings: string[];
+  overlap?: SampleOverlap;
+}
+
+export const STRENGTH_CHUNK_SIZE = 250;
+
+export async function runStrength(options: StrengthOptions, log: StrengthLog, progress: Progress = silentProgress): Promise<StrengthResult> {
+  const measure = resolveMeasure(options);
+  const prepared = prepareAnalysis(options.designFile);
+  const warnings = [...prepared.warnings];
+  for (const warning of prepared.warnings) log.warn(warning);
+  const selected = measure === "subnetwork" ? selectEdgeSets(options.selection ?? {}, prepared.regions, prepared.pairs) : undefined;
+  const folder = ResultsFolder.open(options.out, { force: options.force ?? false });
+  try {
+    const inputs = hashInputs([...prepared.inputs, ...(selected?.files ?? [])]);
+    let source: { subnetworks: SubnetworkSource; overlap: SampleOverlap } | undefined;
+    if (selected?.source) {
+      const overlap = sampleOverlap(selected.source.results.summary, inputs, prepared.kept.map((k) => k.id));
+      const warning = circularityWarning(overlap, selected.source.folder);
+      if (warning) {
+        warnings.push(warning);
+        log.warn(warning);
+      }
+      source = { subnetworks: selected.source, overlap };
+    }
+    const analysis = await analyzeStrength(
+      prepared,
+      { measure, positiveOnly: options.positiveOnly ?? false, mean: options.mean ?? false, sets: selected?.sets ?? [] },
+      {
+        threads: options.threads ?? defaultThreads(),
+        chunkSize: options.chunkSize ?? STRENGTH_CHUNK_SIZE,
+        progress: options.quiet ? silentProgress : progress,
+      },
+    );
+    for (const result of analysis.contrasts) {
+      const name = result.contrast.name;
+      if (measure === "nodal") folder.write(`${name}/nodes.tsv`, nodesTable(analysis, result));
+      else folder.write(`${name}/measures.tsv`, measuresTable(analysis, result));
+      const degenerate = result.statistics.degenerate;
+      if (degenerate > 0) {
+        const warning = `${name}: ${degenerate} measure${degenerate > 1 ? "s have" : " has"} zero residual variance (e.g. a region without edges in every subject) and no statistic`;
+        if (!warnings.includes(warning)) {
+          warnings.push(warning);
+          log.warn(warning);
+        }
+      }
+    }
+    folder.write("strength_values.tsv", valuesTable(prepared.kept.map((k) => k.id), [], analysis.names, analysis.values));
+    folder.write("results.md", strengthMarkdown(prepared, analysis, warnings));
+    const summary = strengthSummary(prepared, analysis, inputs, options.commandLine ?? null, source, warnings);
+    folder.write("summary.json", `${JSON.stringify(summary, null, 2)}\n`);
+    folder.commit();
+    if (!options.quiet) {
+      for (const line of resultLines(prepared, analysis)) log.info(line);
+      log.info(`results written to ${folder.target}`);
+    }
+    return { prepared, analysis, outputFolder: folder.target, warnings, overlap: source?.overlap };
+  } catch (error) {
+    folder.abandon();
+    throw error;
+  }
+}
+
+/** "p = 0.012" or "p < 0.001". */
+function pText(label: string, p: number): string {
+  const text = pValue(p);
+  return text.startsWith("<") ? `${label} ${text}` : `${label} = ${text}`;
+}
+
+/** One line per contrast for the terminal. */
+function resultLines(prepared: PreparedAnalysis, analysis: StrengthAnalysis): string[] {
+  const { alpha } = prepared.design.inference;
+  return analysis.contrasts.map((result) => {
+    const name = result.contrast.name;
+    const { familywise } = result;
+    if (analysis.choice.measure === "nodal") {
+      const fdr = Array.from(result.qFdr).filter((q) => q <= alpha).length;
+      const fwe = familywise ? `${Array.from(familywise.pFwe).filter((p) => p <= alpha).length} region(s) with p_fwe ≤ ${alpha}, ` : "";
+      return `${name}: ${fwe}${fdr} with q_fdr ≤ ${alpha} (of ${analysis.names.length} regions)`;
+    }
+    const parts = analysis.names.map((measureName, m) => {
+      const t = result.statistics.statistic[m];
+      const fwe = familywise ? `, ${pText("p_fwe", familywise.pFwe[m])}` : "";
+      return `${measureName} t(${result.statistics.df}) = ${Number.isFinite(t) ? t.toFixed(2) : "n/a"}, ${pText("p", result.pUncorrected[m])}${fwe}`;
+    });
+    return `${name}: ${parts.join("; ")}`;
+  });
+}

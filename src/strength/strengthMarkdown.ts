@@ -1,0 +1,82 @@
+import { formatFormula } from "../model/formula.js";
+import { escapeMarkdown } from "../report/escapeMarkdown.js";
+import { fixed, MISSING, pValue, significant } from "../report/printNumbers.js";
+import type { ReportTable } from "../report/reportTable.js";
+import { markdownTable } from "../report/tables/markdownTable.js";
+import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
+import type { StrengthAnalysis, StrengthContrast } from "./strengthAnalysis.js";
+
+/**
+ * results.md: a table for the results section per contrast — β (the
+ * contrast's estimate c'β̂), SE, t, df, p and partial r per measure, with
+ * p_FWE (and q_FDR for regions) — in the house style of printed numbers
+ * (src/report/printNumbers.ts: p to three decimals, "< 0.001" below).
+ */
+const TAIL_TEXT = {
+  upper: "one-sided, upper tail (P(T > t))",
+  lower: "one-sided, lower tail (P(T < t))",
+  both: "two-sided",
+} as const;
+
+const MEASURE_TITLE = { nodal: "Nodal strength", global: "Global strength", subnetwork: "Subnetwork strength" } as const;
+
+function contrastTable(prepared: PreparedAnalysis, analysis: StrengthAnalysis, result: StrengthContrast, number: number): string {
+  const { choice } = analysis;
+  const nodal = choice.measure === "nodal";
+  const { statistics, pUncorrected, qFdr, familywise } = result;
+  const rows = analysis.names.map((name, m) => {
+    const finite = Number.isFinite(statistics.statistic[m]);
+    const cells = [
+      name,
+      ...(nodal ? [] : [String(analysis.edgeCounts[m])]),
+      significant(statistics.estimate[m]),
+      significant(statistics.standardError[m]),
+      finite ? fixed(statistics.statistic[m], 2) : MISSING,
+      String(statistics.df),
+      finite ? pValue(pUncorrected[m]) : MISSING,
+      finite && familywise ? pValue(familywise.pFwe[m]) : MISSING,
+      ...(nodal ? [finite ? pValue(qFdr[m]) : MISSING] : []),
+      finite ? fixed(statistics.partialR[m], 2) : MISSING,
+    ];
+    return { cells };
+  });
+  const headers = [
+    nodal ? "Region" : "Measure",
+    ...(nodal ? [] : ["Edges"]),
+    "β",
+    "SE",
+    "t",
+    "df",
+    "p",
+    "p_FWE",
+    ...(nodal ? ["q_FDR"] : []),
+    "partial r",
+  ];
+  const { inference } = prepared.design;
+  const notes = [
+    `Model: ${formatFormula(prepared.formula)}; N = ${prepared.kept.length}${prepared.excluded.length > 0 ? ` (${prepared.excluded.length} left out for missing values)` : ""}. ` +
+      `β is the contrast's estimate c'β̂ on the scale of the measure, SE its standard error, t = β/SE on df = N − rank(X) degrees of freedom; partial r = t/√(t² + df).`,
+    `${MEASURE_TITLE[choice.measure]}: ${nodal ? analysis.descriptions[0] : analysis.names.map((n, m) => `${n}, ${analysis.descriptions[m]}`).join("; ")}` +
+      `${prepared.design.transform === "fisher-z" ? ", on the Fisher z scale" : ""}.`,
+    `p: ${TAIL_TEXT[inference.tail]}, from the t distribution.` +
+      (familywise
+        ? ` p_FWE: family-wise error-corrected across the ${analysis.names.length} ${nodal ? "regions" : "measure(s)"} by the maximum statistic (Westfall & Young 1993) over ${familywise.count} ${familywise.exact ? "relabelings (all of them: exact)" : `random relabelings (Monte Carlo, ${familywise.setup.scheme === "sign-flip" ? "sign flips" : "Freedman–Lane"}, seed ${inference.seed})`}.`
+        : " No permutations were drawn (the design's method is fdr), so p_FWE is not given.") +
+      (nodal ? ` q_FDR: ${inference.fdr === "by" ? "Benjamini–Yekutieli (2001)" : "Benjamini–Hochberg (1995)"} adjusted p across the regions.` : ""),
+  ];
+  const table: ReportTable = {
+    id: `strength-${result.contrast.name}`,
+    title: `${MEASURE_TITLE[choice.measure]}, ${result.contrast.name} (${String(result.contrast.expression)})`,
+    columns: headers.map((header, k) => ({ header, align: k === 0 ? "left" : "right" })),
+    rows,
+    notes,
+  };
+  return markdownTable(table, number);
+}
+
+export function strengthMarkdown(prepared: PreparedAnalysis, analysis: StrengthAnalysis, warnings: string[]): string {
+  const parts = ["# Network strength", ""];
+  for (const warning of warnings) parts.push(`> **Caution.** ${escapeMarkdown(warning)}`, "");
+  analysis.contrasts.forEach((result, k) => parts.push(contrastTable(prepared, analysis, result, k + 1), ""));
+  return `${parts.join("\n").trimEnd()}\n`;
+}

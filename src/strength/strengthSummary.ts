@@ -1,0 +1,112 @@
+import path from "node:path";
+import type { InputRecord } from "../output/provenance.js";
+import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
+import { VERSION } from "../version.js";
+import type { SampleOverlap } from "./sampleOverlap.js";
+import type { StrengthAnalysis } from "./strengthAnalysis.js";
+import type { SubnetworkSource } from "./subnetworksFromResults.js";
+
+function finiteOrNull(value: number): number | null {
+  return Number.isFinite(value) ? value : null;
+}
+
+/** summary.json of `plexus strength`: inputs with their SHA-256, the measure and its options, and per contrast how p_fwe was drawn. */
+export function strengthSummary(
+  prepared: PreparedAnalysis,
+  analysis: StrengthAnalysis,
+  inputs: InputRecord[],
+  commandLine: string[] | null,
+  source: { subnetworks: SubnetworkSource; overlap: SampleOverlap } | undefined,
+  warnings: string[],
+): Record<string, unknown> {
+  const { design, matrix } = prepared;
+  const { inference } = design;
+  const designDir = path.dirname(path.resolve(design.file));
+  const { choice } = analysis;
+  return {
+    tool: { name: "plexus", version: VERSION },
+    command: commandLine,
+    analysis: "strength",
+    inputs: inputs.map((input) => ({
+      role: input.role,
+      path: path.relative(designDir, input.path) || path.basename(input.path),
+      sha256: input.sha256,
+    })),
+    subjects: {
+      in_table: prepared.participants.ids.length,
+      used: prepared.kept.length,
+      used_ids: prepared.kept.map((k) => k.id),
+      excluded: prepared.excluded.map((x) => ({ participant_id: x.id, line: x.line, reason: x.reason })),
+    },
+    regions: prepared.connectomes.regionCount,
+    edges: prepared.connectomes.edgeCount,
+    measure: {
+      kind: choice.measure,
+      positive_only: choice.positiveOnly,
+      mean: choice.mean,
+      count: analysis.names.length,
+      measures: choice.measure === "nodal" ? undefined : analysis.names.map((name, m) => ({ name, edges: analysis.edgeCounts[m], description: analysis.descriptions[m] })),
+      description: choice.measure === "nodal" ? analysis.descriptions[0] : undefined,
+    },
+    subnetwork_source: source
+      ? {
+          results: path.relative(designDir, source.subnetworks.resultsDir) || ".",
+          contrast: source.subnetworks.contrast,
+          alpha: source.subnetworks.alpha,
+          components: source.subnetworks.chosen.map((c) => ({ component: c.id, extent: c.extent, p_fwe: finiteOrNull(c.pFwe) })),
+          shared_connectome_files: source.overlap.sharedFiles,
+          shared_participants: source.overlap.sharedParticipants,
+        }
+      : null,
+    design: {
+      model: design.model,
+      columns: matrix.columns.map((c) => c.name),
+      rank: matrix.cols,
+    },
+    df: matrix.rows - matrix.cols,
+    contrasts: analysis.contrasts.map((result) => {
+      const fw = result.familywise;
+      const plan = fw?.setup.context.plan;
+      return {
+        name: result.contrast.name,
+        expression: result.contrast.expression,
+        vector: [...result.contrast.vector],
+        df: result.statistics.df,
+        measures_without_statistic: result.statistics.degenerate,
+        significant_fwe: fw ? Array.from(fw.pFwe).filter((p) => p <= inference.alpha).length : null,
+        significant_fdr: Array.from(result.qFdr).filter((q) => q <= inference.alpha).length,
+        ...(fw && plan
+          ? {
+              mode: plan.exact ? "exact" : "monte-carlo",
+              permutations: plan.count,
+              distinct_relabelings: Number.isFinite(plan.distinct) ? plan.distinct : null,
+              scheme: fw.setup.scheme,
+              scheme_reason: fw.setup.schemeReason,
+              seed: plan.seed,
+              exchangeability_blocks: prepared.blocks
+                ? { column: prepared.blocks.column, count: prepared.blocks.labels.length, permutation: inference.blockPermutation }
+                : null,
+              critical_statistic: finiteOrNull(fw.criticalStatistic),
+              smallest_possible_p: plan.exact ? 1 / plan.count : 1 / (plan.count + 1),
+            }
+          : { mode: null }),
+      };
+    }),
+    options: {
+      transform: design.transform,
+      symmetrize: design.symmetrize,
+      inference: {
+        method: inference.method,
+        tail: inference.tail,
+        fdr: inference.fdr,
+        alpha: inference.alpha,
+        permutations: inference.permutations,
+        seed: inference.seed,
+        scheme: inference.scheme,
+        blocks: inference.blocks ?? null,
+        block_permutation: inference.blockPermutation,
+      },
+    },
+    warnings,
+  };
+}
