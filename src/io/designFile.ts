@@ -13,8 +13,11 @@ export type BlockPermutation = "within" | "whole";
 
 export interface ContrastSpec {
   name: string;
-  /** An expression such as `group[patient] - group[control]`, or a numeric vector over the design columns. */
-  expression: string | number[];
+  /**
+   * An expression such as `group[patient] - group[control]`, a numeric vector
+   * over the design columns, or a list of rows (expressions or vectors) for an F contrast.
+   */
+  expression: string | number[] | (string | number[])[];
   /** Design key, e.g. `contrasts.patient_gt_control`, and its line, for errors. */
   key: string;
   line?: number;
@@ -195,13 +198,21 @@ export function parseDesign(text: string, file: string): DesignSpec {
       );
     }
     const valueNode = pair.value as Node | null;
-    let expression: string | number[];
+    let expression: ContrastSpec["expression"];
     if (isSeq(valueNode)) {
       const values = valueNode.toJSON() as unknown[];
-      if (values.length === 0 || !values.every((v) => typeof v === "number" && Number.isFinite(v))) {
-        throw new InputError("a contrast vector must list finite numbers, one per design column", { file, line, key });
+      const isVector = (v: unknown): v is number[] =>
+        Array.isArray(v) && v.length > 0 && v.every((x) => typeof x === "number" && Number.isFinite(x));
+      if (values.length > 0 && values.every((v) => typeof v === "number" && Number.isFinite(v))) {
+        expression = values as number[];
+      } else if (values.length > 0 && values.every((v) => isVector(v) || (typeof v === "string" && v.trim() !== ""))) {
+        expression = values as (string | number[])[];
+      } else {
+        throw new InputError(
+          "a contrast list is either one vector of finite numbers (one per design column) or a list of rows (expressions or vectors) for an F contrast",
+          { file, line, key },
+        );
       }
-      expression = values as number[];
     } else if (isScalar(valueNode) && (typeof valueNode.value === "string" || typeof valueNode.value === "number")) {
       expression = String(valueNode.value);
     } else {

@@ -11,10 +11,18 @@ import { rankReport } from "./rank.js";
  */
 export interface Contrast {
   name: string;
+  /** "t" for one row (a directional test), "F" for several rows (an omnibus test). */
+  kind: "t" | "F";
+  /** The first (for t, the only) row. */
   vector: Float64Array;
+  /** Every row of C (q × p); one row for a t contrast. */
+  rows: Float64Array[];
   /** The expression as written, for reports. */
   expression: string;
 }
+
+/** A contrast as the design file may write it: one expression or vector, or several rows (an F contrast). */
+export type ContrastExpression = string | number[] | (string | number[])[];
 
 type Atom = { variable: string; level?: string };
 
@@ -101,8 +109,70 @@ function sameVariables(a: string[], b: string[]): boolean {
   return a.length === b.length && [...a].sort().join("\u0000") === [...b].sort().join("\u0000");
 }
 
-/** Resolves a contrast against the design's columns; errors name the design key. */
+/**
+ * Resolves a contrast against the design's columns; errors name the design key.
+ * Several rows (a list of expressions or vectors), or a bare term name with
+ * more than one column (a factor with three levels, say), make an F contrast.
+ */
 export function parseContrast(
+  name: string,
+  expression: ContrastExpression,
+  design: DesignMatrix,
+  where: InputLocation,
+): Contrast {
+  let rowExpressions: (string | number[])[] | undefined;
+  if (Array.isArray(expression) && expression.some((item) => typeof item !== "number")) {
+    rowExpressions = expression as (string | number[])[];
+  } else if (typeof expression === "string") {
+    const term = termColumns(expression.trim(), design);
+    if (term && term.length > 1) rowExpressions = term.map((j) => Array.from({ length: design.cols }, (_, k) => (k === j ? 1 : 0)));
+  }
+  if (rowExpressions) {
+    if (rowExpressions.length === 0) throw new InputError("an F contrast needs at least one row", where);
+    const rows = rowExpressions.map((row, k) => parseContrastRow(`${name} row ${k + 1}`, row, design, where).vector);
+    checkIndependentRows(rows, where);
+    const written = typeof expression === "string" ? expression.trim() : JSON.stringify(expression);
+    if (rows.length === 1) return { name, kind: "t", vector: rows[0], rows, expression: written };
+    return { name, kind: "F", vector: rows[0], rows, expression: written };
+  }
+  return parseContrastRow(name, expression as string | number[], design, where);
+}
+
+/** The design columns of a term named bare (e.g. `site` or `group:site`), when every variable in it is a factor or numeric without levels. */
+function termColumns(text: string, design: DesignMatrix): number[] | undefined {
+  if (!/^[A-Za-z_.`][A-Za-z0-9_.`:\s]*$/.test(text)) return undefined;
+  const names = text.split(":").map((n) => n.trim().replace(/^`|`$/g, ""));
+  if (!names.every((n) => design.variables.has(n))) return undefined;
+  if (!names.some((n) => design.variables.get(n)!.kind === "factor")) return undefined;
+  const termIndex = design.formula.terms.findIndex((t) => sameVariables(t, names));
+  if (termIndex < 0) return undefined;
+  return design.columns.flatMap((c, j) => (c.term === termIndex ? [j] : []));
+}
+
+function checkIndependentRows(rows: Float64Array[], where: InputLocation): void {
+  const basis: Float64Array[] = [];
+  for (const row of rows) {
+    const r = Float64Array.from(row);
+    for (let pass = 0; pass < 2; pass++) {
+      for (const b of basis) {
+        let f = 0;
+        for (let i = 0; i < r.length; i++) f += b[i] * r[i];
+        for (let i = 0; i < r.length; i++) r[i] -= f * b[i];
+      }
+    }
+    let norm = 0;
+    for (const v of r) norm += v * v;
+    norm = Math.sqrt(norm);
+    let scale = 0;
+    for (const v of row) scale += v * v;
+    if (!(norm > 1e-10 * Math.sqrt(scale))) {
+      throw new InputError("the rows of this F contrast are linearly dependent; remove the redundant row", where);
+    }
+    basis.push(r.map((v) => v / norm));
+  }
+}
+
+function parseContrastRow(
   name: string,
   expression: string | number[],
   design: DesignMatrix,
@@ -144,7 +214,7 @@ export function parseContrast(
         }
         if (variable.kind === "factor" && atom.level === undefined) {
           throw new InputError(
-            `'${atom.variable}' is a factor: name a level, e.g. ${atom.variable}[${variable.levels[1]}] - ${atom.variable}[${variable.levels[0]}]`,
+            `'${atom.variable}' is a factor: name a level, e.g. ${atom.variable}[${variable.levels[1]}] - ${atom.variable}[${variable.levels[0]}], or write '${atom.variable}' alone for an F test of all its levels`,
             where,
           );
         }
@@ -191,7 +261,7 @@ export function parseContrast(
     );
   }
   checkEstimable(vector, design, where, written);
-  return { name, vector, expression: written };
+  return { name, kind: "t", vector, rows: [vector], expression: written };
 }
 
 /**

@@ -92,9 +92,7 @@ export function partitionEffect(design: Float64Array, subjects: number, columns:
     nuisanceBasis.push(r);
   }
   // x = X D c / (c'Dc), D = (X'X)⁻¹.
-  const { q: _q, ...qr } = thinQr(design, S, p);
-  void _q;
-  const d = unscaledCovariance({ ...qr, q: new Float64Array(0) });
+  const d = unscaledCovariance(thinQr(design, S, p));
   const dc = new Float64Array(p);
   for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) dc[i] += d[i * p + j] * c[j];
   const cdc = dot(c, dc);
@@ -146,4 +144,81 @@ export function reducedResiduals(
     sumSquares[e] = ss;
   }
   return { residuals, sumSquares };
+}
+
+/**
+ * The partition for a multi-row contrast C (q × p, an F test): the nuisance
+ * space is {Xβ : Cβ = 0} = span(X N) with N an orthonormal basis of the
+ * complement of C's row space, and the effect space is spanned by
+ * (I − H_Z) X (X'X)⁻¹C' (Winkler et al. 2014, Appendix A). The effect basis
+ * is returned orthonormal, so the numerator sum of squares of a relabeling is
+ * Σ_k (u_k' T R)² (the F statistic's numerator times q).
+ */
+export interface MultiEffectPartition {
+  subjects: number;
+  /** Orthonormal basis of the effect space (q vectors). */
+  effectBasis: Float64Array[];
+  nuisanceBasis: Float64Array[];
+  constantInNuisance: boolean;
+  constantInModel: boolean;
+  df: number;
+}
+
+/** Orthonormalises `vectors` against `against` and each other (two passes); drops those that vanish. */
+function orthonormalize(vectors: Float64Array[], against: Float64Array[], tolerance: number): Float64Array[] {
+  const out: Float64Array[] = [];
+  for (const v of vectors) {
+    const r = projectOut(v, [...against, ...out]);
+    const norm = Math.sqrt(dot(r, r));
+    const scale = Math.sqrt(dot(v, v));
+    if (!(norm > tolerance * Math.max(scale, 1e-300))) continue;
+    for (let i = 0; i < r.length; i++) r[i] /= norm;
+    out.push(r);
+  }
+  return out;
+}
+
+export function partitionEffectRows(
+  design: Float64Array,
+  subjects: number,
+  columns: number,
+  rows: ArrayLike<number>[],
+): MultiEffectPartition {
+  const S = subjects;
+  const p = columns;
+  const rowVectors = rows.map((r) => Float64Array.from(r));
+  const rowBasis = orthonormalize(rowVectors, [], 1e-12);
+  const units = Array.from({ length: p }, (_, j) => {
+    const e = new Float64Array(p);
+    e[j] = 1;
+    return e;
+  });
+  const complement = orthonormalize(units, rowBasis, 1e-8).slice(0, p - rowBasis.length);
+  const multiply = (vector: Float64Array) => {
+    const out = new Float64Array(S);
+    for (let s = 0; s < S; s++) {
+      let sum = 0;
+      for (let i = 0; i < p; i++) sum += design[s * p + i] * vector[i];
+      out[s] = sum;
+    }
+    return out;
+  };
+  const zColumns = complement.map(multiply);
+  const constant = new Float64Array(S).fill(1 / Math.sqrt(S));
+  const zBasis = orthonormalize(zColumns, [], 1e-10);
+  const constantResidual = projectOut(constant, zBasis);
+  const constantInNuisance = Math.sqrt(dot(constantResidual, constantResidual)) < 1e-9;
+  const nuisanceBasis = constantInNuisance ? [constant, ...orthonormalize(zBasis, [constant], 1e-8)] : zBasis;
+  // Effect directions X (X'X)⁻¹ C'_k for each row; their span with the nuisance projected out.
+  const qr = thinQr(design, S, p);
+  const d = unscaledCovariance(qr);
+  const effectColumns = rowVectors.map((c) => {
+    const dc = new Float64Array(p);
+    for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) dc[i] += d[i * p + j] * c[j];
+    return multiply(dc);
+  });
+  const effectBasis = orthonormalize(effectColumns, nuisanceBasis, 1e-10);
+  const modelResidual = projectOut(constant, [...nuisanceBasis, ...effectBasis]);
+  const constantInModel = Math.sqrt(dot(modelResidual, modelResidual)) < 1e-9;
+  return { subjects: S, effectBasis, nuisanceBasis, constantInNuisance, constantInModel, df: S - p };
 }

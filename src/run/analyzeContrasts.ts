@@ -1,4 +1,5 @@
 import { contrastStatistics, type EdgeStatistics } from "../edges/contrastStatistics.js";
+import { contrastFStatistics } from "../edges/fStatistics.js";
 import { fitEdges, type EdgeFit } from "../edges/fitEdges.js";
 import { tailPValues } from "../edges/tailPValues.js";
 import type { ComponentSummary } from "../inference/components.js";
@@ -31,16 +32,34 @@ export function observeContrast(prepared: PreparedAnalysis, fit: EdgeFit, contra
 
 /** Edge statistics, FDR and observed components of a contrast, from a fit and the inference options alone. */
 export function observeContrastOn(fit: EdgeFit, contrast: Contrast, pairs: EdgePairs, inference: InferenceSpec): ObservedContrast {
-  const statistics = contrastStatistics(fit, contrast.vector);
-  const pUncorrected = tailPValues(statistics.statistic, statistics.df, inference.tail);
+  let statistics: EdgeStatistics;
+  let pUncorrected: Float64Array;
+  if (contrast.kind === "F") {
+    const f = contrastFStatistics(fit, contrast.rows);
+    const empty = new Float64Array(f.statistic.length).fill(NaN);
+    statistics = {
+      df: f.df2,
+      statistic: f.statistic,
+      estimate: empty,
+      standardError: empty,
+      pUncorrected: f.pUncorrected,
+      partialR: f.partialEtaSquared,
+      degenerate: f.degenerate,
+    };
+    pUncorrected = f.pUncorrected;
+  } else {
+    statistics = contrastStatistics(fit, contrast.vector);
+    pUncorrected = tailPValues(statistics.statistic, statistics.df, inference.tail);
+  }
   const qFdr = adjustFdr(pUncorrected, inference.fdr);
+  const tail = contrast.kind === "F" ? "upper" : inference.tail;
   const { labels, components } = observedComponents(
     statistics.statistic,
     pairs.regionA,
     pairs.regionB,
     pairs.regionCount,
     inference.threshold,
-    inference.tail,
+    tail,
     inference.size,
   );
   return { contrast, statistics, pUncorrected, qFdr, labels, components };

@@ -153,6 +153,16 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
   const contrasts = design.contrasts.map((spec) =>
     parseContrast(spec.name, spec.expression, matrix, { file: design.file, key: spec.key, line: spec.line }),
   );
+  for (const [k, contrast] of contrasts.entries()) {
+    if (contrast.kind === "F" && inference.tail !== "upper") {
+      const spec = design.contrasts[k];
+      throw new InputError(
+        `'${contrast.name}' is an F contrast (${contrast.rows.length} rows), which has no direction; 'inference.tail: ${inference.tail}' applies to t contrasts only`,
+        { file: design.file, key: spec.key, line: spec.line },
+        "use `tail: upper` (the default), or split the F contrast into t contrasts",
+      );
+    }
+  }
 
   let blocks: PreparedAnalysis["blocks"];
   if (blockColumn) {

@@ -193,7 +193,8 @@ export function writeResults(
     const { statistics } = observed;
     const extra: ExtraEdgeColumn[] = [];
     if (fwe?.edgeP) extra.push({ name: "p_fwe", values: fwe.edgeP });
-    extra.push({ name: "partial_r", values: statistics.partialR }, { name: "standard_error", values: statistics.standardError });
+    if (observed.contrast.kind === "F") extra.push({ name: "partial_eta_squared", values: statistics.partialR });
+    else extra.push({ name: "partial_r", values: statistics.partialR }, { name: "standard_error", values: statistics.standardError });
     const name = observed.contrast.name;
     folder.write(
       `${name}/edges.tsv`,
@@ -308,7 +309,9 @@ export function buildSummary(
       return {
         name: observed.contrast.name,
         expression: observed.contrast.expression,
+        statistic: observed.contrast.kind,
         vector: [...observed.contrast.vector],
+        ...(observed.contrast.kind === "F" ? { rows: observed.contrast.rows.map((r) => [...r]), df1: observed.contrast.rows.length } : {}),
         df: observed.statistics.df,
         edges_without_statistic: observed.statistics.degenerate,
         supra_threshold_components: observed.components.length,

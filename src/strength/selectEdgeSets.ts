@@ -51,7 +51,7 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
   for (const system of selection.systems ?? []) {
     checkSystem(system, known, OPTION.system);
     add(
-      { name: `within_${system}`, description: `edges within ${system}`, edges: edgesWithinSystem(regions, pairs, system) },
+      { name: `within_${system}`, description: `the edges within ${system}`, edges: edgesWithinSystem(regions, pairs, system) },
       OPTION.system,
     );
   }
@@ -63,7 +63,7 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
       throw new InputError(`--between needs two different systems, found '${a}' twice`, { key: OPTION.between }, `for the edges within one system use --system ${a}`);
     }
     add(
-      { name: `between_${a}_${b}`, description: `edges between ${a} and ${b}`, edges: edgesBetweenSystems(regions, pairs, a, b) },
+      { name: `between_${a}_${b}`, description: `the edges between ${a} and ${b}`, edges: edgesBetweenSystems(regions, pairs, a, b) },
       OPTION.between,
     );
   }

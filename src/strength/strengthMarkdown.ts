@@ -60,7 +60,15 @@ function contrastTable(prepared: PreparedAnalysis, analysis: StrengthAnalysis, r
       `${prepared.design.transform === "fisher-z" ? ", on the Fisher z scale" : ""}.`,
     `p: ${TAIL_TEXT[inference.tail]}, from the t distribution.` +
       (familywise
-        ? ` p_FWE: family-wise error-corrected across the ${analysis.names.length} ${nodal ? "regions" : "measure(s)"} by the maximum statistic (Westfall & Young 1993) over ${familywise.count} ${familywise.exact ? "relabelings (all of them: exact)" : `random relabelings (Monte Carlo, ${familywise.setup.scheme === "sign-flip" ? "sign flips" : "Freedman–Lane"}, seed ${inference.seed})`}.`
+        ? ` p_FWE: ${
+            analysis.names.length === 1
+              ? "permutation p-value (a single measure needs no correction)"
+              : `family-wise error-corrected across the ${analysis.names.length} ${nodal ? "regions" : "measures"} by the maximum statistic (Westfall & Young 1993)`
+          } from ${familywise.count} ${
+            familywise.exact
+              ? "relabelings (all of them: exact)"
+              : `random relabelings (Monte Carlo, ${familywise.setup.scheme === "sign-flip" ? "sign flips" : "Freedman–Lane"}, seed ${inference.seed})`
+          }.`
         : " No permutations were drawn (the design's method is fdr), so p_FWE is not given.") +
       (nodal ? ` q_FDR: ${inference.fdr === "by" ? "Benjamini–Yekutieli (2001)" : "Benjamini–Hochberg (1995)"} adjusted p across the regions.` : ""),
   ];
@@ -76,7 +84,7 @@ function contrastTable(prepared: PreparedAnalysis, analysis: StrengthAnalysis, r
 
 export function strengthMarkdown(prepared: PreparedAnalysis, analysis: StrengthAnalysis, warnings: string[]): string {
   const parts = ["# Network strength", ""];
-  for (const warning of warnings) parts.push(`> **Caution.** ${escapeMarkdown(warning)}`, "");
-  analysis.contrasts.forEach((result, k) => parts.push(contrastTable(prepared, analysis, result, k + 1), ""));
+  for (const warning of warnings) parts.push(`> **Caution.** ${escapeMarkdown(warning.charAt(0).toUpperCase() + warning.slice(1))}`, "");
+  analysis.contrasts.forEach((result, k) => parts.push(contrastTable(prepared, analysis, result, k + 1).trimEnd(), ""));
   return `${parts.join("\n").trimEnd()}\n`;
 }

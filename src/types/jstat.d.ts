@@ -1,11 +1,21 @@
-// The few jStat functions plexus uses (the package ships no types).
+// The jStat functions plexus and its tests use (the package ships no types).
 declare module "jstat" {
-  interface BetaDistribution {
-    inv(p: number, alpha: number, beta: number): number;
-    cdf(x: number, alpha: number, beta: number): number;
+  interface ContinuousDistribution {
+    cdf(x: number, ...parameters: number[]): number;
+    inv(p: number, ...parameters: number[]): number;
+    pdf(x: number, ...parameters: number[]): number;
+  }
+  interface DiscreteDistribution {
+    cdf(k: number, n: number, p: number): number;
+    pdf(k: number, n: number, p: number): number;
   }
   interface JStatStatic {
-    beta: BetaDistribution;
+    beta: ContinuousDistribution;
+    chisquare: ContinuousDistribution;
+    normal: ContinuousDistribution;
+    studentt: ContinuousDistribution;
+    centralF: ContinuousDistribution;
+    binomial: DiscreteDistribution;
     ibeta(x: number, a: number, b: number): number;
     gammaln(x: number): number;
   }

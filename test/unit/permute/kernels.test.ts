@@ -1,0 +1,264 @@
+// The WebAssembly SIMD permutation kernel against the plain TypeScript kernel
+// (src/permute/permutedStatistics.ts), which test/unit/permute/freedmanLane.test.ts
+// checks against a naive refit with ml-matrix. The two kernels promise the same
+// floating-point operations in the same order, so they are compared bit for bit
+// (tolerance 0: every product, statistic and null row has the same 64 bits).
+// One check also compares the SIMD products with ml-matrix's matrix product
+// (a general-purpose library) within a stated rounding bound.
+import seedrandom from "seedrandom";
+import { Matrix } from "ml-matrix";
+import { afterEach, describe, expect, it, vi } from "vitest";
+import { edgePairs } from "../../../src/edges/edgeIndex.js";
+import { partitionEffect, reducedResiduals } from "../../../src/permute/effectPartition.js";
+import { computeNullRange, type NullChunk, type NullContext } from "../../../src/permute/nullRange.js";
+import { permutedStatistics, weightedSums, type KernelData } from "../../../src/permute/permutedStatistics.js";
+import { designRowTypes, planRelabelings, type SchemeKind } from "../../../src/permute/relabelings.js";
+import { selectKernel } from "../../../src/permute/kernels/selectKernel.js";
+import { WasmPermutationKernel, wasmSimdSupported } from "../../../src/permute/kernels/wasmKernel.js";
+import { EPS, expectAllClose } from "../../helpers/close.js";
+
+/** The index and both bit patterns of the first difference, or undefined when every bit agrees. */
+function firstBitDifference(actual: Float64Array, expected: Float64Array): string | undefined {
+  if (actual.length !== expected.length) return `length ${actual.length} vs ${expected.length}`;
+  const a = new BigUint64Array(actual.buffer, actual.byteOffset, actual.length);
+  const b = new BigUint64Array(expected.buffer, expected.byteOffset, expected.length);
+  for (let i = 0; i < a.length; i++) {
+    if (a[i] !== b[i]) {
+      return `index ${i}: expected ${expected[i]} (0x${b[i].toString(16)}), actual ${actual[i]} (0x${a[i].toString(16)}), difference ${actual[i] - expected[i]}, tolerance 0 (bit-identical)`;
+    }
+  }
+  return undefined;
+}
+
+function expectBitIdentical(actual: Float64Array, expected: Float64Array, label: string, inputs: unknown): void {
+  const miss = firstBitDifference(actual, expected);
+  if (miss) throw new Error(`${label} differs from the TypeScript reference kernel\n  ${miss}\n  inputs: ${JSON.stringify(inputs)}`);
+}
+
+/** Values of mixed sign and scale, with exact zeros and negative zeros among them. */
+function awkwardValues(random: () => number, length: number): Float64Array {
+  const out = new Float64Array(length);
+  for (let i = 0; i < length; i++) {
+    const u = random();
+    if (u < 0.03) out[i] = 0;
+    else if (u < 0.05) out[i] = -0;
+    else out[i] = (random() - 0.5) * 10 ** Math.floor(random() * 7 - 3);
+  }
+  return out;
+}
+
+function newKernel(): WasmPermutationKernel {
+  const kernel = WasmPermutationKernel.create();
+  if (!kernel) throw new Error("this Node has no WebAssembly SIMD; the kernel tests need it (Node 20 has it)");
+  return kernel;
+}
+
+describe("WebAssembly SIMD kernel", () => {
+  it("is supported by this Node (the SIMD module validates)", () => {
+    expect(wasmSimdSupported()).toBe(true);
+  });
+
+  // Sizes chosen to miss every tile: S odd or 1, widths not multiples of the edge tile,
+  // rows not multiples of the row tile, blocks starting mid-array.
+  const shapes = [
+    { S: 1, E: 3, e0: 0, width: 3, rows: 1 },
+    { S: 3, E: 9, e0: 2, width: 7, rows: 5 },
+    { S: 17, E: 23, e0: 1, width: 21, rows: 7 },
+    { S: 101, E: 40, e0: 5, width: 33, rows: 13 },
+    { S: 64, E: 16, e0: 0, width: 16, rows: 8 },
+    { S: 255, E: 11, e0: 3, width: 5, rows: 3 },
+  ];
+  for (const shape of shapes) {
+    it(`weightedSums is bit-identical to the reference (S=${shape.S}, rows=${shape.rows}, width=${shape.width}, e0=${shape.e0})`, () => {
+      const random = seedrandom(`weighted-sums-${JSON.stringify(shape)}`);
+      const { S, E, e0, width, rows } = shape;
+      const residuals = awkwardValues(random, S * E);
+      const weights = awkwardValues(random, rows * S);
+      const expected = new Float64Array(rows * width);
+      const actual = new Float64Array(rows * width).fill(Number.NaN);
+      weightedSums(residuals, S, weights, rows, e0, width, expected);
+      newKernel().weightedSums(residuals, S, weights, rows, e0, width, actual);
+      expectBitIdentical(actual, expected, "products", shape);
+    });
+  }
+
+  it("weightedSums agrees with ml-matrix's matrix product within 2·S·EPS·Σ|w·r|", () => {
+    // Source: ml-matrix Matrix.mmul (a general-purpose library); bound: the standard
+    // dot-product rounding error bound |error| ≤ γ_S Σ|w_s r_s| (Higham 2002, Accuracy and
+    // Stability of Numerical Algorithms, §3.1), doubled for the library's own rounding.
+    const random = seedrandom("weighted-sums-ml-matrix");
+    const S = 37;
+    const E = 19;
+    const rows = 11;
+    const residuals = awkwardValues(random, S * E);
+    const weights = awkwardValues(random, rows * S);
+    const actual = new Float64Array(rows * E);
+    newKernel().weightedSums(residuals, S, weights, rows, 0, E, actual);
+    const w = new Matrix(Array.from({ length: rows }, (_, j) => Array.from(weights.subarray(j * S, (j + 1) * S))));
+    const r = new Matrix(Array.from({ length: S }, (_, s) => Array.from({ length: E }, (_, e) => residuals[e * S + s])));
+    const expected = Float64Array.from(w.mmul(r).to1DArray());
+    for (let j = 0; j < rows; j++) {
+      for (let e = 0; e < E; e++) {
+        let magnitude = 0;
+        for (let s = 0; s < S; s++) magnitude += Math.abs(weights[j * S + s] * residuals[e * S + s]);
+        expectAllClose([actual[j * E + e]], [expected[j * E + e]], {
+          abs: 2 * S * EPS * magnitude,
+          label: `product row ${j}, edge ${e} vs ml-matrix mmul`,
+        });
+      }
+    }
+  });
+
+  const batches = [
+    { S: 19, E: 29, batch: 5, vectors: 3 },
+    { S: 33, E: 130, batch: 7, vectors: 1 },
+    { S: 8, E: 5, batch: 3, vectors: 4 },
+    { S: 101, E: 1203, batch: 11, vectors: 2 },
+  ];
+  for (const shape of batches) {
+    it(`statistics are bit-identical to permutedStatistics (S=${shape.S}, E=${shape.E}, batch=${shape.batch}, c=${shape.vectors})`, () => {
+      const random = seedrandom(`statistics-${JSON.stringify(shape)}`);
+      const { S, E, batch, vectors } = shape;
+      const residuals = awkwardValues(random, S * E);
+      const sumSquares = new Float64Array(E);
+      const valid = new Uint8Array(E);
+      for (let e = 0; e < E; e++) {
+        let ss = 0;
+        for (let s = 0; s < S; s++) ss += residuals[e * S + s] ** 2;
+        // Some edges invalid, some with ‖R‖² too small (SSE ≤ 0 → NaN), most ordinary.
+        valid[e] = random() < 0.9 ? 1 : 0;
+        sumSquares[e] = random() < 0.1 ? ss * 1e-6 : ss * (1 + random());
+      }
+      const data: KernelData = { subjects: S, edges: E, residuals, sumSquares, valid, effectNorm2: 0.5 + random(), df: S - vectors };
+      const weights = new Float64Array(batch * vectors * S);
+      for (let i = 0; i < weights.length; i++) weights[i] = (random() - 0.5) / Math.sqrt(S);
+      const expected = new Float64Array(batch * E);
+      const actual = new Float64Array(batch * E);
+      permutedStatistics(data, weights, batch, vectors, expected);
+      newKernel().statistics(data, weights, batch, vectors, actual);
+      expect(expected.some((t) => Number.isNaN(t)), "some statistics are NaN (invalid or SSE ≤ 0)").toBe(true);
+      expect(expected.some((t) => Number.isFinite(t)), "some statistics are finite").toBe(true);
+      expectBitIdentical(actual, expected, "statistics", shape);
+    });
+  }
+});
+
+/** A small Freedman–Lane (or sign-flip) null context built the way nullContext.ts builds it. */
+function nullContext(options: { S: number; regions: number; scheme: SchemeKind; covariates: boolean; permutations: number }): NullContext {
+  const { S, regions, scheme } = options;
+  const random = seedrandom(`null-context-${JSON.stringify(options)}`);
+  const pairs = edgePairs(regions);
+  const E = pairs.regionA.length;
+  const p = options.covariates ? 4 : 2;
+  const design = new Float64Array(S * p);
+  for (let s = 0; s < S; s++) {
+    design[s * p] = 1;
+    design[s * p + 1] = scheme === "sign-flip" ? random() - 0.3 : s % 3 === 0 ? 1 : 0;
+    if (options.covariates) {
+      design[s * p + 2] = 40 + 20 * random();
+      design[s * p + 3] = random() < 0.5 ? 1 : 0;
+    }
+  }
+  const contrast = new Float64Array(p);
+  contrast[scheme === "sign-flip" ? 0 : 1] = 1;
+  const data = new Float64Array(S * E);
+  for (let i = 0; i < data.length; i++) data[i] = random() + (i % 5 === 0 ? 0.8 * design[Math.floor(i / E) * p + 1] : 0);
+  // One constant edge: zero variance, a NaN statistic the kernel must carry through.
+  for (let s = 0; s < S; s++) data[s * E + 3] = 0.25;
+  const partition = partitionEffect(design, S, p, contrast);
+  const usesConstant = scheme === "sign-flip" || !partition.constantInNuisance;
+  const nuisance = usesConstant ? partition.nuisanceBasis : partition.nuisanceBasis.slice(1);
+  const { residuals, sumSquares } = reducedResiduals(data, S, E, partition.nuisanceBasis);
+  const vectors = [partition.effect, ...nuisance];
+  // The observed statistic: the identity relabeling through the reference kernel.
+  const observed = new Float64Array(E);
+  const identity = new Float64Array(vectors.length * S);
+  vectors.forEach((v, j) => identity.set(v, j * S));
+  const kernel: KernelData = {
+    subjects: S,
+    edges: E,
+    residuals,
+    sumSquares,
+    valid: new Uint8Array(E).fill(1),
+    effectNorm2: partition.effectNorm2,
+    df: partition.df,
+  };
+  permutedStatistics(kernel, identity, 1, vectors.length, observed);
+  kernel.valid = Uint8Array.from(observed, (t) => (Number.isFinite(t) ? 1 : 0));
+  return {
+    kernel,
+    vectors,
+    plan: planRelabelings({
+      kind: scheme,
+      rowTypes: designRowTypes(design, S, p),
+      wholeBlocks: false,
+      seed: 7,
+      requested: options.permutations,
+    }),
+    regionA: pairs.regionA,
+    regionB: pairs.regionB,
+    regionCount: regions,
+    threshold: 1.5,
+    tail: "both",
+    observed,
+  };
+}
+
+function expectSameNull(actual: NullChunk, expected: NullChunk, label: string): void {
+  expect(actual.from).toBe(expected.from);
+  expect(actual.to).toBe(expected.to);
+  for (const key of ["maxExtent", "maxMass", "maxStatistic"] as const) {
+    expectBitIdentical(actual[key], expected[key], `${label}: ${key}`, { from: expected.from, to: expected.to });
+  }
+}
+
+describe("the null computed with the SIMD kernel equals the null computed with the TypeScript kernel", () => {
+  const cases = [
+    { S: 41, regions: 13, scheme: "permute" as const, covariates: true, permutations: 75 },
+    { S: 30, regions: 9, scheme: "permute" as const, covariates: false, permutations: 61 },
+    { S: 23, regions: 11, scheme: "sign-flip" as const, covariates: false, permutations: 50 },
+  ];
+  for (const options of cases) {
+    it(`${options.scheme}, S=${options.S}, ${options.regions} regions, ${options.covariates ? "with" : "without"} covariates`, () => {
+      const context = nullContext(options);
+      const to = context.plan.count + 1;
+      const reference = computeNullRange(context, 1, to, { kernel: "typescript" });
+      const simd = computeNullRange(context, 1, to, { kernel: "wasm" });
+      expect(reference.maxExtent.some((x) => x > 0), "some relabelings have supra-threshold components").toBe(true);
+      expectSameNull(simd, reference, "whole range");
+      // Another split of the range (other batch boundaries) gives the same rows.
+      const head = computeNullRange(context, 1, 20, { kernel: "wasm" });
+      const tail = computeNullRange(context, 20, to, { kernel: "wasm" });
+      expectBitIdentical(Float64Array.from([...head.maxMass, ...tail.maxMass]), reference.maxMass, "split range: maxMass", options);
+    });
+  }
+});
+
+describe("the TypeScript fallback", () => {
+  afterEach(() => {
+    vi.unstubAllEnvs();
+    vi.unstubAllGlobals();
+    vi.resetModules();
+  });
+
+  it("PLEXUS_KERNEL=typescript selects the reference kernel, and the null is unchanged", () => {
+    vi.stubEnv("PLEXUS_KERNEL", "typescript");
+    expect(selectKernel().name).toBe("typescript");
+    expect(selectKernel("wasm").name).toBe("wasm-simd");
+    const context = nullContext({ S: 20, regions: 8, scheme: "permute", covariates: true, permutations: 30 });
+    const viaEnvironment = computeNullRange(context, 1, 31);
+    const simd = computeNullRange(context, 1, 31, { kernel: "wasm" });
+    expectSameNull(viaEnvironment, simd, "PLEXUS_KERNEL=typescript");
+  });
+
+  it("where WebAssembly is missing, auto and wasm fall back to the reference kernel", async () => {
+    vi.stubGlobal("WebAssembly", undefined);
+    vi.resetModules();
+    const fresh = await import("../../../src/permute/kernels/selectKernel.js");
+    const wasm = await import("../../../src/permute/kernels/wasmKernel.js");
+    expect(wasm.wasmSimdSupported()).toBe(false);
+    expect(wasm.WasmPermutationKernel.create()).toBeUndefined();
+    expect(fresh.selectKernel("auto").name).toBe("typescript");
+    expect(fresh.selectKernel("wasm").name).toBe("typescript");
+  });
+});
