@@ -1,4 +1,5 @@
 import type { Progress } from "../cli/progress.js";
+import { InputError } from "../errors.js";
 import { criticalValue, familywiseP, type FamilywiseP } from "../inference/familywiseP.js";
 import { Checkpoint } from "../permute/checkpoint.js";
 import { buildNullContext, type NullSetup } from "../permute/nullContext.js";
@@ -33,6 +34,13 @@ export function needsPermutations(prepared: PreparedAnalysis): boolean {
  */
 export function setupNull(prepared: PreparedAnalysis, observed: ObservedContrast, lastUse = false): NullSetup {
   const spec = prepared.design.contrasts.find((c) => c.name === observed.contrast.name)!;
+  if (observed.contrast.kind === "F") {
+    throw new InputError(
+      `'${observed.contrast.name}' is an F contrast; permutation inference for F contrasts is not available yet`,
+      { file: prepared.design.file, key: spec.key, line: spec.line },
+      "use `method: fdr` for this design, or test the rows as separate t contrasts",
+    );
+  }
   return buildNullContext({
     matrix: prepared.matrix,
     contrast: observed.contrast.vector,

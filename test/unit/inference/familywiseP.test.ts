@@ -121,7 +121,6 @@ describe("familywiseP: exact p = b/M, Monte Carlo p = (1 + b)/(1 + K) (Phipson &
         fc.array(fc.integer({ min: 0, max: 20 }), { minLength: 1, maxLength: 60 }),
         fc.integer({ min: -1, max: 21 }),
         fc.integer({ min: -1, max: 21 }),
-        fc.boolean(),
         (nullValues, a, b) => {
           const [low, high] = [Math.min(a, b), Math.max(a, b)];
           for (const exact of [true, false]) {

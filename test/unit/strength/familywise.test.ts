@@ -100,7 +100,10 @@ function bruteForceFamilywise(tail: "upper" | "both"): { observed: number[]; p: 
     if (g.reduce((a, b) => a + b, 0) !== 4) continue;
     maxima.push(Math.max(...strength.map((y) => scale(groupT(g, y)))));
   }
-  const p = observed.map((t) => maxima.filter((m) => m >= scale(t)).length / maxima.length);
+  // Ties count (≥). With two groups of 4, the complementary assignment gives exactly −t at every
+  // region, so two-sided its maximum equals the observed one in exact arithmetic; a relative
+  // 1e-9 keeps such exact ties from being lost to rounding on this side.
+  const p = observed.map((t) => maxima.filter((m) => m >= scale(t) * (1 - 1e-9)).length / maxima.length);
   return { observed, p, count: maxima.length };
 }
 
