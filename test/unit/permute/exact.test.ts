@@ -19,6 +19,7 @@ import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import seedrandom from "seedrandom";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { Matrix, QrDecomposition } from "ml-matrix";
 import { Relabeler } from "../../../src/permute/relabelings.js";
 import { runAnalysis, type RunResult } from "../../../src/run/runAnalysis.js";
 import { expectClose } from "../../helpers/close.js";
@@ -323,5 +324,72 @@ inference:
       const b = brute.filter((r) => r.maxMass >= mass * (1 - 1e-12)).length;
       expect(Number(c[header.indexOf("p_fwe")])).toBe(b / 256);
     }
+  });
+});
+
+describe("exact mode with a two-level covariate: model group + sex, cells 2, 2, 2, 2 (S = 8)", () => {
+  it("8!/(2!·2!·2!·2!) = 2520 relabelings; the null equals a Freedman–Lane refit over every distinct arrangement", async () => {
+    const dir = join(scratch.dir, "group-sex");
+    const regionCount = 6;
+    const threshold = 1.5;
+    const groups = ["patient", "control", "control", "patient", "patient", "control", "patient", "control"];
+    const sex = ["F", "F", "M", "M", "F", "M", "M", "F"];
+    const patients = groups.flatMap((g, s) => (g === "patient" ? [s] : []));
+    const data = edgeData("exact-group-sex", 8, regionCount, new Set(patients), 1);
+    writeTinyCohort(dir, { columns: ["group", "sex"], rows: groups.map((g, s) => [`sub-${s + 1}`, g, sex[s]]), regionCount, edges: data });
+    const design = writeDesign(
+      dir,
+      "design.yaml",
+      `model: group + sex
+levels:
+  group: [control, patient]
+  sex: [F, M]
+contrasts:
+  effect: group[patient] - group[control]
+inference:
+  threshold: ${threshold}
+  size: mass
+  tail: both
+  permutations: 3000
+`,
+    );
+    const out = join(dir, "results");
+    await runAnalysis({ designFile: design, out, threads: 1, quiet: true }, quietLog);
+    const summary = JSON.parse(readFileSync(join(out, "summary.json"), "utf8")).contrasts[0];
+    expect(summary).toMatchObject({ mode: "exact", permutations: 2520, distinct_relabelings: 2520 });
+    // Reference: every permutation of the 8 design rows, kept once per distinct sequence of rows
+    // (Winkler et al. 2014, §2.6), each analysed by the naive Freedman–Lane refit: reduced model
+    // Z = [1, sex] fitted by ml-matrix, residuals moved with the rows (Y*[π(s)] = R[s] + Zγ̂[π(s)]),
+    // full model [1, patient, male] refitted by least squares.
+    const X = groups.map((g, s) => [1, g === "patient" ? 1 : 0, sex[s] === "M" ? 1 : 0]);
+    const rowType = X.map((row) => row.join(","));
+    const y = new Matrix(data.map((row) => Array.from(row)));
+    const z = new Matrix(X.map((row) => [row[0], row[2]]));
+    const fitted = z.mmul(new QrDecomposition(z).solve(y));
+    const residual = y.sub(fitted);
+    const distinct = new Map<string, number[]>();
+    for (const p of allPermutations(8)) {
+      const sequence = p.map((source) => rowType[source]).join("|");
+      if (!distinct.has(sequence)) distinct.set(sequence, p);
+    }
+    expect(distinct.size).toBe(2520);
+    const E = data[0].length;
+    const brute = [...distinct.values()].map((p) => {
+      const yStar: number[][] = Array.from({ length: 8 }, () => new Array<number>(E));
+      p.forEach((to, s) => {
+        for (let e = 0; e < E; e++) yStar[to][e] = residual.get(s, e) + fitted.get(to, e);
+      });
+      return bruteForceMaxima(olsContrastT(X, yStar, [0, 1, 0]), regionCount, threshold, "both");
+    });
+    const rows = readNullRows(join(out, "effect", "null.tsv"));
+    expect(rows.length).toBe(2520);
+    // Tolerance 1e-9 relative here (a reduced fit, a relabeling and a full refit; as freedmanLane.test.ts).
+    const a = sortRows(rows.map((r) => r.row));
+    const b = sortRows(brute);
+    a.forEach((row, i) => {
+      expect(row.maxExtent, `sorted row ${i + 1}: max_extent`).toBe(b[i].maxExtent);
+      expectClose(row.maxMass, b[i].maxMass, { rel: 1e-9, abs: 1e-12, label: `sorted row ${i + 1}: max_mass` });
+      expectClose(row.maxStatistic, b[i].maxStatistic, { rel: 1e-9, abs: 1e-12, label: `sorted row ${i + 1}: max_statistic` });
+    });
   });
 });
