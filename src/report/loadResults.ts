@@ -69,7 +69,12 @@ export interface ResultsSummary {
 export interface ContrastSummary {
   name: string;
   expression: string;
+  /** "t" (one row) or "F" (several rows); absent in folders written before F contrasts, meaning "t". */
+  statistic?: "t" | "F";
   vector: number[];
+  /** F contrasts: the contrast matrix, one row per test, and its row count. */
+  rows?: number[][];
+  df1?: number;
   df: number;
   edges_without_statistic: number;
   supra_threshold_components: number;
@@ -113,8 +118,11 @@ export interface EdgeColumns {
   component: Int32Array;
   /** Edge-level family-wise p (max-statistic method only). */
   pFwe?: Float64Array;
+  /** t contrasts: partial correlation and standard error of the estimate (NaN for F contrasts). */
   partialR: Float64Array;
   standardError: Float64Array;
+  /** F contrasts: partial η² (NaN for t contrasts). */
+  partialEtaSquared: Float64Array;
 }
 
 export interface ComponentRow {
@@ -273,7 +281,7 @@ function readSubjects(file: string): SubjectsTable {
   };
 }
 
-const EDGE_COLUMNS = ["region_a", "region_b", "statistic", "estimate", "p_unc", "q_fdr", "component", "partial_r", "standard_error"] as const;
+const EDGE_COLUMNS = ["region_a", "region_b", "statistic", "estimate", "p_unc", "q_fdr", "component"] as const;
 
 function readContrast(dir: string, summary: ContrastSummary, regions: Region[]): ContrastResults {
   const folder = path.join(dir, summary.name);
@@ -290,8 +298,8 @@ function readContrast(dir: string, summary: ContrastSummary, regions: Region[]):
   const count = pairs.edgeCount;
   const numeric = (name: string): Float64Array => {
     const column = columns.get(name) ?? table.header.indexOf(name);
-    const out = new Float64Array(count);
-    for (let e = 0; e < count; e++) out[e] = numberCell(table, e, column);
+    const out = new Float64Array(count).fill(NaN);
+    if (column >= 0) for (let e = 0; e < count; e++) out[e] = numberCell(table, e, column);
     return out;
   };
   const a = columns.get("region_a")!;
@@ -317,6 +325,7 @@ function readContrast(dir: string, summary: ContrastSummary, regions: Region[]):
     component: Int32Array.from(componentValues, (v) => (Number.isFinite(v) ? v : 0)),
     partialR: numeric("partial_r"),
     standardError: numeric("standard_error"),
+    partialEtaSquared: numeric("partial_eta_squared"),
   };
   if (table.header.includes("p_fwe")) edges.pFwe = numeric("p_fwe");
 

@@ -92,12 +92,27 @@ export function methodsText(results: LoadedResults): MethodsText {
 
   // 2. Contrasts.
   const contrasts: Segment[] = [];
-  contrasts.push(summary.contrasts.length === 1 ? "One contrast was tested" : `${summary.contrasts.length} contrasts were tested`);
-  contrasts.push(" with a t-statistic at every edge: ");
+  contrasts.push(summary.contrasts.length === 1 ? "One contrast was tested" : `${capitalised(numberWord(summary.contrasts.length))} contrasts were tested`);
+  const fContrasts = summary.contrasts.filter((c) => c.statistic === "F");
+  const tContrasts = summary.contrasts.filter((c) => c.statistic !== "F");
   contrasts.push(
-    ...list(summary.contrasts, (c) => [{ user: c.name }, " (", { user: c.expression }, `, c = [${c.vector.map((v) => plain(v)).join(", ")}])`]),
+    fContrasts.length === 0 ? " with a t-statistic at every edge: " : tContrasts.length === 0 ? " with an F-statistic at every edge: " : " at every edge, with a t- or an F-statistic: ",
   );
-  contrasts.push(`. Uncorrected p-values were ${TAIL_WORDS[inference.tail] ?? inference.tail}.`);
+  const mixed = fContrasts.length > 0 && tContrasts.length > 0;
+  const matrix = (rows: number[][]) => `[${rows.map((row) => row.map((v) => plain(v)).join(", ")).join("; ")}]`;
+  contrasts.push(
+    ...list(summary.contrasts, (c) =>
+      c.statistic === "F"
+        ? [{ user: c.name }, mixed ? " (F, " : " (", { user: c.expression }, `, C = ${matrix(c.rows ?? [c.vector])}, ${c.df1 ?? c.rows?.length ?? 1} and ${plain(c.df)} degrees of freedom)`]
+        : [{ user: c.name }, mixed ? " (t, " : " (", { user: c.expression }, `, c = [${c.vector.map((v) => plain(v)).join(", ")}])`],
+    ),
+  );
+  contrasts.push(".");
+  if (tContrasts.length > 0) {
+    contrasts.push(` Uncorrected p-values of t were ${TAIL_WORDS[inference.tail] ?? inference.tail}${fContrasts.length > 0 ? "; those of F come from its upper tail" : ""}.`);
+  } else {
+    contrasts.push(" Uncorrected p-values come from the upper tail of F.");
+  }
   const degenerate = summary.contrasts.filter((c) => c.edges_without_statistic > 0);
   if (degenerate.length > 0) {
     const most = Math.max(...degenerate.map((c) => c.edges_without_statistic));
@@ -151,7 +166,7 @@ export function methodsText(results: LoadedResults): MethodsText {
       const counts = [...new Set(monteCarlo.map((c) => c.permutations))];
       const seeds = [...new Set(monteCarlo.map((c) => c.seed))];
       inferenceText.push(
-        ` ${counts.map((k) => plain(k ?? NaN)).join(" or ")} relabelings were drawn at random (Monte Carlo; seed ${seeds.map((s) => plain(s ?? NaN)).join(", ")})` +
+        ` Relabelings were drawn at random (Monte Carlo; K = ${counts.map((k) => plain(k ?? NaN)).join(" or ")}, seed ${seeds.map((s) => plain(s ?? NaN)).join(", ")})` +
           `${exact.length > 0 ? ` for ${monteCarlo.length} contrast${monteCarlo.length > 1 ? "s" : ""}` : ""}, and a component's family-wise error-corrected p-value was p_FWE = (1 + b)/(1 + K), where b of the K relabelings had a largest component at least as large (${cite("phipsonSmyth", "Phipson & Smyth 2010")}); 95% Clopper–Pearson intervals give its Monte Carlo uncertainty (${cite("clopperPearson", "Clopper & Pearson 1934")}).`,
       );
     }
@@ -207,6 +222,17 @@ export function methodsText(results: LoadedResults): MethodsText {
 
   const references = [...cited].map((key) => REFERENCES[key]).sort();
   return { paragraphs, references };
+}
+
+const NUMBER_WORDS = ["zero", "one", "two", "three", "four", "five", "six", "seven", "eight", "nine", "ten"];
+
+/** Small whole numbers as words (style guides spell them out), others as digits. */
+function numberWord(value: number): string {
+  return NUMBER_WORDS[value] ?? String(value);
+}
+
+function capitalised(text: string): string {
+  return text.charAt(0).toUpperCase() + text.slice(1);
 }
 
 /** A Markdown code span that survives backticks inside the text. */

@@ -113,10 +113,12 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
         a.system ?? null,
         b.hemisphere ?? null,
         b.system ?? null,
+        summary.statistic ?? "t",
         edges.statistic[e],
         edges.estimate[e],
         edges.standardError[e],
         edges.partialR[e],
+        edges.partialEtaSquared[e],
         edges.pUncorrected[e],
         edges.qFdr[e],
         edges.pFwe ? edges.pFwe[e] : null,
@@ -176,7 +178,7 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
       },
       {
         name: "subnetwork_edges",
-        header: ["contrast", "selection", "component", "region_a", "region_b", "hemisphere_a", "system_a", "hemisphere_b", "system_b", "statistic", "estimate", "standard_error", "partial_r", "p_unc", "q_fdr", "p_fwe"],
+        header: ["contrast", "selection", "component", "region_a", "region_b", "hemisphere_a", "system_a", "hemisphere_b", "system_b", "statistic_kind", "statistic", "estimate", "standard_error", "partial_r", "partial_eta_squared", "p_unc", "q_fdr", "p_fwe"],
         rows: edgeTsv,
       },
       { name: "hubs", header: ["contrast", "component", "region", "hemisphere", "system", "degree", "strength"], rows: hubTsv },
@@ -196,6 +198,7 @@ function contrastTables(
   const name = contrast.summary.name;
   const byComponent = finding.kind === "components";
   const edgePFwe = edges.pFwe !== undefined;
+  const isF = contrast.summary.statistic === "F";
 
   const columns: TableColumn[] = [];
   if (byComponent) columns.push({ header: "Subnetwork", align: "right" });
@@ -203,12 +206,14 @@ function contrastTables(
   if (shape.hasSystem) columns.push({ header: "System A", align: "left" });
   columns.push({ header: "Region B", align: "left" });
   if (shape.hasSystem) columns.push({ header: "System B", align: "left" });
-  columns.push(
-    { header: "t", align: "right" },
-    { header: "Estimate", align: "right" },
-    { header: "Partial r", align: "right" },
-    { header: "p (unc.)", align: "right" },
-  );
+  if (isF) columns.push({ header: "F", align: "right" }, { header: "Partial η²", align: "right" }, { header: "p (unc.)", align: "right" });
+  else
+    columns.push(
+      { header: "t", align: "right" },
+      { header: "Estimate", align: "right" },
+      { header: "Partial r", align: "right" },
+      { header: "p (unc.)", align: "right" },
+    );
   if (!byComponent) columns.push({ header: "q_FDR", align: "right" });
   if (edgePFwe) columns.push({ header: "p_FWE (edge)", align: "right" });
 
@@ -222,13 +227,16 @@ function contrastTables(
     if (shape.hasSystem) cells.push(a.system ?? MISSING);
     cells.push(b.label);
     if (shape.hasSystem) cells.push(b.system ?? MISSING);
-    cells.push(fixed(edges.statistic[e], 2), significant(edges.estimate[e]), fixed(edges.partialR[e], 2), pValue(edges.pUncorrected[e]));
+    if (isF) cells.push(fixed(edges.statistic[e], 2), fixed(edges.partialEtaSquared[e], 2), pValue(edges.pUncorrected[e]));
+    else cells.push(fixed(edges.statistic[e], 2), significant(edges.estimate[e]), fixed(edges.partialR[e], 2), pValue(edges.pUncorrected[e]));
     if (!byComponent) cells.push(pValue(edges.qFdr[e]));
     if (edgePFwe) cells.push(pValue(edges.pFwe![e]));
     return { cells };
   });
   const edgeNotes = [
-    "t: the contrast's t-statistic; estimate: the contrast of the fitted coefficients on the analysed scale; partial r = t/√(t² + df); p (unc.): uncorrected p-value of the edge.",
+    isF
+      ? "F: the contrast's F-statistic; partial η²: the share of the variance left by the other terms that the contrast explains; p (unc.): uncorrected p-value of the edge."
+      : "t: the contrast's t-statistic; estimate: the contrast of the fitted coefficients on the analysed scale; partial r = t/√(t² + df); p (unc.): uncorrected p-value of the edge.",
   ];
   if (finding.edges.length > shown.length) {
     edgeNotes.unshift(`Showing the first ${shown.length} of ${finding.edges.length} edges (strongest first); tables/subnetwork_edges.tsv lists all.`);
@@ -264,8 +272,9 @@ function contrastTables(
   hubColumns.push({ header: "Region", align: "left" });
   if (shape.hasHemisphere) hubColumns.push({ header: "Hemisphere", align: "left" });
   if (shape.hasSystem) hubColumns.push({ header: "System", align: "left" });
-  hubColumns.push({ header: "Degree", align: "right" }, { header: "Σ|t|", align: "right" });
-  const hubNotes = ["Degree: the number of the listed edges that touch the region; Σ|t|: the sum of their |t| (ties in degree are ordered by it)."];
+  const stat = isF ? "F" : "t";
+  hubColumns.push({ header: "Degree", align: "right" }, { header: `Σ|${stat}|`, align: "right" });
+  const hubNotes = [`Degree: the number of the listed edges that touch the region; Σ|${stat}|: the sum of their |${stat}| (ties in degree are ordered by it).`];
   if (hubRows.length < hubs.length) hubNotes.unshift(`Showing at most ${PRINT_HUB_LIMIT} regions per subnetwork; tables/hubs.tsv lists all.`);
   return {
     edges: edgesTable,

@@ -1,3 +1,4 @@
+import { existsSync } from "node:fs";
 import path from "node:path";
 import { InputError } from "../errors.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
@@ -45,7 +46,7 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
     if (set.edges.length === 0) {
       throw new InputError(`${set.description} has no edges`, { key }, "a system needs at least two regions for an edge within it");
     }
-    if (sets.some((s) => s.name === set.name)) throw new InputError(`${set.description} is chosen twice`, { key });
+    if (sets.some((s) => s.name === set.name)) throw new InputError(`${set.name} is chosen twice`, { key });
     sets.push(set);
   };
   for (const system of selection.systems ?? []) {
@@ -69,6 +70,9 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
   }
   if (selection.pairs) {
     const file = path.resolve(selection.pairs);
+    if (!existsSync(file)) {
+      throw new InputError(`the edge list ${selection.pairs} does not exist`, { key: OPTION.pairs }, "give a TSV with columns region_a and region_b");
+    }
     add(
       {
         name: `pairs_${path.basename(file, path.extname(file))}`,

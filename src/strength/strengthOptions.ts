@@ -83,7 +83,7 @@ export function resolveMeasure(options: Pick<StrengthOptions, "measure" | "mean"
   }
   if (measure !== "subnetwork" && withSet) {
     throw new InputError(
-      `${chosenSelectors(selection)} choose edges for subnetwork strength, but the measure is ${measure}`,
+      `the edge-set options (${chosenSelectors(selection)}) are for subnetwork strength, but the measure is ${measure}`,
       { key: OPTION.measure },
       "use --measure subnetwork (or leave --measure out), or drop the edge-set options",
     );

@@ -10,6 +10,9 @@
 // Binomial(n, 0.05), computed with jStat.binomial.cdf (jStat 1.9.6, a general-purpose library).
 // Ties in the null distribution (extents are integers) make the test conservative, so the rate may
 // sit below 0.05; the interval's lower end still catches a test that never rejects.
+// 500 cohorts per condition (the interval is [13, 38] rejections, i.e. 0.026–0.076). Measured:
+// extent/group 30/500 (0.060), mass/group + age 23/500 (0.046); about 10 s on 2 cores.
+import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import jStat from "jstat";
 import { afterAll, describe, expect, it } from "vitest";
@@ -21,7 +24,6 @@ import { simulateCohort } from "../../src/simulate/simulateCohort.js";
 import { simulationRandom } from "../../src/simulate/simulationRandom.js";
 import { writeCohort } from "../../src/simulate/writeCohort.js";
 import { scratchFolder } from "../unit/permute/cohortFiles.js";
-import { writeFileSync } from "node:fs";
 
 const COHORTS = 500;
 const PERMUTATIONS = 199;

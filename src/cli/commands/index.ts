@@ -1,6 +1,7 @@
 import type { Command } from "commander";
 import type { OutputSink } from "../main.js";
 import { registerAnalysisCommands } from "./analysisCommands.js";
+import { registerReport } from "./report.js";
 import { registerSimulate } from "./simulate.js";
 import { registerStrength } from "./strength.js";
 
@@ -8,5 +9,6 @@ import { registerStrength } from "./strength.js";
 export function registerCommands(program: Command, sink: OutputSink, argv: string[]): void {
   registerAnalysisCommands(program, sink, () => argv);
   registerSimulate(program, sink);
+  registerReport(program, sink);
   registerStrength(program, sink, () => argv);
 }

@@ -6,16 +6,22 @@ import { interpolateCividis } from "d3-scale-chromatic";
  * to look alike to readers with and without red-green colour-vision
  * deficiency, whose lightness rises monotonically (CIELAB L* ≈ 13 to 92), so
  * it also reads in grayscale. The function is d3-scale-chromatic's
- * `interpolateCividis`. The statistic is mapped linearly from [−limit, +limit]
+ * `interpolateCividis`. A t-statistic is mapped linearly from [−limit, +limit]
  * onto [0, 1]: dark blue is the most negative t, mid grey zero, yellow the
- * most positive.
+ * most positive. An F-statistic (never negative) is mapped from [0, limit].
  */
 export const COLOUR_SCALE_NAME = "cividis (Nuñez, Anderton & Renslow 2018, PLoS ONE 13:e0199239)";
 
-/** Colour of `value` on a scale from −limit to +limit, as #rrggbb. */
-export function statisticColour(value: number, limit: number): string {
-  const position = limit > 0 ? (value + limit) / (2 * limit) : 0.5;
-  return scaleColour(Math.max(0, Math.min(1, position)));
+/** Colour of `value` on a scale from −limit (0 when not `signed`) to +limit, as #rrggbb. */
+export function statisticColour(value: number, limit: number, signed = true): string {
+  return scaleColour(scalePosition(value, limit, signed));
+}
+
+/** Where `value` falls on the scale, in [0, 1]. */
+export function scalePosition(value: number, limit: number, signed = true): number {
+  const low = signed ? -limit : 0;
+  const position = limit > 0 ? (value - low) / (limit - low) : 0.5;
+  return Math.max(0, Math.min(1, position));
 }
 
 /** Colour at a position in [0, 1] of the scale, as #rrggbb. */

@@ -2,14 +2,14 @@ import type { Region } from "../../io/regions.js";
 import type { ContrastResults } from "../loadResults.js";
 import type { SignificantEdges } from "../significantEdges.js";
 import { colourBar } from "./colourBar.js";
-import { statisticColour, statisticLimit } from "./colourScale.js";
+import { scaleColour, scalePosition, statisticLimit } from "./colourScale.js";
 import { regionOrder } from "./regionOrder.js";
 import { clip, line, n, rect, svgDocument, text } from "./svgElements.js";
 
 /**
  * Figure: the edge-statistic matrix as a heatmap (both triangles), regions in
  * the drawing order of regionOrder (hemisphere, then system), the statistic on
- * the shared cividis scale, and every edge of the significant finding outlined
+ * the shared cividis scale (t from −max|t| to +max|t|; F from 0 to its maximum), and every edge of the significant finding outlined
  * (a black and a white frame, visible on any colour). Cells are quantised to
  * 41 colours and drawn as one path per colour, so the file stays small for a
  * few hundred regions.
@@ -36,6 +36,8 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
   const height = top + size + 70;
   const { edges } = contrast;
   const limit = statisticLimit(edges.statistic);
+  const signed = contrast.summary.statistic !== "F";
+  const stat = signed ? "t" : "F";
 
   // One path per quantised colour; each cell is a unit square in matrix coordinates.
   const paths = new Map<number, string[]>();
@@ -46,7 +48,7 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
       missing++;
       continue;
     }
-    const level = Math.round(((Math.max(-limit, Math.min(limit, t)) + limit) / (2 * limit)) * (LEVELS - 1));
+    const level = Math.round(scalePosition(t, limit, signed) * (LEVELS - 1));
     const p = position[edges.regionA[e]];
     const q = position[edges.regionB[e]];
     const list = paths.get(level) ?? [];
@@ -54,7 +56,7 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
     paths.set(level, list);
   }
   const body: string[] = [];
-  body.push(text(left, 20, `Edge statistics (t): ${contrast.summary.name}`, { size: 13, weight: "bold" }));
+  body.push(text(left, 20, `Edge statistics (${stat}): ${contrast.summary.name}`, { size: 13, weight: "bold" }));
   body.push(
     text(
       left,
@@ -68,7 +70,7 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
   body.push(rect(left, top, size, size, "#ffffff", 'stroke="#999999" stroke-width="0.5"'));
   body.push(`<g transform="translate(${n(left)} ${n(top)}) scale(${n(cell)})" shape-rendering="crispEdges">`);
   for (const level of [...paths.keys()].sort((a, b) => a - b)) {
-    const colour = statisticColour(-limit + (2 * limit * level) / (LEVELS - 1), limit);
+    const colour = scaleColour(level / (LEVELS - 1));
     body.push(`<path fill="${colour}" d="${paths.get(level)!.join("")}"/>`);
   }
   body.push(`<path fill="#d9d9d9" d="${order.map((_, p) => `M${p} ${p}h1v1h-1z`).join("")}"/>`);
@@ -132,7 +134,7 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
   }
 
   const barWidth = Math.min(260, Math.max(160, size * 0.6));
-  body.push(...colourBar(left + (size - barWidth) / 2, top + size + 30, barWidth, 10, limit, "t-statistic"));
+  body.push(...colourBar(left + (size - barWidth) / 2, top + size + 30, barWidth, 10, limit, `${stat}-statistic`, signed));
   if (missing > 0) {
     body.push(text(left, top + size + 18, `white: ${missing} edge${missing > 1 ? "s" : ""} with no statistic (zero variance)`, { size: 9, fill: "#444444" }));
   }

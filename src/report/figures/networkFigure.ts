@@ -21,7 +21,9 @@ const PANEL = 250;
 const GAP = 22;
 const SIDE = 20;
 const TITLE = 50;
-const LABELLED_HUBS = 8;
+const MAX_NUMBERED = 99;
+const KEY_COLUMNS = 4;
+const KEY_ROW = 13;
 
 interface Layout {
   /** Panels: where each region lands in each, and the panel's caption and frame. */
@@ -38,20 +40,24 @@ export function networkFigure(contrast: ContrastResults, regions: Region[], find
   if (finding.edges.length === 0) return null;
   const { edges } = contrast;
   const limit = statisticLimit(edges.statistic);
+  const signed = contrast.summary.statistic !== "F";
+  const stat = signed ? "t" : "F";
   const hasCoordinates = regions.length > 0 && regions.every((r) => r.x !== undefined && r.y !== undefined && r.z !== undefined);
   const layout = hasCoordinates ? projectionLayout(regions) : circleLayout(regions);
   const hubs = hubRegions(edges, finding.edges, false);
   const degree = new Map(hubs.map((h) => [h.region, h.degree]));
   const maxDegree = Math.max(...hubs.map((h) => h.degree));
-  const radius = (d: number) => 2.4 + 1.7 * Math.sqrt(d);
-  const labelled = new Set(hubs.slice(0, LABELLED_HUBS).map((h) => h.region));
+  const radius = (d: number) => 4 + 1.8 * Math.sqrt(d);
+  // Regions of the finding are numbered by hub rank in every panel, with a key of their labels below.
+  const numbered = hubs.length <= MAX_NUMBERED;
+  const number = new Map(hubs.map((h, k) => [h.region, k + 1]));
   const drawOrder = [...finding.edges].sort((a, b) => Math.abs(edges.statistic[a]) - Math.abs(edges.statistic[b]) || a - b);
 
   const body: string[] = [];
   const what = finding.kind === "components" ? "significant subnetworks" : "edges with q_FDR at or below alpha";
   body.push(text(SIDE, 20, `The ${what}: ${contrast.summary.name}`, { size: 13, weight: "bold" }));
   body.push(
-    text(SIDE, 37, `${finding.edges.length} edge${finding.edges.length > 1 ? "s" : ""} among ${hubs.length} regions; edge colour: t; node size: degree within the finding`, {
+    text(SIDE, 37, `${finding.edges.length} edge${finding.edges.length > 1 ? "s" : ""} among ${hubs.length} regions; edge colour: ${stat}; node size: degree within the finding${numbered ? "; numbers: see the key" : ""}`, {
       size: 10,
       fill: "#444444",
     }),
@@ -77,37 +83,26 @@ export function networkFigure(contrast: ContrastResults, regions: Region[], find
     for (const e of drawOrder) {
       const d = segment(edges.regionA[e], edges.regionB[e]);
       body.push(`<path d="${d}" fill="none" stroke="#262626" stroke-width="3.4" stroke-linecap="round"/>`);
-      body.push(`<path d="${d}" fill="none" stroke="${statisticColour(edges.statistic[e], limit)}" stroke-width="2" stroke-linecap="round"/>`);
+      body.push(`<path d="${d}" fill="none" stroke="${statisticColour(edges.statistic[e], limit, signed)}" stroke-width="2" stroke-linecap="round"/>`);
     }
     const nodes = [...degree.keys()].sort((a, b) => degree.get(a)! - degree.get(b)! || a - b);
     for (const region of nodes) {
       const [x, y] = panel.place(region);
       body.push(circle(x, y, radius(degree.get(region)!), "#2b2b2b", 'stroke="#ffffff" stroke-width="0.9"'));
     }
-    // Labels of the main hubs: in the first projection, or around the circle.
-    if (k === 0) {
-      for (const region of nodes.filter((r) => labelled.has(r))) {
+    if (numbered) {
+      for (const region of nodes) {
         const [x, y] = panel.place(region);
-        const r = radius(degree.get(region)!);
-        let anchor: "start" | "end" = "start";
-        let dx = r + 3;
-        if (layout.curved && layout.centre && x < layout.centre[0]) {
-          anchor = "end";
-          dx = -dx;
-        }
-        body.push(
-          text(x + dx, y + 3, clip(regions[region].label, 24), { anchor, size: 9 }).replace(
-            "<text ",
-            '<text stroke="#ffffff" stroke-width="2.6" paint-order="stroke" stroke-linejoin="round" ',
-          ),
-        );
+        body.push(text(x, y + 2.6, String(number.get(region)), { anchor: "middle", size: 7.5, weight: "bold", fill: "#ffffff" }));
       }
     }
   });
 
-  // Legends: colour bar and node sizes.
+  // Legends: colour bar and node sizes, then the key of numbered regions.
+  const keyRows = numbered ? Math.ceil(hubs.length / KEY_COLUMNS) : 0;
+  const height = layout.height + (keyRows > 0 ? keyRows * KEY_ROW + 16 : 0);
   const legendY = layout.height - 42;
-  body.push(...colourBar(SIDE + 10, legendY, 200, 10, limit, "t-statistic (edge colour)"));
+  body.push(...colourBar(SIDE + 10, legendY, 200, 10, limit, `${stat}-statistic (edge colour)`, signed));
   const sizes = [...new Set([1, Math.round((1 + maxDegree) / 2), maxDegree])].filter((d) => d >= 1);
   let x = SIDE + 270;
   body.push(text(x, legendY - 4, "degree (node size)", { size: 10 }));
@@ -117,7 +112,16 @@ export function networkFigure(contrast: ContrastResults, regions: Region[], find
     body.push(text(x + 2 * r + 3, legendY + 9.5, String(d), { size: 9 }));
     x += 2 * r + 22;
   }
-  return svgDocument(layout.width, layout.height, `Significant edges of ${contrast.summary.name} drawn on the regions`, body);
+  if (numbered) {
+    const columnWidth = (layout.width - 2 * SIDE) / KEY_COLUMNS;
+    hubs.forEach((hub, k) => {
+      const kx = SIDE + Math.floor(k / keyRows) * columnWidth;
+      const ky = layout.height + 8 + (k % keyRows) * KEY_ROW;
+      body.push(text(kx + 14, ky, String(k + 1), { anchor: "end", size: 9, weight: "bold" }));
+      body.push(text(kx + 19, ky, clip(`${regions[hub.region].label} (degree ${hub.degree})`, Math.floor(columnWidth / 5.6) - 4), { size: 9 }));
+    });
+  }
+  return svgDocument(layout.width, height, `Significant edges of ${contrast.summary.name} drawn on the regions`, body);
 }
 
 function projectionLayout(regions: Region[]): Layout {

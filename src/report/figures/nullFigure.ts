@@ -1,13 +1,15 @@
 import type { ContrastResults, ResultsSummary } from "../loadResults.js";
-import { plain, significant } from "../printNumbers.js";
-import { line, n, niceTicks, rect, svgDocument, text, tickLabel } from "./svgElements.js";
+import { count, plain } from "../printNumbers.js";
+import { halo, line, n, niceTicks, rect, svgDocument, text, tickLabel } from "./svgElements.js";
 
 /**
  * Figure: the permutation distribution of the largest component size (the
  * design's size measure) as a histogram, with the critical value at alpha
  * (dashed) and each observed component's size (solid; dark when p_fwe ≤ alpha,
  * grey otherwise) marked. Integer sizes (extent) get one bar per value up to
- * 60; otherwise 40 equal bins. Monochrome, so it reads in grayscale.
+ * 60; otherwise 40 equal bins. The axis ends soon after the observed sizes,
+ * the critical value and 99.9% of the null; the few larger null values are
+ * counted in a note. Monochrome, so it reads in grayscale.
  */
 const WIDTH = 640;
 const HEIGHT = 360;
@@ -22,20 +24,26 @@ export function nullFigure(contrast: ContrastResults, summary: ResultsSummary): 
   const observed = contrast.components.map((c) => ({ id: c.id, size: measure === "mass" ? c.mass : c.extent, significant: c.pFwe <= inference.alpha }));
   const critical = contrast.summary.critical_size ?? NaN;
 
-  let nullMax = 0;
+  // The axis reaches the observed sizes, the critical value and nearly all of the null; rarer, larger null
+  // values are counted at the right edge instead of stretching the axis.
   let integers = true;
-  for (const v of values) {
-    if (v > nullMax) nullMax = v;
-    if (!Number.isInteger(v)) integers = false;
-  }
-  const top = Math.max(nullMax, ...observed.map((o) => o.size), Number.isFinite(critical) ? critical : 0, 1);
+  for (const v of values) if (!Number.isInteger(v)) integers = false;
+  const sorted = Float64Array.from(values).sort();
+  const nullHigh = sorted[Math.min(sorted.length - 1, Math.floor(0.999 * sorted.length))];
+  const nullMax = sorted[sorted.length - 1];
+  const reach = Math.max(nullHigh, ...observed.map((o) => o.size), Number.isFinite(critical) ? critical : 0, 1);
+  const top = nullMax <= reach * 1.25 ? Math.max(reach, nullMax) : reach * 1.15;
   const perValue = integers && measure === "extent" && top <= 60;
-  const binCount = perValue ? Math.round(top) + 1 : 40;
+  const binCount = perValue ? Math.ceil(top) + 1 : 40;
   const low = perValue ? -0.5 : 0;
-  const high = perValue ? top + 0.5 : top * 1.04;
+  const high = perValue ? Math.ceil(top) + 0.5 : top * 1.04;
   const binWidth = (high - low) / binCount;
   const counts = new Array<number>(binCount).fill(0);
-  for (const v of values) counts[Math.min(binCount - 1, Math.max(0, Math.floor((v - low) / binWidth)))] += 1;
+  let beyond = 0;
+  for (const v of values) {
+    if (v >= high) beyond++;
+    else counts[Math.max(0, Math.floor((v - low) / binWidth))] += 1;
+  }
   const countMax = Math.max(...counts, 1);
 
   const plotWidth = WIDTH - MARGIN.left - MARGIN.right;
@@ -56,7 +64,7 @@ export function nullFigure(contrast: ContrastResults, summary: ResultsSummary): 
     body.push(line(MARGIN.left, y(t), MARGIN.left + plotWidth, y(t), "#e6e6e6", 0.8));
     body.push(text(MARGIN.left - 6, y(t) + 3.5, tickLabel(t, yStep), { anchor: "end", size: 9 }));
   }
-  const xTicks = niceTicks(perValue ? 0 : low, perValue ? top : high, 8).filter((t) => t >= low && t <= high);
+  const xTicks = niceTicks(perValue ? 0 : low, perValue ? Math.ceil(top) : high, 8).filter((t) => t >= low && t <= high);
   const xStep = xTicks.length > 1 ? xTicks[1] - xTicks[0] : 1;
   for (const t of xTicks) {
     body.push(line(x(t), MARGIN.top + plotHeight, x(t), MARGIN.top + plotHeight + 4, "#333333", 0.8));
@@ -78,8 +86,8 @@ export function nullFigure(contrast: ContrastResults, summary: ResultsSummary): 
   // Critical value.
   if (Number.isFinite(critical)) {
     body.push(line(x(critical), MARGIN.top - 4, x(critical), MARGIN.top + plotHeight, "#000000", 1.4, 'stroke-dasharray="5 3"'));
-    body.push(text(x(critical) + 4, MARGIN.top + 8, `critical ${measure} ${significant(critical)}`, { size: 9 }));
-    body.push(text(x(critical) + 4, MARGIN.top + 19, `(larger is significant)`, { size: 9, fill: "#444444" }));
+    body.push(halo(text(x(critical) + 4, MARGIN.top + 4, `critical ${measure}: ${count(critical)}`, { size: 9 })));
+    body.push(halo(text(x(critical) + 4, MARGIN.top + 15, "(larger is significant)", { size: 9, fill: "#444444" })));
   }
 
   // Observed components, one mark per distinct size.
@@ -94,22 +102,27 @@ export function nullFigure(contrast: ContrastResults, summary: ResultsSummary): 
     .sort((a, b) => b[0] - a[0])
     .forEach(([size, entry], k) => {
       const colour = entry.significant ? "#1a1a1a" : "#8c8c8c";
-      const labelY = MARGIN.top + 34 + (k % 4) * 12;
+      const labelY = MARGIN.top + 36 + (k % 4) * 13;
       body.push(line(x(size), labelY + 3, x(size), MARGIN.top + plotHeight, colour, entry.significant ? 2.2 : 1.2));
       body.push(`<path d="M${n(x(size) - 4)} ${n(labelY + 3)}h8l-4 6z" fill="${colour}"/>`);
       const label = entry.ids.length <= 3 ? entry.ids.map((id) => `#${id}`).join(" ") : `${entry.ids.length} components`;
-      body.push(text(x(size) + (k % 2 === 0 ? -6 : 6), labelY, label, { anchor: k % 2 === 0 ? "end" : "start", size: 9, fill: colour }));
+      body.push(halo(text(x(size) + 6, labelY + 7, label, { size: 9, fill: colour })));
     });
 
+  if (beyond > 0) {
+    body.push(halo(text(MARGIN.left + plotWidth, MARGIN.top + plotHeight - 8, `${beyond} larger, up to ${count(nullMax)} →`, { anchor: "end", size: 9, fill: "#444444" })));
+  }
+
   // Legend.
-  const legendX = WIDTH - MARGIN.right - 190;
-  const legendY = 48;
-  body.push(rect(legendX, legendY - 9, 10, 8, "#a8a8a8"));
-  body.push(text(legendX + 14, legendY - 1, "null: largest size per relabeling", { size: 9 }));
-  body.push(line(legendX, legendY + 9, legendX + 10, legendY + 9, "#1a1a1a", 2.2));
-  body.push(text(legendX + 14, legendY + 12, `observed, p_FWE ≤ ${plain(inference.alpha)}`, { size: 9 }));
-  body.push(line(legendX + 100 + 20, legendY + 9, legendX + 130, legendY + 9, "#8c8c8c", 1.2));
-  body.push(text(legendX + 134, legendY + 12, "not", { size: 9 }));
+  const legendX = WIDTH - MARGIN.right - 200;
+  const legendY = MARGIN.top + 2;
+  body.push(rect(legendX - 6, legendY - 10, 206, 46, "#ffffff", 'stroke="#d0d0d0" stroke-width="0.6"'));
+  body.push(rect(legendX, legendY - 6, 12, 8, "#a8a8a8"));
+  body.push(text(legendX + 18, legendY + 2, "null: largest size in a relabeling", { size: 9 }));
+  body.push(line(legendX, legendY + 11, legendX + 12, legendY + 11, "#1a1a1a", 2.2));
+  body.push(text(legendX + 18, legendY + 14, `observed, p_FWE ≤ ${plain(inference.alpha)} (#: component)`, { size: 9 }));
+  body.push(line(legendX, legendY + 23, legendX + 12, legendY + 23, "#8c8c8c", 1.2));
+  body.push(text(legendX + 18, legendY + 26, "observed, not significant", { size: 9 }));
 
   return svgDocument(WIDTH, HEIGHT, `Null distribution of the largest component ${measure} for ${contrast.summary.name}`, body);
 }

@@ -78,3 +78,8 @@ export function tickLabel(value: number, step: number): string {
 export function clip(label: string, max: number): string {
   return label.length <= max ? label : `${label.slice(0, Math.max(1, max - 1))}…`;
 }
+
+/** A text element drawn over a white outline, so it stays legible on top of lines and bars. */
+export function halo(textElement: string): string {
+  return textElement.replace("<text ", '<text stroke="#ffffff" stroke-width="2.6" paint-order="stroke" stroke-linejoin="round" ');
+}

@@ -8,74 +8,53 @@
 // upper tail, |t| two-sided), and p_fwe of a region is the share of the 70 assignments whose
 // maximum reaches its observed statistic (exact enumeration includes the identity).
 // Tolerance: p-values are multiples of 1/70, compared within 1e-12 (absolute).
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { Matrix, pseudoInverse } from "ml-matrix";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { prepareAnalysis } from "../../../src/run/prepareAnalysis.js";
-import { simulateCohort } from "../../../src/simulate/simulateCohort.js";
-import { simulationRandom } from "../../../src/simulate/simulationRandom.js";
-import { writeCohort } from "../../../src/simulate/writeCohort.js";
 import { analyzeStrength } from "../../../src/strength/strengthAnalysis.js";
 import { expectAllClose } from "../../helpers/close.js";
+import { readFisherCohort, rowSums, writeDesignFile, writeSimulatedCohort } from "./strengthTestFiles.js";
 
 const REGIONS = 7;
 let root = "";
 
 beforeAll(() => {
   root = mkdtempSync(path.join(tmpdir(), "plexus-strength-fwe-"));
-  const cohort = simulateCohort(
+  writeSimulatedCohort(
+    path.join(root, "cohort"),
     { regions: REGIONS, patients: 4, controls: 4, kind: "correlation", effect: { regions: 3, size: 2 }, covariates: false },
-    simulationRandom(21),
+    21,
   );
-  writeCohort(path.join(root, "cohort"), cohort, { format: "tsv", plantedFile: false });
 });
 afterAll(() => {
   if (root) rmSync(root, { recursive: true, force: true });
 });
 
 function design(name: string, tail: string, permutations: number): string {
-  const file = path.join(root, name);
-  writeFileSync(
-    file,
-    [
-      "subjects: cohort/participants.tsv",
-      "connectomes: cohort/connectomes/{participant_id}.tsv",
-      "model: group",
-      "levels:",
-      "  group: [control, patient]",
-      "contrasts:",
-      "  patient_gt_control: group[patient] - group[control]",
-      "transform: fisher-z",
-      "inference:",
-      "  method: max-t",
-      `  tail: ${tail}`,
-      `  permutations: ${permutations}`,
-      "  seed: 4",
-      "",
-    ].join("\n"),
-  );
-  return file;
-}
-
-function readRows(file: string): string[][] {
-  return readFileSync(file, "utf8")
-    .split("\n")
-    .filter((line) => line !== "")
-    .map((line) => line.split("\t"));
+  return writeDesignFile(path.join(root, name), [
+    "subjects: cohort/participants.tsv",
+    "connectomes: cohort/connectomes/{participant_id}.tsv",
+    "model: group",
+    "levels:",
+    "  group: [control, patient]",
+    "contrasts:",
+    "  patient_gt_control: group[patient] - group[control]",
+    "transform: fisher-z",
+    "inference:",
+    "  method: max-t",
+    `  tail: ${tail}`,
+    `  permutations: ${permutations}`,
+    "  seed: 4",
+  ]);
 }
 
 /** Nodal strength per region and subject from the raw files: strength[i][s]. */
 function rawStrength(): { patient: number[]; strength: number[][] } {
-  const rows = readRows(path.join(root, "cohort", "participants.tsv")).slice(1);
-  const matrices = rows.map((row) =>
-    readRows(path.join(root, "cohort", "connectomes", `${row[0]}.tsv`)).map((cells, i) => cells.map((c, j) => (i === j ? 0 : Math.atanh(Number(c))))),
-  );
-  return {
-    patient: rows.map((r) => (r[1] === "patient" ? 1 : 0)),
-    strength: Array.from({ length: REGIONS }, (_, i) => matrices.map((m) => m[i].reduce((a, b) => a + b, 0))),
-  };
+  const { rows, matrices } = readFisherCohort(path.join(root, "cohort"));
+  return { patient: rows.map((r) => (r[1] === "patient" ? 1 : 0)), strength: rowSums(matrices) };
 }
 
 /** t of the group coefficient of y on [1, g], by least squares with ml-matrix. */

@@ -8,16 +8,14 @@
 // 99% interval of that distribution, whose bounds come from jStat 1.9.6's binomial CDF (a
 // general-purpose library). The full-size check (more cohorts and relabelings) is the
 // validation study's business; this form takes a few seconds.
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import jStat from "jstat";
 import { afterAll, describe, expect, it } from "vitest";
 import { prepareAnalysis } from "../../../src/run/prepareAnalysis.js";
-import { simulateCohort } from "../../../src/simulate/simulateCohort.js";
-import { simulationRandom } from "../../../src/simulate/simulationRandom.js";
-import { writeCohort } from "../../../src/simulate/writeCohort.js";
 import { analyzeStrength } from "../../../src/strength/strengthAnalysis.js";
+import { writeDesignFile, writeSimulatedCohort } from "./strengthTestFiles.js";
 
 const COHORTS = 200;
 const ALPHA = 0.05;
@@ -42,30 +40,23 @@ describe("nodal strength FWER under the null (reduced CI form)", () => {
     let errors = 0;
     for (let seed = 1; seed <= COHORTS; seed++) {
       const dir = path.join(root, `cohort-${seed}`);
-      const cohort = simulateCohort(
-        { regions: 10, patients: 10, controls: 10, kind: "correlation", effect: null, covariates: true },
-        simulationRandom(1000 + seed),
-      );
-      writeCohort(dir, cohort, { format: "npy", plantedFile: false });
-      const design = path.join(dir, "design.yaml");
-      writeFileSync(
-        design,
-        [
-          "subjects: participants.tsv",
-          "connectomes: connectomes.npy",
-          "model: group + age",
-          "levels:",
-          "  group: [control, patient]",
-          "contrasts:",
-          "  patient_gt_control: group[patient] - group[control]",
-          "transform: fisher-z",
-          "inference:",
-          "  method: max-t",
-          "  permutations: 99",
-          `  seed: ${seed}`,
-          "",
-        ].join("\n"),
-      );
+      writeSimulatedCohort(dir, { regions: 10, patients: 10, controls: 10, kind: "correlation", effect: null, covariates: true }, 1000 + seed, {
+        format: "npy",
+      });
+      const design = writeDesignFile(path.join(dir, "design.yaml"), [
+        "subjects: participants.tsv",
+        "connectomes: connectomes.npy",
+        "model: group + age",
+        "levels:",
+        "  group: [control, patient]",
+        "contrasts:",
+        "  patient_gt_control: group[patient] - group[control]",
+        "transform: fisher-z",
+        "inference:",
+        "  method: max-t",
+        "  permutations: 99",
+        `  seed: ${seed}`,
+      ]);
       const prepared = prepareAnalysis(design);
       const analysis = await analyzeStrength(prepared, { measure: "nodal", positiveOnly: false, mean: false, sets: [] }, { threads: 1, chunkSize: 99 });
       const { familywise } = analysis.contrasts[0];

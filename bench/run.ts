@@ -1,0 +1,215 @@
+import { spawnSync } from "node:child_process";
+import { mkdirSync, readFileSync, writeFileSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { CACHE, ensureLargeCohort, ensureSimulatedCohort, writeBenchDesign } from "./cohorts.js";
+import type { Measurement, Request } from "./scenario.js";
+
+/**
+ * npm run bench [-- --quick]: the permutation engine's speed against the
+ * plain TypeScript kernel and against the BLAS floor (bench/floor.py), each
+ * measured in this same run, plus input reading rates and a scaling table.
+ * Every measurement runs in a child process (its own peak RSS). Output: a
+ * markdown report on stdout, also saved as bench/.cache/last-run.md.
+ */
+const quick = process.argv.includes("--quick");
+const here = path.dirname(fileURLToPath(import.meta.url));
+const scenarioScript = path.join(here, "scenario.js");
+const floorScript = path.resolve(here, "../../floor.py");
+const threads = Math.min(2, os.availableParallelism());
+const log = (line: string): void => void process.stderr.write(`bench: ${line}\n`);
+
+function child(request: Request, kernel: "wasm" | "typescript" = "wasm"): Measurement {
+  const result = spawnSync(process.execPath, [scenarioScript, JSON.stringify(request)], {
+    env: { ...process.env, PLEXUS_KERNEL: kernel },
+    encoding: "utf8",
+    maxBuffer: 1 << 20,
+  });
+  if (result.status !== 0) {
+    throw new Error(`bench: ${JSON.stringify(request)} failed (exit ${result.status}):\n${result.stderr}`);
+  }
+  const lines = result.stdout.trim().split("\n");
+  return JSON.parse(lines[lines.length - 1]) as Measurement;
+}
+
+interface Floor {
+  seconds: number;
+  gflops: number;
+  coreType: string | null;
+  blas: string;
+  numpy: string;
+}
+
+function cpuFlags(): string {
+  try {
+    return readFileSync("/proc/cpuinfo", "utf8");
+  } catch {
+    return "";
+  }
+}
+
+const avx512 = /\bavx512f\b/.test(cpuFlags());
+
+/** The BLAS floor for K·c rows; undefined without python3 + numpy. */
+function blasFloor(subjects: number, edges: number, rows: number): Floor | undefined {
+  const env = { ...process.env };
+  if (avx512) {
+    // OpenBLAS does not detect its AVX-512 kernel on every such CPU by itself; pin it for this command only.
+    env.OPENBLAS_CORETYPE = "SkylakeX";
+    delete env.OPENBLAS_L2_SIZE;
+  }
+  const result = spawnSync("python3", [floorScript, "--subjects", String(subjects), "--edges", String(edges), "--rows", String(rows)], {
+    env,
+    encoding: "utf8",
+  });
+  if (result.error || result.status !== 0) {
+    log(`no BLAS floor (python3 with numpy is needed): ${result.error?.message ?? result.stderr.trim().split("\n").pop()}`);
+    return undefined;
+  }
+  return JSON.parse(result.stdout.trim()) as Floor;
+}
+
+function machine(): string[] {
+  const lscpu = spawnSync("lscpu", [], { encoding: "utf8" }).stdout ?? "";
+  const field = (name: string): string => new RegExp(`^${name}:\\s*(.+)$`, "m").exec(lscpu)?.[1]?.trim() ?? "?";
+  return [
+    `- CPU: ${field("Model name")} (${field("Vendor ID")}, family ${field("CPU family")} model ${field("Model")}), ${field("CPU\\(s\\)")} logical CPUs, ${field("Core\\(s\\) per socket")} cores per socket; L2 ${field("L2 cache")}; AVX-512: ${avx512 ? "yes" : "no"}`,
+    `- Memory: ${(os.totalmem() / 2 ** 30).toFixed(1)} GiB; Node ${process.version} (V8 ${process.versions.v8}); ${threads} worker thread(s)`,
+    `- Load average at the start: ${os.loadavg().map((x) => x.toFixed(2)).join(", ")} (the machine is shared: compare ratios measured in this run)`,
+  ];
+}
+
+const fixed = (x: number | undefined, digits = 2): string => (x === undefined || !Number.isFinite(x) ? "–" : x.toFixed(digits));
+const flopsOf = (m: Measurement): number => 2 * m.subjects! * m.edges! * m.vectors! * m.permutations!;
+
+interface ScenarioRow {
+  name: string;
+  fast: Measurement;
+  reference?: Measurement;
+  floor?: Floor;
+}
+
+function scenarioTable(rows: ScenarioRow[]): string[] {
+  const out = [
+    "| scenario | S | E | c | K | wall s | permutations s | perm/s | GFLOP/s wall | GFLOP/s perms | peak RSS MB | TS kernel: wall s / perms s | × faster (perms) | BLAS floor s (GFLOP/s) | wall ÷ floor | perms ÷ floor | null identical to TS |",
+    "|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|",
+  ];
+  for (const { name, fast, reference, floor } of rows) {
+    const flops = flopsOf(fast);
+    const ref = reference ? `${fixed(reference.seconds, 1)} / ${fixed(reference.nullSeconds, 1)}` : "–";
+    out.push(
+      `| ${name} | ${fast.subjects} | ${fast.edges} | ${fast.vectors} | ${fast.permutations} | ${fixed(fast.seconds, 1)} | ${fixed(fast.nullSeconds, 1)} | ${fixed(fast.permutations! / fast.nullSeconds!, 0)} | ${fixed(flops / fast.seconds / 1e9, 1)} | ${fixed(flops / fast.nullSeconds! / 1e9, 1)} | ${fixed(fast.peakRssMegabytes, 0)} | ${ref} | ${reference ? fixed(reference.nullSeconds! / fast.nullSeconds!, 1) : "–"} | ${floor ? `${fixed(floor.seconds, 2)} (${fixed(floor.gflops, 0)})` : "–"} | ${floor ? fixed(fast.seconds / floor.seconds, 1) : "–"} | ${floor ? fixed(fast.nullSeconds! / floor.seconds, 1) : "–"} | ${reference ? (reference.nullHash === fast.nullHash ? "yes" : "**NO**") : "–"} |`,
+    );
+  }
+  return out;
+}
+
+async function main(): Promise<void> {
+  mkdirSync(CACHE, { recursive: true });
+  const report: string[] = [`# plexus benchmark${quick ? " (--quick)" : ""}`, "", ...machine(), ""];
+  const kA = quick ? 500 : 5000;
+  const kC = quick ? 100 : 1000;
+
+  const text = ensureSimulatedCohort("tsv", log);
+  const npy = ensureSimulatedCohort("npy", log);
+  const designA = writeBenchDesign(text, `scenario-a-${kA}`, { model: "group + age + sex", permutations: kA, connectomes: "connectomes/{participant_id}.tsv", transform: "fisher-z" });
+  const designB = writeBenchDesign(text, `scenario-b-${kA}`, { model: "group", permutations: kA, connectomes: "connectomes/{participant_id}.tsv", transform: "fisher-z" });
+  const designNpy = writeBenchDesign(npy, "read-npy", { model: "group", permutations: 100, connectomes: "connectomes.npy", transform: "fisher-z" });
+
+  // Scenarios A and B: end to end (inputs read), the SIMD kernel and the TypeScript kernel, and the BLAS floor.
+  const rows: ScenarioRow[] = [];
+  for (const [name, design] of [
+    ["A: group + age + sex", designA],
+    ["B: group", designB],
+  ] as const) {
+    log(`${name}: SIMD kernel`);
+    const fast = child({ kind: "analysis", name: `fast-${name[0]}`, design, threads });
+    log(`${name}: TypeScript kernel`);
+    const reference = child({ kind: "analysis", name: `reference-${name[0]}`, design, threads }, "typescript");
+    log(`${name}: BLAS floor`);
+    const floor = blasFloor(fast.subjects!, fast.edges!, fast.vectors! * fast.permutations!);
+    rows.push({ name, fast, reference, floor });
+  }
+
+  // Scenario C: scale and memory. End to end from the .npy stack; where that fails (the
+  // reader's limits), the permutation engine alone on invented data of the same shape.
+  const large = ensureLargeCohort(log);
+  const designC = writeBenchDesign(large, `scenario-c-${kC}`, { model: "group + age + sex", permutations: kC, connectomes: "connectomes.npy" });
+  log("C: SIMD kernel");
+  const notes: string[] = [];
+  let c: Measurement;
+  let cName = "C: 1,000 regions, 500 subjects";
+  try {
+    c = child({ kind: "analysis", name: "fast-C", design: designC, threads });
+  } catch (error) {
+    const reason = (error instanceof Error ? error.message : String(error)).split("\n").find((line) => /Error:/.test(line)) ?? "failed";
+    notes.push(`Scenario C end to end did not complete: ${reason.trim()}. The row shows the permutation engine alone on invented data of the same shape (residuals built in shared memory, no file read).`);
+    log("C: end to end failed; timing the permutation engine alone");
+    c = child({ kind: "null", subjects: 500, regions: 1000, covariates: true, permutations: kC, threads });
+    cName += " (engine only)";
+  }
+  log("C: BLAS floor");
+  rows.push({ name: cName, fast: c, floor: blasFloor(c.subjects!, c.edges!, c.vectors! * c.permutations!) });
+  const rawBytes = (c.subjects! * c.edges! * 8) / 1e6;
+
+  report.push("## Scenarios (threads: " + threads + ")", "", ...scenarioTable(rows), "");
+  report.push(
+    ...notes.map((note) => `${note}\n`),
+    `Scenario C: the raw data S·E·8 is ${fixed(rawBytes, 0)} MB; the memory bound 1.5 × raw + 300 MB is ${fixed(1.5 * rawBytes + 300, 0)} MB; peak RSS ${fixed(c.peakRssMegabytes, 0)} MB.`,
+    "",
+  );
+  const floorInfo = rows.find((r) => r.floor)?.floor;
+  if (floorInfo) {
+    report.push(`BLAS floor: numpy ${floorInfo.numpy}, ${floorInfo.blas}, OpenBLAS core type ${floorInfo.coreType ?? "?"}${avx512 ? " (pinned with OPENBLAS_CORETYPE=SkylakeX)" : ""}.`, "");
+  }
+
+  // Input reading.
+  log("input reading rates");
+  const textRead = child({ kind: "read", design: designA });
+  const npyRead = child({ kind: "read", design: designNpy });
+  const oneMatrix = child({ kind: "matrixText" });
+  report.push(
+    "## Input reading",
+    "",
+    "| input | MB | seconds | MB/s |",
+    "|---|---|---|---|",
+    `| 200 text matrices 400 × 400 (design read, participants, matrices, checks) | ${fixed(textRead.megabytes, 0)} | ${fixed(textRead.seconds, 2)} | ${fixed(textRead.megabytesPerSecond, 0)} |`,
+    `| one 400 × 400 text matrix of full-precision values, parse only (bench/readMatrixText.ts) | ${fixed(oneMatrix.megabytes, 1)} | ${fixed(oneMatrix.seconds, 3)} | ${fixed(oneMatrix.megabytesPerSecond, 0)} |`,
+    `| .npy stack 200 × 400 × 400 (design read, participants, stack, checks) | ${fixed(npyRead.megabytes, 0)} | ${fixed(npyRead.seconds, 2)} | ${fixed(npyRead.megabytesPerSecond, 0)} |`,
+    "",
+  );
+
+  // Scaling of the permutation engine alone, on invented data (c = 3).
+  log("scaling table");
+  const base = { subjects: 200, regions: 400, covariates: true, permutations: quick ? 200 : 1000, threads };
+  const variants: { label: string; request: Extract<Request, { kind: "null" }> }[] = [];
+  for (const subjects of [100, 200, 400]) variants.push({ label: `S = ${subjects}`, request: { kind: "null", ...base, subjects } });
+  for (const regions of [200, 283, 400]) variants.push({ label: `regions = ${regions}`, request: { kind: "null", ...base, regions } });
+  for (const factor of [0.5, 1, 2]) {
+    const permutations = Math.round(base.permutations * factor);
+    variants.push({ label: `K = ${permutations}`, request: { kind: "null", ...base, permutations } });
+  }
+  for (const t of [1, 2]) variants.push({ label: `threads = ${t}`, request: { kind: "null", ...base, threads: t } });
+  report.push(
+    "## Scaling (permutations alone, invented data, c = 3, SIMD kernel)",
+    "",
+    "| run | S | E | K | threads | seconds | GFLOP/s | seconds per (S·E·K) × 10¹⁰ |",
+    "|---|---|---|---|---|---|---|---|",
+  );
+  for (const { label, request } of variants) {
+    const m = child(request);
+    report.push(
+      `| ${label} | ${m.subjects} | ${m.edges} | ${m.permutations} | ${request.threads} | ${fixed(m.seconds, 2)} | ${fixed(flopsOf(m) / m.seconds / 1e9, 1)} | ${fixed((m.seconds / (m.subjects! * m.edges! * m.permutations!)) * 1e10, 2)} |`,
+    );
+  }
+  report.push("", `Command: \`npm run bench${quick ? " -- --quick" : ""}\``, "");
+  const markdown = report.join("\n");
+  process.stdout.write(markdown);
+  writeFileSync(path.join(CACHE, "last-run.md"), markdown);
+}
+
+main().catch((error: unknown) => {
+  process.stderr.write(`${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);
+  process.exit(1);
+});

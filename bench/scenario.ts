@@ -1,0 +1,114 @@
+import { createHash } from "node:crypto";
+import { statSync } from "node:fs";
+import path from "node:path";
+import type { Progress } from "../src/cli/progress.js";
+import { selectKernel } from "../src/permute/kernels/selectKernel.js";
+import { runNullEngine } from "../src/permute/nullEngine.js";
+import type { NullChunk } from "../src/permute/nullRange.js";
+import { prepareAnalysis } from "../src/run/prepareAnalysis.js";
+import { runAnalysis } from "../src/run/runAnalysis.js";
+import { CACHE } from "./cohorts.js";
+import { benchReadMatrixText } from "./readMatrixText.js";
+import { syntheticNull } from "./syntheticNull.js";
+
+/**
+ * One measurement, run in its own process by bench/run.ts so that its peak
+ * resident memory is its own: `node scenario.js '<json request>'` prints one
+ * JSON line. The kernel is chosen by PLEXUS_KERNEL in the environment.
+ */
+export type Request =
+  | { kind: "analysis"; name: string; design: string; threads: number }
+  | { kind: "null"; subjects: number; regions: number; covariates: boolean; permutations: number; threads: number }
+  | { kind: "read"; design: string }
+  | { kind: "matrixText" };
+
+export interface Measurement {
+  kernel: string;
+  seconds: number;
+  /** Time of the permutations alone. */
+  nullSeconds?: number;
+  subjects?: number;
+  edges?: number;
+  vectors?: number;
+  permutations?: number;
+  /** SHA-256 of the null rows (extent, mass, statistic), to show the kernels agree. */
+  nullHash?: string;
+  megabytes?: number;
+  megabytesPerSecond?: number;
+  peakRssMegabytes: number;
+}
+
+function nullHash(rows: NullChunk): string {
+  const hash = createHash("sha256");
+  for (const column of [rows.maxExtent, rows.maxMass, rows.maxStatistic]) {
+    hash.update(new Uint8Array(column.buffer, column.byteOffset, column.byteLength));
+  }
+  return hash.digest("hex");
+}
+
+const peakRss = (): number => process.resourceUsage().maxRSS / 1024;
+
+async function measure(request: Request): Promise<Omit<Measurement, "kernel" | "peakRssMegabytes">> {
+  if (request.kind === "analysis") {
+    let nullStart = 0;
+    let nullSeconds = 0;
+    const progress: Progress = {
+      start: () => (nullStart = performance.now()),
+      advance: () => {},
+      finish: () => (nullSeconds += (performance.now() - nullStart) / 1000),
+    };
+    const quiet = { info: () => {}, warn: () => {} };
+    const start = performance.now();
+    const result = await runAnalysis(
+      { designFile: request.design, out: path.join(CACHE, "results", request.name), force: true, threads: request.threads },
+      quiet,
+      progress,
+    );
+    const seconds = (performance.now() - start) / 1000;
+    const contrastNull = result.nulls[0];
+    return {
+      seconds,
+      nullSeconds,
+      subjects: result.prepared.connectomes.subjectCount,
+      edges: result.prepared.connectomes.edgeCount,
+      vectors: contrastNull?.setup.context.vectors.length,
+      permutations: contrastNull?.rows.maxExtent.length,
+      nullHash: contrastNull ? nullHash(contrastNull.rows) : undefined,
+    };
+  }
+  if (request.kind === "null") {
+    const context = syntheticNull(request);
+    const start = performance.now();
+    const rows = await runNullEngine(context, { threads: request.threads, from: 1, to: request.permutations + 1, chunkSize: 250 });
+    const seconds = (performance.now() - start) / 1000;
+    return {
+      seconds,
+      nullSeconds: seconds,
+      subjects: request.subjects,
+      edges: context.kernel.edges,
+      vectors: context.vectors.length,
+      permutations: request.permutations,
+      nullHash: nullHash(rows),
+    };
+  }
+  if (request.kind === "read") {
+    const start = performance.now();
+    const prepared = prepareAnalysis(request.design);
+    const seconds = (performance.now() - start) / 1000;
+    const bytes = prepared.connectomes.files.reduce((sum, file) => sum + statSync(file).size, 0);
+    return {
+      seconds,
+      subjects: prepared.connectomes.subjectCount,
+      edges: prepared.connectomes.edgeCount,
+      megabytes: bytes / 1e6,
+      megabytesPerSecond: bytes / 1e6 / seconds,
+    };
+  }
+  const { megabytesPerSecond, megabytes } = benchReadMatrixText();
+  return { seconds: megabytes / megabytesPerSecond, megabytes, megabytesPerSecond };
+}
+
+const request = JSON.parse(process.argv[2] ?? "{}") as Request;
+const result = await measure(request);
+const measurement: Measurement = { kernel: selectKernel().name, ...result, peakRssMegabytes: peakRss() };
+process.stdout.write(`${JSON.stringify(measurement)}\n`);
