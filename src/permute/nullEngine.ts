@@ -1,8 +1,4 @@
-import { existsSync } from "node:fs";
-import os from "node:os";
-import path from "node:path";
-import { fileURLToPath } from "node:url";
-import { Worker } from "node:worker_threads";
+import { availableThreads, runOnWorkers, workerScript } from "../parallel/workerPool.js";
 import { computeNullRange, type NullChunk, type NullContext } from "./nullRange.js";
 
 /**
@@ -23,9 +19,7 @@ export interface EngineOptions {
   onChunk?: (chunk: NullChunk, fresh: boolean) => void;
 }
 
-export function defaultThreads(): number {
-  return Math.max(1, typeof os.availableParallelism === "function" ? os.availableParallelism() : os.cpus().length);
-}
+export const defaultThreads = availableThreads;
 
 /** The chunk grid: chunk boundaries are fixed by chunkSize, so checkpoints line up across runs. */
 export function chunkRanges(from: number, to: number, chunkSize: number): { from: number; to: number }[] {
@@ -36,16 +30,6 @@ export function chunkRanges(from: number, to: number, chunkSize: number): { from
     start = end;
   }
   return out;
-}
-
-function workerScript(): string {
-  const here = fileURLToPath(import.meta.url);
-  const sibling = path.join(path.dirname(here), "nullWorker.js");
-  if (existsSync(sibling)) return sibling;
-  // Running from the TypeScript sources (tests): use the compiled worker.
-  const compiled = path.resolve(path.dirname(here), "../../dist/permute/nullWorker.js");
-  if (existsSync(compiled)) return compiled;
-  throw new Error(`the permutation worker script is missing (looked for ${sibling} and ${compiled}); run npm run build`);
 }
 
 export async function runNullEngine(context: NullContext, options: EngineOptions): Promise<NullChunk> {
@@ -77,44 +61,16 @@ export async function runNullEngine(context: NullContext, options: EngineOptions
       await new Promise((resolve) => setImmediate(resolve));
     }
   } else {
-    const script = workerScript();
-    const queue = [...pending];
-    const workers: Worker[] = [];
-    try {
-      await Promise.all(
-        Array.from({ length: threads }, () =>
-          new Promise<void>((resolve, reject) => {
-            const worker = new Worker(script, { workerData: context });
-            workers.push(worker);
-            const feed = () => {
-              const range = queue.shift();
-              if (!range) {
-                resolve();
-                return;
-              }
-              worker.postMessage(range);
-            };
-            worker.on("message", (chunk: NullChunk) => {
-              // A failing onChunk (e.g. a checkpoint write on a full disk) must reject the run, not escape the handler.
-              try {
-                results.set(chunk.from, chunk);
-                report();
-                feed();
-              } catch (error) {
-                reject(error);
-              }
-            });
-            worker.on("error", reject);
-            worker.on("exit", (code) => {
-              if (code !== 0) reject(new Error(`a permutation worker stopped with exit code ${code}`));
-            });
-            feed();
-          }),
-        ),
-      );
-    } finally {
-      await Promise.all(workers.map((w) => w.terminate()));
-    }
+    await runOnWorkers<{ from: number; to: number }, NullChunk>({
+      script: workerScript("permute/nullWorker.js"),
+      workerData: context,
+      threads,
+      tasks: pending,
+      onResult: (chunk) => {
+        results.set(chunk.from, chunk);
+        report();
+      },
+    });
   }
   return concatenateChunks(ranges.map((range) => results.get(range.from)!), options.from, options.to);
 }

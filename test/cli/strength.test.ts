@@ -18,6 +18,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { expectAllClose } from "../helpers/close.js";
 import {
   clinicDesign,
+  groupDesignLines,
   numberColumn as column,
   olsReference,
   readFisherCohort,
@@ -42,22 +43,16 @@ beforeAll(() => {
     { regions: REGIONS, patients: 10, controls: 9, kind: "correlation", effect: { regions: 4, size: 1.5 }, covariates: true },
     8,
   );
-  design = writeDesignFile(path.join(root, "design.yaml"), [
-    "subjects: cohort/participants.tsv",
-    "connectomes: cohort/connectomes/{participant_id}.tsv",
-    "regions: cohort/regions.tsv",
-    "model: group + age + sex",
-    "levels:",
-    "  group: [control, patient]",
-    "contrasts:",
-    "  patient_gt_control: group[patient] - group[control]",
-    "  age_down: -age",
-    "transform: fisher-z",
-    "inference:",
-    "  method: components",
-    "  permutations: 99",
-    "  seed: 2",
-  ]);
+  design = writeDesignFile(
+    path.join(root, "design.yaml"),
+    groupDesignLines({
+      cohort: "cohort",
+      regions: true,
+      model: "group + age + sex",
+      contrasts: ["patient_gt_control: group[patient] - group[control]", "age_down: -age"],
+      inference: ["method: components", "permutations: 99", "seed: 2"],
+    }),
+  );
 });
 
 afterAll(() => {

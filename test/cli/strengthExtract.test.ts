@@ -12,7 +12,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { expectAllClose } from "../helpers/close.js";
-import { readFisherCohort, readRows, runCli, writeDesignFile, writeSimulatedCohort } from "../unit/strength/strengthTestFiles.js";
+import { groupDesignLines, readFisherCohort, readRows, runCli, writeDesignFile, writeSimulatedCohort } from "../unit/strength/strengthTestFiles.js";
 
 const DIRECT = { rel: 1e-12, abs: 1e-14 };
 const REGIONS = 12;
@@ -27,22 +27,16 @@ function cohortWithDesign(name: string, seed: number, prefix: string): string {
     seed,
     { prefix },
   );
-  return writeDesignFile(path.join(root, `${name}.yaml`), [
-    `subjects: ${name}/participants.tsv`,
-    `connectomes: ${name}/connectomes/{participant_id}.tsv`,
-    `regions: ${name}/regions.tsv`,
-    "model: group + age + sex",
-    "levels:",
-    "  group: [control, patient]",
-    "contrasts:",
-    "  patient_gt_control: group[patient] - group[control]",
-    "transform: fisher-z",
-    "inference:",
-    "  method: components",
-    "  threshold: 3",
-    "  permutations: 99",
-    "  seed: 5",
-  ]);
+  return writeDesignFile(
+    path.join(root, `${name}.yaml`),
+    groupDesignLines({
+      cohort: name,
+      regions: true,
+      model: "group + age + sex",
+      contrasts: ["patient_gt_control: group[patient] - group[control]"],
+      inference: ["method: components", "threshold: 3", "permutations: 99", "seed: 5"],
+    }),
+  );
 }
 
 let discovery = "";

@@ -16,7 +16,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { prepareAnalysis } from "../../../src/run/prepareAnalysis.js";
 import { analyzeStrength } from "../../../src/strength/strengthAnalysis.js";
 import { expectAllClose } from "../../helpers/close.js";
-import { readFisherCohort, rowSums, writeDesignFile, writeSimulatedCohort } from "./strengthTestFiles.js";
+import { groupDesignLines, readFisherCohort, rowSums, writeDesignFile, writeSimulatedCohort } from "./strengthTestFiles.js";
 
 const REGIONS = 7;
 let root = "";
@@ -34,21 +34,15 @@ afterAll(() => {
 });
 
 function design(name: string, tail: string, permutations: number): string {
-  return writeDesignFile(path.join(root, name), [
-    "subjects: cohort/participants.tsv",
-    "connectomes: cohort/connectomes/{participant_id}.tsv",
-    "model: group",
-    "levels:",
-    "  group: [control, patient]",
-    "contrasts:",
-    "  patient_gt_control: group[patient] - group[control]",
-    "transform: fisher-z",
-    "inference:",
-    "  method: max-t",
-    `  tail: ${tail}`,
-    `  permutations: ${permutations}`,
-    "  seed: 4",
-  ]);
+  return writeDesignFile(
+    path.join(root, name),
+    groupDesignLines({
+      cohort: "cohort",
+      model: "group",
+      contrasts: ["patient_gt_control: group[patient] - group[control]"],
+      inference: ["method: max-t", `tail: ${tail}`, `permutations: ${permutations}`, "seed: 4"],
+    }),
+  );
 }
 
 /** Nodal strength per region and subject from the raw files: strength[i][s]. */

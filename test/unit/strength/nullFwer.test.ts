@@ -15,7 +15,7 @@ import jStat from "jstat";
 import { afterAll, describe, expect, it } from "vitest";
 import { prepareAnalysis } from "../../../src/run/prepareAnalysis.js";
 import { analyzeStrength } from "../../../src/strength/strengthAnalysis.js";
-import { writeDesignFile, writeSimulatedCohort } from "./strengthTestFiles.js";
+import { groupDesignLines, writeDesignFile, writeSimulatedCohort } from "./strengthTestFiles.js";
 
 const COHORTS = 200;
 const ALPHA = 0.05;
@@ -43,20 +43,16 @@ describe("nodal strength FWER under the null (reduced CI form)", () => {
       writeSimulatedCohort(dir, { regions: 10, patients: 10, controls: 10, kind: "correlation", effect: null, covariates: true }, 1000 + seed, {
         format: "npy",
       });
-      const design = writeDesignFile(path.join(dir, "design.yaml"), [
-        "subjects: participants.tsv",
-        "connectomes: connectomes.npy",
-        "model: group + age",
-        "levels:",
-        "  group: [control, patient]",
-        "contrasts:",
-        "  patient_gt_control: group[patient] - group[control]",
-        "transform: fisher-z",
-        "inference:",
-        "  method: max-t",
-        "  permutations: 99",
-        `  seed: ${seed}`,
-      ]);
+      const design = writeDesignFile(
+        path.join(dir, "design.yaml"),
+        groupDesignLines({
+          cohort: "",
+          npy: true,
+          model: "group + age",
+          contrasts: ["patient_gt_control: group[patient] - group[control]"],
+          inference: ["method: max-t", "permutations: 99", `seed: ${seed}`],
+        }),
+      );
       const prepared = prepareAnalysis(design);
       const analysis = await analyzeStrength(prepared, { measure: "nodal", positiveOnly: false, mean: false, sets: [] }, { threads: 1, chunkSize: 99 });
       const { familywise } = analysis.contrasts[0];

@@ -17,7 +17,7 @@ import { prepareAnalysis } from "../../../src/run/prepareAnalysis.js";
 import { measureStatistics } from "../../../src/strength/measureStatistics.js";
 import { strengthValues, type StrengthChoice } from "../../../src/strength/strengthAnalysis.js";
 import { expectAllClose } from "../../helpers/close.js";
-import { clinicDesign, olsReference, readFisherCohort, rowSums, writeDesignFile, writeSimulatedCohort } from "./strengthTestFiles.js";
+import { clinicDesign, groupDesignLines, olsReference, readFisherCohort, rowSums, writeDesignFile, writeSimulatedCohort } from "./strengthTestFiles.js";
 
 const TOLERANCE = { rel: 1e-9, abs: 1e-12 };
 const REGIONS = 9;
@@ -37,21 +37,16 @@ afterAll(() => {
 });
 
 function design(tail: "upper" | "lower" | "both"): string {
-  return writeDesignFile(path.join(root, `${tail}.yaml`), [
-    "subjects: cohort/participants.tsv",
-    "connectomes: cohort/connectomes/{participant_id}.tsv",
-    "regions: cohort/regions.tsv",
-    "model: group + age + sex",
-    "levels:",
-    "  group: [control, patient]",
-    "contrasts:",
-    "  patient_gt_control: group[patient] - group[control]",
-    "  age_down: [0, 0, -1, 0]",
-    "transform: fisher-z",
-    "inference:",
-    "  method: fdr",
-    `  tail: ${tail}`,
-  ]);
+  return writeDesignFile(
+    path.join(root, `${tail}.yaml`),
+    groupDesignLines({
+      cohort: "cohort",
+      regions: true,
+      model: "group + age + sex",
+      contrasts: ["patient_gt_control: group[patient] - group[control]", "age_down: [0, 0, -1, 0]"],
+      inference: ["method: fdr", `tail: ${tail}`],
+    }),
+  );
 }
 
 /** Computes the measures with plexus, checks them against `expected`, then every statistic against OLS. */

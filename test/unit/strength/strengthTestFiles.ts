@@ -122,3 +122,25 @@ export function olsReference(design: number[][], measures: number[][], contrast:
 export function clinicDesign(rows: string[][]): number[][] {
   return rows.map((r) => [1, r[1] === "patient" ? 1 : 0, Number(r[2]), r[3] === "M" ? 1 : 0]);
 }
+
+/**
+ * The lines of a design file for a simulated cohort in the folder `cohort` (relative to the
+ * design; "" for the design's own folder): group coded control-first, Fisher z, the given model,
+ * contrasts (`name: expression`) and inference options (`key: value`).
+ */
+export function groupDesignLines(options: { cohort: string; npy?: boolean; regions?: boolean; model: string; contrasts: string[]; inference: string[] }): string[] {
+  const at = (file: string) => (options.cohort === "" ? file : `${options.cohort}/${file}`);
+  return [
+    `subjects: ${at("participants.tsv")}`,
+    `connectomes: ${at(options.npy ? "connectomes.npy" : "connectomes/{participant_id}.tsv")}`,
+    ...(options.regions ? [`regions: ${at("regions.tsv")}`] : []),
+    `model: ${options.model}`,
+    "levels:",
+    "  group: [control, patient]",
+    "contrasts:",
+    ...options.contrasts.map((c) => `  ${c}`),
+    "transform: fisher-z",
+    "inference:",
+    ...options.inference.map((o) => `  ${o}`),
+  ];
+}
