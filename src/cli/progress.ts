@@ -6,7 +6,8 @@ import type { OutputSink } from "./main.js";
  * when quiet.
  */
 export interface Progress {
-  start(label: string, total: number): void;
+  /** `unit` names what is counted (default "relabelings"). */
+  start(label: string, total: number, unit?: string): void;
   /** `restored` counts work taken from a checkpoint: it moves the bar but not the rate. */
   advance(count: number, restored?: boolean): void;
   finish(): void;
@@ -24,6 +25,7 @@ function formatDuration(seconds: number): string {
 
 export function stderrProgress(sink: OutputSink, now: () => number = () => Date.now()): Progress {
   let label = "";
+  let unitName = "relabelings";
   let total = 0;
   let done = 0;
   let restoredCount = 0;
@@ -37,8 +39,9 @@ export function stderrProgress(sink: OutputSink, now: () => number = () => Date.
     return { elapsed, rate, left };
   };
   return {
-    start(newLabel, newTotal) {
+    start(newLabel, newTotal, newUnit = "relabelings") {
       label = newLabel;
+      unitName = newUnit;
       total = newTotal;
       done = 0;
       restoredCount = 0;
@@ -61,7 +64,7 @@ export function stderrProgress(sink: OutputSink, now: () => number = () => Date.
         );
       } else {
         if (done >= (nextTenth * total) / 10) {
-          sink.err(`${label}: ${done}/${total} relabelings, ${rate.toFixed(0)}/s, ${formatDuration(left)} left\n`);
+          sink.err(`${label}: ${done}/${total} ${unitName}, ${rate.toFixed(0)}/s, ${formatDuration(left)} left\n`);
           nextTenth = Math.floor((done * 10) / total) + 1;
         }
       }
@@ -69,7 +72,7 @@ export function stderrProgress(sink: OutputSink, now: () => number = () => Date.
     finish() {
       if (sink.errIsTerminal && total > 0) {
         const { elapsed } = line();
-        sink.err(`\r${label}: ${done}/${total} relabelings in ${formatDuration(elapsed)}${" ".repeat(30)}\n`);
+        sink.err(`\r${label}: ${done}/${total} ${unitName} in ${formatDuration(elapsed)}${" ".repeat(30)}\n`);
       }
     },
   };

@@ -22,7 +22,7 @@ export interface MeasureStatistics {
   qFdr: Float64Array;
 }
 
-/** `values` is measure-major: values[m·S + s], M measures over the S subjects of the design. */
+/** `values` is measure-major: values[m·S + s], M measures over the S subjects of the design; each contrast's first row is tested (t contrasts). */
 export function measureStatistics(
   matrix: DesignMatrix,
   contrasts: Contrast[],

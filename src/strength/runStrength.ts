@@ -1,4 +1,5 @@
 import { silentProgress, type Progress } from "../cli/progress.js";
+import { InputError } from "../errors.js";
 import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
@@ -38,6 +39,7 @@ export const STRENGTH_CHUNK_SIZE = 250;
 export async function runStrength(options: StrengthOptions, log: StrengthLog, progress: Progress = silentProgress): Promise<StrengthResult> {
   const measure = resolveMeasure(options);
   const prepared = prepareAnalysis(options.designFile);
+  refuseFContrasts(prepared);
   const warnings = [...prepared.warnings];
   for (const warning of prepared.warnings) log.warn(warning);
   const selected = measure === "subnetwork" ? selectEdgeSets(options.selection ?? {}, prepared.regions, prepared.pairs) : undefined;
@@ -90,6 +92,19 @@ export async function runStrength(options: StrengthOptions, log: StrengthLog, pr
     folder.abandon();
     throw error;
   }
+}
+
+/** The tables report β, SE and t per measure: a one-row (t) contrast each. */
+function refuseFContrasts(prepared: PreparedAnalysis): void {
+  prepared.contrasts.forEach((contrast, k) => {
+    if (contrast.kind !== "F") return;
+    const spec = prepared.design.contrasts[k];
+    throw new InputError(
+      `'${contrast.name}' is an F contrast (${contrast.rows.length} rows); plexus strength reports β, SE and t per measure, which need a one-row contrast`,
+      { file: prepared.design.file, key: spec.key, line: spec.line },
+      "test its rows as separate contrasts",
+    );
+  });
 }
 
 /** "p = 0.012" or "p < 0.001". */

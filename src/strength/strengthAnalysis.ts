@@ -74,7 +74,7 @@ export function strengthValues(prepared: PreparedAnalysis, choice: StrengthChoic
   };
 }
 
-export function needsPermutations(prepared: PreparedAnalysis): boolean {
+export function drawsPermutations(prepared: PreparedAnalysis): boolean {
   return prepared.design.inference.method !== "fdr";
 }
 
@@ -85,7 +85,7 @@ export async function analyzeStrength(prepared: PreparedAnalysis, choice: Streng
   const observed = measureStatistics(prepared.matrix, prepared.contrasts, measured.values, M, inference);
   const contrasts: StrengthContrast[] = [];
   for (const result of observed) {
-    if (!needsPermutations(prepared)) {
+    if (!drawsPermutations(prepared)) {
       contrasts.push(result);
       continue;
     }

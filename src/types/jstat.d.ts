@@ -16,6 +16,7 @@ declare module "jstat" {
     studentt: ContinuousDistribution;
     centralF: ContinuousDistribution;
     binomial: DiscreteDistribution;
+    hypgeom: { pdf(...parameters: number[]): number; cdf(...parameters: number[]): number };
     ibeta(x: number, a: number, b: number): number;
     gammaln(x: number): number;
   }

@@ -216,6 +216,15 @@ describe("plexus strength", () => {
       expect(result.stderr).toContain("'nowhere'");
     });
 
+    it("an F contrast (several rows) names the contrast's key and line", async () => {
+      const fDesign = path.join(root, "f-contrast.yaml");
+      writeFileSync(fDesign, readFileSync(design, "utf8").replace("  age_down: -age", "  group_or_age: [[0, 1, 0, 0], [0, 0, 1, 0]]").replace("method: components", "method: fdr"));
+      const result = await runCli(["strength", fDesign, "--out", path.join(root, "mistake")]);
+      expect(result.code, result.stderr).toBe(2);
+      expect(result.stderr).toContain("key 'contrasts.group_or_age'");
+      expect(result.stderr).toContain("F contrast");
+    });
+
     it("an existing non-empty output folder without --force", async () => {
       const out = path.join(root, "taken");
       mkdirSync(out);

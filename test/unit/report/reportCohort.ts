@@ -83,11 +83,12 @@ export async function analysedCohort(variant: CohortVariant): Promise<AnalysedCo
       if (age >= 0) row[age] = "n/a";
       if (site >= 0) for (const r of cohort.participants.rows) if (r[site] === "north") r[site] = FORMULA_SITE;
     }
-    if (variant.noCoordinates) {
-      cohort.regions = cohort.regions.map(({ label, hemisphere, system }) => ({ label, hemisphere, system }));
-    }
     const cohortDir = join(dir, "cohort");
     writeCohort(cohortDir, cohort, { format: "tsv", plantedFile: false });
+    if (variant.noCoordinates) {
+      const rows = cohort.regions.map((r) => [r.label, r.hemisphere ?? "n/a", r.system ?? "n/a"].join("\t"));
+      writeFileSync(join(cohortDir, "regions.tsv"), `label\themisphere\tsystem\n${rows.join("\n")}\n`);
+    }
     const designFile = join(dir, "design.yaml");
     writeFileSync(
       designFile,

@@ -22,9 +22,8 @@ const ALPHA = 0.05;
 const root = mkdtempSync(path.join(tmpdir(), "plexus-strength-null-"));
 afterAll(() => rmSync(root, { recursive: true, force: true }));
 
-/** jStat's binomial CDF (the package ships no types; src/types/jstat.d.ts declares only what src/ uses). */
-const binomialCdf = (k: number, n: number, p: number): number =>
-  (jStat as unknown as { binomial: { cdf(k: number, n: number, p: number): number } }).binomial.cdf(k, n, p);
+/** jStat's binomial CDF, P(X ≤ k) for X ~ Binomial(n, p). */
+const binomialCdf = (k: number, n: number, p: number): number => jStat.binomial.cdf(k, n, p);
 
 /** The central 99% interval [low, high] of Binomial(n, p): P(X < low) ≤ 0.005 and P(X > high) ≤ 0.005. */
 function binomialInterval(n: number, p: number): { low: number; high: number } {
