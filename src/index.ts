@@ -46,6 +46,16 @@ export { familywiseP, criticalValue, clopperPearson } from "./inference/familywi
 export { prepareAnalysis, type PreparedAnalysis } from "./run/prepareAnalysis.js";
 export { runAnalysis, type RunOptions, type RunResult } from "./run/runAnalysis.js";
 export { mergeShards } from "./run/mergeShards.js";
+export { runPower, type PowerOptions } from "./power/runPower.js";
+export { analysePowerCohort, type PowerPlan } from "./power/powerStudy.js";
+export { contrastFStatistics } from "./edges/fStatistics.js";
+export { fisherFUpperTail } from "./distributions/fisherF.js";
 export { simulateCohort, type SimulationOptions, type SimulatedCohort } from "./simulate/simulateCohort.js";
 export { writeCohort } from "./simulate/writeCohort.js";
 export { main } from "./cli/main.js";
+
+// Network strength
+export { nodalStrength, globalStrength, edgeSetMean } from "./strength/measures.js";
+export { runStrength } from "./strength/runStrength.js";
+export { type StrengthOptions } from "./strength/strengthOptions.js";
+export { runExtract, type ExtractOptions } from "./strength/runExtract.js";

@@ -18,13 +18,23 @@ export interface FamilywiseP {
   exceedances: number;
 }
 
-/** Counts of null values ≥ each query, via one sort (O((K + Q) log K)). */
+/**
+ * Relative tolerance for ties: a null value within this fraction of the
+ * observed value counts as reaching it. Relabelings that are exact mirror
+ * images (swapping two equal groups gives −t) must tie with the observed
+ * value, but rounding can put them an ulp apart (common practice; whole
+ * numbers such as extents are unaffected).
+ */
+export const TIE_TOLERANCE = 1e-10;
+
+/** Counts of null values ≥ each query (within TIE_TOLERANCE), via one sort (O((K + Q) log K)). */
 export function exceedanceCounts(nullValues: ArrayLike<number>, queries: ArrayLike<number>): Int32Array {
   // A NaN null value (a relabeling without any statistic) exceeds nothing: sort it as −∞, not last.
   const sorted = Float64Array.from(nullValues, (v) => (Number.isNaN(v) ? -Infinity : v)).sort();
   const out = new Int32Array(queries.length);
   for (let i = 0; i < queries.length; i++) {
-    const q = queries[i];
+    const value = queries[i];
+    const q = Number.isFinite(value) ? value - TIE_TOLERANCE * Math.abs(value) : value;
     if (Number.isNaN(q)) {
       out[i] = -1;
       continue;

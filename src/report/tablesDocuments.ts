@@ -18,7 +18,7 @@ export function tablesMarkdown(content: ReportContent, summary: ResultsSummary):
 export function tablesLatex(content: ReportContent, summary: ResultsSummary): string {
   return [
     `% Tables written by plexus ${summary.tool.version}; numbers rounded for print (tables/*.tsv hold full precision).`,
-    "% Needs \\usepackage{booktabs} in the preamble; include with \\input{tables.tex}.",
+    "% Needs \\usepackage{booktabs} and \\usepackage{graphicx} in the preamble; include with \\input{tables.tex}.",
     "",
     ...content.tables.map(({ table }) => latexTable(table)),
   ].join("\n");

@@ -1,6 +1,7 @@
 import type { Region } from "../../io/regions.js";
 import { hubRegions } from "../hubRegions.js";
 import type { ContrastResults } from "../loadResults.js";
+import { plain } from "../printNumbers.js";
 import type { SignificantEdges } from "../significantEdges.js";
 import { colourBar } from "./colourBar.js";
 import { statisticColour, statisticLimit } from "./colourScale.js";
@@ -36,7 +37,7 @@ interface Layout {
   decorations: string[];
 }
 
-export function networkFigure(contrast: ContrastResults, regions: Region[], finding: SignificantEdges): string | null {
+export function networkFigure(contrast: ContrastResults, regions: Region[], finding: SignificantEdges, alpha: number): string | null {
   if (finding.edges.length === 0) return null;
   const { edges } = contrast;
   const limit = statisticLimit(edges.statistic);
@@ -54,7 +55,7 @@ export function networkFigure(contrast: ContrastResults, regions: Region[], find
   const drawOrder = [...finding.edges].sort((a, b) => Math.abs(edges.statistic[a]) - Math.abs(edges.statistic[b]) || a - b);
 
   const body: string[] = [];
-  const what = finding.kind === "components" ? "significant subnetworks" : "edges with q_FDR at or below alpha";
+  const what = finding.kind === "components" ? "significant subnetworks" : `edges with q_FDR ≤ ${plain(alpha)}`;
   body.push(text(SIDE, 20, `The ${what}: ${contrast.summary.name}`, { size: 13, weight: "bold" }));
   body.push(
     text(SIDE, 37, `${finding.edges.length} edge${finding.edges.length > 1 ? "s" : ""} among ${hubs.length} regions; edge colour: ${stat}; node size: degree within the finding${numbered ? "; numbers: see the key" : ""}`, {
@@ -76,8 +77,10 @@ export function networkFigure(contrast: ContrastResults, regions: Region[], find
       const [x2, y2] = panel.place(b);
       if (!layout.curved || !layout.centre) return `M${n(x1)} ${n(y1)}L${n(x2)} ${n(y2)}`;
       const [cx, cy] = layout.centre;
-      const mx = cx + ((x1 + x2) / 2 - cx) * 0.35;
-      const my = cy + ((y1 + y2) / 2 - cy) * 0.35;
+      // The control point lies between the chord's midpoint and the centre: long chords stay nearly
+      // straight, short ones bow gently inward instead of looping.
+      const mx = cx + ((x1 + x2) / 2 - cx) * 0.6;
+      const my = cy + ((y1 + y2) / 2 - cy) * 0.6;
       return `M${n(x1)} ${n(y1)}Q${n(mx)} ${n(my)} ${n(x2)} ${n(y2)}`;
     };
     for (const e of drawOrder) {

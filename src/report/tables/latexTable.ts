@@ -4,7 +4,9 @@ import type { ReportTable } from "../reportTable.js";
 /**
  * A table in the booktabs style (\toprule, \midrule, \bottomrule; no vertical
  * rules), as a `table` float with its caption and notes; needs
- * \usepackage{booktabs}. The label is `tab:plexus-<id>`.
+ * \usepackage{booktabs} and \usepackage{graphicx}. A table wider than the
+ * text is scaled down to the text width (never up). The label is
+ * `tab:plexus-<id>`.
  */
 export function latexTable(table: ReportTable): string {
   const spec = table.columns.map((c) => (c.align === "right" ? "r" : "l")).join("");
@@ -19,13 +21,14 @@ export function latexTable(table: ReportTable): string {
     "\\small",
     `\\caption{${escapeLatex(table.title)}}`,
     `\\label{tab:plexus-${table.id.replace(/[^A-Za-z0-9_-]/g, "-")}}`,
+    "\\resizebox{\\ifdim\\width>\\linewidth\\linewidth\\else\\width\\fi}{!}{%",
     `\\begin{tabular}{${spec}}`,
     "\\toprule",
     line(table.columns.map((c) => escapeLatex(c.header))),
     "\\midrule",
     ...body,
     "\\bottomrule",
-    "\\end{tabular}",
+    "\\end{tabular}}",
     ...(notes.length > 0 ? ["\\begin{minipage}{\\linewidth}", ...notes, "\\end{minipage}"] : []),
     "\\end{table}",
     "",

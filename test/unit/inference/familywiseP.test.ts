@@ -226,3 +226,13 @@ describe("clopperPearson vs R binom.test()$conf.int (test/fixtures/r/clopper_pea
     }
   });
 });
+
+describe("ties within rounding", () => {
+  it("a null value an ulp below the observed one counts as reaching it (mirror-image relabelings; common practice)", () => {
+    const observed = 2.5;
+    const justBelow = 2.5 - 2 * Number.EPSILON * 2.5;
+    expect(Array.from(exceedanceCounts([justBelow, 2.4, 2.6], [observed]))).toEqual([2]);
+    // A real difference (1e-6 relative) is not a tie.
+    expect(Array.from(exceedanceCounts([observed * (1 - 1e-6)], [observed]))).toEqual([0]);
+  });
+});
