@@ -1,8 +1,8 @@
-import { readFileSync } from "node:fs";
 import path from "node:path";
 import { LineCounter, parseDocument, isMap, isScalar, isSeq, type Node, type Pair } from "yaml";
 import { InputError } from "../errors.js";
 import { nearestName } from "./nearestName.js";
+import { readTextFile } from "./readInputFile.js";
 
 export type InferenceMethod = "components" | "fdr" | "max-t";
 export type SizeMeasure = "extent" | "mass";
@@ -98,13 +98,7 @@ export const DEFAULT_INFERENCE: InferenceSpec = {
 
 /** Reads a design file from disk; see `parseDesign`. */
 export function readDesign(file: string): DesignSpec {
-  let text: string;
-  try {
-    text = readFileSync(file, "utf8");
-  } catch (error) {
-    throw new InputError(`cannot read the design file: ${(error as Error).message}`, { file });
-  }
-  return parseDesign(text, file);
+  return parseDesign(readTextFile(file, "check the design file's path (relative to the current folder)"), file);
 }
 
 /** Parses design-file YAML (1.2 core schema, no custom tags) into a checked DesignSpec. */

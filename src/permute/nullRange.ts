@@ -53,8 +53,7 @@ export function computeNullRange(context: NullContext, from: number, to: number,
   const maxima = new NullMaxima(context.regionA, context.regionB, context.regionCount, context.threshold, context.tail);
   const statisticsKernel = selectKernel(options.kernel);
   const batchSize = statisticsKernel.batchSize(c, E);
-  const weights = new Float64Array(batchSize * c * S);
-  const statistics = new Float64Array(batchSize * E);
+  const { weights, statistics, run } = statisticsKernel.prepare(kernel, batchSize, c);
   const permutation = new Int32Array(S);
   const signs = new Float64Array(S);
 
@@ -91,7 +90,7 @@ export function computeNullRange(context: NullContext, from: number, to: number,
         }
       }
     }
-    statisticsKernel.statistics(kernel, weights, batch, c, statistics);
+    run(batch);
     for (let b = 0; b < batch; b++) record(k + b, statistics.subarray(b * E, (b + 1) * E));
     k += batch;
   }

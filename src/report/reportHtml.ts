@@ -64,7 +64,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   if (summary.subjects.excluded.length > 0) {
     warnings.push(
       `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table} participants were excluded from the analysis.` +
-        `<details><summary>Show the excluded participants</summary>${htmlTable(content.excluded, 0).replace(/<caption>.*?<\/caption>/, "")}</details></li>`,
+        `<details><summary>Show the excluded participants</summary>${htmlTable({ ...content.excluded, id: "excluded-list" }, 0)}</details></li>`,
     );
   }
   for (const c of summary.contrasts) {

@@ -89,6 +89,12 @@ describe.skipIf(!available && !mustRun)("report.html in headless Chromium", () =
     expect(outsideRequests).toEqual([]);
   });
 
+  it("gives every element id once (anchors and table ids are unique)", async () => {
+    const ids = await page.evaluate(() => Array.from(document.querySelectorAll("[id]"), (element) => element.id));
+    expect(ids.length).toBeGreaterThan(0);
+    expect(new Set(ids).size).toBe(ids.length);
+  });
+
   it("shows every figure as an inline SVG with a size, and one per file under figures/", async () => {
     const files = readdirSync(join(cohort.results, "figures")).filter((name) => name.endsWith(".svg"));
     const figures = page.locator("figure .svg > svg");

@@ -1,5 +1,5 @@
 import { permutedStatistics, EDGE_BLOCK, type KernelData } from "../permutedStatistics.js";
-import { WasmPermutationKernel } from "./wasmKernel.js";
+import { WasmPermutationKernel, type KernelBatch } from "./wasmKernel.js";
 
 /**
  * Which kernel computes the permuted statistics. Both give bit-identical
@@ -14,26 +14,29 @@ export interface StatisticsKernel {
   name: "wasm-simd" | "typescript";
   /** Relabelings per call that use the kernel well for c vectors and E edges. */
   batchSize(vectors: number, edges: number): number;
-  /** Same contract as permutedStatistics: weights batch × vectors × S, out batch × E. */
-  statistics(data: KernelData, weights: Float64Array, batch: number, vectors: number, out: Float64Array): void;
+  /**
+   * Buffers for repeated calls on `data`: fill `weights` (batch × vectors × S, as
+   * for permutedStatistics), call run(batch), read `statistics` (batch × E).
+   */
+  prepare(data: KernelData, batchSize: number, vectors: number): KernelBatch;
 }
+
+export type { KernelBatch };
 
 /** Rows (relabelings × vectors) per call for the SIMD kernel: each residual copied in is used this many times. */
 const WASM_ROWS = 96;
 /** Upper bound on the batch's statistics (batch × E values) per thread. */
 const STATISTICS_BYTES = 48 * 1024 * 1024;
 
+function referenceBatch(data: KernelData, batchSize: number, vectors: number): KernelBatch {
+  const weights = new Float64Array(batchSize * vectors * data.subjects);
+  const statistics = new Float64Array(batchSize * data.edges);
+  const products = new Float64Array(batchSize * vectors * EDGE_BLOCK);
+  return { weights, statistics, run: (batch) => permutedStatistics(data, weights, batch, vectors, statistics, products) };
+}
+
 function referenceKernel(): StatisticsKernel {
-  let products = new Float64Array(0);
-  return {
-    name: "typescript",
-    batchSize: () => 8,
-    statistics(data, weights, batch, vectors, out) {
-      const needed = batch * vectors * EDGE_BLOCK;
-      if (products.length < needed) products = new Float64Array(needed);
-      permutedStatistics(data, weights, batch, vectors, out, products);
-    },
-  };
+  return { name: "typescript", batchSize: () => 8, prepare: referenceBatch };
 }
 
 function wasmKernel(instance: WasmPermutationKernel): StatisticsKernel {
@@ -44,7 +47,8 @@ function wasmKernel(instance: WasmPermutationKernel): StatisticsKernel {
       const fits = Math.floor(STATISTICS_BYTES / (8 * Math.max(1, edges)));
       return Math.max(1, Math.min(wanted, fits));
     },
-    statistics: (data, weights, batch, vectors, out) => instance.statistics(data, weights, batch, vectors, out),
+    // Where WebAssembly memory is refused (beyond 4 GiB), the reference kernel does the work.
+    prepare: (data, batchSize, vectors) => instance.prepareBatch(data, batchSize, vectors) ?? referenceBatch(data, batchSize, vectors),
   };
 }
 

@@ -77,15 +77,17 @@ export function wasmSimdSupported(): boolean {
   }
 }
 
-/** Byte offsets of the regions of one kernel call. */
-interface Layout {
-  panel: number;
-  residuals: number;
-  products: number;
-  sumSquares: number;
-  valid: number;
-  out: number;
-  end: number;
+/**
+ * Repeated kernel calls on the same data: fill `weights` (batch × vectors × S,
+ * row-major as for permutedStatistics), call run(batch), read `statistics`
+ * (batch × E, written in place in WebAssembly memory: no copy out). Memory is
+ * reserved once, so both views stay valid until the next prepareBatch on the
+ * same instance (one batch at a time per thread).
+ */
+export interface KernelBatch {
+  weights: Float64Array;
+  statistics: Float64Array;
+  run(batch: number): void;
 }
 
 const alignUp = (n: number): number => Math.ceil(n / ALIGN) * ALIGN;
@@ -97,6 +99,7 @@ export class WasmPermutationKernel {
   private readonly exports: KernelExports;
   private f64 = new Float64Array(0);
   private u8 = new Uint8Array(0);
+  private current: object | undefined;
 
   private constructor(exports: KernelExports) {
     this.exports = exports;
@@ -119,10 +122,18 @@ export class WasmPermutationKernel {
     }
   }
 
-  private reserve(bytes: number): void {
+  /** Grows the memory to `bytes`; false when the engine refuses (beyond 4 GiB or out of memory). */
+  private reserve(bytes: number): boolean {
     const have = this.exports.memory.buffer.byteLength;
-    if (bytes > have) this.exports.memory.grow(Math.ceil((bytes - have) / PAGE_BYTES));
+    if (bytes > have) {
+      try {
+        this.exports.memory.grow(Math.ceil((bytes - have) / PAGE_BYTES));
+      } catch {
+        return false;
+      }
+    }
     this.refreshViews();
+    return true;
   }
 
   /** Edges per copied block for S subjects: a multiple of the edge tile. */
@@ -130,16 +141,6 @@ export class WasmPermutationKernel {
     const P = this.edgesPerTile;
     const fit = Math.max(1, Math.floor(BLOCK_BYTES / (8 * Math.max(1, S)) / P)) * P;
     return Math.min(fit, Math.ceil(E / P) * P);
-  }
-
-  private layout(S: number, paddedRows: number, width: number, batch: number): Layout {
-    const panel = 0;
-    const residuals = alignUp(panel + paddedRows * S * 8);
-    const products = alignUp(residuals + width * S * 8);
-    const sumSquares = alignUp(products + this.edgesPerTile * paddedRows * 8);
-    const valid = alignUp(sumSquares + width * 8);
-    const out = alignUp(valid + width);
-    return { panel, residuals, products, sumSquares, valid, out, end: out + batch * width * 8 };
   }
 
   /** Packs rows × S weights by row tiles: panel[t][s][r] = weights[(t·RT + r)·S + s], zero past the last row. */
@@ -157,48 +158,71 @@ export class WasmPermutationKernel {
     }
   }
 
-  /** Same contract as permutedStatistics (weights: batch × vectors × S; out: batch × E). */
-  statistics(data: KernelData, weights: Float64Array, batch: number, vectors: number, out: Float64Array): void {
-    const { subjects: S, edges: E, residuals, sumSquares, valid, effectNorm2, df } = data;
-    if (E === 0 || batch === 0) return;
-    const rows = batch * vectors;
-    const rowTiles = Math.ceil(rows / this.rowsPerTile);
-    const paddedRows = rowTiles * this.rowsPerTile;
+  /**
+   * Reserves memory for batches of up to `batchSize` relabelings on `data`
+   * (statistics, ‖R‖² and valid flags, packed weights, one block of residuals,
+   * one tile of products); undefined if that much WebAssembly memory is refused.
+   */
+  prepareBatch(data: KernelData, batchSize: number, vectors: number): KernelBatch | undefined {
+    const { subjects: S, edges: E, residuals, effectNorm2, df } = data;
+    const paddedRows = Math.max(1, Math.ceil((batchSize * vectors) / this.rowsPerTile)) * this.rowsPerTile;
     const W = this.blockWidth(S, E);
-    const at = this.layout(S, paddedRows, W, batch);
-    this.reserve(at.end);
-    this.packWeights(weights, rows, S, rowTiles, at.panel);
-    const f64 = this.f64;
-    const u8 = this.u8;
-    const outBase = at.out / 8;
-    for (let e0 = 0; e0 < E; e0 += W) {
-      const width = Math.min(W, E - e0);
-      f64.set(residuals.subarray(e0 * S, (e0 + width) * S), at.residuals / 8);
-      f64.set(sumSquares.subarray(e0, e0 + width), at.sumSquares / 8);
-      u8.set(valid.subarray(e0, e0 + width), at.valid);
-      this.exports.statisticsBlock(
-        at.panel,
-        rowTiles,
-        S,
-        at.residuals,
-        width,
-        at.products,
-        batch,
-        vectors,
-        at.sumSquares,
-        at.valid,
-        effectNorm2,
-        df,
-        at.out,
-        W,
-      );
-      for (let b = 0; b < batch; b++) {
-        out.set(f64.subarray(outBase + b * W, outBase + b * W + width), b * E + e0);
+    const statisticsAt = 0;
+    const sumSquaresAt = alignUp(statisticsAt + batchSize * E * 8);
+    const validAt = alignUp(sumSquaresAt + E * 8);
+    const panelAt = alignUp(validAt + E);
+    const residualsAt = alignUp(panelAt + paddedRows * S * 8);
+    const productsAt = alignUp(residualsAt + W * S * 8);
+    const end = productsAt + this.edgesPerTile * paddedRows * 8;
+    if (!this.reserve(end)) return undefined;
+    const token = {};
+    this.current = token;
+    this.f64.set(data.sumSquares, sumSquaresAt / 8);
+    this.u8.set(data.valid, validAt);
+    const weights = new Float64Array(batchSize * vectors * S);
+    const statistics = new Float64Array(this.exports.memory.buffer, statisticsAt, batchSize * E);
+    const run = (batch: number): void => {
+      if (this.current !== token) throw new Error("internal: a kernel batch was used after another was prepared on this thread");
+      if (E === 0 || batch === 0) return;
+      const rows = batch * vectors;
+      const rowTiles = Math.ceil(rows / this.rowsPerTile);
+      this.packWeights(weights, rows, S, rowTiles, panelAt);
+      const f64 = this.f64;
+      for (let e0 = 0; e0 < E; e0 += W) {
+        const width = Math.min(W, E - e0);
+        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), residualsAt / 8);
+        this.exports.statisticsBlock(
+          panelAt,
+          rowTiles,
+          S,
+          residualsAt,
+          width,
+          productsAt,
+          batch,
+          vectors,
+          sumSquaresAt + e0 * 8,
+          validAt + e0,
+          effectNorm2,
+          df,
+          statisticsAt + e0 * 8,
+          E,
+        );
       }
-    }
+    };
+    return { weights, statistics, run };
   }
 
-  /** Same contract as weightedSums: products[j·width + i] for rows j and edges e0..e0+width−1. */
+  /** Same contract as permutedStatistics (weights: batch × vectors × S; out: batch × E); false if memory is refused. */
+  statistics(data: KernelData, weights: Float64Array, batch: number, vectors: number, out: Float64Array): boolean {
+    const prepared = this.prepareBatch(data, batch, vectors);
+    if (!prepared) return false;
+    prepared.weights.set(weights.subarray(0, prepared.weights.length));
+    prepared.run(batch);
+    out.set(prepared.statistics.subarray(0, batch * data.edges));
+    return true;
+  }
+
+  /** Same contract as weightedSums: products[j·width + i] for rows j and edges e0..e0+width−1; false if memory is refused. */
   weightedSums(
     residuals: Float64Array,
     S: number,
@@ -207,23 +231,27 @@ export class WasmPermutationKernel {
     e0: number,
     width: number,
     products: Float64Array,
-  ): void {
-    if (width === 0 || rows === 0) return;
+  ): boolean {
+    if (width === 0 || rows === 0) return true;
     const P = this.edgesPerTile;
     const rowTiles = Math.ceil(rows / this.rowsPerTile);
     const paddedRows = rowTiles * this.rowsPerTile;
     const W = Math.ceil(width / P) * P;
-    const at = this.layout(S, paddedRows, W, 0);
-    this.reserve(at.end);
-    this.packWeights(weights, rows, S, rowTiles, at.panel);
+    const panelAt = 0;
+    const residualsAt = alignUp(panelAt + paddedRows * S * 8);
+    const productsAt = alignUp(residualsAt + W * S * 8);
+    if (!this.reserve(productsAt + P * paddedRows * 8)) return false;
+    this.current = undefined;
+    this.packWeights(weights, rows, S, rowTiles, panelAt);
     const f64 = this.f64;
-    f64.fill(0, at.residuals / 8, at.residuals / 8 + W * S);
-    f64.set(residuals.subarray(e0 * S, (e0 + width) * S), at.residuals / 8);
+    f64.fill(0, residualsAt / 8, residualsAt / 8 + W * S);
+    f64.set(residuals.subarray(e0 * S, (e0 + width) * S), residualsAt / 8);
     for (let i0 = 0; i0 < width; i0 += P) {
-      this.exports.tileProducts(at.panel, rowTiles, S, at.residuals + i0 * S * 8, at.products, paddedRows);
+      this.exports.tileProducts(panelAt, rowTiles, S, residualsAt + i0 * S * 8, productsAt, paddedRows);
       for (let p = 0; p < P && i0 + p < width; p++) {
-        for (let j = 0; j < rows; j++) products[j * width + i0 + p] = f64[at.products / 8 + p * paddedRows + j];
+        for (let j = 0; j < rows; j++) products[j * width + i0 + p] = f64[productsAt / 8 + p * paddedRows + j];
       }
     }
+    return true;
   }
 }

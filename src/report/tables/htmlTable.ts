@@ -1,7 +1,7 @@
 import { escapeHtml } from "../escapeHtml.js";
 import type { ReportTable } from "../reportTable.js";
 
-/** A table as HTML with its caption and notes; every cell escaped. */
+/** A table as HTML with its caption (when numbered) and notes; every cell escaped. Number 0: no caption. */
 export function htmlTable(table: ReportTable, number: number): string {
   const align = (k: number) => (table.columns[k]?.align === "right" ? ' class="num"' : "");
   const head = table.columns.map((c, k) => `<th${align(k)}>${escapeHtml(c.header)}</th>`).join("");
@@ -15,7 +15,7 @@ export function htmlTable(table: ReportTable, number: number): string {
   return [
     `<div class="table-wrap" id="${escapeHtml(`table-${table.id}`)}">`,
     `<table>`,
-    `<caption>Table ${number}. ${escapeHtml(table.title)}</caption>`,
+    ...(number > 0 ? [`<caption>Table ${number}. ${escapeHtml(table.title)}</caption>`] : []),
     `<thead><tr>${head}</tr></thead>`,
     `<tbody>\n${body}\n</tbody>`,
     `</table>`,
