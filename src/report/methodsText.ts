@@ -179,12 +179,13 @@ export function methodsText(results: LoadedResults): MethodsText {
     inferenceText.push(` Subnetworks with p_FWE ≤ ${plain(inference.alpha)} are reported as significant`);
     const critical = permuted.filter((c) => c.critical_size !== null && c.critical_size !== undefined && Number.isFinite(c.critical_size));
     if (critical.length > 0) {
-      const unit = inference.size === "mass" ? "" : " edges";
-      inferenceText.push("; at this level a subnetwork had to be larger than ");
+      const mass = inference.size === "mass";
+      const value = (c: (typeof critical)[number]) => (mass ? `a mass above ${count(c.critical_size!)}` : `more than ${count(c.critical_size!)} edges`);
+      inferenceText.push("; at this level a subnetwork needed ");
       if (new Set(critical.map((c) => c.critical_size)).size === 1) {
-        inferenceText.push(`${count(critical[0].critical_size!)}${unit}`);
+        inferenceText.push(value(critical[0]));
       } else {
-        inferenceText.push(...list(critical, (c) => [`${count(c.critical_size!)}${unit} for `, { user: c.name }]));
+        inferenceText.push(...list(critical, (c) => [`${value(c)} for `, { user: c.name }]));
       }
     }
     inferenceText.push(".");

@@ -10,6 +10,7 @@ import { SHARD_MANIFEST, type ShardManifest } from "../output/shardManifest.js";
 import { fitAll, observeContrast } from "./analyzeContrasts.js";
 import { setupNull, type ContrastNull } from "./permutationInference.js";
 import { prepareAnalysis } from "./prepareAnalysis.js";
+import { writeReport } from "../report/writeReport.js";
 import { runFingerprint, writeResults, type RunLog } from "./runAnalysis.js";
 
 function readManifest(folder: string): ShardManifest {
@@ -105,6 +106,7 @@ export function mergeShards(
       return { setup, rows: concatenateChunks(chunks, 1, total + 1) };
     });
     writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
+    writeReport(folder.staging, (relative, content) => folder.write(relative, content));
     folder.commit();
   } catch (error) {
     folder.abandon();

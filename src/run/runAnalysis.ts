@@ -20,6 +20,7 @@ import {
   type FamilywiseResult,
 } from "./permutationInference.js";
 import { prepareAnalysis, type PreparedAnalysis } from "./prepareAnalysis.js";
+import { writeReport } from "../report/writeReport.js";
 
 /** What the user asked for (CLI flags or library call). */
 export interface RunOptions {
@@ -45,6 +46,7 @@ export interface RunLog {
 }
 
 export interface RunResult {
+  /** The prepared analysis; its connectome data may have been overwritten by the last contrast's residuals. */
   prepared: PreparedAnalysis;
   contrasts: ObservedContrast[];
   nulls: (ContrastNull | undefined)[];
@@ -134,6 +136,7 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
       writeShard(folder, prepared, contrasts, nulls, inputs, fingerprint, options);
     } else {
       writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
+      writeReport(folder.staging, (relative, content) => folder.write(relative, content));
     }
     folder.commit();
     checkpoint?.remove();

@@ -24,13 +24,13 @@ interface KernelExports {
     batch: number,
     vectors: number,
     sumSquares: number,
-    valid: number,
+    validMask: number,
     effectNorm2: number,
     df: number,
     out: number,
     outStride: number,
   ): void;
-  tileProducts(panel: number, rowTiles: number, S: number, residuals: number, products: number, paddedRows: number): void;
+  tileProducts(panel: number, rowTiles: number, S: number, residuals: number, products: number): void;
 }
 
 /** Bytes of residuals copied per block: small enough to stay in the level-2 cache while it is used. */
@@ -98,7 +98,6 @@ export class WasmPermutationKernel {
   readonly edgesPerTile = PERMUTE_KERNEL_TILE.edgesPerTile;
   private readonly exports: KernelExports;
   private f64 = new Float64Array(0);
-  private u8 = new Uint8Array(0);
   private current: object | undefined;
 
   private constructor(exports: KernelExports) {
@@ -118,7 +117,6 @@ export class WasmPermutationKernel {
     const buffer = this.exports.memory.buffer;
     if (this.f64.buffer !== buffer) {
       this.f64 = new Float64Array(buffer);
-      this.u8 = new Uint8Array(buffer);
     }
   }
 
@@ -167,18 +165,26 @@ export class WasmPermutationKernel {
     const { subjects: S, edges: E, residuals, effectNorm2, df } = data;
     const paddedRows = Math.max(1, Math.ceil((batchSize * vectors) / this.rowsPerTile)) * this.rowsPerTile;
     const W = this.blockWidth(S, E);
+    const P = this.edgesPerTile;
     const statisticsAt = 0;
     const sumSquaresAt = alignUp(statisticsAt + batchSize * E * 8);
-    const validAt = alignUp(sumSquaresAt + E * 8);
-    const panelAt = alignUp(validAt + E);
+    const maskAt = alignUp(sumSquaresAt + (E + P) * 8);
+    const panelAt = alignUp(maskAt + (E + P) * 8);
     const residualsAt = alignUp(panelAt + paddedRows * S * 8);
     const productsAt = alignUp(residualsAt + W * S * 8);
-    const end = productsAt + this.edgesPerTile * paddedRows * 8;
+    const end = productsAt + P * paddedRows * 8;
     if (!this.reserve(end)) return undefined;
     const token = {};
     this.current = token;
     this.f64.set(data.sumSquares, sumSquaresAt / 8);
-    this.u8.set(data.valid, validAt);
+    // The valid flags as 64-bit lane masks (all ones or zero) for the kernel's selects.
+    const mask = new Int32Array(this.exports.memory.buffer, maskAt, 2 * (E + P));
+    mask.fill(0);
+    for (let e = 0; e < E; e++) {
+      const bits = data.valid[e] === 0 ? 0 : -1;
+      mask[2 * e] = bits;
+      mask[2 * e + 1] = bits;
+    }
     const weights = new Float64Array(batchSize * vectors * S);
     const statistics = new Float64Array(this.exports.memory.buffer, statisticsAt, batchSize * E);
     const run = (batch: number): void => {
@@ -201,7 +207,7 @@ export class WasmPermutationKernel {
           batch,
           vectors,
           sumSquaresAt + e0 * 8,
-          validAt + e0,
+          maskAt + e0 * 8,
           effectNorm2,
           df,
           statisticsAt + e0 * 8,
@@ -247,9 +253,9 @@ export class WasmPermutationKernel {
     f64.fill(0, residualsAt / 8, residualsAt / 8 + W * S);
     f64.set(residuals.subarray(e0 * S, (e0 + width) * S), residualsAt / 8);
     for (let i0 = 0; i0 < width; i0 += P) {
-      this.exports.tileProducts(panelAt, rowTiles, S, residualsAt + i0 * S * 8, productsAt, paddedRows);
+      this.exports.tileProducts(panelAt, rowTiles, S, residualsAt + i0 * S * 8, productsAt);
       for (let p = 0; p < P && i0 + p < width; p++) {
-        for (let j = 0; j < rows; j++) products[j * width + i0 + p] = f64[productsAt / 8 + p * paddedRows + j];
+        for (let j = 0; j < rows; j++) products[j * width + i0 + p] = f64[productsAt / 8 + j * P + p];
       }
     }
     return true;

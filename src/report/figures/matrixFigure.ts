@@ -110,18 +110,22 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
     });
   }
 
-  // Outlines of the significant edges.
+  // Outlines of the significant edges: a frame round each cell, never smaller than 6 px so that
+  // it stays visible when cells are tiny (it then overlaps its neighbours a little).
   if (finding.edges.length > 0) {
+    const side = Math.max(cell, 6);
+    const inset = (cell - side) / 2;
+    const frame = (column: number, row: number) =>
+      `M${n(left + column * cell + inset)} ${n(top + row * cell + inset)}h${n(side)}v${n(side)}h${n(-side)}z`;
     const outline: string[] = [];
     for (const e of finding.edges) {
       const p = position[edges.regionA[e]];
       const q = position[edges.regionB[e]];
-      outline.push(`M${n(left + q * cell)} ${n(top + p * cell)}h${n(cell)}v${n(cell)}h${n(-cell)}z`);
-      outline.push(`M${n(left + p * cell)} ${n(top + q * cell)}h${n(cell)}v${n(cell)}h${n(-cell)}z`);
+      outline.push(frame(q, p), frame(p, q));
     }
     const d = outline.join("");
-    body.push(`<path d="${d}" fill="none" stroke="#000000" stroke-width="${n(Math.max(1, cell * 0.28))}"/>`);
-    body.push(`<path d="${d}" fill="none" stroke="#ffffff" stroke-width="${n(Math.max(0.5, cell * 0.1))}"/>`);
+    body.push(`<path d="${d}" fill="none" stroke="#000000" stroke-width="${n(Math.max(1.2, side * 0.28))}"/>`);
+    body.push(`<path d="${d}" fill="none" stroke="#ffffff" stroke-width="${n(Math.max(0.6, side * 0.1))}"/>`);
   }
 
   // Labels of the regions in the finding, beside their rows.

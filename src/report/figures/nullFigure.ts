@@ -12,8 +12,8 @@ import { halo, line, n, niceTicks, rect, svgDocument, text, tickLabel } from "./
  * counted in a note. Monochrome, so it reads in grayscale.
  */
 const WIDTH = 640;
-const HEIGHT = 360;
-const MARGIN = { left: 62, right: 24, top: 64, bottom: 52 };
+const HEIGHT = 380;
+const MARGIN = { left: 62, right: 24, top: 56, bottom: 76 };
 
 export function nullFigure(contrast: ContrastResults, summary: ResultsSummary): string | null {
   const rows = contrast.nullDistribution;
@@ -70,7 +70,7 @@ export function nullFigure(contrast: ContrastResults, summary: ResultsSummary): 
     body.push(line(x(t), MARGIN.top + plotHeight, x(t), MARGIN.top + plotHeight + 4, "#333333", 0.8));
     body.push(text(x(t), MARGIN.top + plotHeight + 15, tickLabel(t, xStep), { anchor: "middle", size: 9 }));
   }
-  body.push(text(MARGIN.left + plotWidth / 2, HEIGHT - 12, `largest component ${sizeName} in each relabeling`, { anchor: "middle", size: 10 }));
+  body.push(text(MARGIN.left + plotWidth / 2, MARGIN.top + plotHeight + 32, `largest component ${sizeName} in each relabeling`, { anchor: "middle", size: 10 }));
   body.push(text(16, MARGIN.top + plotHeight / 2, "relabelings", { anchor: "middle", size: 10, rotate: -90 }));
 
   // Bars.
@@ -106,23 +106,25 @@ export function nullFigure(contrast: ContrastResults, summary: ResultsSummary): 
       body.push(line(x(size), labelY + 3, x(size), MARGIN.top + plotHeight, colour, entry.significant ? 2.2 : 1.2));
       body.push(`<path d="M${n(x(size) - 4)} ${n(labelY + 3)}h8l-4 6z" fill="${colour}"/>`);
       const label = entry.ids.length <= 3 ? entry.ids.map((id) => `#${id}`).join(" ") : `${entry.ids.length} components`;
-      body.push(halo(text(x(size) + 6, labelY + 7, label, { size: 9, fill: colour })));
+      const onLeft = x(size) > MARGIN.left + 0.8 * plotWidth;
+      body.push(halo(text(x(size) + (onLeft ? -6 : 6), labelY + 7, label, { anchor: onLeft ? "end" : "start", size: 9, fill: colour })));
     });
 
   if (beyond > 0) {
     body.push(halo(text(MARGIN.left + plotWidth, MARGIN.top + plotHeight - 8, `${beyond} larger, up to ${count(nullMax)} →`, { anchor: "end", size: 9, fill: "#444444" })));
   }
 
-  // Legend.
-  const legendX = WIDTH - MARGIN.right - 200;
-  const legendY = MARGIN.top + 2;
-  body.push(rect(legendX - 6, legendY - 10, 206, 46, "#ffffff", 'stroke="#d0d0d0" stroke-width="0.6"'));
-  body.push(rect(legendX, legendY - 6, 12, 8, "#a8a8a8"));
-  body.push(text(legendX + 18, legendY + 2, "null: largest size in a relabeling", { size: 9 }));
-  body.push(line(legendX, legendY + 11, legendX + 12, legendY + 11, "#1a1a1a", 2.2));
-  body.push(text(legendX + 18, legendY + 14, `observed, p_FWE ≤ ${plain(inference.alpha)} (#: component)`, { size: 9 }));
-  body.push(line(legendX, legendY + 23, legendX + 12, legendY + 23, "#8c8c8c", 1.2));
-  body.push(text(legendX + 18, legendY + 26, "observed, not significant", { size: 9 }));
+  // Legend, in one row under the axis title.
+  const legendY = HEIGHT - 16;
+  let legendX = MARGIN.left;
+  body.push(rect(legendX, legendY - 8, 12, 8, "#a8a8a8"));
+  body.push(text(legendX + 17, legendY, "null: largest size in a relabeling", { size: 9 }));
+  legendX += 180;
+  body.push(line(legendX, legendY - 4, legendX + 14, legendY - 4, "#1a1a1a", 2.2));
+  body.push(text(legendX + 19, legendY, `observed #component, p_FWE ≤ ${plain(inference.alpha)}`, { size: 9 }));
+  legendX += 200;
+  body.push(line(legendX, legendY - 4, legendX + 14, legendY - 4, "#8c8c8c", 1.2));
+  body.push(text(legendX + 19, legendY, "observed, not significant", { size: 9 }));
 
   return svgDocument(WIDTH, HEIGHT, `Null distribution of the largest component ${measure} for ${contrast.summary.name}`, body);
 }

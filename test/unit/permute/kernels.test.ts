@@ -129,7 +129,7 @@ describe("WebAssembly SIMD kernel", () => {
         valid[e] = random() < 0.9 ? 1 : 0;
         sumSquares[e] = random() < 0.1 ? ss * 1e-6 : ss * (1 + random());
       }
-      const data: KernelData = { subjects: S, edges: E, residuals, sumSquares, valid, effectNorm2: 0.5 + random(), df: S - vectors };
+      const data: KernelData = { subjects: S, edges: E, residuals, sumSquares, valid, effectNorm2: 0.5 + random(), df: S - vectors - 1 };
       const weights = new Float64Array(batch * vectors * S);
       for (let i = 0; i < weights.length; i++) weights[i] = (random() - 0.5) / Math.sqrt(S);
       const expected = new Float64Array(batch * E);
@@ -245,7 +245,7 @@ describe("the TypeScript fallback", () => {
     vi.stubEnv("PLEXUS_KERNEL", "typescript");
     expect(selectKernel().name).toBe("typescript");
     expect(selectKernel("wasm").name).toBe("wasm-simd");
-    const context = nullContext({ S: 20, regions: 8, scheme: "permute", covariates: true, permutations: 30 });
+    const context = nullContext({ S: 21, regions: 8, scheme: "permute", covariates: true, permutations: 30 });
     const viaEnvironment = computeNullRange(context, 1, 31);
     const simd = computeNullRange(context, 1, 31, { kernel: "wasm" });
     expectSameNull(viaEnvironment, simd, "PLEXUS_KERNEL=typescript");

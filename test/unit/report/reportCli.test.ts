@@ -49,17 +49,42 @@ const FDR_DESIGN = [
 
 const NUMERIC_DESIGN = ["model: age", "contrasts:", "  age_down: -age", "transform: fisher-z", "inference:", "  method: fdr", "  alpha: 0.2", ""].join("\n");
 
+const MAX_T_DESIGN = [
+  "model: group + age",
+  "levels:",
+  "  group: [control, patient]",
+  "contrasts:",
+  "  patient_vs_control: group[patient] - group[control]",
+  "transform: fisher-z",
+  "inference:",
+  "  method: max-t",
+  "  threshold: 3.0",
+  "  size: mass",
+  "  tail: both",
+  "  permutations: 200",
+  "  seed: 5",
+  "  blocks: site",
+  "  alpha: 0.05",
+  "",
+].join("\n");
+
+const COUNTS_DESIGN = ["model: group", "levels:", "  group: [control, patient]", "contrasts:", "  up: group[patient] - group[control]", "inference:", "  method: fdr", ""].join("\n");
+
 let components: AnalysedCohort;
 let fdr: AnalysedCohort;
 let numeric: AnalysedCohort;
+let maxT: AnalysedCohort;
+let counts: AnalysedCohort;
 
 beforeAll(async () => {
   components = await analysedCohort({ design: GOLDEN_DESIGN });
   fdr = await analysedCohort({ design: FDR_DESIGN, noCoordinates: true, simulation: { effect: { regions: 6, size: 3 } } });
   numeric = await analysedCohort({ design: NUMERIC_DESIGN, simulation: { effect: null } });
+  maxT = await analysedCohort({ design: MAX_T_DESIGN });
+  counts = await analysedCohort({ design: COUNTS_DESIGN, simulation: { kind: "counts" } });
 });
 afterAll(() => {
-  for (const c of [components, fdr, numeric]) c?.remove();
+  for (const c of [components, fdr, numeric, maxT, counts]) c?.remove();
 });
 
 describe("plexus report DIR", () => {
@@ -116,6 +141,36 @@ describe("plexus report DIR", () => {
     expect(tables).toContain("| Characteristic | All (n = 23) |");
     expect(tables).not.toContain("Welch");
     expect(readFileSync(join(numeric.results, "methods.md"), "utf8")).not.toContain("Welch");
+  });
+});
+
+describe("plexus report on other inference settings", () => {
+  it("max-t, two-sided, mass, exchangeability blocks: the rule, the edge-level p_FWE and the methods say so", async () => {
+    expect((await report(maxT.results)).code).toBe(0);
+    const tables = readFileSync(join(maxT.results, "tables.md"), "utf8");
+    expect(tables).toContain("\\|t\\| &gt; 3");
+    expect(tables).toContain("| mass |");
+    const summary = JSON.parse(readFileSync(join(maxT.results, "summary.json"), "utf8"));
+    if (summary.contrasts[0].significant_components > 0) expect(tables).toContain("p\\_FWE (edge)");
+    const methods = readFileSync(join(maxT.results, "methods.md"), "utf8");
+    expect(methods).toContain("(Westfall & Young 1993)");
+    expect(methods).toContain("exchangeability blocks given by `site`");
+    expect(methods).toContain("whose |t| exceeded 3 (positive and negative edges separately)");
+    expect(methods).toContain("measured by its mass");
+    expect(existsSync(join(maxT.results, "figures", "patient_vs_control-null.svg"))).toBe(true);
+  });
+});
+
+describe("plexus report warns about edges without a statistic", () => {
+  it("streamline counts absent in everyone: the warning, the methods sentence and the blank matrix cells are reported", async () => {
+    expect((await report(counts.results)).code).toBe(0);
+    const summary = JSON.parse(readFileSync(join(counts.results, "summary.json"), "utf8"));
+    const missing = summary.contrasts[0].edges_without_statistic as number;
+    expect(missing).toBeGreaterThan(0);
+    const html = readFileSync(join(counts.results, "report.html"), "utf8");
+    expect(html).toContain(`up: ${missing} edges have zero residual variance`);
+    expect(readFileSync(join(counts.results, "methods.md"), "utf8")).toContain(`${missing} edges had zero residual variance`);
+    expect(readFileSync(join(counts.results, "figures", "up-matrix.svg"), "utf8")).toContain(`white: ${missing} edges with no statistic`);
   });
 });
 

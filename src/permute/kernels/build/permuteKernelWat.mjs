@@ -18,22 +18,25 @@
 //             rows beyond the real ones are zero.
 //   residuals a block of edges, edge-major as in KernelData (block[i·S + s]), with room for
 //             whole tiles of EDGES_PER_TILE edges (the padding's products are never used).
-//   products  scratch of EDGES_PER_TILE × paddedRows: products[p·paddedRows + j].
-//   sumSquares, valid   ‖R_e‖² (f64) and the valid flag (u8) of the block's edges.
-//   out       t for the block: out[b·outStride + i].
+//   products  scratch of paddedRows × EDGES_PER_TILE: products[j·P + p].
+//   sumSquares, mask    ‖R_e‖² (f64) and the valid flag as a 64-bit mask (all ones or zero)
+//             of every edge, with room for one more tile past the last edge.
+//   out       t for the block: out[b·outStride + i] (the caller's batch × E statistics).
 
 /** Rows per f64x2 accumulator. */
 const LANES = 2;
 
 /**
- * @param {{ rowPairs: number, edgesPerTile: number }} tile
- *   rowPairs × edgesPerTile f64x2 accumulators (each holding two rows of one edge).
+ * @param {{ rowPairs: number, edgesPerTile: number, groupPairs: number }} tile
+ *   rowPairs × edgesPerTile f64x2 accumulators (each holding two rows of one edge) for the products;
+ *   groupPairs f64x2 accumulators (two edges each) for the group sums.
  *   V8 keeps 15 xmm registers for wasm on x64: accumulators + rowPairs weights + 2 temporaries must fit.
  * @returns {string} WebAssembly text
  */
-export function permuteKernelWat({ rowPairs, edgesPerTile }) {
+export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs }) {
   const R = rowPairs;
   const P = edgesPerTile;
+  if (P % 2 !== 0) throw new Error("permuteKernelWat: edgesPerTile must be even (the statistics take edges in pairs)");
   const RT = R * LANES;
   const range = (n) => Array.from({ length: n }, (_, i) => i);
   const acc = (k, p) => `$acc_${k}_${p}`;
@@ -44,11 +47,12 @@ export function permuteKernelWat({ rowPairs, edgesPerTile }) {
   emit(1, '(memory (export "memory") 1)');
   emit(1, `(global (export "rowsPerTile") i32 (i32.const ${RT}))`);
   emit(1, `(global (export "edgesPerTile") i32 (i32.const ${P}))`);
+  emit(1, `(global (export "groupEdgesPerTile") i32 (i32.const ${2 * groupPairs}))`);
 
   // ---- products of one edge tile: all row tiles against edges i..i+P−1 ----
   emit(1, "(func $tileProducts");
-  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32) (param $paddedRows i32)");
-  emit(2, "(local $t i32) (local $wp i32) (local $end i32) (local $stride i32)");
+  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32)");
+  emit(2, "(local $t i32) (local $wp i32) (local $end i32) (local $stride i32) (local $rowAt i32)");
   for (const p of range(P)) emit(2, `(local $r${p} i32)`);
   for (const k of range(R)) emit(2, `(local $w${k} v128)`);
   emit(2, "(local $x v128)");
@@ -79,13 +83,14 @@ export function permuteKernelWat({ rowPairs, edgesPerTile }) {
   emit(6, "(br_if $subjects (i32.lt_u (local.get $wp) (local.get $end)))");
   emit(5, ")");
   emit(4, ")");
-  emit(4, ";; products[p·paddedRows + t·RT + 2k .. +1]");
-  for (const p of range(P)) {
+  emit(4, ";; products[j·P + p] for the tile's rows j = t·RT + 2k, +1: pairs of edges (p, p+1) interleaved into rows");
+  emit(4, `(local.set $rowAt (i32.add (local.get $prod) (i32.mul (local.get $t) (i32.const ${RT * P * 8}))))`);
+  for (let p = 0; p < P; p += 2) {
     for (const k of range(R)) {
-      emit(
-        4,
-        `(v128.store (i32.add (local.get $prod) (i32.shl (i32.add (i32.mul (i32.const ${p}) (local.get $paddedRows)) (i32.add (i32.mul (local.get $t) (i32.const ${RT})) (i32.const ${k * LANES}))) (i32.const 3))) (local.get ${acc(k, p)}))`,
-      );
+      const even = `(i8x16.shuffle 0 1 2 3 4 5 6 7 16 17 18 19 20 21 22 23 (local.get ${acc(k, p)}) (local.get ${acc(k, p + 1)}))`;
+      const odd = `(i8x16.shuffle 8 9 10 11 12 13 14 15 24 25 26 27 28 29 30 31 (local.get ${acc(k, p)}) (local.get ${acc(k, p + 1)}))`;
+      emit(4, `(v128.store offset=${(2 * k * P + p) * 8} (local.get $rowAt) ${even})`);
+      emit(4, `(v128.store offset=${((2 * k + 1) * P + p) * 8} (local.get $rowAt) ${odd})`);
     }
   }
   emit(4, "(local.set $t (i32.add (local.get $t) (i32.const 1)))");
@@ -94,48 +99,67 @@ export function permuteKernelWat({ rowPairs, edgesPerTile }) {
   emit(2, ")");
   emit(1, ")");
 
-  // ---- statistics of one edge tile (scalar: O(rows) per edge, S times less work than the products) ----
+  // ---- statistics of one edge tile, two edges per f64x2 (lanes are independent: the same scalar operations) ----
+  const pairs = range(P / 2);
   emit(1, "(func $tileStatistics");
-  emit(2, "(param $prod i32) (param $paddedRows i32) (param $count i32) (param $batch i32) (param $vectors i32)");
-  emit(2, "(param $ss i32) (param $valid i32) (param $effectNorm2 f64) (param $df f64) (param $out i32) (param $outStride i32)");
-  emit(2, "(local $p i32) (local $b i32) (local $k i32) (local $row i32) (local $isValid i32)");
-  emit(2, "(local $sumSquares f64) (local $a f64) (local $g f64) (local $sse f64) (local $t f64)");
-  emit(2, "(block $edgesDone");
-  emit(3, "(loop $edges");
-  emit(4, "(br_if $edgesDone (i32.ge_u (local.get $p) (local.get $count)))");
-  emit(4, "(local.set $isValid (i32.load8_u (i32.add (local.get $valid) (local.get $p))))");
-  emit(4, "(local.set $sumSquares (f64.load (i32.add (local.get $ss) (i32.shl (local.get $p) (i32.const 3)))))");
-  emit(4, ";; row: address of products[p·paddedRows + b·vectors]");
-  emit(4, "(local.set $row (i32.add (local.get $prod) (i32.shl (i32.mul (local.get $p) (local.get $paddedRows)) (i32.const 3))))");
-  emit(4, "(local.set $b (i32.const 0))");
-  emit(4, "(block $batchDone");
-  emit(5, "(loop $relabelings");
-  emit(6, "(br_if $batchDone (i32.ge_u (local.get $b) (local.get $batch)))");
-  emit(6, "(local.set $a (f64.load (local.get $row)))");
-  emit(6, ";; sse = ‖R‖² − a·a / x̃'x̃, then − g_k·g_k in order of k");
-  emit(6, "(local.set $sse (f64.sub (local.get $sumSquares) (f64.div (f64.mul (local.get $a) (local.get $a)) (local.get $effectNorm2))))");
-  emit(6, "(local.set $k (i32.const 1))");
-  emit(6, "(block $nuisanceDone");
-  emit(7, "(loop $nuisance");
-  emit(8, "(br_if $nuisanceDone (i32.ge_u (local.get $k) (local.get $vectors)))");
-  emit(8, "(local.set $g (f64.load (i32.add (local.get $row) (i32.shl (local.get $k) (i32.const 3)))))");
-  emit(8, "(local.set $sse (f64.sub (local.get $sse) (f64.mul (local.get $g) (local.get $g))))");
-  emit(8, "(local.set $k (i32.add (local.get $k) (i32.const 1)))");
-  emit(8, "(br $nuisance)");
-  emit(7, ")");
-  emit(6, ")");
-  emit(6, ";; t = a / √((sse / df) · x̃'x̃) where the edge is valid and sse > 0, else NaN");
-  emit(6, "(local.set $t (f64.const nan))");
-  emit(6, "(if (i32.and (local.get $isValid) (f64.gt (local.get $sse) (f64.const 0)))");
-  emit(7, "(then (local.set $t (f64.div (local.get $a) (f64.sqrt (f64.mul (f64.div (local.get $sse) (local.get $df)) (local.get $effectNorm2)))))))");
-  emit(6, "(f64.store (i32.add (local.get $out) (i32.shl (i32.add (i32.mul (local.get $b) (local.get $outStride)) (local.get $p)) (i32.const 3))) (local.get $t))");
-  emit(6, "(local.set $row (i32.add (local.get $row) (i32.shl (local.get $vectors) (i32.const 3))))");
-  emit(6, "(local.set $b (i32.add (local.get $b) (i32.const 1)))");
-  emit(6, "(br $relabelings)");
+  emit(2, "(param $prod i32) (param $count i32) (param $batch i32) (param $vectors i32)");
+  emit(2, "(param $ss i32) (param $mask i32) (param $effectNorm2 f64) (param $df f64) (param $out i32) (param $outStride i32)");
+  emit(2, "(local $b i32) (local $k i32) (local $row i32) (local $o i32) (local $g v128) (local $norm v128) (local $dof v128)");
+  for (const q of pairs) emit(2, `(local $ss${q} v128) (local $mask${q} v128) (local $a${q} v128) (local $sse${q} v128) (local $t${q} v128)`);
+  emit(2, "(local.set $norm (f64x2.splat (local.get $effectNorm2)))");
+  emit(2, "(local.set $dof (f64x2.splat (local.get $df)))");
+  for (const q of pairs) {
+    emit(2, `(local.set $ss${q} (v128.load offset=${q * 16} (local.get $ss)))`);
+    emit(2, `(local.set $mask${q} (v128.load offset=${q * 16} (local.get $mask)))`);
+  }
+  emit(2, "(local.set $row (local.get $prod))");
+  emit(2, "(local.set $o (local.get $out))");
+  emit(2, "(block $batchDone");
+  emit(3, "(loop $relabelings");
+  emit(4, "(br_if $batchDone (i32.ge_u (local.get $b) (local.get $batch)))");
+  emit(4, ";; sse = ‖R‖² − a·a / x̃'x̃, then − g_k·g_k in order of k (rows b·c + k of the products)");
+  for (const q of pairs) {
+    emit(4, `(local.set $a${q} (v128.load offset=${q * 16} (local.get $row)))`);
+    emit(4, `(local.set $sse${q} (f64x2.sub (local.get $ss${q}) (f64x2.div (f64x2.mul (local.get $a${q}) (local.get $a${q})) (local.get $norm))))`);
+  }
+  emit(4, "(local.set $k (i32.const 1))");
+  emit(4, "(block $nuisanceDone");
+  emit(5, "(loop $nuisance");
+  emit(6, "(br_if $nuisanceDone (i32.ge_u (local.get $k) (local.get $vectors)))");
+  for (const q of pairs) {
+    emit(6, `(local.set $g (v128.load offset=${q * 16} (i32.add (local.get $row) (i32.mul (local.get $k) (i32.const ${P * 8})))))`);
+    emit(6, `(local.set $sse${q} (f64x2.sub (local.get $sse${q}) (f64x2.mul (local.get $g) (local.get $g))))`);
+  }
+  emit(6, "(local.set $k (i32.add (local.get $k) (i32.const 1)))");
+  emit(6, "(br $nuisance)");
   emit(5, ")");
   emit(4, ")");
-  emit(4, "(local.set $p (i32.add (local.get $p) (i32.const 1)))");
-  emit(4, "(br $edges)");
+  emit(4, ";; t = a / √((sse / df) · x̃'x̃) where the edge is valid and sse > 0, else NaN");
+  for (const q of pairs) {
+    emit(4, `(local.set $t${q} (f64x2.div (local.get $a${q}) (f64x2.sqrt (f64x2.mul (f64x2.div (local.get $sse${q}) (local.get $dof)) (local.get $norm)))))`);
+    emit(
+      4,
+      `(local.set $t${q} (v128.bitselect (local.get $t${q}) (v128.const f64x2 nan nan) (v128.and (local.get $mask${q}) (f64x2.gt (local.get $sse${q}) (v128.const f64x2 0 0)))))`,
+    );
+  }
+  emit(4, ";; a whole tile stores two edges at a time; the last, partial tile edge by edge");
+  emit(4, `(if (i32.eq (local.get $count) (i32.const ${P}))`);
+  emit(5, "(then");
+  for (const q of pairs) emit(6, `(v128.store offset=${q * 16} (local.get $o) (local.get $t${q}))`);
+  emit(5, ")");
+  emit(5, "(else");
+  for (const q of pairs) {
+    for (const lane of [0, 1]) {
+      const p = 2 * q + lane;
+      emit(6, `(if (i32.gt_u (local.get $count) (i32.const ${p})) (then (f64.store offset=${p * 8} (local.get $o) (f64x2.extract_lane ${lane} (local.get $t${q})))))`);
+    }
+  }
+  emit(5, ")");
+  emit(4, ")");
+  emit(4, `(local.set $row (i32.add (local.get $row) (i32.mul (local.get $vectors) (i32.const ${P * 8}))))`);
+  emit(4, "(local.set $o (i32.add (local.get $o) (i32.shl (local.get $outStride) (i32.const 3))))");
+  emit(4, "(local.set $b (i32.add (local.get $b) (i32.const 1)))");
+  emit(4, "(br $relabelings)");
   emit(3, ")");
   emit(2, ")");
   emit(1, ")");
@@ -143,21 +167,20 @@ export function permuteKernelWat({ rowPairs, edgesPerTile }) {
   // ---- a block of edges: tiles of P edges, products then statistics ----
   emit(1, '(func (export "statisticsBlock")');
   emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $width i32)");
-  emit(2, "(param $prod i32) (param $batch i32) (param $vectors i32) (param $ss i32) (param $valid i32)");
+  emit(2, "(param $prod i32) (param $batch i32) (param $vectors i32) (param $ss i32) (param $mask i32)");
   emit(2, "(param $effectNorm2 f64) (param $df f64) (param $out i32) (param $outStride i32)");
-  emit(2, "(local $i i32) (local $paddedRows i32) (local $count i32)");
-  emit(2, `(local.set $paddedRows (i32.mul (local.get $rowTiles) (i32.const ${RT})))`);
+  emit(2, "(local $i i32) (local $count i32)");
   emit(2, "(block $done");
   emit(3, "(loop $tiles");
   emit(4, "(br_if $done (i32.ge_u (local.get $i) (local.get $width)))");
   emit(
     4,
-    "(call $tileProducts (local.get $panel) (local.get $rowTiles) (local.get $S) (i32.add (local.get $res) (i32.shl (i32.mul (local.get $i) (local.get $S)) (i32.const 3))) (local.get $prod) (local.get $paddedRows))",
+    "(call $tileProducts (local.get $panel) (local.get $rowTiles) (local.get $S) (i32.add (local.get $res) (i32.shl (i32.mul (local.get $i) (local.get $S)) (i32.const 3))) (local.get $prod))",
   );
   emit(4, `(local.set $count (select (i32.const ${P}) (i32.sub (local.get $width) (local.get $i)) (i32.le_u (i32.add (local.get $i) (i32.const ${P})) (local.get $width))))`);
   emit(
     4,
-    "(call $tileStatistics (local.get $prod) (local.get $paddedRows) (local.get $count) (local.get $batch) (local.get $vectors) (i32.add (local.get $ss) (i32.shl (local.get $i) (i32.const 3))) (i32.add (local.get $valid) (local.get $i)) (local.get $effectNorm2) (local.get $df) (i32.add (local.get $out) (i32.shl (local.get $i) (i32.const 3))) (local.get $outStride))",
+    "(call $tileStatistics (local.get $prod) (local.get $count) (local.get $batch) (local.get $vectors) (i32.add (local.get $ss) (i32.shl (local.get $i) (i32.const 3))) (i32.add (local.get $mask) (i32.shl (local.get $i) (i32.const 3))) (local.get $effectNorm2) (local.get $df) (i32.add (local.get $out) (i32.shl (local.get $i) (i32.const 3))) (local.get $outStride))",
   );
   emit(4, `(local.set $i (i32.add (local.get $i) (i32.const ${P})))`);
   emit(4, "(br $tiles)");
@@ -165,10 +188,107 @@ export function permuteKernelWat({ rowPairs, edgesPerTile }) {
   emit(2, ")");
   emit(1, ")");
 
-  // ---- products only (for tests and the benchmark): products[p·paddedRows + j] for one tile ----
+  // ---- the two-level path (src/permute/kernels/groupSums.ts): block transpose and group sums ----
+  emit(1, ";; dst[s·W + i] = src[i·S + s] for edges i < W (W even) and subjects s < S: 2 × 2 transposes");
+  emit(1, '(func (export "transposeBlock") (param $src i32) (param $dst i32) (param $S i32) (param $W i32)');
+  emit(2, "(local $i i32) (local $a i32) (local $b i32) (local $d i32) (local $aEnd i32) (local $rowBytes i32) (local $x v128) (local $y v128)");
+  emit(2, "(local.set $rowBytes (i32.shl (local.get $W) (i32.const 3)))");
+  emit(2, "(block $edgesDone");
+  emit(3, "(loop $edges");
+  emit(4, "(br_if $edgesDone (i32.ge_u (local.get $i) (local.get $W)))");
+  emit(4, "(local.set $a (i32.add (local.get $src) (i32.shl (i32.mul (local.get $i) (local.get $S)) (i32.const 3))))");
+  emit(4, "(local.set $b (i32.add (local.get $a) (i32.shl (local.get $S) (i32.const 3))))");
+  emit(4, "(local.set $d (i32.add (local.get $dst) (i32.shl (local.get $i) (i32.const 3))))");
+  emit(4, ";; aEnd: the end of the subject pairs of edge i");
+  emit(4, "(local.set $aEnd (i32.add (local.get $a) (i32.shl (i32.and (local.get $S) (i32.const -2)) (i32.const 3))))");
+  emit(4, "(block $pairsDone");
+  emit(5, "(loop $pairs");
+  emit(6, "(br_if $pairsDone (i32.ge_u (local.get $a) (local.get $aEnd)))");
+  emit(6, "(local.set $x (v128.load (local.get $a)))");
+  emit(6, "(local.set $y (v128.load (local.get $b)))");
+  emit(6, "(v128.store (local.get $d) (i8x16.shuffle 0 1 2 3 4 5 6 7 16 17 18 19 20 21 22 23 (local.get $x) (local.get $y)))");
+  emit(6, "(v128.store (i32.add (local.get $d) (local.get $rowBytes)) (i8x16.shuffle 8 9 10 11 12 13 14 15 24 25 26 27 28 29 30 31 (local.get $x) (local.get $y)))");
+  emit(6, "(local.set $a (i32.add (local.get $a) (i32.const 16)))");
+  emit(6, "(local.set $b (i32.add (local.get $b) (i32.const 16)))");
+  emit(6, "(local.set $d (i32.add (local.get $d) (i32.shl (local.get $rowBytes) (i32.const 1))))");
+  emit(6, "(br $pairs)");
+  emit(5, ")");
+  emit(4, ")");
+  emit(4, "(if (i32.and (local.get $S) (i32.const 1))");
+  emit(5, "(then (f64.store (local.get $d) (f64.load (local.get $a))) (f64.store offset=8 (local.get $d) (f64.load (local.get $b)))))");
+  emit(4, "(local.set $i (i32.add (local.get $i) (i32.const 2)))");
+  emit(4, "(br $edges)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(1, ")");
+
+  const G = groupPairs;
+  const GE = 2 * G;
+  emit(1, `;; t for a block of edges from group sums over the members of each relabeling's group: ${GE} edges per tile`);
+  emit(1, '(func (export "groupStatisticsBlock")');
+  emit(2, "(param $blockT i32) (param $W i32) (param $width i32) (param $members i32) (param $groupSize i32) (param $batch i32)");
+  emit(2, "(param $rowSum i32) (param $ss i32) (param $mask i32) (param $difference f64) (param $other f64) (param $effectNorm2 f64) (param $df f64)");
+  emit(2, "(param $out i32) (param $outStride i32)");
+  emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $col i32) (local $o i32) (local $row i32) (local $rowBytes i32) (local $at i32)");
+  emit(2, "(local $d v128) (local $other2 v128) (local $norm v128) (local $dof v128) (local $a v128) (local $sse v128) (local $t v128)");
+  for (const p of range(G)) emit(2, `(local $acc${p} v128)`);
+  emit(2, "(local.set $rowBytes (i32.shl (local.get $W) (i32.const 3)))");
+  emit(2, "(local.set $d (f64x2.splat (local.get $difference)))");
+  emit(2, "(local.set $other2 (f64x2.splat (local.get $other)))");
+  emit(2, "(local.set $norm (f64x2.splat (local.get $effectNorm2)))");
+  emit(2, "(local.set $dof (f64x2.splat (local.get $df)))");
+  emit(2, "(block $tilesDone");
+  emit(3, "(loop $tiles");
+  emit(4, "(br_if $tilesDone (i32.ge_u (local.get $i) (local.get $width)))");
+  emit(4, `(local.set $count (select (i32.const ${GE}) (i32.sub (local.get $width) (local.get $i)) (i32.le_u (i32.add (local.get $i) (i32.const ${GE})) (local.get $width))))`);
+  emit(4, "(local.set $col (i32.add (local.get $blockT) (i32.shl (local.get $i) (i32.const 3))))");
+  emit(4, "(local.set $at (i32.shl (local.get $i) (i32.const 3)))");
+  emit(4, "(local.set $o (i32.add (local.get $out) (local.get $at)))");
+  emit(4, "(local.set $m (local.get $members))");
+  emit(4, "(local.set $b (i32.const 0))");
+  emit(4, "(block $batchDone");
+  emit(5, "(loop $relabelings");
+  emit(6, "(br_if $batchDone (i32.ge_u (local.get $b) (local.get $batch)))");
+  for (const p of range(G)) emit(6, `(local.set $acc${p} (v128.const f64x2 0 0))`);
+  emit(6, "(local.set $mEnd (i32.add (local.get $m) (i32.shl (local.get $groupSize) (i32.const 2))))");
+  emit(6, ";; the group's subjects in ascending order: acc += R[member] (additions only)");
+  emit(6, "(block $membersDone");
+  emit(7, "(br_if $membersDone (i32.ge_u (local.get $m) (local.get $mEnd)))");
+  emit(7, "(loop $members");
+  emit(8, "(local.set $row (i32.add (local.get $col) (i32.mul (i32.load (local.get $m)) (local.get $rowBytes))))");
+  for (const p of range(G)) emit(8, `(local.set $acc${p} (f64x2.add (local.get $acc${p}) (v128.load offset=${p * 16} (local.get $row))))`);
+  emit(8, "(local.set $m (i32.add (local.get $m) (i32.const 4)))");
+  emit(8, "(br_if $members (i32.lt_u (local.get $m) (local.get $mEnd)))");
+  emit(7, ")");
+  emit(6, ")");
+  emit(6, ";; a = difference · sum + other · ΣR; then t as in tileStatistics with one vector");
+  for (const p of range(G)) {
+    emit(6, `(local.set $a (f64x2.add (f64x2.mul (local.get $d) (local.get $acc${p})) (f64x2.mul (local.get $other2) (v128.load offset=${p * 16} (i32.add (local.get $rowSum) (local.get $at))))))`);
+    emit(6, `(local.set $sse (f64x2.sub (v128.load offset=${p * 16} (i32.add (local.get $ss) (local.get $at))) (f64x2.div (f64x2.mul (local.get $a) (local.get $a)) (local.get $norm))))`);
+    emit(6, "(local.set $t (f64x2.div (local.get $a) (f64x2.sqrt (f64x2.mul (f64x2.div (local.get $sse) (local.get $dof)) (local.get $norm)))))");
+    emit(
+      6,
+      `(local.set $t (v128.bitselect (local.get $t) (v128.const f64x2 nan nan) (v128.and (v128.load offset=${p * 16} (i32.add (local.get $mask) (local.get $at))) (f64x2.gt (local.get $sse) (v128.const f64x2 0 0)))))`,
+    );
+    emit(6, `(if (i32.ge_u (local.get $count) (i32.const ${2 * p + 2}))`);
+    emit(7, `(then (v128.store offset=${p * 16} (local.get $o) (local.get $t)))`);
+    emit(7, `(else (if (i32.eq (local.get $count) (i32.const ${2 * p + 1})) (then (f64.store offset=${p * 16} (local.get $o) (f64x2.extract_lane 0 (local.get $t)))))))`);
+  }
+  emit(6, "(local.set $o (i32.add (local.get $o) (i32.shl (local.get $outStride) (i32.const 3))))");
+  emit(6, "(local.set $b (i32.add (local.get $b) (i32.const 1)))");
+  emit(6, "(br $relabelings)");
+  emit(5, ")");
+  emit(4, ")");
+  emit(4, `(local.set $i (i32.add (local.get $i) (i32.const ${GE})))`);
+  emit(4, "(br $tiles)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(1, ")");
+
+  // ---- products only (for tests): products[j·P + p] for one tile of edges ----
   emit(1, '(func (export "tileProducts")');
-  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32) (param $paddedRows i32)");
-  emit(2, "(call $tileProducts (local.get $panel) (local.get $rowTiles) (local.get $S) (local.get $res) (local.get $prod) (local.get $paddedRows))");
+  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32)");
+  emit(2, "(call $tileProducts (local.get $panel) (local.get $rowTiles) (local.get $S) (local.get $res) (local.get $prod))");
   emit(1, ")");
   emit(0, ")");
   return lines.join("\n") + "\n";
