@@ -44,19 +44,21 @@ export class ThresholdFreeEnhancer {
   enhance(statistic: ArrayLike<number>, sign: 1 | -1, out: Float64Array): void {
     const { extentExponent, heightExponent, step } = this.parameters;
     const E = statistic.length;
+    // Level of each edge: the number of thresholds h = step, 2·step, … at or below its statistic
+    // (a statistic on a level counts it, despite rounding in statistic ÷ step).
+    const levelOf = (e: number) => Math.floor((sign * statistic[e]) / step + 1e-9);
     let count = 0;
-    for (let e = 0; e < E; e++) if (sign * statistic[e] >= step) this.order[count++] = e;
+    for (let e = 0; e < E; e++) if (levelOf(e) >= 1) this.order[count++] = e;
     if (count === 0) return;
     const active = this.order.subarray(0, count);
     // Highest first; ties by edge index, so the order is fixed.
     active.sort((a, b) => sign * statistic[b] - sign * statistic[a] || a - b);
     this.sets.reset();
     this.edgesOfRoot.fill(0);
-    const top = Math.floor((sign * statistic[active[0]]) / step);
+    const top = levelOf(active[0]);
     let joined = 0;
     for (let level = top; level >= 1; level--) {
-      const h = level * step;
-      while (joined < count && sign * statistic[active[joined]] >= h) {
+      while (joined < count && levelOf(active[joined]) >= level) {
         const e = active[joined];
         const ra = this.sets.find(this.regionA[e]);
         const rb = this.sets.find(this.regionB[e]);
@@ -65,11 +67,18 @@ export class ThresholdFreeEnhancer {
         this.edgesOfRoot[root] = edgesBefore + 1;
         joined++;
       }
-      const weight = h ** heightExponent * step;
+      const weight = (level * step) ** heightExponent * step;
       for (let k = 0; k < joined; k++) {
         const e = active[k];
-        out[e] += sign * (this.edgesOfRoot[this.sets.find(this.regionA[e])] ** extentExponent) * weight;
+        out[e] += sign * this.edgesOfRoot[this.sets.find(this.regionA[e])] ** extentExponent * weight;
       }
     }
+  }
+
+  /** The enhanced statistic for a tail: positive and negative edges enhanced separately. */
+  enhanceTail(statistic: ArrayLike<number>, signs: (1 | -1)[], out: Float64Array): Float64Array {
+    out.fill(0);
+    for (const sign of signs) this.enhance(statistic, sign, out);
+    return out;
   }
 }

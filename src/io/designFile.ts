@@ -4,7 +4,7 @@ import { InputError } from "../errors.js";
 import { nearestName } from "./nearestName.js";
 import { readTextFile } from "./readInputFile.js";
 
-export type InferenceMethod = "components" | "fdr" | "max-t";
+export type InferenceMethod = "components" | "fdr" | "max-t" | "threshold-free";
 export type SizeMeasure = "extent" | "mass";
 export type Tail = "upper" | "lower" | "both";
 export type FdrVariant = "bh" | "by";
@@ -23,9 +23,20 @@ export interface ContrastSpec {
   line?: number;
 }
 
+/** Threshold-free enhancement parameters (see src/inference/thresholdFree.ts). */
+export interface EnhancementSpec {
+  extentExponent: number;
+  heightExponent: number;
+  step: number;
+}
+
 export interface InferenceSpec {
   method: InferenceMethod;
+  /** The primary threshold (the first of `thresholds`). */
   threshold: number;
+  /** Every primary threshold of a sweep (`threshold: [2.5, 3, 3.5]`); one entry otherwise. */
+  thresholds: number[];
+  enhancement: EnhancementSpec;
   size: SizeMeasure;
   permutations: number;
   seed: number;
@@ -81,11 +92,15 @@ const INFERENCE_KEYS = [
   "tail",
   "fdr",
   "scheme",
+  "enhancement",
 ] as const;
+const ENHANCEMENT_KEYS = ["extent_exponent", "height_exponent", "step"] as const;
 
 export const DEFAULT_INFERENCE: InferenceSpec = {
   method: "components",
   threshold: 3,
+  thresholds: [3],
+  enhancement: { extentExponent: 0.5, heightExponent: 2, step: 0.1 },
   size: "extent",
   permutations: 5000,
   seed: 1,
@@ -296,13 +311,52 @@ export function parseDesign(text: string, file: string): DesignSpec {
       }
       return value;
     };
-    inference.method = choice("method", ["components", "fdr", "max-t"] as const) ?? inference.method;
+    inference.method = choice("method", ["components", "fdr", "max-t", "threshold-free"] as const) ?? inference.method;
     inference.size = choice("size", ["extent", "mass"] as const) ?? inference.size;
     inference.tail = choice("tail", ["upper", "lower", "both"] as const) ?? inference.tail;
     inference.fdr = choice("fdr", ["bh", "by"] as const) ?? inference.fdr;
     inference.scheme = choice("scheme", ["auto", "permute", "sign-flip"] as const) ?? inference.scheme;
     inference.blockPermutation = choice("block_permutation", ["within", "whole"] as const) ?? inference.blockPermutation;
-    inference.threshold = number("threshold", (v) => v > 0, "a positive number (the primary threshold on the statistic)") ?? inference.threshold;
+    const thresholdValue = get("threshold");
+    if (Array.isArray(thresholdValue)) {
+      if (
+        thresholdValue.length === 0 ||
+        thresholdValue.length > 20 ||
+        !thresholdValue.every((v) => typeof v === "number" && Number.isFinite(v) && v > 0) ||
+        new Set(thresholdValue).size !== thresholdValue.length
+      ) {
+        throw new InputError(
+          "'inference.threshold' as a list needs 1 to 20 different positive numbers, e.g. [2.5, 3.0, 3.5]",
+          where("inference.threshold"),
+        );
+      }
+      inference.thresholds = thresholdValue as number[];
+      inference.threshold = inference.thresholds[0];
+    } else {
+      inference.threshold =
+        number("threshold", (v) => v > 0, "a positive number (the primary threshold on the statistic), or a list of them") ??
+        inference.threshold;
+      inference.thresholds = [inference.threshold];
+    }
+    const enhancementNode = opts.get("enhancement");
+    if (enhancementNode !== undefined && enhancementNode !== null) {
+      if (!isMap(enhancementNode)) throw new InputError("'inference.enhancement' must be a mapping", where("inference.enhancement"));
+      const parameters = checkKeys(enhancementNode.items as Pair[], ENHANCEMENT_KEYS, "inference.enhancement");
+      const read = (name: string, fallback: number, check: (v: number) => boolean, rule: string) => {
+        const node = parameters.get(name);
+        if (node === undefined || node === null) return fallback;
+        const value = (node as Node).toJSON();
+        if (typeof value !== "number" || !Number.isFinite(value) || !check(value)) {
+          throw new InputError(`'inference.enhancement.${name}' must be ${rule}; found '${String(value)}'`, where(`inference.enhancement.${name}`));
+        }
+        return value;
+      };
+      inference.enhancement = {
+        extentExponent: read("extent_exponent", inference.enhancement.extentExponent, (v) => v > 0 && v <= 10, "a number in (0, 10]"),
+        heightExponent: read("height_exponent", inference.enhancement.heightExponent, (v) => v >= 0 && v <= 10, "a number in [0, 10]"),
+        step: read("step", inference.enhancement.step, (v) => v > 0 && v <= 1, "a number in (0, 1]"),
+      };
+    }
     inference.alpha = number("alpha", (v) => v > 0 && v < 1, "between 0 and 1 (exclusive)") ?? inference.alpha;
     inference.permutations =
       number("permutations", (v) => Number.isInteger(v) && v >= 1 && v <= 10_000_000, "a whole number from 1 to 10,000,000") ??
