@@ -47,6 +47,8 @@ describe("parseDesign: a minimal design and the defaults", () => {
     expect(DEFAULT_INFERENCE).toEqual({
       method: "components",
       threshold: 3,
+      thresholds: [3],
+      enhancement: { extentExponent: 0.5, heightExponent: 2, step: 0.1 },
       size: "extent",
       permutations: 5000,
       seed: 1,
@@ -129,6 +131,8 @@ describe("parseDesign: every key set", () => {
     expect(design.inference).toEqual({
       method: "max-t",
       threshold: 2.5,
+      thresholds: [2.5],
+      enhancement: { extentExponent: 0.5, heightExponent: 2, step: 0.1 },
       size: "mass",
       permutations: 100,
       seed: 7,
@@ -151,7 +155,7 @@ describe("parseDesign: every key set", () => {
 
   it("each inference choice accepts each of its values", () => {
     const choices: Record<string, [string, string[]]> = {
-      method: ["method", ["components", "fdr", "max-t"]],
+      method: ["method", ["components", "fdr", "max-t", "threshold-free"]],
       size: ["size", ["extent", "mass"]],
       tail: ["tail", ["upper", "lower", "both"]],
       fdr: ["fdr", ["bh", "by"]],
@@ -164,6 +168,26 @@ describe("parseDesign: every key set", () => {
         expect((design.inference as unknown as Record<string, unknown>)[field]).toBe(value);
       }
     }
+  });
+});
+
+describe("parseDesign: threshold sweeps and enhancement parameters", () => {
+  it("a list of thresholds is a sweep; the first is the primary threshold", () => {
+    const design = parseDesign(withBase("inference:", "  threshold: [2.5, 3.0, 3.5]"), FILE);
+    expect(design.inference.thresholds).toEqual([2.5, 3, 3.5]);
+    expect(design.inference.threshold).toBe(2.5);
+  });
+
+  it("refuses an empty, repeated or non-positive list of thresholds", () => {
+    for (const list of ["[]", "[3, 3]", "[2, -1]", "[2, x]"]) {
+      expect(() => parseDesign(withBase("inference:", `  threshold: ${list}`), FILE)).toThrow(/threshold/);
+    }
+  });
+
+  it("reads enhancement parameters and names an unknown one", () => {
+    const design = parseDesign(withBase("inference:", "  enhancement:", "    extent_exponent: 0.4", "    height_exponent: 3", "    step: 0.05"), FILE);
+    expect(design.inference.enhancement).toEqual({ extentExponent: 0.4, heightExponent: 3, step: 0.05 });
+    expect(() => parseDesign(withBase("inference:", "  enhancement:", "    steps: 0.1"), FILE)).toThrow(/unknown key 'inference.enhancement.steps'/);
   });
 });
 
@@ -269,7 +293,7 @@ describe("parseDesign: bad values (InputError at the key and its line)", () => {
     ["regions: ''", "regions", 6, /'regions' must be a text value/],
     ["inference: [a]", "inference", 6, /'inference' must be a mapping/],
     ["inference:", "inference", 6, /'inference' must be a mapping/],
-    ["inference:\n  method: nbs", "inference.method", 7, /must be one of components, fdr, max-t; found 'nbs'/],
+    ["inference:\n  method: clusters", "inference.method", 7, /must be one of components, fdr, max-t, threshold-free; found 'clusters'/],
     ["inference:\n  size: volume", "inference.size", 7, /must be one of extent, mass/],
     ["inference:\n  tail: two", "inference.tail", 7, /must be one of upper, lower, both/],
     ["inference:\n  fdr: bonferroni", "inference.fdr", 7, /must be one of bh, by/],
