@@ -6,7 +6,8 @@ product the permutations need (2·S·E·c·K floating-point operations).
 
 prints one JSON object: seconds for the whole product (computed in blocks of
 rows, one after another, into a reused output block, so the output never needs
-K·c × E doubles of memory), GFLOP/s, and which BLAS and core type numpy used.
+K·c × E doubles of memory; the fastest of --repeats runs, with its CPU time over
+all threads), GFLOP/s, and which BLAS and core type numpy used.
 The operands hold standard normal values from a seeded generator.
 
 bench/run.ts runs this with OPENBLAS_CORETYPE=SkylakeX and without
@@ -62,6 +63,7 @@ def main():
     parser.add_argument("--edges", type=int, required=True)
     parser.add_argument("--rows", type=int, required=True, help="K·c: permutations times vectors per permutation")
     parser.add_argument("--block-rows", type=int, default=0, help="rows per block (default: about 256 MB of output)")
+    parser.add_argument("--repeats", type=int, default=3, help="whole products timed; the fastest is reported")
     args = parser.parse_args()
     S, E, rows = args.subjects, args.edges, args.rows
     block = args.block_rows or max(64, min(rows, (256 * 2**20) // (8 * E)))
@@ -70,19 +72,24 @@ def main():
     residuals = generator.standard_normal((S, E))
     out = np.empty((block, E))
     np.matmul(weights[: min(block, 64)], residuals, out=out[: min(block, 64)])  # warm up threads and pages
-    start = time.perf_counter()
-    done = 0
-    while done < rows:
-        n = min(block, rows - done)
-        np.matmul(weights[:n], residuals, out=out[:n])
-        done += n
-    seconds = time.perf_counter() - start
+    best = (float("inf"), float("inf"))
+    for _ in range(max(1, args.repeats)):
+        start, cpu_start = time.perf_counter(), time.process_time()
+        done = 0
+        while done < rows:
+            n = min(block, rows - done)
+            np.matmul(weights[:n], residuals, out=out[:n])
+            done += n
+        best = min(best, (time.perf_counter() - start, time.process_time() - cpu_start))
+    seconds, cpu_seconds = best
     flops = 2.0 * S * E * rows
     print(
         json.dumps(
             {
                 "seconds": seconds,
+                "cpuSeconds": cpu_seconds,
                 "gflops": flops / seconds / 1e9,
+                "repeats": args.repeats,
                 "rows": rows,
                 "blockRows": block,
                 "blas": blas_library(),

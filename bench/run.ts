@@ -35,6 +35,7 @@ function child(request: Request, kernel: "wasm" | "typescript" = "wasm"): Measur
 
 interface Floor {
   seconds: number;
+  cpuSeconds: number;
   gflops: number;
   coreType: string | null;
   blas: string;
@@ -90,19 +91,28 @@ interface ScenarioRow {
   floor?: Floor;
 }
 
-function scenarioTable(rows: ScenarioRow[]): string[] {
-  const out = [
-    "| scenario | S | E | c | K | wall s | permutations s | perm/s | GFLOP/s wall | GFLOP/s perms | peak RSS MB | TS kernel: wall s / perms s | × faster (perms) | BLAS floor s (GFLOP/s) | wall ÷ floor | perms ÷ floor | null identical to TS |",
-    "|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|",
+function scenarioTables(rows: ScenarioRow[]): string[] {
+  const speed = [
+    "| scenario | S | E | c | K | wall s (inputs read) | permutations: wall s | CPU s | permutations/s | GFLOP/s end to end | GFLOP/s permutations | peak RSS MB |",
+    "|---|---|---|---|---|---|---|---|---|---|---|---|",
+  ];
+  const ratios = [
+    "| scenario | TypeScript kernel: permutations wall s (CPU s) | SIMD ÷ TypeScript speed-up, wall (CPU) | BLAS floor wall s (CPU s), GFLOP/s | end to end ÷ floor | permutations ÷ floor, wall (CPU) | null rows identical to TypeScript kernel |",
+    "|---|---|---|---|---|---|---|",
   ];
   for (const { name, fast, reference, floor } of rows) {
     const flops = flopsOf(fast);
-    const ref = reference ? `${fixed(reference.seconds, 1)} / ${fixed(reference.nullSeconds, 1)}` : "–";
-    out.push(
-      `| ${name} | ${fast.subjects} | ${fast.edges} | ${fast.vectors} | ${fast.permutations} | ${fixed(fast.seconds, 1)} | ${fixed(fast.nullSeconds, 1)} | ${fixed(fast.permutations! / fast.nullSeconds!, 0)} | ${fixed(flops / fast.seconds / 1e9, 1)} | ${fixed(flops / fast.nullSeconds! / 1e9, 1)} | ${fixed(fast.peakRssMegabytes, 0)} | ${ref} | ${reference ? fixed(reference.nullSeconds! / fast.nullSeconds!, 1) : "–"} | ${floor ? `${fixed(floor.seconds, 2)} (${fixed(floor.gflops, 0)})` : "–"} | ${floor ? fixed(fast.seconds / floor.seconds, 1) : "–"} | ${floor ? fixed(fast.nullSeconds! / floor.seconds, 1) : "–"} | ${reference ? (reference.nullHash === fast.nullHash ? "yes" : "**NO**") : "–"} |`,
+    speed.push(
+      `| ${name} | ${fast.subjects} | ${fast.edges} | ${fast.vectors} | ${fast.permutations} | ${fixed(fast.seconds, 1)} | ${fixed(fast.nullSeconds, 1)} | ${fixed(fast.nullCpuSeconds, 1)} | ${fixed(fast.permutations! / fast.nullSeconds!, 0)} | ${fixed(flops / fast.seconds / 1e9, 1)} | ${fixed(flops / fast.nullSeconds! / 1e9, 1)} | ${fixed(fast.peakRssMegabytes, 0)} |`,
     );
+    const ts = reference ? `${fixed(reference.nullSeconds, 1)} (${fixed(reference.nullCpuSeconds, 1)})` : "–";
+    const speedUp = reference ? `${fixed(reference.nullSeconds! / fast.nullSeconds!, 1)} (${fixed(reference.nullCpuSeconds! / fast.nullCpuSeconds!, 1)})` : "–";
+    const floorText = floor ? `${fixed(floor.seconds, 2)} (${fixed(floor.cpuSeconds, 2)}), ${fixed(floor.gflops, 0)}` : "–";
+    const overFloor = floor ? `${fixed(fast.nullSeconds! / floor.seconds, 1)} (${fixed(fast.nullCpuSeconds! / floor.cpuSeconds, 1)})` : "–";
+    const same = reference ? (reference.nullHash === fast.nullHash ? "yes" : "**NO**") : "–";
+    ratios.push(`| ${name} | ${ts} | ${speedUp} | ${floorText} | ${floor ? fixed(fast.seconds / floor.seconds, 1) : "–"} | ${overFloor} | ${same} |`);
   }
-  return out;
+  return [...speed, "", ...ratios];
 }
 
 async function main(): Promise<void> {
@@ -153,7 +163,7 @@ async function main(): Promise<void> {
   rows.push({ name: cName, fast: c, floor: blasFloor(c.subjects!, c.edges!, c.vectors! * c.permutations!) });
   const rawBytes = (c.subjects! * c.edges! * 8) / 1e6;
 
-  report.push("## Scenarios (threads: " + threads + ")", "", ...scenarioTable(rows), "");
+  report.push("## Scenarios (threads: " + threads + ")", "", ...scenarioTables(rows), "");
   report.push(
     ...notes.map((note) => `${note}\n`),
     `Scenario C: the raw data S·E·8 is ${fixed(rawBytes, 0)} MB; the memory bound 1.5 × raw + 300 MB is ${fixed(1.5 * rawBytes + 300, 0)} MB; peak RSS ${fixed(c.peakRssMegabytes, 0)} MB.`,
@@ -194,13 +204,13 @@ async function main(): Promise<void> {
   report.push(
     "## Scaling (permutations alone, invented data, c = 3, SIMD kernel)",
     "",
-    "| run | S | E | K | threads | seconds | GFLOP/s | seconds per (S·E·K) × 10¹⁰ |",
-    "|---|---|---|---|---|---|---|---|",
+    "| run | S | E | K | threads | wall s | CPU s | GFLOP/s | wall s per S·E·K × 10¹⁰ |",
+    "|---|---|---|---|---|---|---|---|---|",
   );
   for (const { label, request } of variants) {
     const m = child(request);
     report.push(
-      `| ${label} | ${m.subjects} | ${m.edges} | ${m.permutations} | ${request.threads} | ${fixed(m.seconds, 2)} | ${fixed(flopsOf(m) / m.seconds / 1e9, 1)} | ${fixed((m.seconds / (m.subjects! * m.edges! * m.permutations!)) * 1e10, 2)} |`,
+      `| ${label} | ${m.subjects} | ${m.edges} | ${m.permutations} | ${request.threads} | ${fixed(m.nullSeconds, 2)} | ${fixed(m.nullCpuSeconds, 2)} | ${fixed(flopsOf(m) / m.nullSeconds! / 1e9, 1)} | ${fixed((m.nullSeconds! / (m.subjects! * m.edges! * m.permutations!)) * 1e10, 2)} |`,
     );
   }
   report.push("", `Command: \`npm run bench${quick ? " -- --quick" : ""}\``, "");

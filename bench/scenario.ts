@@ -25,8 +25,11 @@ export type Request =
 export interface Measurement {
   kernel: string;
   seconds: number;
-  /** Time of the permutations alone. */
+  /** CPU time of the process (all threads, user + system). */
+  cpuSeconds: number;
+  /** Time of the permutations alone, and its CPU time. */
   nullSeconds?: number;
+  nullCpuSeconds?: number;
   subjects?: number;
   edges?: number;
   vectors?: number;
@@ -47,15 +50,27 @@ function nullHash(rows: NullChunk): string {
 }
 
 const peakRss = (): number => process.resourceUsage().maxRSS / 1024;
+const cpuNow = (): number => {
+  const { user, system } = process.cpuUsage();
+  return (user + system) / 1e6;
+};
 
-async function measure(request: Request): Promise<Omit<Measurement, "kernel" | "peakRssMegabytes">> {
+async function measure(request: Request): Promise<Omit<Measurement, "kernel" | "peakRssMegabytes" | "cpuSeconds">> {
   if (request.kind === "analysis") {
     let nullStart = 0;
+    let nullCpuStart = 0;
     let nullSeconds = 0;
+    let nullCpuSeconds = 0;
     const progress: Progress = {
-      start: () => (nullStart = performance.now()),
+      start: () => {
+        nullStart = performance.now();
+        nullCpuStart = cpuNow();
+      },
       advance: () => {},
-      finish: () => (nullSeconds += (performance.now() - nullStart) / 1000),
+      finish: () => {
+        nullSeconds += (performance.now() - nullStart) / 1000;
+        nullCpuSeconds += cpuNow() - nullCpuStart;
+      },
     };
     const quiet = { info: () => {}, warn: () => {} };
     const start = performance.now();
@@ -69,6 +84,7 @@ async function measure(request: Request): Promise<Omit<Measurement, "kernel" | "
     return {
       seconds,
       nullSeconds,
+      nullCpuSeconds,
       subjects: result.prepared.connectomes.subjectCount,
       edges: result.prepared.connectomes.edgeCount,
       vectors: contrastNull?.setup.context.vectors.length,
@@ -79,11 +95,15 @@ async function measure(request: Request): Promise<Omit<Measurement, "kernel" | "
   if (request.kind === "null") {
     const context = syntheticNull(request);
     const start = performance.now();
-    const rows = await runNullEngine(context, { threads: request.threads, from: 1, to: request.permutations + 1, chunkSize: 250 });
+    const cpuStart = cpuNow();
+    // Chunks of a quarter of each thread's share, so every thread has work.
+    const chunkSize = Math.max(1, Math.ceil(request.permutations / (4 * request.threads)));
+    const rows = await runNullEngine(context, { threads: request.threads, from: 1, to: request.permutations + 1, chunkSize });
     const seconds = (performance.now() - start) / 1000;
     return {
       seconds,
       nullSeconds: seconds,
+      nullCpuSeconds: cpuNow() - cpuStart,
       subjects: request.subjects,
       edges: context.kernel.edges,
       vectors: context.vectors.length,
@@ -109,6 +129,7 @@ async function measure(request: Request): Promise<Omit<Measurement, "kernel" | "
 }
 
 const request = JSON.parse(process.argv[2] ?? "{}") as Request;
+const cpuStart = cpuNow();
 const result = await measure(request);
-const measurement: Measurement = { kernel: selectKernel().name, ...result, peakRssMegabytes: peakRss() };
+const measurement: Measurement = { kernel: selectKernel().name, ...result, cpuSeconds: cpuNow() - cpuStart, peakRssMegabytes: peakRss() };
 process.stdout.write(`${JSON.stringify(measurement)}\n`);

@@ -29,6 +29,7 @@ const nullConditions = [
   { name: "mass, Freedman–Lane (age, sex)", simulation: { ...base, effect: null }, design: withCovariates, inference: { threshold: 2.5, size: "mass" } },
   { name: "extent, blocks (site), Freedman–Lane", simulation: { ...base, effect: null }, design: withCovariates, inference: { threshold: 2.5, size: "extent" }, blocks: true },
   { name: "extent, two-tailed", simulation: { ...base, effect: null }, design: groupOnly, inference: { threshold: 2.5, size: "extent", tail: "both" } },
+  { name: "threshold-free, Freedman–Lane (age, sex)", simulation: { ...base, effect: null }, design: withCovariates, inference: { method: "threshold-free" } },
 ];
 
 const started = Date.now();
@@ -42,6 +43,9 @@ for (const condition of nullConditions) {
   const edges = rateOf(outcomes.filter((o) => o.edgeRejected).length, cohorts);
   errorRows.push({ condition: condition.name, measure: "components (FWER)", ...components });
   errorRows.push({ condition: condition.name, measure: "max-t (FWER)", ...edges });
+  if (condition.inference.method === "threshold-free") {
+    errorRows.push({ condition: condition.name, measure: "threshold-free (FWER)", ...rateOf(outcomes.filter((o) => o.enhancedRejected).length, cohorts) });
+  }
 }
 
 // FDR: planted effects, false discovery proportion averaged over cohorts (Benjamini & Hochberg 1995).

@@ -111,6 +111,15 @@ export const DEFAULT_INFERENCE: InferenceSpec = {
   scheme: "auto",
 };
 
+/**
+ * The thresholds in force: the sweep when its first entry is the primary
+ * threshold, else the primary threshold alone (a spec whose `threshold` was
+ * changed without its `thresholds` means that one threshold).
+ */
+export function thresholdsOf(inference: Pick<InferenceSpec, "threshold" | "thresholds">): number[] {
+  return inference.thresholds.length > 0 && inference.thresholds[0] === inference.threshold ? inference.thresholds : [inference.threshold];
+}
+
 /** Reads a design file from disk; see `parseDesign`. */
 export function readDesign(file: string): DesignSpec {
   return parseDesign(readTextFile(file, "check the design file's path (relative to the current folder)"), file);

@@ -9,9 +9,9 @@ export const NULL_COLUMNS = ["permutation", "max_extent", "max_mass", "max_stati
 export function nullTable(rows: NullChunk): string {
   const out: Cell[][] = new Array(rows.to - rows.from);
   for (let i = 0; i < out.length; i++) {
-    out[i] = [rows.from + i, rows.maxExtent[i], rows.maxMass[i], rows.maxStatistic[i]];
+    out[i] = [rows.from + i, rows.maxExtent[i], rows.maxMass[i], rows.maxStatistic[i], ...rows.extra.map((values) => values[i])];
   }
-  return formatTsv([...NULL_COLUMNS], out);
+  return formatTsv([...NULL_COLUMNS, ...rows.extraNames], out);
 }
 
 /** Reads a null.tsv back (for merging shards); checks the columns and the numbering. */
@@ -27,12 +27,15 @@ export function parseNullTable(text: string, file: string): NullChunk {
   });
   const count = table.rows.length;
   const from = count > 0 ? Number(table.rows[0][0]) : 1;
+  const extraNames = table.header.slice(NULL_COLUMNS.length);
   const chunk: NullChunk = {
     from,
     to: from + count,
     maxExtent: new Float64Array(count),
     maxMass: new Float64Array(count),
     maxStatistic: new Float64Array(count),
+    extraNames,
+    extra: extraNames.map(() => new Float64Array(count)),
   };
   table.rows.forEach((row, i) => {
     const line = table.lines[i];
@@ -48,6 +51,7 @@ export function parseNullTable(text: string, file: string): NullChunk {
     chunk.maxExtent[i] = read(1);
     chunk.maxMass[i] = read(2);
     chunk.maxStatistic[i] = read(3);
+    extraNames.forEach((_, j) => (chunk.extra[j][i] = read(NULL_COLUMNS.length + j)));
   });
   return chunk;
 }

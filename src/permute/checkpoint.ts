@@ -68,6 +68,8 @@ export class Checkpoint {
       maxExtent: Array.from(chunk.maxExtent),
       maxMass: Array.from(chunk.maxMass),
       maxStatistic: Array.from(chunk.maxStatistic, (v) => (Number.isNaN(v) ? "NaN" : v)),
+      extraNames: chunk.extraNames,
+      extra: chunk.extra.map((values) => Array.from(values, (v) => (Number.isNaN(v) ? "NaN" : v))),
     };
     const body = JSON.stringify(rows);
     const record = { sha256: sha256(body), rows: body };
@@ -91,6 +93,8 @@ export class Checkpoint {
           maxExtent: number[];
           maxMass: number[];
           maxStatistic: (number | string)[];
+          extraNames?: string[];
+          extra?: (number | string)[][];
         };
         chunk = {
           from: rows.from,
@@ -98,6 +102,8 @@ export class Checkpoint {
           maxExtent: Float64Array.from(rows.maxExtent),
           maxMass: Float64Array.from(rows.maxMass),
           maxStatistic: Float64Array.from(rows.maxStatistic, (v) => (v === "NaN" ? NaN : Number(v))),
+          extraNames: rows.extraNames ?? [],
+          extra: (rows.extra ?? []).map((values) => Float64Array.from(values, (v) => (v === "NaN" ? NaN : Number(v)))),
         };
         if (chunk.maxExtent.length !== chunk.to - chunk.from) throw new Error("wrong length");
       } catch (error) {

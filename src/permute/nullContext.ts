@@ -1,8 +1,8 @@
 import { InputError, type InputLocation } from "../errors.js";
-import type { InferenceSpec } from "../io/designFile.js";
+import { thresholdsOf, type InferenceSpec } from "../io/designFile.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
-import { partitionEffect, reducedResiduals, type EffectPartition } from "./effectPartition.js";
+import { partitionEffect, partitionEffectRows, reducedResiduals, type EffectPartition } from "./effectPartition.js";
 import type { NullContext } from "./nullRange.js";
 import { designRowTypes, planRelabelings, type SchemeKind } from "./relabelings.js";
 
@@ -25,7 +25,7 @@ export function sharedFloat64(length: number): Float64Array {
  * rows and is tested by sign flips; any other contrast by Freedman–Lane
  * permutation of the reduced-model residuals.
  */
-export function chooseScheme(partition: EffectPartition, requested: InferenceSpec["scheme"], where: InputLocation): {
+export function chooseScheme(partition: Pick<EffectPartition, "constantInModel" | "constantInNuisance" | "effectNorm2">, requested: InferenceSpec["scheme"], where: InputLocation): {
   scheme: SchemeKind;
   reason: string;
 } {
@@ -49,6 +49,8 @@ export function chooseScheme(partition: EffectPartition, requested: InferenceSpe
 export function buildNullContext(options: {
   matrix: DesignMatrix;
   contrast: Float64Array;
+  /** All rows of an F contrast (two or more); absent for a t contrast. */
+  contrastRows?: Float64Array[];
   data: Float64Array;
   edges: number;
   pairs: EdgePairs;
@@ -61,10 +63,22 @@ export function buildNullContext(options: {
 }): NullSetup {
   const { matrix, contrast, data, edges, pairs, observed, inference } = options;
   const S = matrix.rows;
-  const partition = partitionEffect(matrix.values, S, matrix.cols, contrast);
+  const multi = options.contrastRows && options.contrastRows.length > 1 ? partitionEffectRows(matrix.values, S, matrix.cols, options.contrastRows) : undefined;
+  const partition: EffectPartition = multi
+    ? {
+        subjects: S,
+        effect: multi.effectBasis[0],
+        effectNorm2: 1,
+        nuisanceBasis: multi.nuisanceBasis,
+        constantInNuisance: multi.constantInNuisance,
+        constantInModel: multi.constantInModel,
+        df: multi.df,
+      }
+    : partitionEffect(matrix.values, S, matrix.cols, contrast);
   const { scheme, reason } = chooseScheme(partition, inference.scheme, options.where);
   const usesConstant = scheme === "sign-flip" || !partition.constantInNuisance;
   const nuisance = usesConstant ? partition.nuisanceBasis : partition.nuisanceBasis.slice(1);
+  const effectVectors = multi ? multi.effectBasis : [partition.effect];
   const reuse = options.inPlace === true && data.buffer instanceof SharedArrayBuffer;
   const residuals = reuse ? data : sharedFloat64(S * edges);
   const reduced = reducedResiduals(data, S, edges, partition.nuisanceBasis, residuals);
@@ -102,14 +116,17 @@ export function buildNullContext(options: {
         valid,
         effectNorm2: partition.effectNorm2,
         df: partition.df,
+        effectVectors: effectVectors.length,
       },
-      vectors: [partition.effect, ...nuisance],
+      vectors: [...effectVectors, ...nuisance],
       plan,
       regionA: pairs.regionA,
       regionB: pairs.regionB,
       regionCount: pairs.regionCount,
       threshold: inference.threshold,
-      tail: inference.tail,
+      thresholds: thresholdsOf(inference),
+      enhancement: inference.method === "threshold-free" ? inference.enhancement : undefined,
+      tail: multi ? "upper" : inference.tail,
       observed,
     },
   };

@@ -77,17 +77,21 @@ export async function runNullEngine(context: NullContext, options: EngineOptions
 
 export function concatenateChunks(chunks: NullChunk[], from: number, to: number): NullChunk {
   const count = to - from;
+  const extraNames = chunks[0]?.extraNames ?? [];
   const out: NullChunk = {
     from,
     to,
     maxExtent: new Float64Array(count),
     maxMass: new Float64Array(count),
     maxStatistic: new Float64Array(count),
+    extraNames,
+    extra: extraNames.map(() => new Float64Array(count)),
   };
   for (const chunk of chunks) {
     out.maxExtent.set(chunk.maxExtent, chunk.from - from);
     out.maxMass.set(chunk.maxMass, chunk.from - from);
     out.maxStatistic.set(chunk.maxStatistic, chunk.from - from);
+    chunk.extra.forEach((values, j) => out.extra[j].set(values, chunk.from - from));
   }
   return out;
 }

@@ -5,5 +5,5 @@ import { computeNullRange, type NullContext } from "./nullRange.js";
 const context = workerData as NullContext;
 parentPort!.on("message", (range: { from: number; to: number }) => {
   const chunk = computeNullRange(context, range.from, range.to);
-  parentPort!.postMessage(chunk, [chunk.maxExtent.buffer, chunk.maxMass.buffer, chunk.maxStatistic.buffer] as ArrayBuffer[]);
+  parentPort!.postMessage(chunk, [chunk.maxExtent.buffer, chunk.maxMass.buffer, chunk.maxStatistic.buffer, ...chunk.extra.map((v) => v.buffer)] as ArrayBuffer[]);
 });

@@ -28,6 +28,13 @@ export interface KernelData {
   valid: Uint8Array;
   effectNorm2: number;
   df: number;
+  /**
+   * Number of effect vectors q leading each relabeling's vectors: 1 for a t
+   * contrast (x̃, not normalised); q ≥ 2 for an F contrast, whose effect
+   * vectors are orthonormal and whose statistic is
+   * F = (Σ_{k<q} a_k² / q) / ((‖R‖² − Σ_{k<q} a_k² − Σ_{k≥q} g_k²) / df).
+   */
+  effectVectors?: number;
 }
 
 /** Edges per block: the products of one block stay in cache until the statistics are formed. */
@@ -119,6 +126,7 @@ export function permutedStatistics(
   products: Float64Array = new Float64Array(batch * vectors * EDGE_BLOCK),
 ): void {
   const { subjects: S, edges: E, residuals, sumSquares, valid, effectNorm2, df } = data;
+  const q = data.effectVectors ?? 1;
   const rows = batch * vectors;
   for (let e0 = 0; e0 < E; e0 += EDGE_BLOCK) {
     const width = Math.min(EDGE_BLOCK, E - e0);
@@ -130,6 +138,20 @@ export function permutedStatistics(
         const e = e0 + i;
         if (valid[e] === 0) {
           out[target + i] = NaN;
+          continue;
+        }
+        if (q > 1) {
+          let effect = 0;
+          for (let k = 0; k < q; k++) {
+            const a = products[numeratorRow + k * width + i];
+            effect += a * a;
+          }
+          let rest = sumSquares[e] - effect;
+          for (let k = q; k < vectors; k++) {
+            const g = products[numeratorRow + k * width + i];
+            rest -= g * g;
+          }
+          out[target + i] = rest > 0 ? effect / q / (rest / df) : NaN;
           continue;
         }
         const a = products[numeratorRow + i];

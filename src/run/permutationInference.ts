@@ -1,12 +1,15 @@
 import type { Progress } from "../cli/progress.js";
-import { InputError } from "../errors.js";
 import { criticalValue, familywiseP, type FamilywiseP } from "../inference/familywiseP.js";
 import { Checkpoint } from "../permute/checkpoint.js";
 import { buildNullContext, type NullSetup } from "../permute/nullContext.js";
 import { runNullEngine } from "../permute/nullEngine.js";
 import type { NullChunk } from "../permute/nullRange.js";
 import type { ObservedContrast } from "./analyzeContrasts.js";
-import type { InferenceSpec } from "../io/designFile.js";
+import type { EdgePairs } from "../edges/edgeIndex.js";
+import type { ComponentSummary } from "../inference/components.js";
+import { observedComponents, signsOfTail } from "../inference/observedComponents.js";
+import { ThresholdFreeEnhancer } from "../inference/thresholdFree.js";
+import { thresholdsOf, type InferenceSpec } from "../io/designFile.js";
 import type { PreparedAnalysis } from "./prepareAnalysis.js";
 
 /** A contrast's null distribution (full, or one shard's share) with how it was drawn. */
@@ -34,16 +37,10 @@ export function needsPermutations(prepared: PreparedAnalysis): boolean {
  */
 export function setupNull(prepared: PreparedAnalysis, observed: ObservedContrast, lastUse = false): NullSetup {
   const spec = prepared.design.contrasts.find((c) => c.name === observed.contrast.name)!;
-  if (observed.contrast.kind === "F") {
-    throw new InputError(
-      `'${observed.contrast.name}' is an F contrast; permutation inference for F contrasts is not available yet`,
-      { file: prepared.design.file, key: spec.key, line: spec.line },
-      "use `method: fdr` for this design, or test the rows as separate t contrasts",
-    );
-  }
   return buildNullContext({
     matrix: prepared.matrix,
     contrast: observed.contrast.vector,
+    contrastRows: observed.contrast.kind === "F" ? observed.contrast.rows : undefined,
     data: prepared.connectomes.data,
     edges: prepared.connectomes.edgeCount,
     pairs: prepared.pairs,
@@ -118,4 +115,93 @@ export function familywiseInference(
     criticalSize: criticalValue(sizeNull, inference.alpha, exact),
     criticalStatistic: criticalValue(nullRows.maxStatistic, inference.alpha, exact),
   };
+}
+
+/** Threshold-free inference: the observed enhanced statistic, per-edge p_fwe, and the components of the significant edges. */
+export interface ThresholdFreeResult {
+  enhanced: Float64Array;
+  edgeP: Float64Array;
+  labels: Int32Array;
+  components: ComponentSummary[];
+  componentP: number[];
+  criticalEnhanced: number;
+}
+
+/**
+ * p_fwe per edge from the null of the largest enhanced value (Smith & Nichols
+ * 2009; the maximum statistic of Westfall & Young 1993). Components are
+ * formed from the significant edges (never mixing signs); their `mass` is the
+ * sum of |enhanced| over their edges and their p_fwe the smallest edge p_fwe.
+ */
+export function thresholdFreeInference(
+  inference: InferenceSpec,
+  observed: ObservedContrast,
+  nullRows: NullChunk,
+  exact: boolean,
+  pairs: EdgePairs,
+  tail: InferenceSpec["tail"],
+): ThresholdFreeResult {
+  const enhancer = new ThresholdFreeEnhancer(pairs.regionA, pairs.regionB, pairs.regionCount, inference.enhancement);
+  const statistic = observed.statistics.statistic;
+  const enhanced = enhancer.enhanceTail(statistic, signsOfTail(tail), new Float64Array(statistic.length));
+  const column = nullRows.extraNames.indexOf("max_enhanced");
+  const nullEnhanced = nullRows.extra[column];
+  const query = Float64Array.from(enhanced, (v, e) => (Number.isFinite(statistic[e]) ? Math.abs(v) : NaN));
+  const edgeP = Float64Array.from(familywiseP(nullEnhanced, query, exact), (r) => r.p);
+  const marks = Float64Array.from(statistic, (t, e) => (edgeP[e] <= inference.alpha ? Math.sign(t) : 0));
+  const { labels, components } = observedComponents(marks, pairs.regionA, pairs.regionB, pairs.regionCount, 0.5, tail, "extent");
+  const componentP = components.map(() => 1);
+  for (const c of components) c.mass = 0;
+  for (let e = 0; e < labels.length; e++) {
+    const id = labels[e];
+    if (id === 0) continue;
+    components[id - 1].mass += Math.abs(enhanced[e]);
+    componentP[id - 1] = Math.min(componentP[id - 1], edgeP[e]);
+  }
+  return { enhanced, edgeP, labels, components, componentP, criticalEnhanced: criticalValue(nullEnhanced, inference.alpha, exact) };
+}
+
+/** One threshold of a sweep: its observed components and their p_fwe from that threshold's null columns. */
+export interface SweepLevel {
+  threshold: number;
+  labels: Int32Array;
+  components: ComponentSummary[];
+  componentP: FamilywiseP[];
+  criticalSize: number;
+}
+
+export function sweepInference(
+  inference: InferenceSpec,
+  observed: ObservedContrast,
+  nullRows: NullChunk,
+  exact: boolean,
+  pairs: EdgePairs,
+  tail: InferenceSpec["tail"],
+): SweepLevel[] {
+  return thresholdsOf(inference).map((threshold, i) => {
+    const { labels, components } = observedComponents(
+      observed.statistics.statistic,
+      pairs.regionA,
+      pairs.regionB,
+      pairs.regionCount,
+      threshold,
+      tail,
+      inference.size,
+    );
+    const measure = inference.size === "mass" ? "mass" : "extent";
+    const sizeNull =
+      i === 0
+        ? measure === "mass"
+          ? nullRows.maxMass
+          : nullRows.maxExtent
+        : nullRows.extra[nullRows.extraNames.indexOf(`max_${measure}_t${threshold}`)];
+    const sizes = components.map((c) => (measure === "mass" ? c.mass : c.extent));
+    return {
+      threshold,
+      labels,
+      components,
+      componentP: familywiseP(sizeNull, sizes, exact),
+      criticalSize: criticalValue(sizeNull, inference.alpha, exact),
+    };
+  });
 }

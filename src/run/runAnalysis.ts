@@ -7,6 +7,7 @@ import { Checkpoint } from "../permute/checkpoint.js";
 import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs, type InputRecord } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
+import { formatTsv, type Cell } from "../output/tsvWriter.js";
 import { nullTable } from "../output/nullTable.js";
 import { componentsTable, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "../output/resultTables.js";
 import { SHARD_MANIFEST, type ShardManifest } from "../output/shardManifest.js";
@@ -14,12 +15,17 @@ import { fitAll, observeContrast, type ObservedContrast } from "./analyzeContras
 import {
   computeNull,
   familywiseInference,
+  sweepInference,
+  thresholdFreeInference,
+  type SweepLevel,
+  type ThresholdFreeResult,
   needsPermutations,
   setupNull,
   type ContrastNull,
   type FamilywiseResult,
 } from "./permutationInference.js";
 import { prepareAnalysis, type PreparedAnalysis } from "./prepareAnalysis.js";
+import { thresholdsOf } from "../io/designFile.js";
 import { writeReport } from "../report/writeReport.js";
 
 /** What the user asked for (CLI flags or library call). */
@@ -66,11 +72,13 @@ export function runFingerprint(prepared: PreparedAnalysis, inputs: InputRecord[]
     version: VERSION,
     inputs: inputs.map((i) => [i.role, i.sha256]),
     model: prepared.matrix.columns.map((c) => c.name),
-    contrasts: prepared.contrasts.map((c) => [c.name, [...c.vector]]),
+    contrasts: prepared.contrasts.map((c) => [c.name, c.rows.map((r) => [...r])]),
     transform: prepared.design.transform,
     symmetrize: prepared.design.symmetrize,
     inference: {
       threshold: inference.threshold,
+      thresholds: thresholdsOf(inference),
+      enhancement: inference.method === "threshold-free" ? inference.enhancement : null,
       tail: inference.tail,
       permutations: inference.permutations,
       seed: inference.seed,
@@ -187,15 +195,25 @@ export function writeResults(
   commandLine: string[] | null,
 ): void {
   const fwes: (FamilywiseResult | undefined)[] = [];
+  const extras: ContrastExtras[] = [];
+  const { inference } = prepared.design;
   contrasts.forEach((observed, i) => {
     const contrastNull = nulls[i];
-    const fwe = contrastNull
-      ? familywiseInference(prepared.design.inference, observed, contrastNull.rows, contrastNull.setup.context.plan.exact)
-      : undefined;
+    const exact = contrastNull?.setup.context.plan.exact ?? false;
+    const tail = observed.contrast.kind === "F" ? "upper" : inference.tail;
+    const fwe = contrastNull ? familywiseInference(inference, observed, contrastNull.rows, exact) : undefined;
     fwes.push(fwe);
+    const free =
+      contrastNull && inference.method === "threshold-free"
+        ? thresholdFreeInference(inference, observed, contrastNull.rows, exact, prepared.pairs, tail)
+        : undefined;
+    const sweep =
+      contrastNull && thresholdsOf(inference).length > 1 ? sweepInference(inference, observed, contrastNull.rows, exact, prepared.pairs, tail) : undefined;
+    extras.push({ free, sweep });
     const { statistics } = observed;
     const extra: ExtraEdgeColumn[] = [];
-    if (fwe?.edgeP) extra.push({ name: "p_fwe", values: fwe.edgeP });
+    if (free) extra.push({ name: "enhanced", values: free.enhanced }, { name: "p_fwe", values: free.edgeP });
+    else if (fwe?.edgeP) extra.push({ name: "p_fwe", values: fwe.edgeP });
     if (observed.contrast.kind === "F") extra.push({ name: "partial_eta_squared", values: statistics.partialR });
     else extra.push({ name: "partial_r", values: statistics.partialR }, { name: "standard_error", values: statistics.standardError });
     const name = observed.contrast.name;
@@ -208,28 +226,71 @@ export function writeResults(
         statistics.estimate,
         observed.pUncorrected,
         observed.qFdr,
-        observed.labels,
+        free ? free.labels : observed.labels,
         extra,
       ),
     );
     folder.write(
       `${name}/components.tsv`,
-      componentsTable(
-        observed.components,
-        fwe
-          ? {
-              pFwe: fwe.componentP.map((r) => r.p),
-              ...(fwe.exact ? {} : { pFweLow: fwe.componentP.map((r) => r.low), pFweHigh: fwe.componentP.map((r) => r.high) }),
-            }
-          : {},
-      ),
+      free
+        ? componentsTable(free.components, { pFwe: free.componentP })
+        : componentsTable(
+            observed.components,
+            fwe
+              ? {
+                  pFwe: fwe.componentP.map((r) => r.p),
+                  ...(fwe.exact ? {} : { pFweLow: fwe.componentP.map((r) => r.low), pFweHigh: fwe.componentP.map((r) => r.high) }),
+                }
+              : {},
+          ),
     );
+    if (sweep) {
+      for (const level of sweep) {
+        folder.write(
+          `${name}/threshold-${level.threshold}/components.tsv`,
+          componentsTable(level.components, {
+            pFwe: level.componentP.map((r) => r.p),
+            ...(exact ? {} : { pFweLow: level.componentP.map((r) => r.low), pFweHigh: level.componentP.map((r) => r.high) }),
+          }),
+        );
+      }
+      folder.write(`${name}/threshold_robustness.tsv`, robustnessTable(prepared, observed, sweep, inference.alpha));
+    }
     if (contrastNull) folder.write(`${name}/null.tsv`, nullTable(contrastNull.rows));
   });
   folder.write("subjects.tsv", subjectsTable(prepared));
   folder.write("regions.tsv", regionsTable(prepared.regions));
-  const summary = buildSummary(prepared, contrasts, nulls, fwes, inputs, commandLine);
+  const summary = buildSummary(prepared, contrasts, nulls, fwes, inputs, commandLine, extras);
   folder.write("summary.json", `${JSON.stringify(summary, null, 2)}\n`);
+}
+
+/** Threshold-free and sweep results of a contrast, when the design asks for them. */
+export interface ContrastExtras {
+  free?: ThresholdFreeResult;
+  sweep?: SweepLevel[];
+}
+
+/**
+ * threshold_robustness.tsv: every edge in a significant component at one or
+ * more of the swept thresholds, with the component holding it at each
+ * threshold (empty when not significant there) and how many thresholds agree.
+ */
+function robustnessTable(prepared: PreparedAnalysis, observed: ObservedContrast, sweep: SweepLevel[], alpha: number): string {
+  const significantSets = sweep.map((level) => new Set(level.components.filter((_, k) => level.componentP[k].p <= alpha).map((c) => c.id)));
+  const rows: Cell[][] = [];
+  for (let e = 0; e < prepared.pairs.edgeCount; e++) {
+    const ids = sweep.map((level, i) => (significantSets[i].has(level.labels[e]) ? level.labels[e] : null));
+    const count = ids.filter((id) => id !== null).length;
+    if (count === 0) continue;
+    rows.push([
+      prepared.regions[prepared.pairs.regionA[e]].label,
+      prepared.regions[prepared.pairs.regionB[e]].label,
+      observed.statistics.statistic[e],
+      ...ids,
+      count,
+    ]);
+  }
+  return formatTsv(["region_a", "region_b", "statistic", ...sweep.map((l) => `component_t${l.threshold}`), "significant_thresholds"], rows);
 }
 
 function writeShard(
@@ -269,6 +330,7 @@ export function buildSummary(
   fwes: (FamilywiseResult | undefined)[],
   inputs: InputRecord[],
   commandLine: string[] | null,
+  extras: ContrastExtras[] = [],
 ): Record<string, unknown> {
   const { design, matrix, connectomes } = prepared;
   const designDir = path.dirname(path.resolve(design.file));
@@ -337,6 +399,27 @@ export function buildSummary(
               smallest_possible_p: plan.exact ? 1 / plan.count : 1 / (plan.count + 1),
             }
           : { mode: null }),
+        ...(extras[i]?.free
+          ? {
+              threshold_free: {
+                extent_exponent: inference.enhancement.extentExponent,
+                height_exponent: inference.enhancement.heightExponent,
+                step: inference.enhancement.step,
+                significant_edges: extras[i]!.free!.edgeP.filter((p) => p <= inference.alpha).length,
+                critical_enhanced: finiteOrNull(extras[i]!.free!.criticalEnhanced),
+              },
+            }
+          : {}),
+        ...(extras[i]?.sweep
+          ? {
+              threshold_sweep: extras[i]!.sweep!.map((level) => ({
+                threshold: level.threshold,
+                supra_threshold_components: level.components.length,
+                significant_components: level.componentP.filter((r) => r.p <= inference.alpha).length,
+                critical_size: finiteOrNull(level.criticalSize),
+              })),
+            }
+          : {}),
       };
     }),
     options: {
@@ -346,6 +429,16 @@ export function buildSummary(
       inference: {
         method: inference.method,
         threshold: inference.threshold,
+        thresholds: thresholdsOf(inference),
+        ...(inference.method === "threshold-free"
+          ? {
+              enhancement: {
+                extent_exponent: inference.enhancement.extentExponent,
+                height_exponent: inference.enhancement.heightExponent,
+                step: inference.enhancement.step,
+              },
+            }
+          : {}),
         size: inference.size,
         tail: inference.tail,
         fdr: inference.fdr,

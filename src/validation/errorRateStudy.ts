@@ -5,7 +5,7 @@ import { clopperPearson } from "../inference/familywiseP.js";
 import { buildNullContext } from "../permute/nullContext.js";
 import { computeNullRange } from "../permute/nullRange.js";
 import { observeContrastOn } from "../run/analyzeContrasts.js";
-import { familywiseInference } from "../run/permutationInference.js";
+import { familywiseInference, thresholdFreeInference } from "../run/permutationInference.js";
 import type { SimulationOptions } from "../simulate/simulateCohort.js";
 import { studyCohort, type StudyDesign } from "./studyCohort.js";
 
@@ -30,6 +30,8 @@ export interface CohortOutcome {
   componentRejected: boolean;
   /** Any edge with max-t p_fwe ≤ alpha. */
   edgeRejected: boolean;
+  /** Any edge with threshold-free p_fwe ≤ alpha (only when the condition's method is threshold-free). */
+  enhancedRejected: boolean;
   /** Edges declared by each method, and how many of them are planted. */
   components: { declared: number; truePositive: number };
   maxT: { declared: number; truePositive: number };
@@ -59,6 +61,10 @@ export function analyseStudyCohort(condition: StudyCondition, seed: number, perm
   });
   const rows = computeNullRange(setup.context, 1, setup.context.plan.count + 1);
   const fwe = familywiseInference({ ...inference, method: "max-t" }, observed, rows, setup.context.plan.exact);
+  const free =
+    inference.method === "threshold-free"
+      ? thresholdFreeInference(inference, observed, rows, setup.context.plan.exact, pairs, inference.tail)
+      : undefined;
   const significantComponents = new Set(
     observed.components.filter((_, k) => fwe.componentP[k].p <= inference.alpha).map((c) => c.id),
   );
@@ -75,6 +81,7 @@ export function analyseStudyCohort(condition: StudyCondition, seed: number, perm
   return {
     componentRejected: significantComponents.size > 0,
     edgeRejected: fwe.edgeP!.some((p) => p <= inference.alpha),
+    enhancedRejected: free ? free.edgeP.some((p) => p <= inference.alpha) : false,
     components: count((e) => significantComponents.has(observed.labels[e])),
     maxT: count((e) => fwe.edgeP![e] <= inference.alpha),
     fdr: count((e) => observed.qFdr[e] <= inference.alpha),

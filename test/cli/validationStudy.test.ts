@@ -35,6 +35,18 @@ describe("error control by simulation (reduced form)", () => {
     expectRateNear(outcomes.filter((o) => o.edgeRejected).length, cohorts, 0.05, "max-t, two-tailed, blocks");
   });
 
+  it("threshold-free enhancement holds the FWER under the null (Freedman–Lane)", () => {
+    const condition: StudyCondition = {
+      name: "ci-null-enhanced",
+      simulation: { ...base, effect: null },
+      design,
+      inference: { method: "threshold-free", tail: "upper" },
+    };
+    const cohorts = 600;
+    const outcomes = runCondition(condition, cohorts, 99);
+    expectRateNear(outcomes.filter((o) => o.enhancedRejected).length, cohorts, 0.05, "threshold-free, upper tail");
+  });
+
   it("Benjamini–Hochberg keeps the mean false discovery proportion at or below q", () => {
     const condition: StudyCondition = {
       name: "ci-fdr",

@@ -1,5 +1,6 @@
 import { permutedStatistics, EDGE_BLOCK, type KernelData } from "../permutedStatistics.js";
-import { WasmPermutationKernel, type KernelBatch } from "./wasmKernel.js";
+import { groupSumStatistics, type TwoLevelEffect } from "./groupSums.js";
+import { WasmPermutationKernel, type GroupBatch, type KernelBatch } from "./wasmKernel.js";
 
 /**
  * Which kernel computes the permuted statistics. Both give bit-identical
@@ -19,9 +20,15 @@ export interface StatisticsKernel {
    * for permutedStatistics), call run(batch), read `statistics` (batch × E).
    */
   prepare(data: KernelData, batchSize: number, vectors: number): KernelBatch;
+  /**
+   * The two-level path (groupSums.ts, one vector with two values): fill `members`
+   * (batch × groupSize, each relabeling's summed group in ascending order), call
+   * run(batch), read `statistics` (batch × E).
+   */
+  prepareGroups(data: KernelData, batchSize: number, level: TwoLevelEffect): GroupBatch;
 }
 
-export type { KernelBatch };
+export type { GroupBatch, KernelBatch };
 
 /** Rows (relabelings × vectors) per call for the SIMD kernel: each residual copied in is used this many times. */
 const WASM_ROWS = 96;
@@ -35,8 +42,14 @@ function referenceBatch(data: KernelData, batchSize: number, vectors: number): K
   return { weights, statistics, run: (batch) => permutedStatistics(data, weights, batch, vectors, statistics, products) };
 }
 
+function referenceGroups(data: KernelData, batchSize: number, level: TwoLevelEffect): GroupBatch {
+  const members = new Int32Array(batchSize * level.groupSize);
+  const statistics = new Float64Array(batchSize * data.edges);
+  return { members, statistics, run: (batch) => groupSumStatistics(data, level, members, batch, statistics) };
+}
+
 function referenceKernel(): StatisticsKernel {
-  return { name: "typescript", batchSize: () => 8, prepare: referenceBatch };
+  return { name: "typescript", batchSize: () => 8, prepare: referenceBatch, prepareGroups: referenceGroups };
 }
 
 function wasmKernel(instance: WasmPermutationKernel): StatisticsKernel {
@@ -49,6 +62,7 @@ function wasmKernel(instance: WasmPermutationKernel): StatisticsKernel {
     },
     // Where WebAssembly memory is refused (beyond 4 GiB), the reference kernel does the work.
     prepare: (data, batchSize, vectors) => instance.prepareBatch(data, batchSize, vectors) ?? referenceBatch(data, batchSize, vectors),
+    prepareGroups: (data, batchSize, level) => instance.prepareGroups(data, batchSize, level) ?? referenceGroups(data, batchSize, level),
   };
 }
 

@@ -1,4 +1,5 @@
 import type { KernelData } from "../permutedStatistics.js";
+import { residualSums, type TwoLevelEffect } from "./groupSums.js";
 import { PERMUTE_KERNEL_BASE64, PERMUTE_KERNEL_TILE } from "./generated/permuteKernelBytes.js";
 
 /**
@@ -9,8 +10,9 @@ import { PERMUTE_KERNEL_BASE64, PERMUTE_KERNEL_TILE } from "./generated/permuteK
  *
  * WebAssembly memory cannot alias the residuals' SharedArrayBuffer, so each
  * block of edges is copied in (one contiguous copy, since the residuals are
- * edge-major) and its statistics copied out; the copy costs O(S) per edge and
- * batch against O(S · rows) arithmetic. Each thread has its own instance.
+ * edge-major); the copy costs O(S) per edge and batch against O(S · rows)
+ * arithmetic. The statistics are written in place into a batch × E array in
+ * WebAssembly memory that the caller reads. Each thread has its own instance.
  */
 interface KernelExports {
   memory: { readonly buffer: ArrayBuffer; grow(pages: number): number };
@@ -31,9 +33,26 @@ interface KernelExports {
     outStride: number,
   ): void;
   tileProducts(panel: number, rowTiles: number, S: number, residuals: number, products: number): void;
+  transposeBlock(source: number, target: number, S: number, W: number): void;
+  groupStatisticsBlock(
+    blockT: number,
+    W: number,
+    width: number,
+    offsets: number,
+    groupSize: number,
+    batch: number,
+    rowSums: number,
+    sumSquares: number,
+    validMask: number,
+    difference: number,
+    other: number,
+    effectNorm2: number,
+    df: number,
+    out: number,
+    outStride: number,
+  ): void;
 }
 
-/** Bytes of residuals copied per block: small enough to stay in the level-2 cache while it is used. */
 /**
  * The part of the WebAssembly JavaScript API used here, typed locally: the
  * project's compiler settings (lib ES2022, Node types) do not declare it.
@@ -48,6 +67,7 @@ function webAssembly(): WebAssemblyApi | undefined {
   return (globalThis as { WebAssembly?: WebAssemblyApi }).WebAssembly;
 }
 
+/** Bytes of residuals copied per block: small enough to stay in the level-2 cache while it is used. */
 const BLOCK_BYTES = 256 * 1024;
 const PAGE_BYTES = 65536;
 const ALIGN = 64;
@@ -90,12 +110,23 @@ export interface KernelBatch {
   run(batch: number): void;
 }
 
+/** The two-level path's batch: fill `members` (batch × groupSize ascending subject lists), run, read `statistics`. */
+export interface GroupBatch {
+  members: Int32Array;
+  statistics: Float64Array;
+  run(batch: number): void;
+}
+
+/** Bytes of residuals per block on the two-level path (copied, then transposed beside the copy). */
+const GROUP_BLOCK_BYTES = 128 * 1024;
+
 const alignUp = (n: number): number => Math.ceil(n / ALIGN) * ALIGN;
 
 export class WasmPermutationKernel {
   /** Rows per register tile (lanes × row pairs) and edges per tile. */
-  readonly rowsPerTile = PERMUTE_KERNEL_TILE.rowPairs * 2;
-  readonly edgesPerTile = PERMUTE_KERNEL_TILE.edgesPerTile;
+  readonly rowsPerTile: number = PERMUTE_KERNEL_TILE.rowPairs * 2;
+  readonly edgesPerTile: number = PERMUTE_KERNEL_TILE.edgesPerTile;
+  readonly groupEdgesPerTile: number = PERMUTE_KERNEL_TILE.groupPairs * 2;
   private readonly exports: KernelExports;
   private f64 = new Float64Array(0);
   private current: object | undefined;
@@ -134,11 +165,22 @@ export class WasmPermutationKernel {
     return true;
   }
 
-  /** Edges per copied block for S subjects: a multiple of the edge tile. */
-  blockWidth(S: number, E: number): number {
-    const P = this.edgesPerTile;
-    const fit = Math.max(1, Math.floor(BLOCK_BYTES / (8 * Math.max(1, S)) / P)) * P;
+  /** Edges per copied block for S subjects: a multiple of the edge tile P. */
+  blockWidth(S: number, E: number, P: number = this.edgesPerTile, bytes: number = BLOCK_BYTES): number {
+    const fit = Math.max(1, Math.floor(bytes / (8 * Math.max(1, S)) / P)) * P;
     return Math.min(fit, Math.ceil(E / P) * P);
+  }
+
+  /** The valid flags as 64-bit lane masks (all ones or zero) at `at`, zero for `padding` edges past the end. */
+  private writeValidMask(valid: Uint8Array, at: number, padding: number): void {
+    const E = valid.length;
+    const mask = new Int32Array(this.exports.memory.buffer, at, 2 * (E + padding));
+    mask.fill(0);
+    for (let e = 0; e < E; e++) {
+      const bits = valid[e] === 0 ? 0 : -1;
+      mask[2 * e] = bits;
+      mask[2 * e + 1] = bits;
+    }
   }
 
   /** Packs rows × S weights by row tiles: panel[t][s][r] = weights[(t·RT + r)·S + s], zero past the last row. */
@@ -177,14 +219,7 @@ export class WasmPermutationKernel {
     const token = {};
     this.current = token;
     this.f64.set(data.sumSquares, sumSquaresAt / 8);
-    // The valid flags as 64-bit lane masks (all ones or zero) for the kernel's selects.
-    const mask = new Int32Array(this.exports.memory.buffer, maskAt, 2 * (E + P));
-    mask.fill(0);
-    for (let e = 0; e < E; e++) {
-      const bits = data.valid[e] === 0 ? 0 : -1;
-      mask[2 * e] = bits;
-      mask[2 * e + 1] = bits;
-    }
+    this.writeValidMask(data.valid, maskAt, P);
     const weights = new Float64Array(batchSize * vectors * S);
     const statistics = new Float64Array(this.exports.memory.buffer, statisticsAt, batchSize * E);
     const run = (batch: number): void => {
@@ -216,6 +251,67 @@ export class WasmPermutationKernel {
       }
     };
     return { weights, statistics, run };
+  }
+
+  /**
+   * The two-level path (groupSums.ts): memory for batches of up to `batchSize`
+   * relabelings, each given as the ascending list of its summed group's subjects;
+   * undefined if that much WebAssembly memory is refused.
+   */
+  prepareGroups(data: KernelData, batchSize: number, level: TwoLevelEffect): GroupBatch | undefined {
+    const { subjects: S, edges: E, residuals, effectNorm2, df } = data;
+    const T = this.groupEdgesPerTile;
+    const W = this.blockWidth(S, E, T, GROUP_BLOCK_BYTES);
+    const G = level.groupSize;
+    const statisticsAt = 0;
+    const rowSumsAt = alignUp(statisticsAt + batchSize * E * 8);
+    const sumSquaresAt = alignUp(rowSumsAt + (E + T) * 8);
+    const maskAt = alignUp(sumSquaresAt + (E + T) * 8);
+    const membersAt = alignUp(maskAt + (E + T) * 8);
+    const offsetsAt = alignUp(membersAt + batchSize * G * 4);
+    const blockAt = alignUp(offsetsAt + batchSize * G * 4);
+    const transposedAt = alignUp(blockAt + W * S * 8);
+    const end = transposedAt + W * S * 8;
+    if (!this.reserve(end)) return undefined;
+    const token = {};
+    this.current = token;
+    this.f64.set(residualSums(data), rowSumsAt / 8);
+    this.f64.set(data.sumSquares, sumSquaresAt / 8);
+    this.writeValidMask(data.valid, maskAt, T);
+    const buffer = this.exports.memory.buffer;
+    const members = new Int32Array(buffer, membersAt, batchSize * G);
+    const offsets = new Int32Array(buffer, offsetsAt, batchSize * G);
+    const rowBytes = W * 8;
+    const statistics = new Float64Array(buffer, statisticsAt, batchSize * E);
+    const run = (batch: number): void => {
+      if (this.current !== token) throw new Error("internal: a kernel batch was used after another was prepared on this thread");
+      if (E === 0 || batch === 0) return;
+      for (let i = 0; i < batch * G; i++) offsets[i] = members[i] * rowBytes;
+      const f64 = this.f64;
+      for (let e0 = 0; e0 < E; e0 += W) {
+        const width = Math.min(W, E - e0);
+        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
+        this.exports.transposeBlock(blockAt, transposedAt, S, W);
+        this.exports.groupStatisticsBlock(
+          transposedAt,
+          W,
+          width,
+          offsetsAt,
+          G,
+          batch,
+          rowSumsAt + e0 * 8,
+          sumSquaresAt + e0 * 8,
+          maskAt + e0 * 8,
+          level.difference,
+          level.other,
+          effectNorm2,
+          df,
+          statisticsAt + e0 * 8,
+          E,
+        );
+      }
+    };
+    return { members, statistics, run };
   }
 
   /** Same contract as permutedStatistics (weights: batch × vectors × S; out: batch × E); false if memory is refused. */

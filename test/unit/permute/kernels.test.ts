@@ -13,6 +13,7 @@ import { partitionEffect, reducedResiduals } from "../../../src/permute/effectPa
 import { computeNullRange, type NullChunk, type NullContext } from "../../../src/permute/nullRange.js";
 import { permutedStatistics, weightedSums, type KernelData } from "../../../src/permute/permutedStatistics.js";
 import { designRowTypes, planRelabelings, type SchemeKind } from "../../../src/permute/relabelings.js";
+import { groupSumStatistics, twoLevelEffect } from "../../../src/permute/kernels/groupSums.js";
 import { selectKernel } from "../../../src/permute/kernels/selectKernel.js";
 import { WasmPermutationKernel, wasmSimdSupported } from "../../../src/permute/kernels/wasmKernel.js";
 import { EPS, expectAllClose } from "../../helpers/close.js";
@@ -219,8 +220,9 @@ describe("the null computed with the SIMD kernel equals the null computed with t
     { S: 23, regions: 11, scheme: "sign-flip" as const, covariates: false, permutations: 50 },
   ];
   for (const options of cases) {
-    it(`${options.scheme}, S=${options.S}, ${options.regions} regions, ${options.covariates ? "with" : "without"} covariates`, () => {
+    it(`${options.scheme}, S=${options.S}, ${options.regions} regions, ${options.covariates ? "with" : "without"} covariates${options.covariates || options.scheme === "sign-flip" ? "" : " (two-level path)"}`, () => {
       const context = nullContext(options);
+      expect(twoLevelEffect(context.vectors[0]) !== undefined && context.vectors.length === 1).toBe(!options.covariates && options.scheme === "permute");
       const to = context.plan.count + 1;
       const reference = computeNullRange(context, 1, to, { kernel: "typescript" });
       const simd = computeNullRange(context, 1, to, { kernel: "wasm" });
@@ -260,5 +262,85 @@ describe("the TypeScript fallback", () => {
     expect(wasm.WasmPermutationKernel.create()).toBeUndefined();
     expect(fresh.selectKernel("auto").name).toBe("typescript");
     expect(fresh.selectKernel("wasm").name).toBe("typescript");
+  });
+});
+
+describe("the two-level path (group sums for a two-valued effect regressor)", () => {
+  it("twoLevelEffect finds the two values and sums the smaller group (subject 0's on a tie)", () => {
+    expect(twoLevelEffect(Float64Array.from([0.5, -0.5, -0.5, 0.5, -0.5]))).toEqual({ inGroup: 0.5, other: -0.5, difference: 1, groupSize: 2 });
+    expect(twoLevelEffect(Float64Array.from([2, 1, 1, 2]))).toEqual({ inGroup: 2, other: 1, difference: 1, groupSize: 2 });
+    expect(twoLevelEffect(Float64Array.from([1, 2, 3]))).toBeUndefined();
+    expect(twoLevelEffect(Float64Array.from([1, 1, 1]))).toBeUndefined();
+  });
+
+  const shapes = [
+    { S: 7, E: 5, batch: 3, groupSize: 1 },
+    { S: 21, E: 37, batch: 5, groupSize: 9 },
+    { S: 40, E: 300, batch: 13, groupSize: 20 },
+    { S: 201, E: 1031, batch: 4, groupSize: 100 },
+  ];
+  for (const shape of shapes) {
+    it(`SIMD group sums are bit-identical to the TypeScript reference (S=${shape.S}, E=${shape.E}, batch=${shape.batch}, group of ${shape.groupSize})`, () => {
+      const random = seedrandom(`group-sums-${JSON.stringify(shape)}`);
+      const { S, E, batch, groupSize } = shape;
+      const residuals = awkwardValues(random, S * E);
+      const sumSquares = new Float64Array(E);
+      const valid = new Uint8Array(E);
+      for (let e = 0; e < E; e++) {
+        let ss = 0;
+        for (let s = 0; s < S; s++) ss += residuals[e * S + s] ** 2;
+        valid[e] = random() < 0.9 ? 1 : 0;
+        sumSquares[e] = random() < 0.1 ? ss * 1e-6 : ss * (1 + random());
+      }
+      const data: KernelData = { subjects: S, edges: E, residuals, sumSquares, valid, effectNorm2: 0.3 + random(), df: S - 2 };
+      const level = { inGroup: 0.61, other: -0.37, difference: 0.61 - -0.37, groupSize };
+      const members = new Int32Array(batch * groupSize);
+      for (let b = 0; b < batch; b++) {
+        const chosen = Array.from({ length: S }, (_, s) => s)
+          .map((s) => ({ s, key: random() }))
+          .sort((x, y) => x.key - y.key)
+          .slice(0, groupSize)
+          .map((x) => x.s)
+          .sort((x, y) => x - y);
+        members.set(chosen, b * groupSize);
+      }
+      const expected = new Float64Array(batch * E);
+      groupSumStatistics(data, level, members, batch, expected);
+      const prepared = newKernel().prepareGroups(data, batch, level)!;
+      prepared.members.set(members);
+      prepared.run(batch);
+      const actual = Float64Array.from(prepared.statistics.subarray(0, batch * E));
+      expect(expected.some((t) => Number.isNaN(t)) && expected.some((t) => Number.isFinite(t))).toBe(true);
+      expectBitIdentical(actual, expected, "group-sum statistics", shape);
+    });
+  }
+
+  it("group sums agree with the dot-product kernel within 1e-10 relative (the same formula, rounded differently)", () => {
+    // Tolerance: common practice for two evaluations of one well-conditioned formula; the
+    // dot-product kernel itself is checked against an ml-matrix refit in freedmanLane.test.ts.
+    const context = nullContext({ S: 30, regions: 9, scheme: "permute", covariates: false, permutations: 61 });
+    const level = twoLevelEffect(context.vectors[0]);
+    expect(level, "the design's effect regressor takes two values").toBeDefined();
+    const S = context.kernel.subjects;
+    const E = context.kernel.edges;
+    const permutation = Array.from({ length: S }, (_, s) => (s * 7 + 3) % S);
+    const weights = Float64Array.from(permutation, (p) => context.vectors[0][p]);
+    const members = Int32Array.from(permutation.map((p, s) => (context.vectors[0][p] === level!.inGroup ? s : -1)).filter((s) => s >= 0));
+    const general = new Float64Array(E);
+    const grouped = new Float64Array(E);
+    permutedStatistics(context.kernel, weights, 1, 1, general);
+    groupSumStatistics(context.kernel, level!, members, 1, grouped);
+    expectAllClose(grouped, general, { rel: 1e-10, abs: 1e-12, label: "t by group sums vs t by dot products" });
+  });
+
+  it("the two-level null matches the dot-product null (extents equal, statistics within 1e-10)", () => {
+    const context = nullContext({ S: 30, regions: 9, scheme: "permute", covariates: false, permutations: 61 });
+    const to = context.plan.count + 1;
+    const grouped = computeNullRange(context, 1, to, { kernel: "wasm" });
+    const general = computeNullRange(context, 1, to, { kernel: "wasm", groupSums: false });
+    expect(Array.from(grouped.maxExtent)).toEqual(Array.from(general.maxExtent));
+    // Tolerance: as above (the same formula rounded differently).
+    expectAllClose(grouped.maxStatistic, general.maxStatistic, { rel: 1e-10, label: "max t, two-level vs dot products" });
+    expectAllClose(grouped.maxMass, general.maxMass, { rel: 1e-9, abs: 1e-9, label: "max mass, two-level vs dot products" });
   });
 });

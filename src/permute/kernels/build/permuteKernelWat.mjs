@@ -22,6 +22,12 @@
 //   sumSquares, mask    ‖R_e‖² (f64) and the valid flag as a 64-bit mask (all ones or zero)
 //             of every edge, with room for one more tile past the last edge.
 //   out       t for the block: out[b·outStride + i] (the caller's batch × E statistics).
+//
+// The two-level path (src/permute/kernels/groupSums.ts defines it) adds two functions:
+// transposeBlock turns a copied block of residuals subject-major (blockT[s·W + i]),
+// and groupStatisticsBlock sums, for each relabeling, the rows of its group's subjects
+// in ascending order (f64x2 lanes = two edges; additions only), then forms
+//   a = (g − o)·sum + o·ΣR   and t as above with one vector.
 
 /** Rows per f64x2 accumulator. */
 const LANES = 2;
@@ -224,9 +230,9 @@ export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs }) {
 
   const G = groupPairs;
   const GE = 2 * G;
-  emit(1, `;; t for a block of edges from group sums over the members of each relabeling's group: ${GE} edges per tile`);
+  emit(1, `;; t for a block of edges from group sums over each relabeling's group (offsets[b·groupSize + m] = s·W·8): ${GE} edges per tile`);
   emit(1, '(func (export "groupStatisticsBlock")');
-  emit(2, "(param $blockT i32) (param $W i32) (param $width i32) (param $members i32) (param $groupSize i32) (param $batch i32)");
+  emit(2, "(param $blockT i32) (param $W i32) (param $width i32) (param $offsets i32) (param $groupSize i32) (param $batch i32)");
   emit(2, "(param $rowSum i32) (param $ss i32) (param $mask i32) (param $difference f64) (param $other f64) (param $effectNorm2 f64) (param $df f64)");
   emit(2, "(param $out i32) (param $outStride i32)");
   emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $col i32) (local $o i32) (local $row i32) (local $rowBytes i32) (local $at i32)");
@@ -244,18 +250,18 @@ export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs }) {
   emit(4, "(local.set $col (i32.add (local.get $blockT) (i32.shl (local.get $i) (i32.const 3))))");
   emit(4, "(local.set $at (i32.shl (local.get $i) (i32.const 3)))");
   emit(4, "(local.set $o (i32.add (local.get $out) (local.get $at)))");
-  emit(4, "(local.set $m (local.get $members))");
+  emit(4, "(local.set $m (local.get $offsets))");
   emit(4, "(local.set $b (i32.const 0))");
   emit(4, "(block $batchDone");
   emit(5, "(loop $relabelings");
   emit(6, "(br_if $batchDone (i32.ge_u (local.get $b) (local.get $batch)))");
   for (const p of range(G)) emit(6, `(local.set $acc${p} (v128.const f64x2 0 0))`);
   emit(6, "(local.set $mEnd (i32.add (local.get $m) (i32.shl (local.get $groupSize) (i32.const 2))))");
-  emit(6, ";; the group's subjects in ascending order: acc += R[member] (additions only)");
+  emit(6, ";; the group's subjects in ascending order (as byte offsets s·W·8 of their rows): acc += R[s] (additions only)");
   emit(6, "(block $membersDone");
   emit(7, "(br_if $membersDone (i32.ge_u (local.get $m) (local.get $mEnd)))");
   emit(7, "(loop $members");
-  emit(8, "(local.set $row (i32.add (local.get $col) (i32.mul (i32.load (local.get $m)) (local.get $rowBytes))))");
+  emit(8, "(local.set $row (i32.add (local.get $col) (i32.load (local.get $m))))");
   for (const p of range(G)) emit(8, `(local.set $acc${p} (f64x2.add (local.get $acc${p}) (v128.load offset=${p * 16} (local.get $row))))`);
   emit(8, "(local.set $m (i32.add (local.get $m) (i32.const 4)))");
   emit(8, "(br_if $members (i32.lt_u (local.get $m) (local.get $mEnd)))");

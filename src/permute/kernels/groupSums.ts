@@ -1,0 +1,95 @@
+import type { KernelData } from "../permutedStatistics.js";
+
+/**
+ * The two-level path: when relabelings permute an effect regressor that takes
+ * only two values (a two-group comparison with no other nuisance than the
+ * constant, `model: group`), the numerator of the Freedman–Lane statistic
+ * (see permutedStatistics.ts) is a sum over one group instead of a dot product:
+ * with x̃[π(s)] = g for the subjects s in the summed group G and o elsewhere,
+ *   a = Σ_s x̃[π(s)] R_s = (g − o) · Σ_{s∈G} R_s + o · Σ_s R_s,
+ * additions only, over the smaller group. This file is the plain TypeScript
+ * reference of that path and defines its order of operations: the group sum
+ * runs over G in ascending subject order from +0, Σ_s R_s in ascending order
+ * from +0, then a = (g − o)·sum + o·ΣR and t exactly as permutedStatistics
+ * forms it from a. The SIMD kernel (wasmKernel.ts) follows the same order and
+ * is tested to give the same bits.
+ */
+export interface TwoLevelEffect {
+  /** The value of x̃ on the summed group (the smaller one; on a tie, subject 0's). */
+  inGroup: number;
+  /** The other value. */
+  other: number;
+  /** inGroup − other. */
+  difference: number;
+  /** Size of the summed group: the same for every permutation. */
+  groupSize: number;
+}
+
+/** The two values of the effect regressor and the group to sum, or undefined if it takes more or fewer values. */
+export function twoLevelEffect(effect: Float64Array): TwoLevelEffect | undefined {
+  if (effect.length === 0) return undefined;
+  const first = effect[0];
+  let second = Number.NaN;
+  let firstCount = 0;
+  let secondCount = 0;
+  for (const value of effect) {
+    if (value === first) firstCount++;
+    else if (secondCount === 0) {
+      second = value;
+      secondCount = 1;
+    } else if (value === second) secondCount++;
+    else return undefined;
+  }
+  if (secondCount === 0 || !Number.isFinite(first) || !Number.isFinite(second)) return undefined;
+  const [inGroup, other, groupSize] = firstCount <= secondCount ? [first, second, firstCount] : [second, first, secondCount];
+  return { inGroup, other, difference: inGroup - other, groupSize };
+}
+
+const sumsOf = new WeakMap<KernelData, Float64Array>();
+
+/** Σ_s R[e·S + s] per edge, in ascending subject order from +0 (computed once per kernel data). */
+export function residualSums(data: KernelData): Float64Array {
+  const cached = sumsOf.get(data);
+  if (cached) return cached;
+  const { subjects: S, edges: E, residuals } = data;
+  const sums = new Float64Array(E);
+  for (let e = 0; e < E; e++) {
+    let sum = 0;
+    const at = e * S;
+    for (let s = 0; s < S; s++) sum += residuals[at + s];
+    sums[e] = sum;
+  }
+  sumsOf.set(data, sums);
+  return sums;
+}
+
+/**
+ * t at every edge for `batch` relabelings, each given by the ascending list of
+ * the subjects in its summed group: members[b·groupSize + m]. out: batch × E.
+ */
+export function groupSumStatistics(
+  data: KernelData,
+  level: TwoLevelEffect,
+  members: Int32Array,
+  batch: number,
+  out: Float64Array,
+): void {
+  const { subjects: S, edges: E, residuals, sumSquares, valid, effectNorm2, df } = data;
+  const sums = residualSums(data);
+  const G = level.groupSize;
+  for (let e = 0; e < E; e++) {
+    const at = e * S;
+    for (let b = 0; b < batch; b++) {
+      if (valid[e] === 0) {
+        out[b * E + e] = NaN;
+        continue;
+      }
+      let sum = 0;
+      const list = b * G;
+      for (let m = 0; m < G; m++) sum += residuals[at + members[list + m]];
+      const a = level.difference * sum + level.other * sums[e];
+      const sse = sumSquares[e] - (a * a) / effectNorm2;
+      out[b * E + e] = sse > 0 ? a / Math.sqrt((sse / df) * effectNorm2) : NaN;
+    }
+  }
+}
