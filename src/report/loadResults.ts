@@ -50,8 +50,10 @@ export interface ResultsSummary {
     symmetrize: boolean;
     asymmetry_tolerance: number;
     inference: {
-      method: "components" | "fdr" | "max-t";
+      method: "components" | "fdr" | "max-t" | "threshold-free";
       threshold: number;
+      thresholds?: number[];
+      enhancement?: { extent_exponent: number; height_exponent: number; step: number };
       size: "extent" | "mass";
       tail: "upper" | "lower" | "both";
       fdr: "bh" | "by";

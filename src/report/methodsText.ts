@@ -31,6 +31,8 @@ const REFERENCES = {
   westfallYoung: "Westfall PH, Young SS (1993). Resampling-Based Multiple Testing. New York: Wiley.",
   winkler: "Winkler AM, Ridgway GR, Webster MA, Smith SM, Nichols TE (2014). NeuroImage 92:381–397.",
   zalesky: "Zalesky A, Fornito A, Bullmore ET (2010). NeuroImage 53:1197–1207.",
+  smithNichols: "Smith SM, Nichols TE (2009). NeuroImage 44:83–98.",
+  baggio: "Baggio HC, et al. (2018). Human Brain Mapping 39:2289–2302.",
 } as const;
 
 type ReferenceKey = keyof typeof REFERENCES;
@@ -129,15 +131,23 @@ export function methodsText(results: LoadedResults): MethodsText {
         : inference.tail === "lower"
           ? `whose t fell below −${plain(inference.threshold)}`
           : `whose t exceeded ${plain(inference.threshold)}`;
-    inferenceText.push(
-      `Family-wise error was controlled for connected subnetworks (${cite("zalesky", "Zalesky, Fornito & Bullmore 2010")}): edges ${rule} were kept, the connected components they formed were found, and the size of each was measured by its `,
-    );
-    inferenceText.push(
-      inference.size === "mass"
-        ? "mass, the sum over its edges of the amount by which |t| exceeded the threshold."
-        : "extent, the number of its edges.",
-    );
-    inferenceText.push(" Each observed component was compared with the distribution, over relabelings of the data, of the largest component's size.");
+    const enhancedOnly = inference.method === "threshold-free" && inference.enhancement !== undefined;
+    if (enhancedOnly) {
+      const e = inference.enhancement!;
+      inferenceText.push(
+        `Family-wise error was controlled edge by edge with threshold-free enhancement (${cite("smithNichols", "Smith & Nichols 2009")}) applied to network components (${cite("baggio", "Baggio et al. 2018")}): each edge's statistic was replaced by the sum, over thresholds h = ${plain(e.step)}, ${plain(2 * e.step)}, … up to its statistic, of the extent of its component at h raised to ${plain(e.extent_exponent)}, times h raised to ${plain(e.height_exponent)}, times ${plain(e.step)}, and each edge's enhanced value was compared with the distribution, over relabelings of the data, of the largest enhanced value (${cite("westfallYoung", "Westfall & Young 1993")}); significant edges are reported with the components they form.`,
+      );
+    } else {
+      inferenceText.push(
+        `Family-wise error was controlled for connected subnetworks (${cite("zalesky", "Zalesky, Fornito & Bullmore 2010")}): edges ${rule} were kept, the connected components they formed were found, and the size of each was measured by its `,
+      );
+      inferenceText.push(
+        inference.size === "mass"
+          ? "mass, the sum over its edges of the amount by which |t| exceeded the threshold."
+          : "extent, the number of its edges.",
+      );
+      inferenceText.push(" Each observed component was compared with the distribution, over relabelings of the data, of the largest component's size.");
+    }
     const schemes = [...new Set(permuted.map((c) => c.scheme ?? "permute"))];
     for (const scheme of schemes) {
       const which = schemes.length > 1 ? permuted.filter((c) => (c.scheme ?? "permute") === scheme) : [];
@@ -167,18 +177,18 @@ export function methodsText(results: LoadedResults): MethodsText {
       const seeds = [...new Set(monteCarlo.map((c) => c.seed))];
       inferenceText.push(
         ` Relabelings were drawn at random (Monte Carlo; K = ${counts.map((k) => plain(k ?? NaN)).join(" or ")}, seed ${seeds.map((s) => plain(s ?? NaN)).join(", ")})` +
-          `${exact.length > 0 ? ` for ${monteCarlo.length} contrast${monteCarlo.length > 1 ? "s" : ""}` : ""}, and a component's family-wise error-corrected p-value was p_FWE = (1 + b)/(1 + K), where b of the K relabelings had a largest component at least as large (${cite("phipsonSmyth", "Phipson & Smyth 2010")}); 95% Clopper–Pearson intervals give its Monte Carlo uncertainty (${cite("clopperPearson", "Clopper & Pearson 1934")}).`,
+          `${exact.length > 0 ? ` for ${monteCarlo.length} contrast${monteCarlo.length > 1 ? "s" : ""}` : ""}, and ${enhancedOnly ? "an edge's" : "a component's"} family-wise error-corrected p-value was p_FWE = (1 + b)/(1 + K), where b of the K relabelings had ${enhancedOnly ? "a largest enhanced value" : "a largest component"} at least as large (${cite("phipsonSmyth", "Phipson & Smyth 2010")}); 95% Clopper–Pearson intervals give its Monte Carlo uncertainty (${cite("clopperPearson", "Clopper & Pearson 1934")}).`,
       );
     }
     if (exact.length > 0) {
       const counts = [...new Set(exact.map((c) => c.permutations))];
       inferenceText.push(
-        ` For ${exact.length === permuted.length ? "every contrast" : `${exact.length} contrast${exact.length > 1 ? "s" : ""}`}, all ${counts.map((k) => plain(k ?? NaN)).join(" or ")} distinct relabelings were enumerated (an exact test), and p_FWE = b/M, where b of the M relabelings, the observed labelling among them, had a largest component at least as large.`,
+        ` For ${exact.length === permuted.length ? "every contrast" : `${exact.length} contrast${exact.length > 1 ? "s" : ""}`}, all ${counts.map((k) => plain(k ?? NaN)).join(" or ")} distinct relabelings were enumerated (an exact test), and p_FWE = b/M, where b of the M relabelings, the observed labelling among them, had ${enhancedOnly ? "a largest enhanced value" : "a largest component"} at least as large.`,
       );
     }
-    inferenceText.push(` Subnetworks with p_FWE ≤ ${plain(inference.alpha)} are reported as significant`);
+    inferenceText.push(` ${enhancedOnly ? "Edges" : "Subnetworks"} with p_FWE ≤ ${plain(inference.alpha)} are reported as significant`);
     const critical = permuted.filter((c) => c.critical_size !== null && c.critical_size !== undefined && Number.isFinite(c.critical_size));
-    if (critical.length > 0) {
+    if (critical.length > 0 && !enhancedOnly) {
       const mass = inference.size === "mass";
       const value = (c: (typeof critical)[number]) => (mass ? `a mass above ${count(c.critical_size!)}` : `more than ${count(c.critical_size!)} edges`);
       inferenceText.push("; at this level a subnetwork needed ");
@@ -189,6 +199,15 @@ export function methodsText(results: LoadedResults): MethodsText {
       }
     }
     inferenceText.push(".");
+    const sweep = inference.thresholds ?? [];
+    if (sweep.length > 1) {
+      inferenceText.push(
+        ` To show how the result depends on the primary threshold, the same relabelings were also thresholded at ${sweep
+          .slice(1)
+          .map((t) => plain(t))
+          .join(", ")} (a threshold sweep); the components found at each threshold are tabulated separately.`,
+      );
+    }
     if (inference.method === "max-t") {
       inferenceText.push(
         ` Edge-level family-wise error was controlled by the maximum statistic over edges (${cite("westfallYoung", "Westfall & Young 1993")}): an edge's p_FWE compares its ${inference.tail === "both" ? "|t|" : "t"} with the largest one in each relabeling.`,
