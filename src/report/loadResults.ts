@@ -145,6 +145,13 @@ export interface ContrastResults {
   edges: EdgeColumns;
   components: ComponentRow[];
   nullDistribution?: NullChunk;
+  /** threshold_robustness.tsv of a threshold sweep: per edge, the significant component at each threshold. */
+  robustness?: RobustnessTable;
+}
+
+export interface RobustnessTable {
+  thresholds: number[];
+  rows: { regionA: string; regionB: string; statistic: number; significant: boolean[] }[];
 }
 
 /** Reads a results folder; a missing folder or file, or a malformed one, is an InputError naming it. */
@@ -337,7 +344,22 @@ function readContrast(dir: string, summary: ContrastSummary, regions: Region[]):
     const nullFile = path.join(folder, "null.tsv");
     nullDistribution = parseNullTable(readTextFile(nullFile), nullFile);
   }
-  return { summary, edges, components, nullDistribution };
+  const robustnessFile = path.join(folder, "threshold_robustness.tsv");
+  let robustness: RobustnessTable | undefined;
+  if (existsSync(robustnessFile)) {
+    const table = parseTsv(readTextFile(robustnessFile), robustnessFile);
+    const columns = table.header.slice(3, -1);
+    robustness = {
+      thresholds: columns.map((name) => Number(name.replace(/^component_t/, ""))),
+      rows: table.rows.map((row) => ({
+        regionA: tsvCellText(row[0]),
+        regionB: tsvCellText(row[1]),
+        statistic: Number(row[2]),
+        significant: columns.map((_, j) => row[3 + j] !== ""),
+      })),
+    };
+  }
+  return { summary, edges, components, nullDistribution, robustness };
 }
 
 function readComponents(file: string): ComponentRow[] {

@@ -2,6 +2,7 @@ import { cohortTables, excludedTables, type CohortOptions } from "./cohortTable.
 import { matrixFigure } from "./figures/matrixFigure.js";
 import { networkFigure } from "./figures/networkFigure.js";
 import { nullFigure } from "./figures/nullFigure.js";
+import { robustnessFigure } from "./figures/robustnessFigure.js";
 import type { LoadedResults } from "./loadResults.js";
 import { methodsText, type MethodsText } from "./methodsText.js";
 import type { ReportTable, TsvTable } from "./reportTable.js";
@@ -76,6 +77,14 @@ export function reportContent(results: LoadedResults, options: CohortOptions = {
           ? "The significant edges on three orthogonal projections of the region coordinates; edge colour: t (cividis scale); node size: degree within the finding; grey dots: all other regions."
           : "The significant edges on a circle of regions (no coordinates were given), ordered by hemisphere and system; edge colour: t (cividis scale); node size: degree within the finding.",
         svg: networkSvg,
+      });
+    }
+    const robustnessSvg = robustnessFigure(contrast);
+    if (robustnessSvg) {
+      figures.push({
+        file: `figures/${name}-robustness.svg`,
+        caption: `Which edges stay in a significant subnetwork as the primary threshold changes (a sweep over the same relabelings): a filled square where the edge lies in a component with p_FWE ≤ ${alpha} at that threshold; the most robust edges first.`,
+        svg: robustnessSvg,
       });
     }
     return { name, finding, figures };
