@@ -42,36 +42,38 @@ export function writeMatrixEdges(
   outStride = 1,
 ): void {
   const n = pairs.regionCount;
-  const { regionA, regionB, edgeCount } = pairs;
   const fisher = options.transform === "fisher-z";
   const tolerance = options.asymmetryTolerance;
-  for (let e = 0; e < edgeCount; e++) {
-    const i = regionA[e];
-    const j = regionB[e];
-    const upper = matrix[matrixOffset + i * n + j];
-    const lower = matrix[matrixOffset + j * n + i];
-    if (!Number.isFinite(upper)) throw cellError(origin, i, j, `is ${upper}; off-diagonal cells must be finite`);
-    if (!Number.isFinite(lower)) throw cellError(origin, j, i, `is ${lower}; off-diagonal cells must be finite`);
-    let value: number;
-    if (options.symmetrize) {
-      value = (upper + lower) / 2;
-    } else {
-      if (!(Math.abs(upper - lower) <= tolerance * Math.max(1, Math.abs(upper), Math.abs(lower)))) {
-        throw new InputError(
-          `${prefix(origin)}matrix is not symmetric: row ${i + 1}, column ${j + 1} is ${upper} but row ${j + 1}, column ${i + 1} is ${lower} ` +
-            `(tolerance ${tolerance} × max(1, |a_ij|, |a_ji|))`,
-          cellLocation(origin, i, j),
-          SYMMETRIZE_HINT,
-        );
+  // Edges in order (0,1), (0,2), …, (1,2), …: e runs with (i, j) as in src/edges/edgeIndex.ts.
+  let to = outOffset;
+  for (let i = 0; i < n; i++) {
+    const rowStart = matrixOffset + i * n;
+    for (let j = i + 1, below = matrixOffset + (i + 1) * n + i; j < n; j++, below += n, to += outStride) {
+      const upper = matrix[rowStart + j];
+      const lower = matrix[below];
+      if (!Number.isFinite(upper)) throw cellError(origin, i, j, `is ${upper}; off-diagonal cells must be finite`);
+      if (!Number.isFinite(lower)) throw cellError(origin, j, i, `is ${lower}; off-diagonal cells must be finite`);
+      let value: number;
+      if (options.symmetrize) {
+        value = (upper + lower) / 2;
+      } else {
+        if (!(Math.abs(upper - lower) <= tolerance * Math.max(1, Math.abs(upper), Math.abs(lower)))) {
+          throw new InputError(
+            `${prefix(origin)}matrix is not symmetric: row ${i + 1}, column ${j + 1} is ${upper} but row ${j + 1}, column ${i + 1} is ${lower} ` +
+              `(tolerance ${tolerance} × max(1, |a_ij|, |a_ji|))`,
+            cellLocation(origin, i, j),
+            SYMMETRIZE_HINT,
+          );
+        }
+        value = upper;
       }
-      value = upper;
+      if (fisher) {
+        if (!(Math.abs(upper) < 1)) throw fisherError(origin, i, j, upper);
+        if (!(Math.abs(lower) < 1)) throw fisherError(origin, j, i, lower);
+        value = Math.atanh(value);
+      }
+      out[to] = value;
     }
-    if (fisher) {
-      if (!(Math.abs(upper) < 1)) throw fisherError(origin, i, j, upper);
-      if (!(Math.abs(lower) < 1)) throw fisherError(origin, j, i, lower);
-      value = Math.atanh(value);
-    }
-    out[outOffset + e * outStride] = value;
   }
 }
 
@@ -96,4 +98,80 @@ function fisherError(origin: MatrixOrigin, row: number, column: number, value: n
     column,
     `is ${value}; fisher-z needs correlations strictly between -1 and 1`,
   );
+}
+
+/** Subjects per block of EdgeMajorWriter: an edge's 16 values fill two 64-byte cache lines. */
+export const SUBJECT_BLOCK_SIZE = 16;
+
+/**
+ * Fills an edge-major array out[e·S + s] (S = subjectCount) one subject at a
+ * time without a scattered store per edge: each subject's edges go contiguously
+ * into a row of a small subject-major block (B × E values), and each full block
+ * is transposed into `out`, so every edge receives B adjacent values at once.
+ * The values and the checks are those of writeMatrixEdges.
+ */
+export class EdgeMajorWriter {
+  private readonly block: Float64Array;
+  private readonly blockSize: number;
+  /** Subject of the block's first row. */
+  private blockStart = 0;
+  /** Rows of the block filled so far. */
+  private rows = 0;
+
+  constructor(
+    private readonly pairs: EdgePairs,
+    private readonly out: Float64Array,
+    private readonly subjectCount: number,
+    blockSize: number = SUBJECT_BLOCK_SIZE,
+  ) {
+    if (out.length !== subjectCount * pairs.edgeCount) {
+      throw new RangeError(`EdgeMajorWriter: ${out.length} values for ${subjectCount} subjects × ${pairs.edgeCount} edges`);
+    }
+    this.blockSize = Math.max(1, Math.min(blockSize, subjectCount));
+    this.block = new Float64Array(this.blockSize * pairs.edgeCount);
+  }
+
+  /** Writes the next subject's edges (subjects in order 0, 1, …, S − 1) from the N × N matrix at `matrix[matrixOffset …]`. */
+  add(matrix: Float64Array, matrixOffset: number, options: EdgeExtractionOptions, origin: MatrixOrigin): void {
+    const edgeCount = this.pairs.edgeCount;
+    if (this.blockStart + this.rows >= this.subjectCount) {
+      throw new RangeError(`EdgeMajorWriter: more than ${this.subjectCount} subjects`);
+    }
+    writeMatrixEdges(matrix, matrixOffset, this.pairs, this.block, this.rows * edgeCount, options, origin);
+    this.rows++;
+    if (this.rows === this.blockSize || this.blockStart + this.rows === this.subjectCount) {
+      transposeBlock(this.block, this.rows, edgeCount, this.out, this.subjectCount, this.blockStart);
+      this.blockStart += this.rows;
+      this.rows = 0;
+    }
+  }
+}
+
+/** Edges per tile of transposeBlock: the tile's destination lines (256 × B values) stay in the first-level cache. */
+const TRANSPOSE_TILE_EDGES = 256;
+
+/**
+ * Copies a subject-major block (`rows` rows of `edgeCount` values) into columns
+ * firstColumn … firstColumn + rows − 1 of the edge-major `out`:
+ * out[e·outStride + firstColumn + r] = block[r·edgeCount + e]. Works through
+ * tiles of edges, so each row is read contiguously while the tile's part of
+ * `out` stays in cache.
+ */
+export function transposeBlock(
+  block: Float64Array,
+  rows: number,
+  edgeCount: number,
+  out: Float64Array,
+  outStride: number,
+  firstColumn: number,
+): void {
+  for (let tileStart = 0; tileStart < edgeCount; tileStart += TRANSPOSE_TILE_EDGES) {
+    const tileEnd = Math.min(edgeCount, tileStart + TRANSPOSE_TILE_EDGES);
+    for (let r = 0; r < rows; r++) {
+      const rowStart = r * edgeCount;
+      for (let e = tileStart, to = tileStart * outStride + firstColumn + r; e < tileEnd; e++, to += outStride) {
+        out[to] = block[rowStart + e];
+      }
+    }
+  }
 }

@@ -1,15 +1,16 @@
 import { isAbsolute, resolve } from "node:path";
 import { InputError, type InputLocation } from "../errors.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
-import { writeMatrixEdges, type EdgeExtractionOptions } from "./connectomeEdges.js";
+import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
 import { parseMatrixText } from "./matrixText.js";
-import { parseNpy } from "./npy.js";
+import { decodeNpyValues, isNativeFloat64, npyDataOffset, npyValueReader, parseNpyHeader, type NpyHeader } from "./npy.js";
 import { PARTICIPANT_ID } from "./participants.js";
-import { readBinaryFile, readTextFile } from "./readInputFile.js";
+import { InputFile, TextFileReader } from "./readInputFile.js";
 
 /**
- * Loading every subject's connectivity matrix into one subject-major array of
- * upper-triangle edge values (edge order of src/edges/edgeIndex.ts).
+ * Loading every subject's connectivity matrix into one edge-major array of
+ * upper-triangle edge values (edge order of src/edges/edgeIndex.ts), from one
+ * text file per subject or from one .npy stack read a matrix at a time.
  */
 export type ConnectomeSource = { kind: "template"; template: string; baseDir: string } | { kind: "npy"; path: string };
 
@@ -118,18 +119,21 @@ function loadFromTemplate(
     throw new InputError("no participants to load connectivity matrices for", { key: CONNECTOMES_KEY });
   }
   const files: string[] = [];
+  const reader = new TextFileReader();
   let pairs: EdgePairs | undefined;
+  let writer: EdgeMajorWriter | undefined;
   let data: Float64Array = new Float64Array(0);
   let firstFile = "";
   for (let s = 0; s < subjects.length; s++) {
     const subject = subjects[s];
     const file = resolveTemplate(template, subject, baseDir);
-    const text = readTextFile(file, `connectivity matrix of participant '${subject.id}' (from the template '${template}')`);
+    const text = reader.read(file, `connectivity matrix of participant '${subject.id}' (from the template '${template}')`);
     const matrix = parseMatrixText(text, file, { allowNonFiniteDiagonal: true });
-    if (pairs === undefined) {
+    if (pairs === undefined || writer === undefined) {
       requireTwoRegions(matrix.size, { file, line: matrix.rowLines[0] });
       pairs = edgePairs(matrix.size);
       data = sharedEdgeArray(subjects.length * pairs.edgeCount);
+      writer = new EdgeMajorWriter(pairs, data, subjects.length);
       firstFile = file;
     } else if (matrix.size !== pairs.regionCount) {
       throw new InputError(
@@ -137,7 +141,7 @@ function loadFromTemplate(
         { file, line: matrix.rowLines[0] },
       );
     }
-    writeMatrixEdges(matrix.values, 0, pairs, data, s, options, { file, rowLines: matrix.rowLines }, subjects.length);
+    writer.add(matrix.values, 0, options, { file, rowLines: matrix.rowLines });
     files.push(file);
   }
   const regionPairs = pairs as EdgePairs;
@@ -150,46 +154,131 @@ function loadFromTemplate(
   };
 }
 
+const STACK_HINT = "the .npy stack of connectivity matrices";
+/** Bytes read first to find the header; a longer header is read once its length is known. */
+const HEADER_PROBE_BYTES = 4096;
+/** A Fortran-order stack interleaves every matrix, so it is read whole, up to this many bytes of data. */
+const FORTRAN_ORDER_LIMIT_BYTES = 2 ** 30;
+
+/**
+ * Reads an (R, N, N) .npy stack one subject's matrix at a time at its byte
+ * offset, so memory holds the edge array and one matrix, whatever the file's
+ * size (a Fortran-order stack of up to 1 GiB is the exception: read whole).
+ */
 function loadFromStack(file: string, subjects: ConnectomeSubject[], options: ConnectomeOptions): LoadedConnectomes {
-  const stack = parseNpy(readBinaryFile(file, "the .npy stack of connectivity matrices"), file);
-  const { shape } = stack;
-  const rows = options.participantRowCount;
-  const expected = `(${rows ?? "R"}, N, N) with ${rows ?? "R"} = the rows of the participants table`;
-  if (shape.length !== 3 || shape[1] !== shape[2]) {
-    throw new InputError(`expected an array of shape ${expected}, found shape (${shape.join(", ")})`, { file });
-  }
-  const [count, n] = shape;
-  if (rows !== undefined && count !== rows) {
-    throw new InputError(
-      `the stack holds ${count} matrices (shape (${shape.join(", ")})) but the participants table has ${rows} rows; expected shape ${expected}`,
-      { file },
-    );
-  }
-  for (const subject of subjects) {
-    if (!(subject.tableRow >= 0 && subject.tableRow < count)) {
+  const input = InputFile.open(file, STACK_HINT);
+  try {
+    const header = readStackHeader(input);
+    const { shape } = header;
+    const rows = options.participantRowCount;
+    const expected = `(${rows ?? "R"}, N, N) with ${rows ?? "R"} = the rows of the participants table`;
+    if (shape.length !== 3 || shape[1] !== shape[2]) {
+      throw new InputError(`expected an array of shape ${expected}, found shape (${shape.join(", ")})`, { file });
+    }
+    const [count, n] = shape;
+    if (rows !== undefined && count !== rows) {
       throw new InputError(
-        `participant '${subject.id}' is row ${subject.tableRow + 1} of the participants table, but the stack holds only ${count} matrices (shape (${shape.join(", ")}))`,
+        `the stack holds ${count} matrices (shape (${shape.join(", ")})) but the participants table has ${rows} rows; expected shape ${expected}`,
         { file },
       );
     }
+    for (const subject of subjects) {
+      if (!(subject.tableRow >= 0 && subject.tableRow < count)) {
+        throw new InputError(
+          `participant '${subject.id}' is row ${subject.tableRow + 1} of the participants table, but the stack holds only ${count} matrices (shape (${shape.join(", ")}))`,
+          { file },
+        );
+      }
+    }
+    requireTwoRegions(n, { file });
+    const pairs = edgePairs(n);
+    const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
+    const writer = new EdgeMajorWriter(pairs, data, subjects.length);
+    const matrixOf = header.fortranOrder ? fortranOrderMatrices(input, header) : cOrderMatrices(input, header);
+    for (const subject of subjects) {
+      writer.add(matrixOf(subject.tableRow), 0, options, {
+        file,
+        label: `matrix ${subject.tableRow + 1} of the stack (participant '${subject.id}')`,
+      });
+    }
+    return { regionCount: n, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data, files: [file] };
+  } finally {
+    input.close();
   }
-  requireTwoRegions(n, { file });
-  const pairs = edgePairs(n);
-  const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
-  for (let s = 0; s < subjects.length; s++) {
-    const subject = subjects[s];
-    writeMatrixEdges(
-      stack.data,
-      subject.tableRow * n * n,
-      pairs,
-      data,
-      s,
-      options,
-      { file, label: `matrix ${subject.tableRow + 1} of the stack (participant '${subject.id}')` },
-      subjects.length,
+}
+
+function readStackHeader(input: InputFile): NpyHeader {
+  let prefix = new Uint8Array(Math.min(input.size, HEADER_PROBE_BYTES));
+  readExactly(input, prefix, 0, "the header");
+  const dataOffset = npyDataOffset(prefix);
+  if (dataOffset !== undefined && dataOffset > prefix.length && dataOffset <= input.size) {
+    prefix = new Uint8Array(dataOffset);
+    readExactly(input, prefix, 0, "the header");
+  }
+  return parseNpyHeader(prefix, input.path, input.size);
+}
+
+/**
+ * For a C-order stack: a function reading matrix `row` (row-major N × N, as
+ * float64) into one reused array; the raw bytes go straight into that array
+ * when they are float64 in this machine's byte order.
+ */
+function cOrderMatrices(input: InputFile, header: NpyHeader): (row: number) => Float64Array {
+  const n = header.shape[1];
+  const values = n * n;
+  const matrixBytes = values * header.dtype.itemSize;
+  const matrix = new Float64Array(values);
+  const native = isNativeFloat64(header.dtype);
+  const raw = native ? new Uint8Array(matrix.buffer) : new Uint8Array(matrixBytes);
+  return (row) => {
+    readExactly(input, raw, header.dataOffset + row * matrixBytes, `matrix ${row + 1}`);
+    if (!native) decodeNpyValues(raw, 0, values, header.dtype, matrix, 0);
+    return matrix;
+  };
+}
+
+/**
+ * For a Fortran-order (column-major) stack, where element (s, i, j) is value
+ * s + R·i + R·N·j and so each matrix is spread through the whole file: the data
+ * is read whole (up to 1 GiB) and each matrix gathered from it.
+ */
+function fortranOrderMatrices(input: InputFile, header: NpyHeader): (row: number) => Float64Array {
+  const [count, n] = header.shape;
+  const { dtype } = header;
+  const dataBytes = header.count * dtype.itemSize;
+  if (dataBytes > FORTRAN_ORDER_LIMIT_BYTES) {
+    throw new InputError(
+      `the stack is stored in Fortran order ('fortran_order': True), which spreads each matrix through the whole file, so it would have to be read whole; ` +
+        `that is done only up to 1 GiB of data, and this stack holds ${dataBytes} bytes`,
+      { file: input.path },
+      "save the stack in C order, e.g. numpy.save(path, numpy.ascontiguousarray(stack)), to have it read one matrix at a time",
     );
   }
-  return { regionCount: n, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data, files: [file] };
+  const raw = new Uint8Array(dataBytes);
+  readExactly(input, raw, header.dataOffset, "the data");
+  const read = npyValueReader(raw, dtype);
+  const itemSize = dtype.itemSize;
+  const matrix = new Float64Array(n * n);
+  return (row) => {
+    for (let i = 0; i < n; i++) {
+      for (let j = 0, offset = itemSize * (row + count * i); j < n; j++, offset += itemSize * count * n) {
+        matrix[i * n + j] = read(offset);
+      }
+    }
+    return matrix;
+  };
+}
+
+/** Fills `target` from `position`; a file that ends sooner (it changed after its size was taken) is an InputError. */
+function readExactly(input: InputFile, target: Uint8Array, position: number, what: string): void {
+  const got = input.readAt(target, position);
+  if (got < target.length) {
+    throw new InputError(
+      `not a readable .npy file: truncated data: the file ends at byte ${position + got}, within ${what} ` +
+        `(it held ${input.size} bytes when opened; was it changed while being read?)`,
+      { file: input.path },
+    );
+  }
 }
 
 function requireTwoRegions(size: number, location: InputLocation): void {

@@ -25,19 +25,65 @@ const MAGIC = [0x93, 0x4e, 0x55, 0x4d, 0x50, 0x59]; // \x93 N U M P Y
 const HOST_IS_LITTLE_ENDIAN = endianness() === "LE";
 
 type Kind = "f" | "i" | "u" | "b";
-interface DType {
+/** An element type the reader supports: float, signed or unsigned integer, or bool, of `itemSize` bytes. */
+export interface NpyDType {
   kind: Kind;
   itemSize: number;
   littleEndian: boolean;
 }
 
+/** What the preamble and header say, and where the data starts. */
+export interface NpyHeader {
+  shape: number[];
+  /** The header's 'descr' text, e.g. '<f8'. */
+  descr: string;
+  dtype: NpyDType;
+  /** True when the data is column-major (first index fastest). */
+  fortranOrder: boolean;
+  /** Byte offset of the first value in the file. */
+  dataOffset: number;
+  /** Number of values: the product of the shape. */
+  count: number;
+}
+
 const SUPPORTED_DTYPES = "<f8 >f8 <f4 >f4 <i8 >i8 <i4 >i4 <i2 >i2 |i1 <u8 >u8 <u4 >u4 <u2 >u2 |u1 |b1 ('=' for native little-endian)";
 
 export function parseNpy(bytes: Uint8Array, file: string): NpyArray {
+  const header = parseNpyHeader(bytes, file);
+  const { shape, count } = header;
+  const flat = new Float64Array(count);
+  decodeNpyValues(bytes, header.dataOffset, count, header.dtype, flat, 0);
+  const data = header.fortranOrder && shape.length > 1 ? fortranToC(flat, shape) : flat;
+  return { shape, data };
+}
+
+/**
+ * Where the header ends and the data starts, from the preamble alone (its first
+ * 10 or 12 bytes), so a reader of a large file knows how many bytes to read
+ * before calling parseNpyHeader; undefined when `prefix` is too short or not a
+ * .npy preamble (parseNpyHeader then says why).
+ */
+export function npyDataOffset(prefix: Uint8Array): number | undefined {
+  if (prefix.length < 10 || prefix[7] !== 0) return undefined;
+  for (let k = 0; k < MAGIC.length; k++) if (prefix[k] !== MAGIC[k]) return undefined;
+  const view = new DataView(prefix.buffer, prefix.byteOffset, prefix.byteLength);
+  const major = prefix[6];
+  if (major === 1) return 10 + view.getUint16(8, true);
+  if (!(major === 2 || major === 3) || prefix.length < 12) return undefined;
+  return 12 + view.getUint32(8, true);
+}
+
+/**
+ * Reads and checks the preamble and the header. `bytes` holds the start of a
+ * file of `fileSize` bytes (the whole file by default): at least its first
+ * min(fileSize, npyDataOffset(bytes)) bytes. The data itself is not read, but
+ * its length must be exactly what the shape and dtype need.
+ */
+export function parseNpyHeader(bytes: Uint8Array, file: string, fileSize: number = bytes.length): NpyHeader {
   const fail: (what: string) => never = (what) => {
     throw new InputError(`not a readable .npy file: ${what}`, { file });
   };
-  if (bytes.length < 10) fail(`only ${bytes.length} bytes, shorter than the smallest .npy preamble (10 bytes)`);
+  if (fileSize < 10) fail(`only ${fileSize} bytes, shorter than the smallest .npy preamble (10 bytes)`);
   for (let k = 0; k < MAGIC.length; k++) {
     if (bytes[k] !== MAGIC[k]) fail("it does not start with the magic string \\x93NUMPY");
   }
@@ -53,13 +99,16 @@ export function parseNpy(bytes: Uint8Array, file: string): NpyArray {
     headerStart = 10;
     headerLength = view.getUint16(8, true);
   } else {
-    if (bytes.length < 12) fail(`only ${bytes.length} bytes, shorter than a version ${major}.0 preamble (12 bytes)`);
+    if (fileSize < 12) fail(`only ${fileSize} bytes, shorter than a version ${major}.0 preamble (12 bytes)`);
     headerStart = 12;
     headerLength = view.getUint32(8, true);
   }
   const dataStart = headerStart + headerLength;
+  if (dataStart > fileSize) {
+    fail(`the header claims ${headerLength} bytes but the file ends ${fileSize - headerStart} bytes after its start`);
+  }
   if (dataStart > bytes.length) {
-    fail(`the header claims ${headerLength} bytes but the file ends ${bytes.length - headerStart} bytes after its start`);
+    throw new RangeError(`parseNpyHeader: ${bytes.length} bytes given, the header of ${file} needs ${dataStart}`);
   }
 
   let headerText: string;
@@ -97,7 +146,7 @@ export function parseNpy(bytes: Uint8Array, file: string): NpyArray {
   let count = 1;
   for (const extent of shape) count *= extent;
   if (!Number.isSafeInteger(count)) fail(`the shape (${shape.join(", ")}) has too many elements`);
-  const available = bytes.length - dataStart;
+  const available = fileSize - dataStart;
   const needed = count * dtype.itemSize;
   if (available < needed) {
     fail(`truncated data: shape (${shape.join(", ")}) of '${descr}' needs ${needed} bytes but ${available} follow the header`);
@@ -105,10 +154,7 @@ export function parseNpy(bytes: Uint8Array, file: string): NpyArray {
   if (available > needed) {
     fail(`${available - needed} bytes follow the data of shape (${shape.join(", ")}) of '${descr}'`);
   }
-
-  const flat = decodeValues(bytes, view, dataStart, count, dtype);
-  const data = fortranOrder && shape.length > 1 ? fortranToC(flat, shape) : flat;
-  return { shape, data };
+  return { shape, descr, dtype, fortranOrder, dataOffset: dataStart, count };
 }
 
 /** Writes a float64 array as a version 1.0 .npy ('<f8', C order) with the header padded to a multiple of 64 bytes. */
@@ -141,7 +187,7 @@ export function encodeNpy(shape: number[], data: Float64Array): Uint8Array {
   return out;
 }
 
-function parseDType(descr: string): DType | undefined {
+function parseDType(descr: string): NpyDType | undefined {
   const match = /^([<>=|])([fiub])(\d)$/.exec(descr);
   if (match === null) return undefined;
   const [, order, kindText, sizeText] = match;
@@ -154,21 +200,37 @@ function parseDType(descr: string): DType | undefined {
   return { kind, itemSize, littleEndian: order !== ">" };
 }
 
-function decodeValues(bytes: Uint8Array, view: DataView, start: number, count: number, dtype: DType): Float64Array {
-  const out = new Float64Array(count);
-  const { kind, itemSize, littleEndian } = dtype;
-  if (kind === "f" && itemSize === 8 && littleEndian === HOST_IS_LITTLE_ENDIAN) {
+/** True when the values are float64 in this machine's byte order, so their bytes can be used as they are. */
+export function isNativeFloat64(dtype: NpyDType): boolean {
+  return dtype.kind === "f" && dtype.itemSize === 8 && dtype.littleEndian === HOST_IS_LITTLE_ENDIAN;
+}
+
+/**
+ * Converts `count` consecutive values of `dtype` starting at `bytes[start]` to
+ * float64 into `out[outOffset …]` (in the order they are stored).
+ */
+export function decodeNpyValues(
+  bytes: Uint8Array,
+  start: number,
+  count: number,
+  dtype: NpyDType,
+  out: Float64Array,
+  outOffset: number,
+): void {
+  if (isNativeFloat64(dtype)) {
     // One copy of the raw bytes into the output's buffer, aligned or not.
-    new Uint8Array(out.buffer).set(bytes.subarray(start, start + count * 8));
-    return out;
+    new Uint8Array(out.buffer, out.byteOffset + outOffset * 8, count * 8).set(bytes.subarray(start, start + count * 8));
+    return;
   }
-  if (kind === "b") {
-    for (let k = 0; k < count; k++) out[k] = bytes[start + k] !== 0 ? 1 : 0;
-    return out;
-  }
-  const read = elementReader(view, kind, itemSize, littleEndian);
-  for (let k = 0, offset = start; k < count; k++, offset += itemSize) out[k] = read(offset);
-  return out;
+  const read = npyValueReader(bytes, dtype);
+  for (let k = 0, offset = start; k < count; k++, offset += dtype.itemSize) out[outOffset + k] = read(offset);
+}
+
+/** A function giving the float64 value of the element of `dtype` at byte `offset` of `bytes`. */
+export function npyValueReader(bytes: Uint8Array, dtype: NpyDType): (offset: number) => number {
+  if (dtype.kind === "b") return (o) => (bytes[o] !== 0 ? 1 : 0);
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  return elementReader(view, dtype.kind, dtype.itemSize, dtype.littleEndian);
 }
 
 function elementReader(view: DataView, kind: Kind, itemSize: number, le: boolean): (offset: number) => number {

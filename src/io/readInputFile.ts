@@ -1,4 +1,5 @@
-import { readFileSync } from "node:fs";
+import { Buffer, constants, isAscii } from "node:buffer";
+import { closeSync, fstatSync, openSync, readFileSync, readSync } from "node:fs";
 import { InputError } from "../errors.js";
 
 /**
@@ -22,6 +23,109 @@ export function readBinaryFile(path: string, hint?: string): Uint8Array {
     throw cannotRead(path, error, hint);
   }
 }
+
+/**
+ * Reads many text files one after another (e.g. one matrix per subject) through
+ * one reused byte buffer, giving for each the same string, or the same
+ * InputError, as `readTextFile`. A file of ASCII bytes only (the usual numeric
+ * matrix) becomes a string by taking its bytes as Latin-1, whose first 128 code
+ * points are ASCII's, about twice as fast as decoding UTF-8 (measured on 400 ×
+ * 400 matrices of 1.4 MB); any other file (a byte-order mark, any non-ASCII
+ * byte, invalid UTF-8) is decoded as UTF-8 exactly as readFileSync does.
+ */
+export class TextFileReader {
+  private buffer: Buffer = Buffer.allocUnsafe(0);
+
+  read(path: string, hint?: string): string {
+    try {
+      const length = this.readWhole(path); // may replace this.buffer
+      const bytes = this.buffer.subarray(0, length);
+      return isAscii(bytes) ? bytes.toString("latin1") : bytes.toString("utf8");
+    } catch (error) {
+      throw cannotRead(path, error, hint);
+    }
+  }
+
+  /** Reads the file into `buffer` (grown as needed) to its end, whatever fstat says, and returns its length. */
+  private readWhole(path: string): number {
+    const fd = openSync(path, "r");
+    try {
+      const size = fstatSync(fd).size;
+      // What readFileSync(path, "utf8") says of a file over 2 GiB (smaller ones fail alike when decoded).
+      if (size > MAX_WHOLE_FILE_BYTES) {
+        throw new Error(`Cannot create a string longer than 0x${constants.MAX_STRING_LENGTH.toString(16)} characters`);
+      }
+      // One byte more than the size, so that the read reaching the end is seen without growing the buffer.
+      if (this.buffer.length < size + 1) this.buffer = Buffer.allocUnsafe(size + 1);
+      let length = 0;
+      for (;;) {
+        if (length === this.buffer.length) {
+          const grown = Buffer.allocUnsafe(2 * this.buffer.length + 4096);
+          this.buffer.copy(grown, 0, 0, length);
+          this.buffer = grown;
+        }
+        const got = readSync(fd, this.buffer, length, this.buffer.length - length, null);
+        if (got === 0) return length;
+        length += got;
+      }
+    } finally {
+      closeSync(fd);
+    }
+  }
+}
+
+/**
+ * A user's input file opened for reading pieces at given offsets, for files too
+ * large to read whole (an .npy stack of several GiB). Failures of the operating
+ * system are InputErrors as for `readTextFile`.
+ */
+export class InputFile {
+  private constructor(
+    readonly path: string,
+    private readonly fd: number,
+    /** Size in bytes when opened. */
+    readonly size: number,
+    private readonly hint: string | undefined,
+  ) {}
+
+  static open(path: string, hint?: string): InputFile {
+    let fd: number | undefined;
+    try {
+      fd = openSync(path, "r");
+      return new InputFile(path, fd, fstatSync(fd).size, hint);
+    } catch (error) {
+      if (fd !== undefined) closeSync(fd);
+      throw cannotRead(path, error, hint);
+    }
+  }
+
+  /**
+   * Fills `target` with the bytes from `position` on, stopping early only at the
+   * end of the file; returns the number of bytes read.
+   */
+  readAt(target: Uint8Array, position: number): number {
+    let done = 0;
+    try {
+      while (done < target.length) {
+        // One read is limited to 2 GiB − 1 bytes; take at most 1 GiB at a time.
+        const length = Math.min(target.length - done, 1 << 30);
+        const got = readSync(this.fd, target, done, length, position + done);
+        if (got === 0) break;
+        done += got;
+      }
+    } catch (error) {
+      throw cannotRead(this.path, error, this.hint);
+    }
+    return done;
+  }
+
+  close(): void {
+    closeSync(this.fd);
+  }
+}
+
+/** The largest file readFileSync reads whole: 2 GiB. */
+const MAX_WHOLE_FILE_BYTES = 2 ** 31;
 
 function cannotRead(path: string, error: unknown, hint?: string): InputError {
   return new InputError(`cannot read ${path}: ${systemReason(error)}`, { file: path }, hint);

@@ -1,0 +1,143 @@
+import { mkdirSync, mkdtempSync, rmSync, truncateSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { InputError } from "../../../src/errors.js";
+import { InputFile, TextFileReader, readTextFile } from "../../../src/io/readInputFile.js";
+import { expectInputError } from "./inputErrorAssertions.js";
+
+let dir: string;
+beforeAll(() => {
+  dir = mkdtempSync(join(tmpdir(), "plexus-io-read-"));
+});
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+function file(name: string, content: string | Uint8Array): string {
+  const path = join(dir, name);
+  writeFileSync(path, content);
+  return path;
+}
+
+/** The error `action` throws (it must throw one). */
+function thrown(action: () => unknown): unknown {
+  try {
+    action();
+  } catch (error) {
+    return error;
+  }
+  throw new Error("expected an error");
+}
+
+describe("TextFileReader gives the string readTextFile gives (reference: Node's readFileSync(path, 'utf8'))", () => {
+  const longAscii = Array.from({ length: 20000 }, (_, k) => `${k * 0.125}\t${-k}`).join("\n") + "\n";
+  const cases: [string, string | Uint8Array][] = [
+    ["ASCII numbers", "1\t0.5\n0.5\t1\n"],
+    ["a UTF-8 byte-order mark", "\ufeff1,0.5\n0.5,1\n"],
+    ["CRLF line ends", "1 0.5\r\n0.5 1\r\n"],
+    ["non-ASCII UTF-8 text", "région\t区域\t😀\n"],
+    ["invalid UTF-8 bytes (replaced by U+FFFD)", new Uint8Array([0x31, 0x20, 0xff, 0xfe, 0x0a, 0xc3, 0x28])],
+    ["a byte-order mark then invalid UTF-8", new Uint8Array([0xef, 0xbb, 0xbf, 0x80, 0x31])],
+    ["an empty file", ""],
+    ["a long ASCII file", longAscii],
+    ["a short file after a long one (buffer reused)", "2 3\n3 2\n"],
+    ["control characters and DEL, all ASCII", "\u0000\u0001\u007f\t \n"],
+  ];
+
+  it("for every kind of content, one reader reading the files in turn", () => {
+    const reader = new TextFileReader();
+    for (const [name, content] of cases) {
+      const path = file(`${name.replace(/\W+/g, "-")}.txt`, content);
+      expect(reader.read(path), name).toBe(readTextFile(path));
+    }
+  });
+
+  it("files of growing size, including exactly the size of the buffer so far", () => {
+    const reader = new TextFileReader();
+    for (const size of [0, 1, 4095, 4096, 4097, 9000, 100_000, 4097]) {
+      const path = file(`size-${size}.txt`, "7".repeat(size));
+      expect(reader.read(path), `size ${size}`).toBe(readTextFile(path));
+    }
+  });
+
+  it("a missing file or a folder is the same InputError (file, message, hint) as from readTextFile", () => {
+    const reader = new TextFileReader();
+    const folder = join(dir, "a-folder");
+    mkdirSync(folder, { recursive: true });
+    for (const path of [join(dir, "nowhere.txt"), folder]) {
+      const ours = thrown(() => reader.read(path, "the matrix of participant 'x'"));
+      const reference = thrown(() => readTextFile(path, "the matrix of participant 'x'"));
+      expect(ours).toBeInstanceOf(InputError);
+      expect(reference).toBeInstanceOf(InputError);
+      const [a, b] = [ours as InputError, reference as InputError];
+      expect({ message: a.message, location: a.location, hint: a.hint }).toEqual({
+        message: b.message,
+        location: b.location,
+        hint: b.hint,
+      });
+    }
+  });
+
+  it("a file over 2 GiB (sparse) is an InputError worded as readTextFile's, without reading it", () => {
+    // Node 20's readFileSync(path, "utf8") fails on such a file with this message (checked by hand; it reads
+    // the 2 GiB first, too slow for a unit test).
+    const path = file("huge.txt", "");
+    truncateSync(path, 2 ** 31 + 10);
+    expectInputError(() => new TextFileReader().read(path, "the matrix"), {
+      file: path,
+      message: [/^cannot read .*huge\.txt: Cannot create a string longer than 0x[0-9a-f]+ characters$/],
+      hint: "the matrix",
+    });
+    rmSync(path);
+  });
+});
+
+describe("InputFile", () => {
+  it("reads pieces at given offsets and stops short only at the end of the file", () => {
+    const bytes = Uint8Array.from({ length: 1000 }, (_, k) => (k * 7) % 256);
+    const path = file("pieces.bin", bytes);
+    const input = InputFile.open(path, "the stack");
+    try {
+      expect(input.size).toBe(1000);
+      const piece = new Uint8Array(100);
+      expect(input.readAt(piece, 450)).toBe(100);
+      expect(Array.from(piece)).toEqual(Array.from(bytes.subarray(450, 550)));
+      expect(input.readAt(piece, 950)).toBe(50);
+      expect(Array.from(piece.subarray(0, 50))).toEqual(Array.from(bytes.subarray(950)));
+      expect(input.readAt(piece, 1000)).toBe(0);
+    } finally {
+      input.close();
+    }
+  });
+
+  it("a file that shrinks after opening gives a short read, not an error", () => {
+    const path = file("shrinks.bin", new Uint8Array(500));
+    const input = InputFile.open(path);
+    try {
+      truncateSync(path, 120);
+      expect(input.size).toBe(500);
+      expect(input.readAt(new Uint8Array(200), 0)).toBe(120);
+    } finally {
+      input.close();
+    }
+  });
+
+  it("a missing file is an InputError naming it, with the hint", () => {
+    const path = join(dir, "missing.npy");
+    expectInputError(() => InputFile.open(path, "the .npy stack"), {
+      file: path,
+      message: ["cannot read", "no such file or directory (ENOENT)"],
+      hint: "the .npy stack",
+    });
+  });
+
+  it("a folder is an InputError naming it when read", () => {
+    const folder = join(dir, "folder-input");
+    mkdirSync(folder, { recursive: true });
+    const input = InputFile.open(folder);
+    try {
+      expectInputError(() => input.readAt(new Uint8Array(10), 0), { file: folder, message: ["cannot read", "EISDIR"] });
+    } finally {
+      input.close();
+    }
+  });
+});
