@@ -7,6 +7,7 @@ import { Checkpoint } from "../permute/checkpoint.js";
 import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs, type InputRecord } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
+import { relabelingSummary, smallestPossibleP } from "../output/relabelingSummary.js";
 import { formatTsv, type Cell } from "../output/tsvWriter.js";
 import { nullTable } from "../output/nullTable.js";
 import { componentsTable, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "../output/resultTables.js";
@@ -52,7 +53,7 @@ export interface RunLog {
 }
 
 export interface RunResult {
-  /** The prepared analysis; its connectome data may have been overwritten by the last contrast's residuals. */
+  /** The prepared analysis; after a permutation run its connectome data are released (emptied) to save memory. */
   prepared: PreparedAnalysis;
   contrasts: ObservedContrast[];
   nulls: (ContrastNull | undefined)[];
@@ -139,7 +140,11 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
           progress: options.quiet ? silentProgress : progress,
         }),
       );
+      // The residuals (in the last contrast, the connectome data themselves) are no longer needed: let them go
+      // before the results and the report are written, so peak memory stays at one copy of the data.
+      setup.context.kernel.residuals = new Float64Array(0);
     }
+    if (permutations) prepared.connectomes.data = new Float64Array(0);
     if (options.shard) {
       writeShard(folder, prepared, contrasts, nulls, inputs, fingerprint, options);
     } else {
@@ -384,19 +389,11 @@ export function buildSummary(
         significant_edges_fdr: observed.qFdr.filter((q) => q <= inference.alpha).length,
         ...(contrastNull && plan && fwe
           ? {
-              mode: plan.exact ? "exact" : "monte-carlo",
-              permutations: plan.count,
-              distinct_relabelings: Number.isFinite(plan.distinct) ? plan.distinct : null,
-              scheme: contrastNull.setup.scheme,
-              scheme_reason: contrastNull.setup.schemeReason,
-              seed: plan.seed,
-              exchangeability_blocks: prepared.blocks
-                ? { column: prepared.blocks.column, count: prepared.blocks.labels.length, permutation: inference.blockPermutation }
-                : null,
+              ...relabelingSummary(contrastNull.setup, prepared.blocks, inference.blockPermutation),
               critical_size: finiteOrNull(fwe.criticalSize),
               critical_size_measure: inference.size,
               critical_statistic: finiteOrNull(fwe.criticalStatistic),
-              smallest_possible_p: plan.exact ? 1 / plan.count : 1 / (plan.count + 1),
+              smallest_possible_p: smallestPossibleP(contrastNull.setup),
             }
           : { mode: null }),
         ...(extras[i]?.free

@@ -1,3 +1,4 @@
+import { relabelingSummary, smallestPossibleP } from "../output/relabelingSummary.js";
 import path from "node:path";
 import type { InputRecord } from "../output/provenance.js";
 import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
@@ -77,17 +78,9 @@ export function strengthSummary(
         significant_fdr: Array.from(result.qFdr).filter((q) => q <= inference.alpha).length,
         ...(fw && plan
           ? {
-              mode: plan.exact ? "exact" : "monte-carlo",
-              permutations: plan.count,
-              distinct_relabelings: Number.isFinite(plan.distinct) ? plan.distinct : null,
-              scheme: fw.setup.scheme,
-              scheme_reason: fw.setup.schemeReason,
-              seed: plan.seed,
-              exchangeability_blocks: prepared.blocks
-                ? { column: prepared.blocks.column, count: prepared.blocks.labels.length, permutation: inference.blockPermutation }
-                : null,
+              ...relabelingSummary(fw.setup, prepared.blocks, inference.blockPermutation),
               critical_statistic: finiteOrNull(fw.criticalStatistic),
-              smallest_possible_p: plan.exact ? 1 / plan.count : 1 / (plan.count + 1),
+              smallest_possible_p: smallestPossibleP(fw.setup),
             }
           : { mode: null }),
       };
