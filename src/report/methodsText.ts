@@ -177,7 +177,7 @@ export function methodsText(results: LoadedResults): MethodsText {
       const seeds = [...new Set(monteCarlo.map((c) => c.seed))];
       inferenceText.push(
         ` Relabelings were drawn at random (Monte Carlo; K = ${counts.map((k) => plain(k ?? NaN)).join(" or ")}, seed ${seeds.map((s) => plain(s ?? NaN)).join(", ")})` +
-          `${exact.length > 0 ? ` for ${monteCarlo.length} contrast${monteCarlo.length > 1 ? "s" : ""}` : ""}, and ${enhancedOnly ? "an edge's" : "a component's"} family-wise error-corrected p-value was p_FWE = (1 + b)/(1 + K), where b of the K relabelings had ${enhancedOnly ? "a largest enhanced value" : "a largest component"} at least as large (${cite("phipsonSmyth", "Phipson & Smyth 2010")}); 95% Clopper–Pearson intervals give its Monte Carlo uncertainty (${cite("clopperPearson", "Clopper & Pearson 1934")}).`,
+          `${exact.length > 0 ? ` for ${monteCarlo.length} contrast${monteCarlo.length > 1 ? "s" : ""}` : ""}, and ${enhancedOnly ? "an edge's" : "a component's"} family-wise error-corrected p-value was p_FWE = (1 + b)/(1 + K), where b of the K relabelings had ${enhancedOnly ? "a largest enhanced value" : "a largest component"} at least as large (${cite("phipsonSmyth", "Phipson & Smyth 2010")})${enhancedOnly ? "." : `; 95% Clopper–Pearson intervals give its Monte Carlo uncertainty (${cite("clopperPearson", "Clopper & Pearson 1934")}).`}`,
       );
     }
     if (exact.length > 0) {
