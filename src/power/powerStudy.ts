@@ -7,10 +7,8 @@ import { parseContrast } from "../model/contrast.js";
 import { buildDesignMatrix, type DesignMatrix } from "../model/designMatrix.js";
 import { parseFormula } from "../model/formula.js";
 import { codeVariable, type Variable } from "../model/variables.js";
-import { buildNullContext } from "../permute/nullContext.js";
-import { computeNullRange } from "../permute/nullRange.js";
 import { observeContrastOn } from "../run/analyzeContrasts.js";
-import { familywiseInference } from "../run/permutationInference.js";
+import { familywiseInference, wholeNullInMemory } from "../run/permutationInference.js";
 import { simulatePowerCohort } from "./powerCohort.js";
 
 /**
@@ -88,19 +86,8 @@ export function analysePowerCohort(plan: PowerPlan, perGroup: number, k: number)
     uncorrected: anyPlanted((e) => observed.pUncorrected[e] <= plan.alpha),
   };
   if (plan.permutations > 0) {
-    const setup = buildNullContext({
-      matrix,
-      contrast: contrast.vector,
-      data,
-      edges: E,
-      pairs,
-      observed: observed.statistics.statistic,
-      inference,
-      where: {},
-      inPlace: true,
-    });
-    const rows = computeNullRange(setup.context, 1, setup.context.plan.count + 1);
-    const fwe = familywiseInference(inference, observed, rows, setup.context.plan.exact);
+    const { rows, exact } = wholeNullInMemory({ matrix, contrast, data, pairs, observed, inference, where: {} });
+    const fwe = familywiseInference(inference, observed, rows, exact);
     const significant = new Set(observed.components.filter((_, c) => fwe.componentP[c].p <= plan.alpha).map((c) => c.id));
     detections.components = anyPlanted((e) => significant.has(observed.labels[e]));
     detections["max-t"] = anyPlanted((e) => fwe.edgeP![e] <= plan.alpha);

@@ -5,6 +5,10 @@ import { buildNullContext, type NullSetup } from "../permute/nullContext.js";
 import { runNullEngine } from "../permute/nullEngine.js";
 import type { NullChunk } from "../permute/nullRange.js";
 import type { ObservedContrast } from "./analyzeContrasts.js";
+import type { InputLocation } from "../errors.js";
+import type { Contrast } from "../model/contrast.js";
+import type { DesignMatrix } from "../model/designMatrix.js";
+import { computeNullRange } from "../permute/nullRange.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { ComponentSummary } from "../inference/components.js";
 import { observedComponents, signsOfTail } from "../inference/observedComponents.js";
@@ -204,4 +208,36 @@ export function sweepInference(
       criticalSize: criticalValue(sizeNull, inference.alpha, exact),
     };
   });
+}
+
+/**
+ * The whole null of a contrast on the calling thread, for analyses held in
+ * memory (simulation studies, power planning): the same context and
+ * relabelings as a run; `data` is overwritten by the residuals.
+ */
+export function wholeNullInMemory(options: {
+  matrix: DesignMatrix;
+  contrast: Contrast;
+  data: Float64Array;
+  pairs: EdgePairs;
+  observed: ObservedContrast;
+  inference: InferenceSpec;
+  blocks?: Int32Array;
+  where: InputLocation;
+}): { setup: NullSetup; rows: NullChunk; exact: boolean } {
+  const setup = buildNullContext({
+    matrix: options.matrix,
+    contrast: options.contrast.vector,
+    contrastRows: options.contrast.kind === "F" ? options.contrast.rows : undefined,
+    data: options.data,
+    edges: options.pairs.edgeCount,
+    pairs: options.pairs,
+    observed: options.observed.statistics.statistic,
+    inference: options.inference,
+    blocks: options.blocks,
+    where: options.where,
+    inPlace: true,
+  });
+  const rows = computeNullRange(setup.context, 1, setup.context.plan.count + 1);
+  return { setup, rows, exact: setup.context.plan.exact };
 }

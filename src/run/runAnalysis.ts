@@ -1,3 +1,4 @@
+import { inputsSummary, subjectsSummary } from "../output/summaryParts.js";
 import { createHash } from "node:crypto";
 import path from "node:path";
 import { InputError } from "../errors.js";
@@ -338,7 +339,6 @@ export function buildSummary(
   extras: ContrastExtras[] = [],
 ): Record<string, unknown> {
   const { design, matrix, connectomes } = prepared;
-  const designDir = path.dirname(path.resolve(design.file));
   const centers: Record<string, number> = {};
   const levels: Record<string, string[]> = {};
   for (const variable of matrix.variables.values()) {
@@ -349,17 +349,8 @@ export function buildSummary(
   return {
     tool: { name: "plexus", version: VERSION },
     command: commandLine,
-    inputs: inputs.map((input) => ({
-      role: input.role,
-      path: path.relative(designDir, input.path) || path.basename(input.path),
-      sha256: input.sha256,
-    })),
-    subjects: {
-      in_table: prepared.participants.ids.length,
-      used: prepared.kept.length,
-      used_ids: prepared.kept.map((k) => k.id),
-      excluded: prepared.excluded.map((x) => ({ participant_id: x.id, line: x.line, reason: x.reason })),
-    },
+    inputs: inputsSummary(inputs, design.file),
+    subjects: subjectsSummary(prepared),
     regions: connectomes.regionCount,
     edges: connectomes.edgeCount,
     design: {

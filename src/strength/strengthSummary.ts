@@ -1,3 +1,4 @@
+import { inputsSummary, subjectsSummary } from "../output/summaryParts.js";
 import { relabelingSummary, smallestPossibleP } from "../output/relabelingSummary.js";
 import path from "node:path";
 import type { InputRecord } from "../output/provenance.js";
@@ -22,23 +23,13 @@ export function strengthSummary(
 ): Record<string, unknown> {
   const { design, matrix } = prepared;
   const { inference } = design;
-  const designDir = path.dirname(path.resolve(design.file));
   const { choice } = analysis;
   return {
     tool: { name: "plexus", version: VERSION },
     command: commandLine,
     analysis: "strength",
-    inputs: inputs.map((input) => ({
-      role: input.role,
-      path: path.relative(designDir, input.path) || path.basename(input.path),
-      sha256: input.sha256,
-    })),
-    subjects: {
-      in_table: prepared.participants.ids.length,
-      used: prepared.kept.length,
-      used_ids: prepared.kept.map((k) => k.id),
-      excluded: prepared.excluded.map((x) => ({ participant_id: x.id, line: x.line, reason: x.reason })),
-    },
+    inputs: inputsSummary(inputs, design.file),
+    subjects: subjectsSummary(prepared),
     regions: prepared.connectomes.regionCount,
     edges: prepared.connectomes.edgeCount,
     measure: {
@@ -51,7 +42,7 @@ export function strengthSummary(
     },
     subnetwork_source: source
       ? {
-          results: path.relative(designDir, source.subnetworks.resultsDir) || ".",
+          results: path.relative(path.dirname(path.resolve(design.file)), source.subnetworks.resultsDir) || ".",
           contrast: source.subnetworks.contrast,
           alpha: source.subnetworks.alpha,
           components: source.subnetworks.chosen.map((c) => ({ component: c.id, extent: c.extent, p_fwe: finiteOrNull(c.pFwe) })),

@@ -2,10 +2,8 @@ import seedrandom from "seedrandom";
 import { DEFAULT_INFERENCE, type InferenceSpec } from "../io/designFile.js";
 import { fitEdges } from "../edges/fitEdges.js";
 import { clopperPearson } from "../inference/familywiseP.js";
-import { buildNullContext } from "../permute/nullContext.js";
-import { computeNullRange } from "../permute/nullRange.js";
 import { observeContrastOn } from "../run/analyzeContrasts.js";
-import { familywiseInference, thresholdFreeInference } from "../run/permutationInference.js";
+import { familywiseInference, thresholdFreeInference, wholeNullInMemory } from "../run/permutationInference.js";
 import type { SimulationOptions } from "../simulate/simulateCohort.js";
 import { studyCohort, type StudyDesign } from "./studyCohort.js";
 
@@ -47,24 +45,18 @@ export function analyseStudyCohort(condition: StudyCondition, seed: number, perm
   const E = pairs.edgeCount;
   const fit = fitEdges(matrix.values, S, matrix.cols, data, E);
   const observed = observeContrastOn(fit, contrast, pairs, inference);
-  const setup = buildNullContext({
+  const { rows, exact } = wholeNullInMemory({
     matrix,
-    contrast: contrast.vector,
+    contrast,
     data,
-    edges: E,
     pairs,
-    observed: observed.statistics.statistic,
+    observed,
     inference,
     blocks: condition.blocks ? cohort.blocks : undefined,
     where: { key: condition.name },
-    inPlace: true,
   });
-  const rows = computeNullRange(setup.context, 1, setup.context.plan.count + 1);
-  const fwe = familywiseInference({ ...inference, method: "max-t" }, observed, rows, setup.context.plan.exact);
-  const free =
-    inference.method === "threshold-free"
-      ? thresholdFreeInference(inference, observed, rows, setup.context.plan.exact, pairs, inference.tail)
-      : undefined;
+  const fwe = familywiseInference({ ...inference, method: "max-t" }, observed, rows, exact);
+  const free = inference.method === "threshold-free" ? thresholdFreeInference(inference, observed, rows, exact, pairs, inference.tail) : undefined;
   const significantComponents = new Set(
     observed.components.filter((_, k) => fwe.componentP[k].p <= inference.alpha).map((c) => c.id),
   );
