@@ -94,16 +94,45 @@ export class NullMaxima {
 
   /** Measures one relabeling's statistics; extra columns go to `extra` (length extraNames.length). */
   measure(statistic: ArrayLike<number>, extra?: Float64Array): { maxExtent: number; maxMass: number; maxStatistic: number } {
+    return this.measureEdges(statistic, undefined, 0, extra);
+  }
+
+  /**
+   * As measure, reading only the `count` listed edges (ascending) of `statistic`:
+   * the same result whenever every other edge is at or below the lowest
+   * threshold and some listed edge is above it (the screened path, screening.ts).
+   * Not for threshold-free enhancement, which needs every edge.
+   */
+  measureListed(statistic: ArrayLike<number>, listed: Int32Array, count: number, extra?: Float64Array) {
+    if (this.enhancer) throw new Error("internal: threshold-free enhancement needs every edge's statistic");
+    return this.measureEdges(statistic, listed, count, extra);
+  }
+
+  private measureEdges(
+    statistic: ArrayLike<number>,
+    listed: Int32Array | undefined,
+    listedCount: number,
+    extra?: Float64Array,
+  ): { maxExtent: number; maxMass: number; maxStatistic: number } {
     const { thresholds } = this.options;
     let maxStatistic = -Infinity;
     const sweep = new Float64Array(2 * thresholds.length);
     for (const sign of this.signs) {
       let count = 0;
-      const E = statistic.length;
-      for (let e = 0; e < E; e++) {
-        const value = sign * statistic[e];
-        if (value > maxStatistic) maxStatistic = value;
-        if (value > this.lowest) this.supra[count++] = e;
+      if (listed) {
+        for (let k = 0; k < listedCount; k++) {
+          const e = listed[k];
+          const value = sign * statistic[e];
+          if (value > maxStatistic) maxStatistic = value;
+          if (value > this.lowest) this.supra[count++] = e;
+        }
+      } else {
+        const E = statistic.length;
+        for (let e = 0; e < E; e++) {
+          const value = sign * statistic[e];
+          if (value > maxStatistic) maxStatistic = value;
+          if (value > this.lowest) this.supra[count++] = e;
+        }
       }
       thresholds.forEach((threshold, i) => {
         const [extent, mass] = this.largest(statistic, count, threshold, sign);

@@ -2,9 +2,11 @@ import type { Tail } from "../io/designFile.js";
 import { NullMaxima, type NullMeasureOptions } from "./nullMaxima.js";
 import type { EnhancementParameters } from "../inference/thresholdFree.js";
 import type { KernelData } from "./permutedStatistics.js";
-import { twoLevelEffect } from "./kernels/groupSums.js";
+import { twoLevelEffect, type TwoLevelEffect } from "./kernels/groupSums.js";
 import { selectKernel, type KernelChoice } from "./kernels/selectKernel.js";
-import { Relabeler, type RelabelingPlan } from "./relabelings.js";
+import { prepareScreen, screenedRows } from "./screenedRange.js";
+import { relabelingWriter, type RelabelingWriter } from "./relabelingWriter.js";
+import type { RelabelingPlan } from "./relabelings.js";
 
 /** Everything needed to compute null rows for one contrast (plain data; shareable with workers). */
 export interface NullContext {
@@ -50,6 +52,15 @@ export interface NullRangeOptions {
   kernel?: KernelChoice;
   /** Take the two-level path where it applies (default true); false forces dot products (for comparisons). */
   groupSums?: boolean;
+  /**
+   * Screen in single precision where it applies (default true; screenedRange.ts):
+   * the same results, faster. false computes every relabeling in full.
+   */
+  screen?: boolean;
+  /** Counts, for tests and benchmarks: relabelings settled by the screen, and computed in full. */
+  tally?: ScreenTally;
+  /** Overrides each relabeling's list capacity on the screened path (tests of the overflow path). */
+  screenCapacity?: number;
 }
 
 /**
@@ -63,11 +74,15 @@ function twoLevelOf(context: NullContext) {
     : undefined;
 }
 
+export interface ScreenTally {
+  screened: number;
+  full: number;
+}
+
+/** One relabeling's null row, recorded into the chunk. */
+export type NullRecorder = (k: number, measured: { maxExtent: number; maxMass: number; maxStatistic: number }, extra: Float64Array) => void;
+
 export function computeNullRange(context: NullContext, from: number, to: number, options: NullRangeOptions = {}): NullChunk {
-  const { kernel, vectors, plan } = context;
-  const S = kernel.subjects;
-  const E = kernel.edges;
-  const c = vectors.length;
   const count = to - from;
   const maxima = new NullMaxima(context.regionA, context.regionB, context.regionCount, measureOptions(context));
   const chunk: NullChunk = {
@@ -79,62 +94,97 @@ export function computeNullRange(context: NullContext, from: number, to: number,
     extraNames: maxima.extraNames,
     extra: maxima.extraNames.map(() => new Float64Array(count)),
   };
-  const extraRow = new Float64Array(maxima.extraNames.length);
-  const relabeler = new Relabeler(plan);
-  // An F contrast (several effect vectors) runs on the TypeScript kernel, which holds the F formula.
-  const statisticsKernel = selectKernel((kernel.effectVectors ?? 1) > 1 ? "typescript" : options.kernel);
-  const batchSize = statisticsKernel.batchSize(c, E);
-  const level = options.groupSums === false ? undefined : twoLevelOf(context);
-  const groups = level ? statisticsKernel.prepareGroups(kernel, batchSize, level) : undefined;
-  const { weights, statistics, run } = groups
-    ? { weights: new Float64Array(0), statistics: groups.statistics, run: groups.run }
-    : statisticsKernel.prepare(kernel, batchSize, c);
-  const permutation = new Int32Array(S);
-  const signs = new Float64Array(S);
-
-  const record = (k: number, row: Float64Array) => {
-    const m = maxima.measure(row, extraRow);
+  const record: NullRecorder = (k, m, extra) => {
     chunk.maxExtent[k - from] = m.maxExtent;
     chunk.maxMass[k - from] = m.maxMass;
     chunk.maxStatistic[k - from] = m.maxStatistic;
-    for (let j = 0; j < extraRow.length; j++) chunk.extra[j][k - from] = extraRow[j];
+    for (let j = 0; j < extra.length; j++) chunk.extra[j][k - from] = extra[j];
   };
-
+  const level = options.groupSums === false ? undefined : twoLevelOf(context);
+  const exact = new ExactRows(context, level, maxima, record, options.kernel);
   let k = from;
-  while (k < to) {
-    // The identity of an exact enumeration takes the observed values themselves.
-    if (k === 1 && plan.exact) {
-      record(k, context.observed);
-      k++;
-      continue;
+  // The identity of an exact enumeration takes the observed values themselves.
+  if (k === 1 && k < to && context.plan.exact) {
+    const extra = new Float64Array(maxima.extraNames.length);
+    record(1, maxima.measure(context.observed, extra), extra);
+    k++;
+  }
+  const screen = options.screen === false ? undefined : prepareScreen(context, level, options.kernel, options.screenCapacity);
+  if (screen) {
+    const unsettled = screenedRows(context, screen, maxima, record, k, to);
+    exact.computeList(unsettled);
+    if (options.tally) {
+      options.tally.screened += to - k - unsettled.length;
+      options.tally.full += unsettled.length;
     }
-    const batch = Math.min(batchSize, to - k);
-    for (let b = 0; b < batch; b++) {
-      if (groups && level) {
-        // The summed group of relabeling k + b: subjects whose relabeled effect value is the group's, ascending.
-        relabeler.permutation(k + b, permutation);
-        const effect = vectors[0];
-        let n = b * level.groupSize;
-        for (let s = 0; s < S; s++) if (effect[permutation[s]] === level.inGroup) groups.members[n++] = s;
-      } else if (plan.kind === "permute") {
-        relabeler.permutation(k + b, permutation);
-        for (let j = 0; j < c; j++) {
-          const v = vectors[j];
-          const at = (b * c + j) * S;
-          for (let s = 0; s < S; s++) weights[at + s] = v[permutation[s]];
-        }
-      } else {
-        relabeler.signs(k + b, signs);
-        for (let j = 0; j < c; j++) {
-          const v = vectors[j];
-          const at = (b * c + j) * S;
-          for (let s = 0; s < S; s++) weights[at + s] = signs[s] * v[s];
-        }
-      }
-    }
-    run(batch);
-    for (let b = 0; b < batch; b++) record(k + b, statistics.subarray(b * E, (b + 1) * E));
-    k += batch;
+  } else {
+    exact.compute(k, to);
+    if (options.tally) options.tally.full += to - k;
   }
   return chunk;
+}
+
+/**
+ * Relabelings computed in full with the statistics kernel: every relabeling
+ * without screening, and those the screen cannot settle (screenedRange.ts).
+ */
+export class ExactRows {
+  private prepared?: { statistics: Float64Array; run(batch: number): void; fill(k: number, b: number): void; batchSize: number };
+  private readonly writer: RelabelingWriter;
+  private readonly extra: Float64Array;
+
+  constructor(
+    private readonly context: NullContext,
+    private readonly level: TwoLevelEffect | undefined,
+    private readonly maxima: NullMaxima,
+    private readonly record: NullRecorder,
+    private readonly kernelChoice: KernelChoice | undefined,
+  ) {
+    this.writer = relabelingWriter(context);
+    this.extra = new Float64Array(maxima.extraNames.length);
+  }
+
+  private prepare() {
+    if (this.prepared) return this.prepared;
+    const { kernel, vectors } = this.context;
+    const c = vectors.length;
+    // An F contrast (several effect vectors) runs on the TypeScript kernel, which holds the F formula.
+    const statisticsKernel = selectKernel((kernel.effectVectors ?? 1) > 1 ? "typescript" : this.kernelChoice);
+    const batchSize = statisticsKernel.batchSize(c, kernel.edges);
+    const level = this.level;
+    if (level) {
+      const groups = statisticsKernel.prepareGroups(kernel, batchSize, level);
+      this.prepared = { ...groups, batchSize, fill: (k, b) => this.writer.members(k, b, groups.members, level) };
+    } else {
+      const batch = statisticsKernel.prepare(kernel, batchSize, c);
+      this.prepared = { ...batch, batchSize, fill: (k, b) => this.writer.weights(k, b, batch.weights) };
+    }
+    return this.prepared;
+  }
+
+  /** Relabelings from..to−1. */
+  compute(from: number, to: number): void {
+    for (let k = from; k < to; ) {
+      const batch = Math.min(this.prepare().batchSize, to - k);
+      this.run(Array.from({ length: batch }, (_, b) => k + b));
+      k += batch;
+    }
+  }
+
+  /** The listed relabelings (at most one batch's worth at a time). */
+  computeList(list: number[]): void {
+    for (let i = 0; i < list.length; ) {
+      const batch = Math.min(this.prepare().batchSize, list.length - i);
+      this.run(list.slice(i, i + batch));
+      i += batch;
+    }
+  }
+
+  private run(ks: number[]): void {
+    const prepared = this.prepare();
+    const E = this.context.kernel.edges;
+    ks.forEach((k, b) => prepared.fill(k, b));
+    prepared.run(ks.length);
+    ks.forEach((k, b) => this.record(k, this.maxima.measure(prepared.statistics.subarray(b * E, (b + 1) * E), this.extra), this.extra));
+  }
 }

@@ -165,3 +165,25 @@ export function permutedStatistics(
     }
   }
 }
+
+/**
+ * The statistic of one relabeling at edge e, with exactly the operations of
+ * permutedStatistics in the same order (t contrasts): weights[rowStart + k·S + s]
+ * is vector k of the relabeling. The screened path (screening.ts) recomputes
+ * its listed pairs with it.
+ */
+export function statisticAt(data: KernelData, weights: Float64Array, rowStart: number, vectors: number, e: number): number {
+  const { subjects: S, residuals, sumSquares, valid, effectNorm2, df } = data;
+  if (valid[e] === 0) return NaN;
+  const r = e * S;
+  let a = 0;
+  for (let s = 0; s < S; s++) a += weights[rowStart + s] * residuals[r + s];
+  let sse = sumSquares[e] - (a * a) / effectNorm2;
+  for (let k = 1; k < vectors; k++) {
+    const w = rowStart + k * S;
+    let g = 0;
+    for (let s = 0; s < S; s++) g += weights[w + s] * residuals[r + s];
+    sse -= g * g;
+  }
+  return sse > 0 ? a / Math.sqrt((sse / df) * effectNorm2) : NaN;
+}

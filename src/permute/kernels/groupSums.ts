@@ -74,22 +74,30 @@ export function groupSumStatistics(
   batch: number,
   out: Float64Array,
 ): void {
-  const { subjects: S, edges: E, residuals, sumSquares, valid, effectNorm2, df } = data;
+  const E = data.edges;
   const sums = residualSums(data);
   const G = level.groupSize;
   for (let e = 0; e < E; e++) {
-    const at = e * S;
-    for (let b = 0; b < batch; b++) {
-      if (valid[e] === 0) {
-        out[b * E + e] = NaN;
-        continue;
-      }
-      let sum = 0;
-      const list = b * G;
-      for (let m = 0; m < G; m++) sum += residuals[at + members[list + m]];
-      const a = level.difference * sum + level.other * sums[e];
-      const sse = sumSquares[e] - (a * a) / effectNorm2;
-      out[b * E + e] = sse > 0 ? a / Math.sqrt((sse / df) * effectNorm2) : NaN;
-    }
+    for (let b = 0; b < batch; b++) out[b * E + e] = groupStatisticAt(data, level, sums, members, b * G, e);
   }
+}
+
+/** t of one relabeling (its group members[listStart …], ascending) at edge e, in the order defined above. */
+export function groupStatisticAt(
+  data: KernelData,
+  level: TwoLevelEffect,
+  sums: Float64Array,
+  members: Int32Array,
+  listStart: number,
+  e: number,
+): number {
+  const { subjects: S, residuals, sumSquares, valid, effectNorm2, df } = data;
+  if (valid[e] === 0) return NaN;
+  const at = e * S;
+  let sum = 0;
+  const end = listStart + level.groupSize;
+  for (let m = listStart; m < end; m++) sum += residuals[at + members[m]];
+  const a = level.difference * sum + level.other * sums[e];
+  const sse = sumSquares[e] - (a * a) / effectNorm2;
+  return sse > 0 ? a / Math.sqrt((sse / df) * effectNorm2) : NaN;
 }

@@ -89,3 +89,17 @@ export function selectKernel(choice: KernelChoice = "auto"): StatisticsKernel {
   const wasm = threadWasmKernel();
   return wasm ? wasmKernel(wasm) : referenceKernel();
 }
+
+let screenWasm: WasmPermutationKernel | null | undefined;
+
+/**
+ * The WebAssembly instance that screens in single precision (../screenedRange.ts),
+ * separate from the one selectKernel uses, since both keep prepared memory at
+ * once; undefined where the choice is the TypeScript reference or SIMD is missing.
+ */
+export function screeningInstance(choice: KernelChoice = "auto"): WasmPermutationKernel | undefined {
+  const resolved = choice === "auto" ? kernelChoiceFromEnvironment() : choice;
+  if (resolved === "typescript") return undefined;
+  if (screenWasm === undefined) screenWasm = WasmPermutationKernel.create() ?? null;
+  return screenWasm ?? undefined;
+}

@@ -33,6 +33,45 @@ interface KernelExports {
     outStride: number,
   ): void;
   tileProducts(panel: number, rowTiles: number, S: number, residuals: number, products: number): void;
+  tileProducts32(panel: number, rowTiles: number, S: number, residuals: number, products: number): void;
+  demoteBlock(source: number, target: number, count: number): void;
+  interleaveBlock(source: number, target: number, S: number, tiles: number): void;
+  screenBlock(
+    panel: number,
+    rowTiles: number,
+    S: number,
+    residuals: number,
+    width: number,
+    products: number,
+    batch: number,
+    vectors: number,
+    sumSquares: number,
+    scale: number,
+    validMask: number,
+    norms: number,
+    inverseNorm: number,
+    df: number,
+    rhs: number,
+    upper: number,
+    lower: number,
+    first: number,
+    lists: number,
+    counts: number,
+    capacity: number,
+  ): void;
+  groupScreenBlock(
+    blockT: number,
+    width: number,
+    offsets: number,
+    groupSize: number,
+    batch: number,
+    sLo: number,
+    sHi: number,
+    first: number,
+    lists: number,
+    counts: number,
+    capacity: number,
+  ): void;
   transposeBlock(source: number, target: number, S: number, W: number): void;
   groupStatisticsBlock(
     blockT: number,
@@ -117,6 +156,44 @@ export interface GroupBatch {
   run(batch: number): void;
 }
 
+/**
+ * A screened batch (../screening.ts): fill `weights` (batch × vectors × S, as
+ * for permutedStatistics), call run(batch), then read for each relabeling b its
+ * count counts[b] and, when count ≤ capacity, the ascending edges
+ * lists[b·capacity …] whose statistic could reach the threshold.
+ */
+export interface ScreenBatch {
+  weights: Float64Array;
+  counts: Int32Array;
+  lists: Int32Array;
+  capacity: number;
+  run(batch: number): void;
+}
+
+/** The two-level path's screened batch: fill `members`, run, read counts and lists as for ScreenBatch. */
+export interface GroupScreenBatch {
+  members: Int32Array;
+  counts: Int32Array;
+  lists: Int32Array;
+  capacity: number;
+  run(batch: number): void;
+}
+
+/** What the products screen needs beyond the kernel data. */
+export interface ScreenSettings {
+  /** Per-edge error scale (screening.ts residualScales), with at least one tile of padding. */
+  scale: Float64Array;
+  /** Edges the kernel may list (1) or not (0): the valid edges the screen can bound. */
+  valid: Uint8Array;
+  /** ‖v_k‖∞ of each relabeled vector. */
+  norms: Float64Array;
+  /** The screen's threshold (screening.ts screenThreshold). */
+  threshold: number;
+  upper: boolean;
+  lower: boolean;
+  capacity: number;
+}
+
 /** Bytes of residuals per block on the two-level path (copied, then transposed beside the copy). */
 const GROUP_BLOCK_BYTES = 128 * 1024;
 
@@ -127,6 +204,10 @@ export class WasmPermutationKernel {
   readonly rowsPerTile: number = PERMUTE_KERNEL_TILE.rowPairs * 2;
   readonly edgesPerTile: number = PERMUTE_KERNEL_TILE.edgesPerTile;
   readonly groupEdgesPerTile: number = PERMUTE_KERNEL_TILE.groupPairs * 2;
+  /** The screen's tiles: rows per f32 tile, 4 edges per tile, and edges per group-sum tile. */
+  readonly screenRowsPerTile: number = PERMUTE_KERNEL_TILE.rowQuads * 4;
+  readonly screenEdgesPerTile = 4;
+  readonly screenGroupEdgesPerTile: number = PERMUTE_KERNEL_TILE.groupQuads * 4;
   private readonly exports: KernelExports;
   private f64 = new Float64Array(0);
   private current: object | undefined;
@@ -181,6 +262,172 @@ export class WasmPermutationKernel {
       mask[2 * e] = bits;
       mask[2 * e + 1] = bits;
     }
+  }
+
+  /** As packWeights, in single precision with tiles of screenRowsPerTile rows. */
+  private packWeights32(weights: Float64Array, rows: number, S: number, rowTiles: number, at: number): void {
+    const RT = this.screenRowsPerTile;
+    const f32 = new Float32Array(this.exports.memory.buffer, at, rowTiles * RT * S);
+    let o = 0;
+    for (let t = 0; t < rowTiles; t++) {
+      for (let s = 0; s < S; s++) {
+        for (let r = 0; r < RT; r++) {
+          const j = t * RT + r;
+          f32[o++] = j < rows ? weights[j * S + s] : 0;
+        }
+      }
+    }
+  }
+
+  /**
+   * The screened batch (../screening.ts): single-precision products and a
+   * double-precision screen; undefined if that much WebAssembly memory is refused.
+   */
+  prepareScreen(data: KernelData, batchSize: number, vectors: number, settings: ScreenSettings): ScreenBatch | undefined {
+    const { subjects: S, edges: E, residuals, effectNorm2, df } = data;
+    const RT = this.screenRowsPerTile;
+    const P = this.screenEdgesPerTile;
+    const paddedRows = Math.max(1, Math.ceil((batchSize * vectors) / RT)) * RT;
+    const W = this.blockWidth(S, E, P);
+    const { capacity } = settings;
+    const sumSquaresAt = 0;
+    const scaleAt = alignUp(sumSquaresAt + (E + P) * 8);
+    const maskAt = alignUp(scaleAt + (E + P) * 8);
+    const normsAt = alignUp(maskAt + (E + P) * 8);
+    const panelAt = alignUp(normsAt + vectors * 8);
+    const stagingAt = alignUp(panelAt + paddedRows * S * 4);
+    const residualsAt = alignUp(stagingAt + W * S * 8);
+    const productsAt = alignUp(residualsAt + W * S * 4);
+    const countsAt = alignUp(productsAt + paddedRows * P * 4);
+    const listsAt = alignUp(countsAt + batchSize * 4);
+    const end = listsAt + batchSize * capacity * 4;
+    if (!this.reserve(end)) return undefined;
+    const token = {};
+    this.current = token;
+    this.f64.set(data.sumSquares, sumSquaresAt / 8);
+    this.f64.fill(0, sumSquaresAt / 8 + E, sumSquaresAt / 8 + E + P);
+    this.f64.set(settings.scale.subarray(0, E), scaleAt / 8);
+    this.writeValidMask(settings.valid, maskAt, P);
+    this.f64.set(settings.norms, normsAt / 8);
+    const buffer = this.exports.memory.buffer;
+    const counts = new Int32Array(buffer, countsAt, batchSize);
+    const lists = new Int32Array(buffer, listsAt, batchSize * capacity);
+    const weights = new Float64Array(batchSize * vectors * S);
+    const rhs = settings.threshold * settings.threshold * effectNorm2;
+    const run = (batch: number): void => {
+      if (this.current !== token) throw new Error("internal: a kernel batch was used after another was prepared on this thread");
+      counts.fill(0);
+      if (E === 0 || batch === 0) return;
+      const rows = batch * vectors;
+      const rowTiles = Math.ceil(rows / RT);
+      this.packWeights32(weights, rows, S, rowTiles, panelAt);
+      const f64 = this.f64;
+      for (let e0 = 0; e0 < E; e0 += W) {
+        const width = Math.min(W, E - e0);
+        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), stagingAt / 8);
+        this.exports.interleaveBlock(stagingAt, residualsAt, S, Math.ceil(width / P));
+        this.exports.screenBlock(
+          panelAt,
+          rowTiles,
+          S,
+          residualsAt,
+          width,
+          productsAt,
+          batch,
+          vectors,
+          sumSquaresAt + e0 * 8,
+          scaleAt + e0 * 8,
+          maskAt + e0 * 8,
+          normsAt,
+          1 / effectNorm2,
+          df,
+          rhs,
+          settings.upper ? 1 : 0,
+          settings.lower ? 1 : 0,
+          e0,
+          listsAt,
+          countsAt,
+          capacity,
+        );
+      }
+    };
+    return { weights, counts, lists, capacity, run };
+  }
+
+  /**
+   * The two-level path's screened batch: single-precision group sums against
+   * per-edge bounds (screening.ts groupSumBounds, with one tile of padding);
+   * undefined if that much WebAssembly memory is refused.
+   */
+  prepareGroupScreen(
+    data: KernelData,
+    batchSize: number,
+    groupSize: number,
+    bounds: { sLo: Float32Array; sHi: Float32Array },
+    capacity: number,
+  ): GroupScreenBatch | undefined {
+    const { subjects: S, edges: E, residuals } = data;
+    const T = this.screenGroupEdgesPerTile;
+    const W = this.blockWidth(S, E, T, GROUP_BLOCK_BYTES);
+    const G = groupSize;
+    const sLoAt = 0;
+    const sHiAt = alignUp(sLoAt + (E + T) * 4);
+    const membersAt = alignUp(sHiAt + (E + T) * 4);
+    const offsetsAt = alignUp(membersAt + batchSize * G * 4);
+    const blockAt = alignUp(offsetsAt + batchSize * G * 4);
+    const transposedAt = alignUp(blockAt + W * S * 8);
+    const singleAt = alignUp(transposedAt + W * S * 8);
+    const countsAt = alignUp(singleAt + W * S * 4);
+    const listsAt = alignUp(countsAt + batchSize * 4);
+    const end = listsAt + batchSize * capacity * 4;
+    if (!this.reserve(end)) return undefined;
+    const token = {};
+    this.current = token;
+    const buffer = this.exports.memory.buffer;
+    const sLo = new Float32Array(buffer, sLoAt, E + T);
+    const sHi = new Float32Array(buffer, sHiAt, E + T);
+    sLo.fill(-Infinity);
+    sHi.fill(Infinity);
+    sLo.set(bounds.sLo.subarray(0, E));
+    sHi.set(bounds.sHi.subarray(0, E));
+    const members = new Int32Array(buffer, membersAt, batchSize * G);
+    const offsets = new Int32Array(buffer, offsetsAt, batchSize * G);
+    const counts = new Int32Array(buffer, countsAt, batchSize);
+    const lists = new Int32Array(buffer, listsAt, batchSize * capacity);
+    const rowBytes = W * 4;
+    const run = (batch: number): void => {
+      if (this.current !== token) throw new Error("internal: a kernel batch was used after another was prepared on this thread");
+      counts.fill(0);
+      if (E === 0 || batch === 0) return;
+      for (let i = 0; i < batch * G; i++) offsets[i] = members[i] * rowBytes;
+      const f64 = this.f64;
+      for (let e0 = 0; e0 < E; e0 += W) {
+        const width = Math.min(W, E - e0);
+        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
+        this.exports.transposeBlock(blockAt, transposedAt, S, W);
+        this.exports.demoteBlock(transposedAt, singleAt, W * S);
+        this.exports.groupScreenBlock(singleAt, width, offsetsAt, G, batch, sLoAt + e0 * 4, sHiAt + e0 * 4, e0, listsAt, countsAt, capacity);
+      }
+    };
+    return { members, counts, lists, capacity, run };
+  }
+
+  /** Single-precision products of one tile of 4 edges (for tests; residuals edge-major, 4 × S): products[j·4 + p] for rows j. */
+  tileProducts32(weights: Float64Array, rows: number, S: number, residuals: Float64Array, products: Float32Array): boolean {
+    const RT = this.screenRowsPerTile;
+    const rowTiles = Math.ceil(rows / RT);
+    const panelAt = 0;
+    const residualsAt = alignUp(panelAt + rowTiles * RT * S * 4);
+    const productsAt = alignUp(residualsAt + 4 * S * 4);
+    if (!this.reserve(productsAt + rowTiles * RT * 4 * 4)) return false;
+    this.current = undefined;
+    this.packWeights32(weights, rows, S, rowTiles, panelAt);
+    const block = new Float32Array(this.exports.memory.buffer, residualsAt, 4 * S);
+    block.fill(0);
+    for (let p = 0; p < 4; p++) for (let s = 0; s < S && p * S + s < residuals.length; s++) block[s * 4 + p] = residuals[p * S + s];
+    this.exports.tileProducts32(panelAt, rowTiles, S, residualsAt, productsAt);
+    products.set(new Float32Array(this.exports.memory.buffer, productsAt, rows * 4));
+    return true;
   }
 
   /** Packs rows × S weights by row tiles: panel[t][s][r] = weights[(t·RT + r)·S + s], zero past the last row. */

@@ -29,17 +29,20 @@
 // in ascending order (f64x2 lanes = two edges; additions only), then forms
 //   a = (g − o)·sum + o·ΣR   and t as above with one vector.
 
+import { screenKernelFields } from "./screenKernelWat.mjs";
+
 /** Rows per f64x2 accumulator. */
 const LANES = 2;
 
 /**
- * @param {{ rowPairs: number, edgesPerTile: number, groupPairs: number }} tile
+ * @param {{ rowPairs: number, edgesPerTile: number, groupPairs: number, rowQuads: number, groupQuads: number }} tile
  *   rowPairs × edgesPerTile f64x2 accumulators (each holding two rows of one edge) for the products;
- *   groupPairs f64x2 accumulators (two edges each) for the group sums.
+ *   groupPairs f64x2 accumulators (two edges each) for the group sums; rowQuads and groupQuads
+ *   size the single-precision screen (screenKernelWat.mjs).
  *   V8 keeps 15 xmm registers for wasm on x64: accumulators + rowPairs weights + 2 temporaries must fit.
  * @returns {string} WebAssembly text
  */
-export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs }) {
+export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs, rowQuads, groupQuads }) {
   const R = rowPairs;
   const P = edgesPerTile;
   if (P % 2 !== 0) throw new Error("permuteKernelWat: edgesPerTile must be even (the statistics take edges in pairs)");
@@ -296,6 +299,7 @@ export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs }) {
   emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32)");
   emit(2, "(call $tileProducts (local.get $panel) (local.get $rowTiles) (local.get $S) (local.get $res) (local.get $prod))");
   emit(1, ")");
+  lines.push(...screenKernelFields({ rowQuads, groupQuads }));
   emit(0, ")");
   return lines.join("\n") + "\n";
 }

@@ -1,0 +1,322 @@
+// The screening half of the SIMD kernel (src/permute/screening.ts explains it): the
+// same sums as the exact kernel, in single precision (f32x4 lanes: twice the lanes
+// of f64x2), used only to decide which (relabeling, edge) pairs could possibly lie
+// above the lowest threshold. Those pairs are listed per relabeling; the caller
+// recomputes them in double precision with the reference order of operations, so
+// nothing a screen computes ever reaches a result.
+//
+// Memory layout (byte offsets from src/permute/kernels/wasmKernel.ts):
+//   panel32   weights packed by tiles of 4·rowQuads rows, f32: panel[t][s][r]
+//   res32     a block of edges in f32, interleaved by tiles of 4 edges (interleaveBlock of the
+//             copied f64 block): subject s of edge 4t + p at [(t·S + s)·4 + p]
+//   prod32    scratch of paddedRows × 4 f32: prod[j·4 + p]
+//   ss, l1    ‖R_e‖² and the per-edge error scale (f64), mask (64-bit valid masks),
+//             all with room for one tile past the last edge
+//   norms     ‖v_k‖∞ of each relabeled vector (f64)
+//   lists     per relabeling b: capacity i32 edge indices; counts: i32 per relabeling.
+//             A count above capacity means the list overflowed (the caller recomputes).
+//   sLo, sHi  the two-level path's per-edge bounds on the group sum (f32)
+
+/** Edges per tile of the screened products: one f32x4 holds four rows of one edge; the stores transpose 4 × 4. */
+const SCREEN_EDGES = 4;
+
+/**
+ * @param {{ rowQuads: number, groupQuads: number }} tile
+ *   rowQuads × 4 f32x4 accumulators for the products (4 rows each); groupQuads f32x4
+ *   accumulators (4 edges each) for the group sums.
+ * @returns {string[]} lines of WebAssembly text (module fields)
+ */
+export function screenKernelFields({ rowQuads, groupQuads }) {
+  const Q = rowQuads;
+  const P = SCREEN_EDGES;
+  const RT = 4 * Q;
+  const range = (n) => Array.from({ length: n }, (_, i) => i);
+  const acc = (k, p) => `$acc_${k}_${p}`;
+  const lines = [];
+  const emit = (indent, text) => lines.push("  ".repeat(indent) + text);
+  const lane32 = (vector, i) => [4 * i, 4 * i + 1, 4 * i + 2, 4 * i + 3].map((b) => b + 16 * vector);
+  const shuffle = (bytes, x, y) => `(i8x16.shuffle ${bytes.join(" ")} ${x} ${y})`;
+
+  emit(1, `(global (export "screenRowsPerTile") i32 (i32.const ${RT}))`);
+  emit(1, `(global (export "screenGroupEdgesPerTile") i32 (i32.const ${4 * groupQuads}))`);
+
+  // ---- f64 → f32, round to nearest (f32x4.demote_f64x2_zero rounds as f32.demote_f64 does) ----
+  emit(1, '(func $demote (export "demoteBlock") (param $src i32) (param $dst i32) (param $n i32)');
+  emit(2, "(local $end i32)");
+  emit(2, "(local.set $end (i32.add (local.get $src) (i32.shl (i32.and (local.get $n) (i32.const -4)) (i32.const 3))))");
+  emit(2, "(block $quadsDone");
+  emit(3, "(loop $quads");
+  emit(4, "(br_if $quadsDone (i32.ge_u (local.get $src) (local.get $end)))");
+  emit(
+    4,
+    `(v128.store (local.get $dst) ${shuffle([...lane32(0, 0), ...lane32(0, 1), ...lane32(1, 0), ...lane32(1, 1)], "(f32x4.demote_f64x2_zero (v128.load (local.get $src)))", "(f32x4.demote_f64x2_zero (v128.load offset=16 (local.get $src)))")})`,
+  );
+  emit(4, "(local.set $src (i32.add (local.get $src) (i32.const 32)))");
+  emit(4, "(local.set $dst (i32.add (local.get $dst) (i32.const 16)))");
+  emit(4, "(br $quads)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(2, "(local.set $end (i32.add (local.get $end) (i32.shl (i32.and (local.get $n) (i32.const 3)) (i32.const 3))))");
+  emit(2, "(block $restDone");
+  emit(3, "(loop $rest");
+  emit(4, "(br_if $restDone (i32.ge_u (local.get $src) (local.get $end)))");
+  emit(4, "(f32.store (local.get $dst) (f32.demote_f64 (f64.load (local.get $src))))");
+  emit(4, "(local.set $src (i32.add (local.get $src) (i32.const 8)))");
+  emit(4, "(local.set $dst (i32.add (local.get $dst) (i32.const 4)))");
+  emit(4, "(br $rest)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(1, ")");
+
+  // ---- f64 edge-major block → f32 interleaved by tiles of 4 edges: dst[(t·S + s)·4 + p] = src[(4t + p)·S + s] ----
+  emit(1, '(func (export "interleaveBlock") (param $src i32) (param $dst i32) (param $S i32) (param $tiles i32)');
+  emit(2, "(local $t i32) (local $s i32) (local $a i32) (local $stride i32)");
+  emit(2, "(local.set $stride (i32.shl (local.get $S) (i32.const 3)))");
+  emit(2, "(block $tilesDone");
+  emit(3, "(loop $tileLoop");
+  emit(4, "(br_if $tilesDone (i32.ge_u (local.get $t) (local.get $tiles)))");
+  emit(4, "(local.set $a (i32.add (local.get $src) (i32.mul (local.get $t) (i32.shl (local.get $stride) (i32.const 2)))))");
+  emit(4, "(local.set $s (i32.const 0))");
+  emit(4, "(block $subjectsDone");
+  emit(5, "(loop $subjectLoop");
+  emit(6, "(br_if $subjectsDone (i32.ge_u (local.get $s) (local.get $S)))");
+  for (const p of [0, 1, 2, 3]) {
+    const address = p === 0 ? "(local.get $a)" : `(i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const ${p})))`;
+    emit(6, `(f32.store offset=${4 * p} (local.get $dst) (f32.demote_f64 (f64.load ${address})))`);
+  }
+  emit(6, "(local.set $a (i32.add (local.get $a) (i32.const 8)))");
+  emit(6, "(local.set $dst (i32.add (local.get $dst) (i32.const 16)))");
+  emit(6, "(local.set $s (i32.add (local.get $s) (i32.const 1)))");
+  emit(6, "(br $subjectLoop)");
+  emit(5, ")");
+  emit(4, ")");
+  emit(4, "(local.set $t (i32.add (local.get $t) (i32.const 1)))");
+  emit(4, "(br $tileLoop)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(1, ")");
+
+  // ---- single-precision products of one tile of 4 edges against every row tile ----
+  emit(1, "(func $tileProducts32");
+  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32)");
+  emit(2, "(local $t i32) (local $wp i32) (local $end i32) (local $rp i32) (local $rowAt i32)");
+  for (const k of range(Q)) emit(2, `(local $w${k} v128)`);
+  emit(2, "(local $x v128) (local $t0 v128) (local $t1 v128) (local $t2 v128) (local $t3 v128)");
+  for (const k of range(Q)) for (const p of range(P)) emit(2, `(local ${acc(k, p)} v128)`);
+  emit(2, "(local.set $wp (local.get $panel))");
+  emit(2, "(block $rowsDone");
+  emit(3, "(loop $rows");
+  emit(4, "(br_if $rowsDone (i32.ge_u (local.get $t) (local.get $rowTiles)))");
+  for (const k of range(Q)) for (const p of range(P)) emit(4, `(local.set ${acc(k, p)} (v128.const f32x4 0 0 0 0))`);
+  emit(4, ";; the tile's residuals are interleaved (interleaveBlock): subject s of edge p at res + (s·4 + p)·4");
+  emit(4, "(local.set $rp (local.get $res))");
+  emit(4, `(local.set $end (i32.add (local.get $wp) (i32.mul (local.get $S) (i32.const ${RT * 4}))))`);
+  emit(4, "(block $subjectsDone");
+  emit(5, "(br_if $subjectsDone (i32.ge_u (local.get $wp) (local.get $end)))");
+  emit(5, "(loop $subjects");
+  for (const k of range(Q)) emit(6, `(local.set $w${k} (v128.load offset=${k * 16} (local.get $wp)))`);
+  for (const p of range(P)) {
+    emit(6, `(local.set $x (v128.load32_splat offset=${4 * p} (local.get $rp)))`);
+    for (const k of range(Q)) {
+      emit(6, `(local.set ${acc(k, p)} (f32x4.add (local.get ${acc(k, p)}) (f32x4.mul (local.get $w${k}) (local.get $x))))`);
+    }
+  }
+  emit(6, `(local.set $rp (i32.add (local.get $rp) (i32.const ${4 * P})))`);
+  emit(6, `(local.set $wp (i32.add (local.get $wp) (i32.const ${RT * 4})))`);
+  emit(6, "(br_if $subjects (i32.lt_u (local.get $wp) (local.get $end)))");
+  emit(5, ")");
+  emit(4, ")");
+  emit(4, ";; transpose each 4 rows × 4 edges block so that prod[j·4 + p] holds row j, edge p");
+  emit(4, `(local.set $rowAt (i32.add (local.get $prod) (i32.mul (local.get $t) (i32.const ${RT * P * 4}))))`);
+  for (const k of range(Q)) {
+    const a = (p) => `(local.get ${acc(k, p)})`;
+    emit(4, `(local.set $t0 ${shuffle([...lane32(0, 0), ...lane32(1, 0), ...lane32(0, 1), ...lane32(1, 1)], a(0), a(1))})`);
+    emit(4, `(local.set $t1 ${shuffle([...lane32(0, 2), ...lane32(1, 2), ...lane32(0, 3), ...lane32(1, 3)], a(0), a(1))})`);
+    emit(4, `(local.set $t2 ${shuffle([...lane32(0, 0), ...lane32(1, 0), ...lane32(0, 1), ...lane32(1, 1)], a(2), a(3))})`);
+    emit(4, `(local.set $t3 ${shuffle([...lane32(0, 2), ...lane32(1, 2), ...lane32(0, 3), ...lane32(1, 3)], a(2), a(3))})`);
+    const low = [...lane32(0, 0), ...lane32(0, 1), ...lane32(1, 0), ...lane32(1, 1)];
+    const high = [...lane32(0, 2), ...lane32(0, 3), ...lane32(1, 2), ...lane32(1, 3)];
+    const rowBytes = P * 4;
+    emit(4, `(v128.store offset=${(4 * k + 0) * rowBytes} (local.get $rowAt) ${shuffle(low, "(local.get $t0)", "(local.get $t2)")})`);
+    emit(4, `(v128.store offset=${(4 * k + 1) * rowBytes} (local.get $rowAt) ${shuffle(high, "(local.get $t0)", "(local.get $t2)")})`);
+    emit(4, `(v128.store offset=${(4 * k + 2) * rowBytes} (local.get $rowAt) ${shuffle(low, "(local.get $t1)", "(local.get $t3)")})`);
+    emit(4, `(v128.store offset=${(4 * k + 3) * rowBytes} (local.get $rowAt) ${shuffle(high, "(local.get $t1)", "(local.get $t3)")})`);
+  }
+  emit(4, "(local.set $t (i32.add (local.get $t) (i32.const 1)))");
+  emit(4, "(br $rows)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(1, ")");
+
+  // ---- append edge (first + i) to relabeling b's list; the count runs past capacity on overflow ----
+  emit(1, "(func $append (param $lists i32) (param $counts i32) (param $capacity i32) (param $b i32) (param $edge i32)");
+  emit(2, "(local $at i32) (local $n i32)");
+  emit(2, "(local.set $at (i32.add (local.get $counts) (i32.shl (local.get $b) (i32.const 2))))");
+  emit(2, "(local.set $n (i32.load (local.get $at)))");
+  emit(2, "(if (i32.lt_u (local.get $n) (local.get $capacity))");
+  emit(3, "(then (i32.store (i32.add (local.get $lists) (i32.shl (i32.add (i32.mul (local.get $b) (local.get $capacity)) (local.get $n)) (i32.const 2))) (local.get $edge))))");
+  emit(2, "(i32.store (local.get $at) (i32.add (local.get $n) (i32.const 1)))");
+  emit(1, ")");
+
+  // ---- screen one tile of 4 edges for every relabeling of the batch (double precision) ----
+  // With a, g_k the approximate products and δ_k = ‖v_k‖∞ · l1_e their error bounds:
+  //   A = |a| + δ_0,  G = Σ_{k≥1} (|g_k| + δ_k)²,  sseLow = ‖R‖² − A²/x̃'x̃ − G,
+  //   possible iff A²·df ≥ h²·x̃'x̃·sseLow (the sup of t over the box of products reaches h),
+  //   and the tail allows the sign (upper: a + δ_0 > 0; lower: a − δ_0 < 0), and the edge is valid.
+  emit(1, "(func $screenTile");
+  emit(2, "(param $prod i32) (param $count i32) (param $batch i32) (param $vectors i32)");
+  emit(2, "(param $ss i32) (param $l1 i32) (param $mask i32) (param $norms i32)");
+  emit(2, "(param $invNorm f64) (param $df f64) (param $rhs f64) (param $upper v128) (param $lower v128)");
+  emit(2, "(param $first i32) (param $lists i32) (param $counts i32) (param $capacity i32)");
+  emit(2, "(local $b i32) (local $k i32) (local $row i32) (local $g v128) (local $gd v128) (local $dfv v128) (local $rhsv v128) (local $inv v128)");
+  for (const q of [0, 1]) emit(2, `(local $ss${q} v128) (local $l1${q} v128) (local $mask${q} v128) (local $d0${q} v128) (local $a${q} v128) (local $A${q} v128) (local $G${q} v128) (local $c${q} v128)`);
+  emit(2, "(local.set $dfv (f64x2.splat (local.get $df)))");
+  emit(2, "(local.set $rhsv (f64x2.splat (local.get $rhs)))");
+  emit(2, "(local.set $inv (f64x2.splat (local.get $invNorm)))");
+  for (const q of [0, 1]) {
+    emit(2, `(local.set $ss${q} (v128.load offset=${q * 16} (local.get $ss)))`);
+    emit(2, `(local.set $l1${q} (v128.load offset=${q * 16} (local.get $l1)))`);
+    emit(2, `(local.set $mask${q} (v128.load offset=${q * 16} (local.get $mask)))`);
+    emit(2, `(local.set $d0${q} (f64x2.mul (local.get $l1${q}) (f64x2.splat (f64.load (local.get $norms)))))`);
+  }
+  emit(2, "(local.set $row (local.get $prod))");
+  emit(2, "(block $batchDone");
+  emit(3, "(loop $relabelings");
+  emit(4, "(br_if $batchDone (i32.ge_u (local.get $b) (local.get $batch)))");
+  for (const q of [0, 1]) {
+    emit(4, `(local.set $a${q} (f64x2.promote_low_f32x4 (v128.load64_zero offset=${q * 8} (local.get $row))))`);
+    emit(4, `(local.set $A${q} (f64x2.add (f64x2.abs (local.get $a${q})) (local.get $d0${q})))`);
+    emit(4, `(local.set $G${q} (v128.const f64x2 0 0))`);
+  }
+  emit(4, "(local.set $k (i32.const 1))");
+  emit(4, "(block $nuisanceDone");
+  emit(5, "(loop $nuisance");
+  emit(6, "(br_if $nuisanceDone (i32.ge_u (local.get $k) (local.get $vectors)))");
+  emit(6, "(local.set $gd (f64x2.splat (f64.load (i32.add (local.get $norms) (i32.shl (local.get $k) (i32.const 3))))))");
+  for (const q of [0, 1]) {
+    emit(6, `(local.set $g (f64x2.promote_low_f32x4 (v128.load64_zero offset=${q * 8} (i32.add (local.get $row) (i32.shl (local.get $k) (i32.const 4))))))`);
+    emit(6, `(local.set $g (f64x2.add (f64x2.abs (local.get $g)) (f64x2.mul (local.get $gd) (local.get $l1${q}))))`);
+    emit(6, `(local.set $G${q} (f64x2.add (local.get $G${q}) (f64x2.mul (local.get $g) (local.get $g))))`);
+  }
+  emit(6, "(local.set $k (i32.add (local.get $k) (i32.const 1)))");
+  emit(6, "(br $nuisance)");
+  emit(5, ")");
+  emit(4, ")");
+  for (const q of [0, 1]) {
+    const A2 = `(f64x2.mul (local.get $A${q}) (local.get $A${q}))`;
+    const sseLow = `(f64x2.sub (f64x2.sub (local.get $ss${q}) (f64x2.mul ${A2} (local.get $inv))) (local.get $G${q}))`;
+    const reaches = `(f64x2.ge (f64x2.mul ${A2} (local.get $dfv)) (f64x2.mul (local.get $rhsv) ${sseLow}))`;
+    const up = `(v128.and (local.get $upper) (f64x2.gt (f64x2.add (local.get $a${q}) (local.get $d0${q})) (v128.const f64x2 0 0)))`;
+    const down = `(v128.and (local.get $lower) (f64x2.lt (f64x2.sub (local.get $a${q}) (local.get $d0${q})) (v128.const f64x2 0 0)))`;
+    emit(4, `(local.set $c${q} (v128.and (v128.and ${reaches} (v128.or ${up} ${down})) (local.get $mask${q})))`);
+  }
+  emit(4, "(if (v128.any_true (v128.or (local.get $c0) (local.get $c1)))");
+  emit(5, "(then");
+  for (const q of [0, 1]) {
+    for (const lane of [0, 1]) {
+      const p = 2 * q + lane;
+      emit(
+        6,
+        `(if (i32.and (i64.ne (i64x2.extract_lane ${lane} (local.get $c${q})) (i64.const 0)) (i32.gt_u (local.get $count) (i32.const ${p}))) (then (call $append (local.get $lists) (local.get $counts) (local.get $capacity) (local.get $b) (i32.add (local.get $first) (i32.const ${p})))))`,
+      );
+    }
+  }
+  emit(5, ")");
+  emit(4, ")");
+  emit(4, `(local.set $row (i32.add (local.get $row) (i32.shl (local.get $vectors) (i32.const 4))))`);
+  emit(4, "(local.set $b (i32.add (local.get $b) (i32.const 1)))");
+  emit(4, "(br $relabelings)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(1, ")");
+
+  // ---- a block of edges: tiles of 4 edges, single-precision products then the screen ----
+  emit(1, '(func (export "screenBlock")');
+  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $width i32) (param $prod i32)");
+  emit(2, "(param $batch i32) (param $vectors i32) (param $ss i32) (param $l1 i32) (param $mask i32) (param $norms i32)");
+  emit(2, "(param $invNorm f64) (param $df f64) (param $rhs f64) (param $upper i32) (param $lower i32)");
+  emit(2, "(param $first i32) (param $lists i32) (param $counts i32) (param $capacity i32)");
+  emit(2, "(local $i i32) (local $count i32) (local $up v128) (local $down v128)");
+  emit(2, "(local.set $up (i64x2.splat (i64.sub (i64.const 0) (i64.extend_i32_u (local.get $upper)))))");
+  emit(2, "(local.set $down (i64x2.splat (i64.sub (i64.const 0) (i64.extend_i32_u (local.get $lower)))))");
+  emit(2, "(block $done");
+  emit(3, "(loop $tiles");
+  emit(4, "(br_if $done (i32.ge_u (local.get $i) (local.get $width)))");
+  emit(4, "(call $tileProducts32 (local.get $panel) (local.get $rowTiles) (local.get $S) (i32.add (local.get $res) (i32.shl (i32.mul (local.get $i) (local.get $S)) (i32.const 2))) (local.get $prod))");
+  emit(4, `(local.set $count (select (i32.const ${P}) (i32.sub (local.get $width) (local.get $i)) (i32.le_u (i32.add (local.get $i) (i32.const ${P})) (local.get $width))))`);
+  emit(
+    4,
+    "(call $screenTile (local.get $prod) (local.get $count) (local.get $batch) (local.get $vectors) (i32.add (local.get $ss) (i32.shl (local.get $i) (i32.const 3))) (i32.add (local.get $l1) (i32.shl (local.get $i) (i32.const 3))) (i32.add (local.get $mask) (i32.shl (local.get $i) (i32.const 3))) (local.get $norms) (local.get $invNorm) (local.get $df) (local.get $rhs) (local.get $up) (local.get $down) (i32.add (local.get $first) (local.get $i)) (local.get $lists) (local.get $counts) (local.get $capacity))",
+  );
+  emit(4, `(local.set $i (i32.add (local.get $i) (i32.const ${P})))`);
+  emit(4, "(br $tiles)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(1, ")");
+
+  // ---- the two-level path: single-precision group sums, screened against per-edge bounds ----
+  const GQ = groupQuads;
+  const GE = 4 * GQ;
+  emit(1, `;; group sums over each relabeling's group (offsets[b·groupSize + m] = s·W·4 into the f32 transposed block), ${GE} edges per tile;`);
+  emit(1, ";; (relabeling, edge) is listed when its sum reaches sHi_e or falls to sLo_e");
+  emit(1, '(func (export "groupScreenBlock")');
+  emit(2, "(param $blockT i32) (param $width i32) (param $offsets i32) (param $groupSize i32) (param $batch i32)");
+  emit(2, "(param $sLo i32) (param $sHi i32) (param $first i32) (param $lists i32) (param $counts i32) (param $capacity i32)");
+  emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $col i32) (local $row i32) (local $at i32) (local $c v128)");
+  for (const p of range(GQ)) emit(2, `(local $acc${p} v128)`);
+  emit(2, "(block $tilesDone");
+  emit(3, "(loop $tiles");
+  emit(4, "(br_if $tilesDone (i32.ge_u (local.get $i) (local.get $width)))");
+  emit(4, `(local.set $count (select (i32.const ${GE}) (i32.sub (local.get $width) (local.get $i)) (i32.le_u (i32.add (local.get $i) (i32.const ${GE})) (local.get $width))))`);
+  emit(4, "(local.set $at (i32.shl (local.get $i) (i32.const 2)))");
+  emit(4, "(local.set $col (i32.add (local.get $blockT) (local.get $at)))");
+  emit(4, "(local.set $m (local.get $offsets))");
+  emit(4, "(local.set $b (i32.const 0))");
+  emit(4, "(block $batchDone");
+  emit(5, "(loop $relabelings");
+  emit(6, "(br_if $batchDone (i32.ge_u (local.get $b) (local.get $batch)))");
+  for (const p of range(GQ)) emit(6, `(local.set $acc${p} (v128.const f32x4 0 0 0 0))`);
+  emit(6, "(local.set $mEnd (i32.add (local.get $m) (i32.shl (local.get $groupSize) (i32.const 2))))");
+  emit(6, "(block $membersDone");
+  emit(7, "(br_if $membersDone (i32.ge_u (local.get $m) (local.get $mEnd)))");
+  emit(7, "(loop $members");
+  emit(8, "(local.set $row (i32.add (local.get $col) (i32.load (local.get $m))))");
+  for (const p of range(GQ)) emit(8, `(local.set $acc${p} (f32x4.add (local.get $acc${p}) (v128.load offset=${p * 16} (local.get $row))))`);
+  emit(8, "(local.set $m (i32.add (local.get $m) (i32.const 4)))");
+  emit(8, "(br_if $members (i32.lt_u (local.get $m) (local.get $mEnd)))");
+  emit(7, ")");
+  emit(6, ")");
+  for (const p of range(GQ)) {
+    emit(
+      6,
+      `(local.set $c (v128.or (f32x4.ge (local.get $acc${p}) (v128.load offset=${p * 16} (i32.add (local.get $sHi) (local.get $at)))) (f32x4.le (local.get $acc${p}) (v128.load offset=${p * 16} (i32.add (local.get $sLo) (local.get $at))))))`,
+    );
+    emit(6, "(if (v128.any_true (local.get $c))");
+    emit(7, "(then");
+    for (const lane of range(4)) {
+      const e = 4 * p + lane;
+      emit(
+        8,
+        `(if (i32.and (i32.ne (i32x4.extract_lane ${lane} (local.get $c)) (i32.const 0)) (i32.gt_u (local.get $count) (i32.const ${e}))) (then (call $append (local.get $lists) (local.get $counts) (local.get $capacity) (local.get $b) (i32.add (i32.add (local.get $first) (local.get $i)) (i32.const ${e})))))`,
+      );
+    }
+    emit(7, ")");
+    emit(6, ")");
+  }
+  emit(6, "(local.set $b (i32.add (local.get $b) (i32.const 1)))");
+  emit(6, "(br $relabelings)");
+  emit(5, ")");
+  emit(4, ")");
+  emit(4, `(local.set $i (i32.add (local.get $i) (i32.const ${GE})))`);
+  emit(4, "(br $tiles)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(1, ")");
+
+  // ---- single-precision products only (for tests): prod[j·4 + p] for one tile of 4 edges ----
+  emit(1, '(func (export "tileProducts32")');
+  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32)");
+  emit(2, "(call $tileProducts32 (local.get $panel) (local.get $rowTiles) (local.get $S) (local.get $res) (local.get $prod))");
+  emit(1, ")");
+  return lines;
+}

@@ -1,0 +1,192 @@
+import { studentTUpperTail } from "../distributions/studentT.js";
+import type { KernelData } from "./permutedStatistics.js";
+import { statisticAt } from "./permutedStatistics.js";
+import { groupStatisticAt, residualSums, type TwoLevelEffect } from "./kernels/groupSums.js";
+import { screeningInstance, type KernelChoice } from "./kernels/selectKernel.js";
+import type { NullMaxima } from "./nullMaxima.js";
+import type { NullContext, NullRecorder } from "./nullRange.js";
+import { relabelingWriter } from "./relabelingWriter.js";
+import {
+  groupSumBounds,
+  residualScales,
+  screenThreshold,
+  screeningApplies,
+  tailSides,
+  vectorScales,
+  type ResidualScales,
+} from "./screening.js";
+
+/**
+ * The screened path (screening.ts explains why it is exact): per batch, the
+ * single-precision kernel lists for each relabeling the edges whose statistic
+ * could reach the lowest threshold; those are recomputed with the reference
+ * order of operations (statisticAt, groupStatisticAt) and measured
+ * (NullMaxima.measureListed). A relabeling whose list overflowed, or where no
+ * listed edge passes the threshold (so the largest statistic lies among the
+ * unlisted edges), is returned to be computed in full (nullRange.ts ExactRows). Every null row is the
+ * reference kernel's, bit for bit.
+ */
+export interface PreparedScreen {
+  batchSize: number;
+  counts: Int32Array;
+  lists: Int32Array;
+  capacity: number;
+  /** Edges listed for every relabeling (residuals the screen cannot bound), ascending. */
+  forced: Int32Array;
+  lowest: number;
+  run(batch: number): void;
+  /** Writes relabeling k into slot b of the batch. */
+  fill(k: number, b: number): void;
+  /** The reference statistic of slot b at edge e. */
+  exactAt(b: number, e: number): number;
+}
+
+/** Rows (relabelings × vectors) per screened batch: the f32 panel of weights stays in the level-2 cache. */
+const SCREEN_ROWS = 192;
+/** Relabelings per screened batch on the two-level path (the transposed block is made once per batch). */
+const GROUP_SCREEN_BATCH = 256;
+/** Listed edges expected per relabeling times this, plus a floor, is each list's capacity. */
+const CAPACITY_FACTOR = 8;
+const CAPACITY_FLOOR = 256;
+
+const scalesOf = new WeakMap<KernelData, ResidualScales>();
+const PADDING = 64;
+
+function scalesFor(data: KernelData): ResidualScales {
+  let scales = scalesOf.get(data);
+  if (!scales) {
+    scales = residualScales(data, PADDING);
+    scalesOf.set(data, scales);
+  }
+  return scales;
+}
+
+/** The screen for this context, or undefined where it does not apply (then every relabeling is computed in full). */
+export function prepareScreen(
+  context: NullContext,
+  level: TwoLevelEffect | undefined,
+  choice: KernelChoice | undefined,
+  capacityOverride?: number,
+): PreparedScreen | undefined {
+  const { kernel, vectors } = context;
+  if (context.enhancement || (kernel.effectVectors ?? 1) !== 1 || kernel.edges === 0) return undefined;
+  const thresholds = context.thresholds ?? [context.threshold];
+  const lowest = Math.min(...thresholds);
+  if (!screeningApplies(lowest, kernel.df)) return undefined;
+  const norms = vectorScales(vectors);
+  if (!norms) return undefined;
+  const instance = screeningInstance(choice);
+  if (!instance) return undefined;
+  const scales = scalesFor(kernel);
+  const E = kernel.edges;
+  const S = kernel.subjects;
+  const c = vectors.length;
+  const [upper, lower] = tailSides(context.tail);
+  const expected = Math.min(1, 2 * studentTUpperTail(lowest, kernel.df));
+  const capacity = capacityOverride ?? Math.min(E, Math.ceil(CAPACITY_FACTOR * expected * E) + CAPACITY_FLOOR);
+  const writer = relabelingWriter(context);
+  if (level) {
+    const sums = residualSums(kernel);
+    const bounds = groupSumBounds(kernel, level, sums, scales, lowest, context.tail, PADDING);
+    const batch = instance.prepareGroupScreen(kernel, GROUP_SCREEN_BATCH, level.groupSize, bounds, capacity);
+    if (!batch) return undefined;
+    const G = level.groupSize;
+    return {
+      batchSize: GROUP_SCREEN_BATCH,
+      counts: batch.counts,
+      lists: batch.lists,
+      capacity,
+      forced: scales.forced,
+      lowest,
+      run: batch.run,
+      fill: (k, b) => writer.members(k, b, batch.members, level),
+      exactAt: (b, e) => groupStatisticAt(kernel, level, sums, batch.members, b * G, e),
+    };
+  }
+  const batchSize = Math.max(1, Math.floor(SCREEN_ROWS / c));
+  const batch = instance.prepareScreen(kernel, batchSize, c, {
+    scale: scales.scale,
+    valid: screenedEdges(kernel.valid, scales.forced),
+    norms,
+    threshold: screenThreshold(lowest),
+    upper,
+    lower,
+    capacity,
+  });
+  if (!batch) return undefined;
+  return {
+    batchSize,
+    counts: batch.counts,
+    lists: batch.lists,
+    capacity,
+    forced: scales.forced,
+    lowest,
+    run: batch.run,
+    fill: (k, b) => writer.weights(k, b, batch.weights),
+    exactAt: (b, e) => statisticAt(kernel, batch.weights, b * c * S, c, e),
+  };
+}
+
+/** The valid flags without the forced edges (those are listed separately, never by the kernel). */
+function screenedEdges(valid: Uint8Array, forced: Int32Array): Uint8Array {
+  if (forced.length === 0) return valid;
+  const out = Uint8Array.from(valid);
+  for (const e of forced) out[e] = 0;
+  return out;
+}
+
+/** Relabelings from..to−1 through the screen; returns those it cannot settle (to be computed in full). */
+export function screenedRows(
+  context: NullContext,
+  screen: PreparedScreen,
+  maxima: NullMaxima,
+  record: NullRecorder,
+  from: number,
+  to: number,
+): number[] {
+  const E = context.kernel.edges;
+  const { counts, lists, capacity, forced, lowest } = screen;
+  const values = new Float64Array(E);
+  const listed = new Int32Array(capacity + forced.length);
+  const extra = new Float64Array(maxima.extraNames.length);
+  const unsettled: number[] = [];
+  for (let k = from; k < to; ) {
+    const batch = Math.min(screen.batchSize, to - k);
+    for (let b = 0; b < batch; b++) screen.fill(k + b, b);
+    screen.run(batch);
+    for (let b = 0; b < batch; b++) {
+      const n = counts[b];
+      if (n > capacity) {
+        unsettled.push(k + b);
+        continue;
+      }
+      const count = mergeAscending(lists, b * capacity, n, forced, listed);
+      for (let i = 0; i < count; i++) {
+        const e = listed[i];
+        values[e] = screen.exactAt(b, e);
+      }
+      const measured = maxima.measureListed(values, listed, count, extra);
+      // Unlisted edges are below the lowest threshold: the largest statistic is listed only if one passes it.
+      if (measured.maxStatistic > lowest) record(k + b, measured, extra);
+      else unsettled.push(k + b);
+    }
+    k += batch;
+  }
+  return unsettled;
+}
+
+/** Merges list[start … start+n) and forced (both ascending, disjoint) into out; returns the count. */
+function mergeAscending(list: Int32Array, start: number, n: number, forced: Int32Array, out: Int32Array): number {
+  if (forced.length === 0) {
+    out.set(list.subarray(start, start + n));
+    return n;
+  }
+  let i = 0;
+  let j = 0;
+  let o = 0;
+  while (i < n || j < forced.length) {
+    if (j >= forced.length || (i < n && list[start + i] < forced[j])) out[o++] = list[start + i++];
+    else out[o++] = forced[j++];
+  }
+  return o;
+}

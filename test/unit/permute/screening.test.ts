@@ -1,0 +1,188 @@
+// The single-precision screen (src/permute/screening.ts, screenedRange.ts) must
+// leave every null row exactly as the plain TypeScript kernel computes it
+// (src/permute/permutedStatistics.ts and kernels/groupSums.ts, themselves checked
+// against naive refits with ml-matrix in freedmanLane.test.ts). The comparisons
+// are bit for bit (tolerance 0). The error bound the screen relies on is checked
+// against ml-matrix's double-precision product (a general-purpose library) and
+// Math.fround (the IEEE 754 single-precision rounding of the JavaScript standard).
+import seedrandom from "seedrandom";
+import { Matrix } from "ml-matrix";
+import { describe, expect, it } from "vitest";
+import { computeNullRange, type NullChunk, type NullContext, type ScreenTally } from "../../../src/permute/nullRange.js";
+import { permutedStatistics } from "../../../src/permute/permutedStatistics.js";
+import { relabelingWriter } from "../../../src/permute/relabelingWriter.js";
+import { WasmPermutationKernel } from "../../../src/permute/kernels/wasmKernel.js";
+import { float32AtLeast, float32AtMost, gamma, residualScales, screeningApplies } from "../../../src/permute/screening.js";
+import { nullContext, type NullContextOptions } from "./nullContextFixture.js";
+
+function bitsDiffer(a: Float64Array, b: Float64Array): string | undefined {
+  for (let i = 0; i < a.length; i++) {
+    if (!Object.is(a[i], b[i])) return `relabeling ${i + 1}: screened ${a[i]}, reference ${b[i]}, difference ${a[i] - b[i]}, tolerance 0 (bit-identical)`;
+  }
+  return a.length === b.length ? undefined : `lengths ${a.length} vs ${b.length}`;
+}
+
+function expectSameNull(actual: NullChunk, expected: NullChunk, label: string): void {
+  for (const key of ["maxExtent", "maxMass", "maxStatistic"] as const) {
+    const miss = bitsDiffer(actual[key], expected[key]);
+    if (miss) throw new Error(`${label}: ${key} differs from the TypeScript reference kernel\n  ${miss}`);
+  }
+  expect(actual.extraNames).toEqual(expected.extraNames);
+  actual.extra.forEach((column, j) => {
+    const miss = bitsDiffer(column, expected.extra[j]);
+    if (miss) throw new Error(`${label}: ${expected.extraNames[j]} differs from the TypeScript reference kernel\n  ${miss}`);
+  });
+}
+
+/** Screened null against the reference, with the tally of how many relabelings the screen settled. */
+function compare(context: NullContext, label: string, capacity?: number): ScreenTally {
+  const to = context.plan.count + 1;
+  const reference = computeNullRange(context, 1, to, { kernel: "typescript" });
+  const tally: ScreenTally = { screened: 0, full: 0 };
+  const screened = computeNullRange(context, 1, to, { kernel: "wasm", tally, screenCapacity: capacity });
+  expectSameNull(screened, reference, label);
+  // Another split of the range gives the same rows (batch boundaries move).
+  const head = computeNullRange(context, 1, 38, { kernel: "wasm" });
+  const rest = computeNullRange(context, 38, to, { kernel: "wasm" });
+  const joined = Float64Array.from([...head.maxMass, ...rest.maxMass]);
+  const miss = bitsDiffer(joined, reference.maxMass);
+  if (miss) throw new Error(`${label}, split at 38: maxMass differs\n  ${miss}`);
+  return tally;
+}
+
+describe("single-precision rounding helpers", () => {
+  it("float32AtMost / float32AtLeast give the nearest single-precision values below / above (checked with Math.fround)", () => {
+    const random = seedrandom("f32-bounds");
+    const cases = [0, -0, 1, -1, 1 / 3, -1 / 3, 1e-45, -1e-45, 1e-50, -1e-50, 3.5e38, -3.5e38, Infinity, -Infinity, 2 ** -149];
+    for (let i = 0; i < 2000; i++) cases.push((random() - 0.5) * 10 ** Math.floor(random() * 80 - 40));
+    for (const x of cases) {
+      const low = float32AtMost(x);
+      const high = float32AtLeast(x);
+      expect(Math.fround(low), `${x}: float32AtMost is a single-precision value`).toBe(low);
+      expect(Math.fround(high), `${x}: float32AtLeast is a single-precision value`).toBe(high);
+      expect(low <= x && x <= high, `${x}: ${low} ≤ x ≤ ${high}`).toBe(true);
+      // Nothing single-precision lies strictly between: the midpoint rounds to one of them.
+      if (low !== high) {
+        const mid = low / 2 + high / 2;
+        const rounded = Math.fround(mid);
+        expect(rounded === low || rounded === high, `${x}: no single-precision value between ${low} and ${high}`).toBe(true);
+      }
+    }
+  });
+
+  it("γ_n = n·u/(1 − n·u) (Higham 2002, Lemma 3.1)", () => {
+    expect(gamma(10, 2 ** -24)).toBe((10 * 2 ** -24) / (1 - 10 * 2 ** -24));
+    expect(gamma(2 ** 24, 2 ** -24)).toBe(Infinity);
+  });
+
+  it("screening applies only where few edges pass and the statistic is well conditioned (two-sided Student t tail ≤ 5%)", () => {
+    // t(0.975, 30) = 2.042 (NIST/SEMATECH e-Handbook t table, from memory): the two-sided tail at 2.0 is just above 5%.
+    expect(screeningApplies(2.0, 30)).toBe(false);
+    expect(screeningApplies(2.1, 30)).toBe(true);
+    expect(screeningApplies(3, 200)).toBe(true);
+    expect(screeningApplies(150, 1)).toBe(false);
+    expect(screeningApplies(3, 0)).toBe(false);
+  });
+});
+
+describe("the single-precision products stay within the bound the screen assumes", () => {
+  it("|f32 product − exact| ≤ κ·‖w‖∞·‖r‖₁ against ml-matrix's double-precision product", () => {
+    const kernel = WasmPermutationKernel.create();
+    if (!kernel) throw new Error("no WebAssembly SIMD in this Node");
+    const random = seedrandom("f32-products");
+    for (const S of [1, 7, 64, 203]) {
+      const rows = 11;
+      const weights = Float64Array.from({ length: rows * S }, () => (random() - 0.5) * 10 ** Math.floor(random() * 4 - 2));
+      const residuals = Float64Array.from({ length: 4 * S }, () => (random() - 0.5) * 10 ** Math.floor(random() * 6 - 3));
+      const products = new Float32Array(rows * 4);
+      expect(kernel.tileProducts32(weights, rows, S, residuals, products)).toBe(true);
+      const exact = new Matrix(rows, S);
+      for (let j = 0; j < rows; j++) for (let s = 0; s < S; s++) exact.set(j, s, weights[j * S + s]);
+      const r = new Matrix(S, 4);
+      for (let p = 0; p < 4; p++) for (let s = 0; s < S; s++) r.set(s, p, residuals[p * S + s]);
+      const reference = exact.mmul(r);
+      const scales = residualScales(
+        { subjects: S, edges: 4, residuals, sumSquares: new Float64Array(4), valid: new Uint8Array(4).fill(1), effectNorm2: 1, df: 1 },
+        0,
+      );
+      for (let j = 0; j < rows; j++) {
+        let norm = 0;
+        for (let s = 0; s < S; s++) norm = Math.max(norm, Math.abs(weights[j * S + s]));
+        for (let p = 0; p < 4; p++) {
+          const difference = Math.abs(products[j * 4 + p] - reference.get(j, p));
+          const bound = norm * scales.scale[p];
+          if (!(difference <= bound)) {
+            throw new Error(`S=${S}, row ${j}, edge ${p}: f32 ${products[j * 4 + p]}, ml-matrix ${reference.get(j, p)}, difference ${difference}, bound (tolerance) ${bound}`);
+          }
+        }
+      }
+    }
+  });
+});
+
+describe("the screened null equals the reference null, bit for bit", () => {
+  const base = { S: 48, regions: 40, permutations: 150 };
+  const cases: (NullContextOptions & { label: string })[] = [
+    { ...base, label: "covariates (products path), two-tailed", scheme: "permute", covariates: true, thresholds: [2.6] },
+    { ...base, label: "covariates, upper tail", scheme: "permute", covariates: true, thresholds: [2.4], tail: "upper" },
+    { ...base, label: "covariates, lower tail", scheme: "permute", covariates: true, thresholds: [2.4], tail: "lower" },
+    { ...base, label: "two groups only (group-sum path), two-tailed", scheme: "permute", covariates: false, thresholds: [2.6] },
+    { ...base, label: "two groups only, upper tail", scheme: "permute", covariates: false, thresholds: [2.3], tail: "upper" },
+    { ...base, label: "two groups only, lower tail", scheme: "permute", covariates: false, thresholds: [2.3], tail: "lower" },
+    { ...base, label: "sign flips", scheme: "sign-flip", covariates: false, thresholds: [2.3] },
+    { ...base, label: "threshold sweep", scheme: "permute", covariates: true, thresholds: [3, 2.5, 3.5] },
+    { ...base, label: "group-sum path, threshold sweep", scheme: "permute", covariates: false, thresholds: [3, 2.5, 3.5] },
+  ];
+  for (const options of cases) {
+    it(options.label, () => {
+      const context = nullContext(options);
+      const tally = compare(context, options.label);
+      // The screen must actually have settled most relabelings, or this test would compare the full path with itself.
+      expect(tally.screened, `settled by the screen: ${tally.screened}, computed in full: ${tally.full}`).toBeGreaterThan(tally.full);
+    });
+  }
+
+  it("a threshold equal to a permuted statistic (a tie at the threshold) and the next value above it", () => {
+    for (const covariates of [true, false]) {
+      const context = nullContext({ ...base, scheme: "permute", covariates, thresholds: [2.5] });
+      // The reference statistics of relabeling 5: take its third-largest |t| as the threshold.
+      const reference = computeNullRange(context, 5, 6, { kernel: "typescript" });
+      expect(reference.maxStatistic[0]).toBeGreaterThan(0);
+      const weights = new Float64Array(context.vectors.length * context.kernel.subjects);
+      const out = new Float64Array(context.kernel.edges);
+      // Relabeling 5's vectors, as the engine writes them.
+      relabelingWriter(context).weights(5, 0, weights);
+      permutedStatistics(context.kernel, weights, 1, context.vectors.length, out);
+      const sorted = Array.from(out, Math.abs).filter(Number.isFinite).sort((a, b) => b - a);
+      for (const threshold of [sorted[2], sorted[2] * (1 + 2 ** -52)]) {
+        const tied = { ...context, threshold, thresholds: [threshold] };
+        compare(tied, `covariates ${covariates}, threshold ${threshold}`);
+      }
+    }
+  });
+
+  it("edges whose residuals are out of the screen's range are recomputed for every relabeling", () => {
+    const context = nullContext({ ...base, scheme: "permute", covariates: true, thresholds: [2.6] });
+    const { kernel } = context;
+    const S = kernel.subjects;
+    // Scale two edges' residuals by powers of two (exact): tiny and huge; t is unchanged.
+    const residuals = Float64Array.from(kernel.residuals);
+    const sumSquares = Float64Array.from(kernel.sumSquares);
+    for (const [e, factor] of [
+      [5, 2 ** -60],
+      [9, 2 ** 60],
+    ] as const) {
+      for (let s = 0; s < S; s++) residuals[e * S + s] *= factor;
+      sumSquares[e] *= factor * factor;
+    }
+    const scaled = { ...context, kernel: { ...kernel, residuals, sumSquares } };
+    expect(Array.from(residualScales(scaled.kernel, 0).forced)).toEqual([5, 9]);
+    compare(scaled, "out-of-range edges");
+  });
+
+  it("a list that overflows its capacity sends the relabeling to the full computation", () => {
+    const context = nullContext({ ...base, scheme: "permute", covariates: true, thresholds: [2.4] });
+    const tally = compare(context, "capacity 3", 3);
+    expect(tally.full).toBeGreaterThan(0);
+  });
+});
