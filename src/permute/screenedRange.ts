@@ -35,6 +35,8 @@ export interface PreparedScreen {
   forced: Int32Array;
   lowest: number;
   run(batch: number): void;
+  /** Screens the next runs against another (lower) threshold. */
+  retarget(threshold: number): void;
   /** Writes relabeling k into slot b of the batch. */
   fill(k: number, b: number): void;
   /** The reference statistic of slot b at edge e. */
@@ -99,6 +101,7 @@ export function prepareScreen(
       forced: scales.forced,
       lowest,
       run: batch.run,
+      retarget: (threshold) => batch.setBounds(groupSumBounds(kernel, level, sums, scales, threshold, context.tail, PADDING)),
       fill: (k, b) => writer.members(k, b, batch.members, level),
       exactAt: (b, e) => groupStatisticAt(kernel, level, sums, batch.members, b * G, e),
     };
@@ -122,6 +125,7 @@ export function prepareScreen(
     forced: scales.forced,
     lowest,
     run: batch.run,
+    retarget: (threshold) => batch.setThreshold(screenThreshold(threshold)),
     fill: (k, b) => writer.weights(k, b, batch.weights),
     exactAt: (b, e) => statisticAt(kernel, batch.weights, b * c * S, c, e),
   };
@@ -135,7 +139,17 @@ function screenedEdges(valid: Uint8Array, forced: Int32Array): Uint8Array {
   return out;
 }
 
-/** Relabelings from..to−1 through the screen; returns those it cannot settle (to be computed in full). */
+/** Each retry lowers the screen's threshold by this factor, for relabelings where no listed edge passed. */
+const RETRY_FACTOR = 0.8;
+const RETRIES = 2;
+
+/**
+ * Relabelings from..to−1 through the screen; returns those it cannot settle
+ * (to be computed in full). A relabeling where no listed edge passes the
+ * threshold has its largest statistic among the unlisted edges; it is screened
+ * again against lower thresholds (while screening still applies), where the
+ * largest statistic then passes and is listed.
+ */
 export function screenedRows(
   context: NullContext,
   screen: PreparedScreen,
@@ -144,35 +158,65 @@ export function screenedRows(
   from: number,
   to: number,
 ): number[] {
+  const full: number[] = [];
+  let pending = Array.from({ length: to - from }, (_, i) => from + i);
+  let threshold = screen.lowest;
+  for (let attempt = 0; pending.length > 0; attempt++) {
+    if (attempt > 0) {
+      threshold *= RETRY_FACTOR;
+      if (attempt > RETRIES || !screeningApplies(threshold, context.kernel.df)) {
+        full.push(...pending);
+        break;
+      }
+      screen.retarget(threshold);
+    }
+    const { passed, overflowed } = screenList(context, screen, maxima, record, pending, threshold);
+    full.push(...overflowed);
+    pending = passed;
+  }
+  return full.sort((a, b) => a - b);
+}
+
+/** Screens the listed relabelings against `threshold`; returns those with no listed edge above it, and those whose list overflowed. */
+function screenList(
+  context: NullContext,
+  screen: PreparedScreen,
+  maxima: NullMaxima,
+  record: NullRecorder,
+  ks: number[],
+  threshold: number,
+): { passed: number[]; overflowed: number[] } {
   const E = context.kernel.edges;
-  const { counts, lists, capacity, forced, lowest } = screen;
+  const { counts, lists, capacity, forced } = screen;
   const values = new Float64Array(E);
   const listed = new Int32Array(capacity + forced.length);
   const extra = new Float64Array(maxima.extraNames.length);
-  const unsettled: number[] = [];
-  for (let k = from; k < to; ) {
-    const batch = Math.min(screen.batchSize, to - k);
-    for (let b = 0; b < batch; b++) screen.fill(k + b, b);
+  const passed: number[] = [];
+  const overflowed: number[] = [];
+  for (let i = 0; i < ks.length; ) {
+    const batch = Math.min(screen.batchSize, ks.length - i);
+    for (let b = 0; b < batch; b++) screen.fill(ks[i + b], b);
     screen.run(batch);
     for (let b = 0; b < batch; b++) {
+      const k = ks[i + b];
       const n = counts[b];
       if (n > capacity) {
-        unsettled.push(k + b);
+        overflowed.push(k);
         continue;
       }
       const count = mergeAscending(lists, b * capacity, n, forced, listed);
-      for (let i = 0; i < count; i++) {
-        const e = listed[i];
+      for (let j = 0; j < count; j++) {
+        const e = listed[j];
         values[e] = screen.exactAt(b, e);
       }
       const measured = maxima.measureListed(values, listed, count, extra);
-      // Unlisted edges are below the lowest threshold: the largest statistic is listed only if one passes it.
-      if (measured.maxStatistic > lowest) record(k + b, measured, extra);
-      else unsettled.push(k + b);
+      // Unlisted edges are below `threshold`: the largest statistic is listed only if one passes it.
+      if (measured.maxStatistic > threshold) record(k, measured, extra);
+      else passed.push(k);
     }
-    k += batch;
+    i += batch;
   }
-  return unsettled;
+  return { passed, overflowed };
 }
 
 /** Merges list[start … start+n) and forced (both ascending, disjoint) into out; returns the count. */

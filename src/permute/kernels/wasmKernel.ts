@@ -168,6 +168,8 @@ export interface ScreenBatch {
   lists: Int32Array;
   capacity: number;
   run(batch: number): void;
+  /** Screens the next runs against another threshold. */
+  setThreshold(threshold: number): void;
 }
 
 /** The two-level path's screened batch: fill `members`, run, read counts and lists as for ScreenBatch. */
@@ -177,6 +179,8 @@ export interface GroupScreenBatch {
   lists: Int32Array;
   capacity: number;
   run(batch: number): void;
+  /** Screens the next runs against other bounds (another threshold). */
+  setBounds(bounds: { sLo: Float32Array; sHi: Float32Array }): void;
 }
 
 /** What the products screen needs beyond the kernel data. */
@@ -193,6 +197,15 @@ export interface ScreenSettings {
   lower: boolean;
   capacity: number;
 }
+
+/**
+ * Up to this many bytes of single-precision residuals stay in a screening
+ * instance's memory for the whole run (no copy per batch); larger data (1,000
+ * regions × 500 subjects) are copied in block by block for each batch instead.
+ */
+const RESIDENT_BYTES = 160 * 1024 * 1024;
+/** The resident limit in force (tests lower it to exercise the block-by-block path). */
+export const screenMemory = { residentBytes: RESIDENT_BYTES };
 
 /** Bytes of residuals per block on the two-level path (copied, then transposed beside the copy). */
 const GROUP_BLOCK_BYTES = 128 * 1024;
@@ -211,6 +224,8 @@ export class WasmPermutationKernel {
   private readonly exports: KernelExports;
   private f64 = new Float64Array(0);
   private current: object | undefined;
+  /** Residuals kept in single precision at offset 0 across screened batches: whose, and in which layout. */
+  private resident: { data: KernelData; layout: string } | undefined;
 
   private constructor(exports: KernelExports) {
     this.exports = exports;
@@ -223,6 +238,12 @@ export class WasmPermutationKernel {
     if (!api || !wasmSimdSupported()) return undefined;
     const instance = new api.Instance(new api.Module(kernelBytes()), {});
     return new WasmPermutationKernel(instance.exports as unknown as KernelExports);
+  }
+
+  /** Marks memory as used by a new batch (or a test call); residuals kept resident survive only a screen's own re-preparation. */
+  private claim(token: object | undefined, keepResident = false): void {
+    this.current = token;
+    if (!keepResident) this.resident = undefined;
   }
 
   private refreshViews(): void {
@@ -290,7 +311,12 @@ export class WasmPermutationKernel {
     const paddedRows = Math.max(1, Math.ceil((batchSize * vectors) / RT)) * RT;
     const W = this.blockWidth(S, E, P);
     const { capacity } = settings;
-    const sumSquaresAt = 0;
+    // Residuals of up to RESIDENT_BYTES stay in memory in single precision, interleaved, for every batch of the run.
+    const tiles = Math.ceil(E / P);
+    const residentBytes = tiles * P * S * 4;
+    const resident = residentBytes <= screenMemory.residentBytes;
+    const layout = `interleaved:${S}:${E}`;
+    const sumSquaresAt = resident ? alignUp(residentBytes) : 0;
     const scaleAt = alignUp(sumSquaresAt + (E + P) * 8);
     const maskAt = alignUp(scaleAt + (E + P) * 8);
     const normsAt = alignUp(maskAt + (E + P) * 8);
@@ -303,7 +329,16 @@ export class WasmPermutationKernel {
     const end = listsAt + batchSize * capacity * 4;
     if (!this.reserve(end)) return undefined;
     const token = {};
-    this.current = token;
+    const kept = resident && this.resident?.data === data && this.resident.layout === layout;
+    this.claim(token, kept);
+    if (resident && !kept) {
+      for (let e0 = 0; e0 < E; e0 += W) {
+        const width = Math.min(W, E - e0);
+        this.f64.set(residuals.subarray(e0 * S, (e0 + width) * S), stagingAt / 8);
+        this.exports.interleaveBlock(stagingAt, e0 * S * 4, S, Math.ceil(width / P));
+      }
+      this.resident = { data, layout };
+    }
     this.f64.set(data.sumSquares, sumSquaresAt / 8);
     this.f64.fill(0, sumSquaresAt / 8 + E, sumSquaresAt / 8 + E + P);
     this.f64.set(settings.scale.subarray(0, E), scaleAt / 8);
@@ -313,7 +348,7 @@ export class WasmPermutationKernel {
     const counts = new Int32Array(buffer, countsAt, batchSize);
     const lists = new Int32Array(buffer, listsAt, batchSize * capacity);
     const weights = new Float64Array(batchSize * vectors * S);
-    const rhs = settings.threshold * settings.threshold * effectNorm2;
+    let rhs = settings.threshold * settings.threshold * effectNorm2;
     const run = (batch: number): void => {
       if (this.current !== token) throw new Error("internal: a kernel batch was used after another was prepared on this thread");
       counts.fill(0);
@@ -324,13 +359,17 @@ export class WasmPermutationKernel {
       const f64 = this.f64;
       for (let e0 = 0; e0 < E; e0 += W) {
         const width = Math.min(W, E - e0);
-        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), stagingAt / 8);
-        this.exports.interleaveBlock(stagingAt, residualsAt, S, Math.ceil(width / P));
+        let block = e0 * S * 4;
+        if (!resident) {
+          f64.set(residuals.subarray(e0 * S, (e0 + width) * S), stagingAt / 8);
+          this.exports.interleaveBlock(stagingAt, residualsAt, S, Math.ceil(width / P));
+          block = residualsAt;
+        }
         this.exports.screenBlock(
           panelAt,
           rowTiles,
           S,
-          residualsAt,
+          block,
           width,
           productsAt,
           batch,
@@ -351,7 +390,10 @@ export class WasmPermutationKernel {
         );
       }
     };
-    return { weights, counts, lists, capacity, run };
+    const setThreshold = (threshold: number): void => {
+      rhs = threshold * threshold * effectNorm2;
+    };
+    return { weights, counts, lists, capacity, run, setThreshold };
   }
 
   /**
@@ -370,7 +412,12 @@ export class WasmPermutationKernel {
     const T = this.screenGroupEdgesPerTile;
     const W = this.blockWidth(S, E, T, GROUP_BLOCK_BYTES);
     const G = groupSize;
-    const sLoAt = 0;
+    // The transposed single-precision residuals stay in memory (block after block) when they fit in RESIDENT_BYTES.
+    const blocks = Math.ceil(E / W);
+    const residentBytes = blocks * W * S * 4;
+    const resident = residentBytes <= screenMemory.residentBytes;
+    const layout = `transposed:${S}:${E}:${W}`;
+    const sLoAt = resident ? alignUp(residentBytes) : 0;
     const sHiAt = alignUp(sLoAt + (E + T) * 4);
     const membersAt = alignUp(sHiAt + (E + T) * 4);
     const offsetsAt = alignUp(membersAt + batchSize * G * 4);
@@ -382,14 +429,27 @@ export class WasmPermutationKernel {
     const end = listsAt + batchSize * capacity * 4;
     if (!this.reserve(end)) return undefined;
     const token = {};
-    this.current = token;
+    const kept = resident && this.resident?.data === data && this.resident.layout === layout;
+    this.claim(token, kept);
+    if (resident && !kept) {
+      for (let e0 = 0, j = 0; e0 < E; e0 += W, j++) {
+        const width = Math.min(W, E - e0);
+        this.f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
+        this.exports.transposeBlock(blockAt, transposedAt, S, W);
+        this.exports.demoteBlock(transposedAt, j * W * S * 4, W * S);
+      }
+      this.resident = { data, layout };
+    }
     const buffer = this.exports.memory.buffer;
     const sLo = new Float32Array(buffer, sLoAt, E + T);
     const sHi = new Float32Array(buffer, sHiAt, E + T);
-    sLo.fill(-Infinity);
-    sHi.fill(Infinity);
-    sLo.set(bounds.sLo.subarray(0, E));
-    sHi.set(bounds.sHi.subarray(0, E));
+    const setBounds = (next: { sLo: Float32Array; sHi: Float32Array }): void => {
+      sLo.fill(-Infinity);
+      sHi.fill(Infinity);
+      sLo.set(next.sLo.subarray(0, E));
+      sHi.set(next.sHi.subarray(0, E));
+    };
+    setBounds(bounds);
     const members = new Int32Array(buffer, membersAt, batchSize * G);
     const offsets = new Int32Array(buffer, offsetsAt, batchSize * G);
     const counts = new Int32Array(buffer, countsAt, batchSize);
@@ -403,13 +463,17 @@ export class WasmPermutationKernel {
       const f64 = this.f64;
       for (let e0 = 0; e0 < E; e0 += W) {
         const width = Math.min(W, E - e0);
-        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
-        this.exports.transposeBlock(blockAt, transposedAt, S, W);
-        this.exports.demoteBlock(transposedAt, singleAt, W * S);
-        this.exports.groupScreenBlock(singleAt, width, offsetsAt, G, batch, sLoAt + e0 * 4, sHiAt + e0 * 4, e0, listsAt, countsAt, capacity);
+        let single = (e0 / W) * W * S * 4;
+        if (!resident) {
+          f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
+          this.exports.transposeBlock(blockAt, transposedAt, S, W);
+          this.exports.demoteBlock(transposedAt, singleAt, W * S);
+          single = singleAt;
+        }
+        this.exports.groupScreenBlock(single, width, offsetsAt, G, batch, sLoAt + e0 * 4, sHiAt + e0 * 4, e0, listsAt, countsAt, capacity);
       }
     };
-    return { members, counts, lists, capacity, run };
+    return { members, counts, lists, capacity, run, setBounds };
   }
 
   /** Single-precision products of one tile of 4 edges (for tests; residuals edge-major, 4 × S): products[j·4 + p] for rows j. */
@@ -420,7 +484,7 @@ export class WasmPermutationKernel {
     const residualsAt = alignUp(panelAt + rowTiles * RT * S * 4);
     const productsAt = alignUp(residualsAt + 4 * S * 4);
     if (!this.reserve(productsAt + rowTiles * RT * 4 * 4)) return false;
-    this.current = undefined;
+    this.claim(undefined);
     this.packWeights32(weights, rows, S, rowTiles, panelAt);
     const block = new Float32Array(this.exports.memory.buffer, residualsAt, 4 * S);
     block.fill(0);
@@ -464,7 +528,7 @@ export class WasmPermutationKernel {
     const end = productsAt + P * paddedRows * 8;
     if (!this.reserve(end)) return undefined;
     const token = {};
-    this.current = token;
+    this.claim(token);
     this.f64.set(data.sumSquares, sumSquaresAt / 8);
     this.writeValidMask(data.valid, maskAt, P);
     const weights = new Float64Array(batchSize * vectors * S);
@@ -521,7 +585,7 @@ export class WasmPermutationKernel {
     const end = transposedAt + W * S * 8;
     if (!this.reserve(end)) return undefined;
     const token = {};
-    this.current = token;
+    this.claim(token);
     this.f64.set(residualSums(data), rowSumsAt / 8);
     this.f64.set(data.sumSquares, sumSquaresAt / 8);
     this.writeValidMask(data.valid, maskAt, T);
@@ -590,7 +654,7 @@ export class WasmPermutationKernel {
     const residualsAt = alignUp(panelAt + paddedRows * S * 8);
     const productsAt = alignUp(residualsAt + W * S * 8);
     if (!this.reserve(productsAt + P * paddedRows * 8)) return false;
-    this.current = undefined;
+    this.claim(undefined);
     this.packWeights(weights, rows, S, rowTiles, panelAt);
     const f64 = this.f64;
     f64.fill(0, residualsAt / 8, residualsAt / 8 + W * S);

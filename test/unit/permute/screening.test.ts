@@ -11,7 +11,7 @@ import { describe, expect, it } from "vitest";
 import { computeNullRange, type NullChunk, type NullContext, type ScreenTally } from "../../../src/permute/nullRange.js";
 import { permutedStatistics } from "../../../src/permute/permutedStatistics.js";
 import { relabelingWriter } from "../../../src/permute/relabelingWriter.js";
-import { WasmPermutationKernel } from "../../../src/permute/kernels/wasmKernel.js";
+import { WasmPermutationKernel, screenMemory } from "../../../src/permute/kernels/wasmKernel.js";
 import { float32AtLeast, float32AtMost, gamma, residualScales, screeningApplies } from "../../../src/permute/screening.js";
 import { nullContext, type NullContextOptions } from "./nullContextFixture.js";
 
@@ -178,6 +178,20 @@ describe("the screened null equals the reference null, bit for bit", () => {
     const scaled = { ...context, kernel: { ...kernel, residuals, sumSquares } };
     expect(Array.from(residualScales(scaled.kernel, 0).forced)).toEqual([5, 9]);
     compare(scaled, "out-of-range edges");
+  });
+
+  it("residuals copied in block by block (too large to keep resident) give the same rows", () => {
+    const saved = screenMemory.residentBytes;
+    screenMemory.residentBytes = 0;
+    try {
+      for (const covariates of [true, false]) {
+        const context = nullContext({ ...base, scheme: "permute", covariates, thresholds: [2.5] });
+        const tally = compare(context, `block by block, covariates ${covariates}`);
+        expect(tally.screened).toBeGreaterThan(tally.full);
+      }
+    } finally {
+      screenMemory.residentBytes = saved;
+    }
   });
 
   it("a list that overflows its capacity sends the relabeling to the full computation", () => {
