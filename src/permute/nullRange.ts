@@ -53,8 +53,9 @@ export interface NullRangeOptions {
   /** Take the two-level path where it applies (default true); false forces dot products (for comparisons). */
   groupSums?: boolean;
   /**
-   * Screen in single precision where it applies (default true; screenedRange.ts):
-   * the same results, faster. false computes every relabeling in full.
+   * Screen in single precision where it applies (default true unless
+   * PLEXUS_SCREEN=off; screenedRange.ts): the same results, faster. false
+   * computes every relabeling in full.
    */
   screen?: boolean;
   /** Counts, for tests and benchmarks: relabelings settled by the screen, and computed in full. */
@@ -72,6 +73,12 @@ function twoLevelOf(context: NullContext) {
   return context.plan.kind === "permute" && context.vectors.length === 1 && (context.kernel.effectVectors ?? 1) === 1
     ? twoLevelEffect(context.vectors[0])
     : undefined;
+}
+
+/** PLEXUS_SCREEN=off turns the screen off (benchmarks compare both); the results are the same either way. */
+function screenFromEnvironment(): boolean {
+  const value = typeof process === "object" ? process.env.PLEXUS_SCREEN : undefined;
+  return value?.trim().toLowerCase() !== "off";
 }
 
 export interface ScreenTally {
@@ -109,7 +116,7 @@ export function computeNullRange(context: NullContext, from: number, to: number,
     record(1, maxima.measure(context.observed, extra), extra);
     k++;
   }
-  const screen = options.screen === false ? undefined : prepareScreen(context, level, options.kernel, options.screenCapacity);
+  const screen = (options.screen ?? screenFromEnvironment()) ? prepareScreen(context, level, options.kernel, options.screenCapacity) : undefined;
   if (screen) {
     const unsettled = screenedRows(context, screen, maxima, record, k, to);
     exact.computeList(unsettled);
