@@ -9,7 +9,7 @@ import seedrandom from "seedrandom";
 import { Matrix } from "ml-matrix";
 import { describe, expect, it } from "vitest";
 import { computeNullRange, type NullChunk, type NullContext, type ScreenTally } from "../../../src/permute/nullRange.js";
-import { permutedStatistics } from "../../../src/permute/permutedStatistics.js";
+import { permutedStatistics, statisticAt } from "../../../src/permute/permutedStatistics.js";
 import { relabelingWriter } from "../../../src/permute/relabelingWriter.js";
 import { WasmPermutationKernel, screenMemory } from "../../../src/permute/kernels/wasmKernel.js";
 import { float32AtLeast, float32AtMost, gamma, residualScales, screeningApplies } from "../../../src/permute/screening.js";
@@ -82,6 +82,31 @@ describe("single-precision rounding helpers", () => {
     expect(screeningApplies(3, 200)).toBe(true);
     expect(screeningApplies(150, 1)).toBe(false);
     expect(screeningApplies(3, 0)).toBe(false);
+  });
+});
+
+describe("the per-pair recomputation", () => {
+  it("statisticAt gives the batch kernel's bits at every (relabeling, edge)", () => {
+    for (const covariates of [true, false]) {
+      const context = nullContext({ S: 37, regions: 14, scheme: "permute", covariates, permutations: 20 });
+      const c = context.vectors.length;
+      const S = context.kernel.subjects;
+      const E = context.kernel.edges;
+      const batch = 5;
+      const weights = new Float64Array(batch * c * S);
+      const writer = relabelingWriter(context);
+      for (let b = 0; b < batch; b++) writer.weights(b + 2, b, weights);
+      const expected = new Float64Array(batch * E);
+      permutedStatistics(context.kernel, weights, batch, c, expected);
+      for (let b = 0; b < batch; b++) {
+        for (let e = 0; e < E; e++) {
+          const actual = statisticAt(context.kernel, weights, b * c * S, c, e);
+          if (!Object.is(actual, expected[b * E + e])) {
+            throw new Error(`relabeling slot ${b}, edge ${e}: statisticAt ${actual}, batch kernel ${expected[b * E + e]}, tolerance 0 (bit-identical)`);
+          }
+        }
+      }
+    }
   });
 });
 
