@@ -118,28 +118,43 @@ export class EdgeMajorWriter {
   /** Rows of the block filled so far. */
   private rows = 0;
 
+  /** One past the last subject this writer fills. */
+  private readonly end: number;
+
+  /**
+   * Fills subjects firstSubject … endSubject − 1 (default: all) of the
+   * edge-major `out`, in that order; writers of disjoint ranges can share `out`
+   * (worker threads loading blocks of subjects, textMatrixBlocks.ts).
+   */
   constructor(
     private readonly pairs: EdgePairs,
     private readonly out: Float64Array,
     private readonly subjectCount: number,
     blockSize: number = SUBJECT_BLOCK_SIZE,
+    firstSubject = 0,
+    endSubject = subjectCount,
   ) {
     if (out.length !== subjectCount * pairs.edgeCount) {
       throw new RangeError(`EdgeMajorWriter: ${out.length} values for ${subjectCount} subjects × ${pairs.edgeCount} edges`);
     }
-    this.blockSize = Math.max(1, Math.min(blockSize, subjectCount));
+    if (!(firstSubject >= 0 && firstSubject <= endSubject && endSubject <= subjectCount)) {
+      throw new RangeError(`EdgeMajorWriter: subjects ${firstSubject} to ${endSubject} of ${subjectCount}`);
+    }
+    this.blockStart = firstSubject;
+    this.end = endSubject;
+    this.blockSize = Math.max(1, Math.min(blockSize, endSubject - firstSubject));
     this.block = new Float64Array(this.blockSize * pairs.edgeCount);
   }
 
-  /** Writes the next subject's edges (subjects in order 0, 1, …, S − 1) from the N × N matrix at `matrix[matrixOffset …]`. */
+  /** Writes the next subject's edges (subjects in order) from the N × N matrix at `matrix[matrixOffset …]`. */
   add(matrix: Float64Array, matrixOffset: number, options: EdgeExtractionOptions, origin: MatrixOrigin): void {
     const edgeCount = this.pairs.edgeCount;
-    if (this.blockStart + this.rows >= this.subjectCount) {
-      throw new RangeError(`EdgeMajorWriter: more than ${this.subjectCount} subjects`);
+    if (this.blockStart + this.rows >= this.end) {
+      throw new RangeError(`EdgeMajorWriter: more than ${this.end} subjects`);
     }
     writeMatrixEdges(matrix, matrixOffset, this.pairs, this.block, this.rows * edgeCount, options, origin);
     this.rows++;
-    if (this.rows === this.blockSize || this.blockStart + this.rows === this.subjectCount) {
+    if (this.rows === this.blockSize || this.blockStart + this.rows === this.end) {
       transposeBlock(this.block, this.rows, edgeCount, this.out, this.subjectCount, this.blockStart);
       this.blockStart += this.rows;
       this.rows = 0;

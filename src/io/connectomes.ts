@@ -2,7 +2,8 @@ import { isAbsolute, resolve } from "node:path";
 import { InputError, type InputLocation } from "../errors.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
-import { parseMatrixText } from "./matrixText.js";
+import { parseMatrixBytes } from "./matrixText.js";
+import { loadTextBlocksInParallel, sizeMismatch, worthTwoThreads } from "./textMatrixBlocks.js";
 import { decodeNpyValues, isNativeFloat64, npyDataOffset, npyValueReader, parseNpyHeader, type NpyHeader } from "./npy.js";
 import { PARTICIPANT_ID } from "./participants.js";
 import { InputFile, TextFileReader } from "./readInputFile.js";
@@ -118,40 +119,46 @@ function loadFromTemplate(
   if (subjects.length === 0) {
     throw new InputError("no participants to load connectivity matrices for", { key: CONNECTOMES_KEY });
   }
-  const files: string[] = [];
+  const hintFor = (subject: ConnectomeSubject): string =>
+    `connectivity matrix of participant '${subject.id}' (from the template '${template}')`;
+  // One byte buffer and, while the size stays the same, one matrix's arrays serve every file:
+  // the writer has copied a matrix's edges before the next file is read.
   const reader = new TextFileReader();
-  let pairs: EdgePairs | undefined;
-  let writer: EdgeMajorWriter | undefined;
-  let data: Float64Array = new Float64Array(0);
-  let firstFile = "";
-  for (let s = 0; s < subjects.length; s++) {
+  const firstFile = resolveTemplate(template, subjects[0], baseDir);
+  const firstBytes = reader.readBytes(firstFile, hintFor(subjects[0]));
+  let matrix = parseMatrixBytes(firstBytes, firstFile, { allowNonFiniteDiagonal: true });
+  requireTwoRegions(matrix.size, { file: firstFile, line: matrix.rowLines[0] });
+  const pairs = edgePairs(matrix.size);
+  const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
+  const loaded = { regionCount: pairs.regionCount, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data };
+  // Many files: two threads read blocks of subjects (textMatrixBlocks.ts), with the same values and errors.
+  const files = resolveAllOrUndefined(template, subjects, baseDir);
+  if (files && worthTwoThreads(subjects.length, firstBytes.length)) {
+    loadTextBlocksInParallel({ files, hints: subjects.map(hintFor), regionCount: pairs.regionCount, firstFile, data, options });
+    return { ...loaded, files };
+  }
+  const writer = new EdgeMajorWriter(pairs, data, subjects.length);
+  writer.add(matrix.values, 0, options, { file: firstFile, rowLines: matrix.rowLines });
+  const read = [firstFile];
+  for (let s = 1; s < subjects.length; s++) {
     const subject = subjects[s];
     const file = resolveTemplate(template, subject, baseDir);
-    const text = reader.read(file, `connectivity matrix of participant '${subject.id}' (from the template '${template}')`);
-    const matrix = parseMatrixText(text, file, { allowNonFiniteDiagonal: true });
-    if (pairs === undefined || writer === undefined) {
-      requireTwoRegions(matrix.size, { file, line: matrix.rowLines[0] });
-      pairs = edgePairs(matrix.size);
-      data = sharedEdgeArray(subjects.length * pairs.edgeCount);
-      writer = new EdgeMajorWriter(pairs, data, subjects.length);
-      firstFile = file;
-    } else if (matrix.size !== pairs.regionCount) {
-      throw new InputError(
-        `this matrix is ${matrix.size} × ${matrix.size} but ${firstFile} is ${pairs.regionCount} × ${pairs.regionCount}; all matrices must have the same size`,
-        { file, line: matrix.rowLines[0] },
-      );
-    }
+    const bytes = reader.readBytes(file, hintFor(subject));
+    matrix = parseMatrixBytes(bytes, file, { allowNonFiniteDiagonal: true }, matrix);
+    if (matrix.size !== pairs.regionCount) throw sizeMismatch(file, matrix.size, firstFile, pairs.regionCount, matrix.rowLines[0]);
     writer.add(matrix.values, 0, options, { file, rowLines: matrix.rowLines });
-    files.push(file);
+    read.push(file);
   }
-  const regionPairs = pairs as EdgePairs;
-  return {
-    regionCount: regionPairs.regionCount,
-    edgeCount: regionPairs.edgeCount,
-    subjectCount: subjects.length,
-    data,
-    files,
-  };
+  return { ...loaded, files: read };
+}
+
+/** Every subject's file, or undefined when a template cannot be filled (the one-thread loader then meets that error in order). */
+function resolveAllOrUndefined(template: string, subjects: ConnectomeSubject[], baseDir: string): string[] | undefined {
+  try {
+    return subjects.map((subject) => resolveTemplate(template, subject, baseDir));
+  } catch {
+    return undefined;
+  }
 }
 
 const STACK_HINT = "the .npy stack of connectivity matrices";

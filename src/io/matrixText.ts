@@ -1,4 +1,6 @@
+import { Buffer, isAscii } from "node:buffer";
 import { InputError } from "../errors.js";
+import { systemReason } from "./readInputFile.js";
 
 /**
  * One square matrix as text: N lines of N numbers, separated by a tab, a comma
@@ -6,13 +8,27 @@ import { InputError } from "../errors.js";
  * chosen per file: commas if the first non-blank line has one, else whitespace.
  * No header. A UTF-8 byte-order mark, CRLF line ends and blank lines are tolerated.
  *
- * The scanner walks the string with charCodeAt and never splits it. A cell in
- * plain decimal syntax ([+-] digits [. digits] [e [+-] digits]) with at most 16
- * significant digits forming a mantissa below 2^53 and a decimal exponent of at
- * most 22 in magnitude is converted with one exact multiplication or division,
- * which IEEE 754 rounds correctly (Clinger 1990, "How to read floating point
- * numbers accurately", PLDI '90, ACM SIGPLAN Notices 25(6):92-101); any other
- * cell in decimal syntax goes to Number(), so every value equals Number(cell).
+ * Two readers share these rules. `parseMatrixText` walks a string with
+ * charCodeAt and never splits it; it is the reference, and every error about
+ * the content is its own. `parseMatrixBytes` walks a file's bytes (ASCII, after an
+ * optional byte-order mark) without decoding them to a string, writing into
+ * arrays it may reuse from the previous file; at anything unusual (a bad cell, a
+ * ragged row, non-ASCII bytes) it hands the decoded text to `parseMatrixText`,
+ * so its results and its errors are that function's.
+ *
+ * Every value equals Number(cell). A cell in plain decimal syntax ([+-] digits
+ * [. digits] [e [+-] digits]) is the integer m of its digits times 10^e:
+ * - m < 2^53 and |e| ≤ 22: m and 10^|e| are exact doubles, so one multiplication
+ *   or division, which IEEE 754 rounds correctly, gives the nearest double
+ *   (Clinger 1990, "How to read floating point numbers accurately", PLDI '90,
+ *   ACM SIGPLAN Notices 25(6):92-101, the fast path);
+ * - m of at most 19 significant digits and −21 ≤ e ≤ 0: `nearestDecimal` takes
+ *   the quotient of the nearest double to m by 10^−e and corrects it, by whole
+ *   units in the last place, using the remainder m − y·10^−e computed exactly
+ *   with Dekker's error-free product (Dekker 1971, "A floating-point technique
+ *   for extending the available precision", Numerische Mathematik 18:224-242),
+ *   as Clinger's Algorithm R corrects an approximation with exact arithmetic;
+ * - any other cell in decimal syntax goes to Number().
  */
 export interface MatrixTextOptions {
   /**
@@ -33,6 +49,7 @@ export interface ParsedMatrixText {
 }
 
 const TAB = 9;
+const LINE_FEED = 10;
 const CR = 13;
 const SPACE = 32;
 const PLUS = 43;
@@ -43,6 +60,8 @@ const ZERO = 48;
 const NINE = 57;
 const UPPER_E = 69;
 const LOWER_E = 101;
+/** A byte OR this is the lower-case letter for an ASCII letter (and changes no digit, sign, dot or separator into e). */
+const ASCII_LOWER_CASE_BIT = 0x20;
 
 /** 10^0 … 10^22: every one is exactly representable as a double. */
 const EXACT_POWERS_OF_TEN = [
@@ -52,6 +71,18 @@ const EXACT_POWERS_OF_TEN = [
 const TWO_TO_53 = 9007199254740992;
 /** What parseDecimalSpan returns for text not in decimal syntax (a decimal never parses to NaN). */
 const NOT_DECIMAL = Number.NaN;
+/** Significant digits `nearestDecimal` takes in its high part (10^15 < 2^53), and in all (m < 10^19 < 2^64). */
+const HIGH_DIGITS = 15;
+const MAX_SIGNIFICANT_DIGITS = 19;
+const MAX_LOW_DIGITS = MAX_SIGNIFICANT_DIGITS - HIGH_DIGITS;
+/** The high part holds 15 significant digits once it reaches 10^14. */
+const FULL_HIGH = 1e14;
+/** Largest −e for `nearestDecimal`; its exactness argument needs 5^−e < 2^49. */
+const MAX_QUOTIENT_POWER = 21;
+/** What `nearestDecimal` returns when it leaves the cell to Number() (a magnitude is never negative). */
+const UNDECIDED = -1;
+/** Values in the first row before N is known, when no array is reused. */
+const FIRST_ROW_CAPACITY = 64;
 
 export function parseMatrixText(text: string, file: string, options: MatrixTextOptions = {}): ParsedMatrixText {
   const allowNonFiniteDiagonal = options.allowNonFiniteDiagonal === true;
@@ -172,6 +203,326 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
 }
 
 /**
+ * The matrix in a file's bytes, as `parseMatrixText` reads the file's text
+ * (decoded as UTF-8, as readFileSync(path, "utf8") does): the same result or the
+ * same InputError. ASCII bytes after an optional UTF-8 byte-order mark are read
+ * as they are; anything else is decoded and given to `parseMatrixText`.
+ *
+ * With `reuse` (the previous result, which the caller no longer needs) the
+ * result may be written into its arrays when the size is the same, and they may
+ * be overwritten even when this call ends in an error.
+ */
+export function parseMatrixBytes(
+  bytes: Uint8Array,
+  file: string,
+  options: MatrixTextOptions = {},
+  reuse?: ParsedMatrixText,
+): ParsedMatrixText {
+  const start = bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
+  const ascii = isAscii(start === 0 ? bytes : bytes.subarray(start));
+  const matrix = ascii ? scanAsciiMatrix(bytes, start, options.allowNonFiniteDiagonal === true, reuse) : undefined;
+  return matrix ?? parseMatrixText(decodeUtf8(bytes, file), file, options);
+}
+
+/**
+ * The byte reader's work: the matrix in the ASCII bytes from `begin` on, or
+ * undefined where `parseMatrixText` might raise an error (it is then left to
+ * that function). Each cell is scanned inline, without a call, into the parts
+ * of m that scanDecimal makes (the values are its values). The digit loops test
+ * no bound: the byte at `stop` is CR or LF, or lies past the end, where reading
+ * gives undefined, which the NaN-safe digit test rejects.
+ */
+function scanAsciiMatrix(
+  bytes: Uint8Array,
+  begin: number,
+  allowNonFiniteDiagonal: boolean,
+  reuse: ParsedMatrixText | undefined,
+): ParsedMatrixText | undefined {
+  const end = bytes.length;
+  const commaSeparated = firstContentLineHasCommaInBytes(bytes, begin);
+  // The first row goes into `values` from 0 on before N is known; it is then in place.
+  let values = reuse !== undefined && reuse.values.length > 0 ? reuse.values : new Float64Array(FIRST_ROW_CAPACITY);
+  const rowLines = reuse !== undefined ? reuse.rowLines : [];
+
+  let line = 0;
+  let size = -1;
+  let row = 0;
+  let rowStart = 0;
+  let pos = begin;
+  let c = 0;
+  while (pos < end) {
+    line++;
+    let lineEnd = bytes.indexOf(LINE_FEED, pos);
+    if (lineEnd < 0) lineEnd = end;
+    let stop = lineEnd;
+    if (stop > pos && bytes[stop - 1] === CR) stop--;
+    let p = pos;
+    while (p < stop && ((c = bytes[p]) === SPACE || c === TAB)) p++;
+    pos = lineEnd + 1;
+    if (p === stop) continue;
+    if (row === size) return undefined; // more rows than columns
+
+    let column = 0;
+    for (;;) {
+      if (column === size) return undefined; // a long row
+      const cellStart = p;
+      c = bytes[p];
+      const negative = c === MINUS;
+      if (negative || c === PLUS) p++;
+      // m = high · 10^lowDigits + low: digits go into `high` until it holds 15 significant
+      // digits (high ≥ 10^14; leading zeros leave it 0), the rest into `low`.
+      const digitsStart = p;
+      let high = 0;
+      let low = 0;
+      for (; ; p++) {
+        // Written so that NaN (a read past the end) ends the loop: not `digit < 0 || digit > 9`.
+        const digit = bytes[p] - ZERO;
+        if (!(digit >= 0 && digit <= 9) || high >= FULL_HIGH) break;
+        high = high * 10 + digit;
+      }
+      let lowStart = p;
+      for (; ; p++) {
+        const digit = bytes[p] - ZERO;
+        if (!(digit >= 0 && digit <= 9)) break;
+        low = low * 10 + digit;
+      }
+      let lowDigits = p - lowStart;
+      let digitCount = p - digitsStart;
+      let exponent = 0;
+      if (p < stop && bytes[p] === DOT) {
+        const fractionStart = ++p;
+        if (lowDigits === 0) {
+          for (; ; p++) {
+            const digit = bytes[p] - ZERO;
+            if (!(digit >= 0 && digit <= 9) || high >= FULL_HIGH) break;
+            high = high * 10 + digit;
+          }
+        }
+        lowStart = p;
+        for (; ; p++) {
+          const digit = bytes[p] - ZERO;
+          if (!(digit >= 0 && digit <= 9)) break;
+          low = low * 10 + digit;
+        }
+        lowDigits += p - lowStart;
+        exponent = fractionStart - p;
+        digitCount += p - fractionStart;
+      }
+      if (p < stop && (bytes[p] | ASCII_LOWER_CASE_BIT) === LOWER_E) {
+        let q = p + 1;
+        const exponentNegative = q < stop && bytes[q] === MINUS;
+        if (q < stop && (exponentNegative || bytes[q] === PLUS)) q++;
+        const exponentDigitsStart = q;
+        let explicit = 0;
+        for (; q < stop; q++) {
+          const digit = bytes[q] - ZERO;
+          if (digit < 0 || digit > 9) break;
+          if (explicit < 100000) explicit = explicit * 10 + digit;
+        }
+        // Without exponent digits the "e" is not part of the number (and the cell is then not one).
+        if (q > exponentDigitsStart) {
+          p = q;
+          exponent += exponentNegative ? -explicit : explicit;
+        }
+      }
+
+      let value: number;
+      if (digitCount > 0 && (p === stop || (c = bytes[p]) === SPACE || c === TAB || (commaSeparated && c === COMMA))) {
+        if (lowDigits > MAX_LOW_DIGITS) {
+          value = Number(latin1(bytes, cellStart, p));
+        } else {
+          // As in scanDecimal: the fast path of Clinger (1990) while m < 2^53, else nearestDecimal.
+          const mantissa = lowDigits === 0 ? high : high * EXACT_POWERS_OF_TEN[lowDigits] + low;
+          if (mantissa < TWO_TO_53 && exponent >= -22 && exponent <= 22) {
+            value =
+              exponent >= 0 ? mantissa * EXACT_POWERS_OF_TEN[exponent] : mantissa / EXACT_POWERS_OF_TEN[-exponent];
+          } else {
+            value = mantissa === 0 ? 0 : nearestDecimal(high, low, lowDigits, exponent);
+            if (value === UNDECIDED) value = Number(latin1(bytes, cellStart + (negative ? 1 : 0), p));
+          }
+          if (negative) value = -value;
+        }
+        if (!Number.isFinite(value) && !(allowNonFiniteDiagonal && column === row)) return undefined;
+      } else {
+        // NaN or ±Inf on the diagonal, when allowed; anything else is left to parseMatrixText.
+        if (!(allowNonFiniteDiagonal && column === row)) return undefined;
+        p = cellStart;
+        while (p < stop && (c = bytes[p]) !== SPACE && c !== TAB && !(commaSeparated && c === COMMA)) p++;
+        value = nonFiniteWordValue(bytes, cellStart, p);
+        if (value === 0) return undefined;
+      }
+
+      if (size < 0) {
+        if (column === values.length) values = grown(values);
+        values[column] = value;
+      } else {
+        values[rowStart + column] = value;
+      }
+      column++;
+
+      while (p < stop && ((c = bytes[p]) === SPACE || c === TAB)) p++;
+      if (p === stop) break;
+      if (commaSeparated) {
+        if (bytes[p] !== COMMA) return undefined;
+        p++;
+        while (p < stop && ((c = bytes[p]) === SPACE || c === TAB)) p++;
+        if (p === stop) return undefined; // a comma at the end of the line
+      }
+    }
+
+    if (size < 0) {
+      size = column;
+      if (values.length !== size * size) {
+        const sized = new Float64Array(size * size);
+        sized.set(values.subarray(0, size));
+        values = sized;
+      }
+    } else if (column !== size) {
+      return undefined; // a short row
+    }
+    rowLines[row] = line;
+    row++;
+    rowStart += size;
+  }
+  if (size < 0 || row !== size) return undefined;
+  rowLines.length = size;
+  return { size, values, rowLines };
+}
+
+/** The ASCII bytes[start, end) as a string. */
+function latin1(bytes: Uint8Array, start: number, end: number): string {
+  return Buffer.from(bytes.buffer, bytes.byteOffset + start, end - start).toString("latin1");
+}
+
+/** Dekker's splitting constant 2^27 + 1 (Veltkamp's split). */
+const SPLITTER = 134217729;
+
+/**
+ * a·b − product exactly, where product = fl(a·b), barring overflow and underflow:
+ * Dekker's (1971) error-free product, in the form of Ogita, Rump and Oishi
+ * (2005, "Accurate sum and dot product", SIAM J. Sci. Comput. 26(6):1955-1988,
+ * Algorithm 3.3 TwoProduct).
+ */
+function productError(a: number, b: number, product: number): number {
+  let t = SPLITTER * a;
+  const aHigh = t - (t - a);
+  const aLow = a - aHigh;
+  t = SPLITTER * b;
+  const bHigh = t - (t - b);
+  const bLow = b - bHigh;
+  return aLow * bLow - (product - aHigh * bHigh - aLow * bHigh - aHigh * bLow);
+}
+
+/** Bits of a double, for its unit in the last place. */
+const doubleBits = new DataView(new ArrayBuffer(8));
+
+/**
+ * The double nearest to m · 10^exponent, m = high · 10^lowDigits + low with
+ * high < 10^15 and lowDigits ≤ 4 (so m < 10^19), or UNDECIDED when it does not
+ * apply (exponent > 0 or < −21, or the search meets a power of two).
+ *
+ * Why it is exact. high·10^lowDigits = a + b by the error-free product, b + low
+ * is an integer below 2^14 (exact), and Dekker's fast two-sum of a and b + low
+ * gives s = fl(m) and t = m − s exactly. For exponent = 0 the answer is s. Else let P = 10^k, k = −exponent ≤ 21,
+ * y = fl(s / P), Q = m / P: |y − Q| < 1.5 ulp(y). For the current y = M·2^F
+ * (a positive normal, not a power of two, ulp(y) = 2^F) let W = ulp(y)·P:
+ * u = fl(y·P) and v = y·P − u (error-free product), and R = m − y·P =
+ * ((s − u) + t) − v. With g = 2^min(0, F + k), s, t, y·P = M·5^k·2^(F+k), u and
+ * v are all multiples of g; |t|, |v| < W, |s − u| < 3.5W, |(s − u) + t| < 4.5W
+ * and |R| < 1.5W; and W/g is 5^k < 2^49 (F + k ≤ 0) or W ≤ y·P/2^52 < 2^12
+ * (F + k > 0; g = 1). So each exact intermediate is a multiple of g below
+ * 2^53·g, a double, and every operation is exact: R is exact. Then Q − y =
+ * R / P, and comparing R with ±W/2 (exact) says whether Q is nearer to y or to a
+ * neighbour y ± ulp(y), or halfway (ties go to the even M, as IEEE 754 rounds).
+ * A step moves y one unit towards Q, within its binade (a power of two reached
+ * gives UNDECIDED), and leaves |y − Q| < ulp(y)/2, so one step suffices.
+ */
+function nearestDecimal(high: number, low: number, lowDigits: number, exponent: number): number {
+  if (exponent > 0 || exponent < -MAX_QUOTIENT_POWER) return UNDECIDED;
+  const scale = EXACT_POWERS_OF_TEN[lowDigits];
+  const scaled = high * scale;
+  const rest = productError(high, scale, scaled) + low;
+  const s = scaled + rest;
+  const t = rest - (s - scaled);
+  if (exponent === 0) return s;
+  const power = EXACT_POWERS_OF_TEN[-exponent];
+  let y = s / power;
+  for (let attempt = 0; attempt < 2; attempt++) {
+    doubleBits.setFloat64(0, y);
+    const highWord = doubleBits.getUint32(0);
+    const lowWord = doubleBits.getUint32(4);
+    if ((highWord & 0xfffff) === 0 && lowWord === 0) return UNDECIDED;
+    // ulp(y) = 2^(biased exponent − 1075): the double with biased exponent (biased exponent − 52) and no fraction.
+    doubleBits.setUint32(0, ((highWord >>> 20) - 52) << 20);
+    doubleBits.setUint32(4, 0);
+    const ulp = doubleBits.getFloat64(0);
+    const u = y * power;
+    const remainder = s - u + t - productError(y, power, u);
+    const half = ulp * power * 0.5;
+    if (remainder > half) y += ulp;
+    else if (remainder < -half) y -= ulp;
+    else if (remainder === half) return (lowWord & 1) === 0 ? y : y + ulp;
+    else if (remainder === -half) return (lowWord & 1) === 0 ? y : y - ulp;
+    else return y;
+  }
+  return UNDECIDED;
+}
+
+/** NaN or ±Infinity for the words nan, inf, infinity (any case, optional sign) in bytes[start, end), else 0. */
+function nonFiniteWordValue(bytes: Uint8Array, start: number, end: number): number {
+  let p = start;
+  let sign = 1;
+  const c = bytes[p];
+  if (c === MINUS || c === PLUS) {
+    if (c === MINUS) sign = -1;
+    p++;
+  }
+  const length = end - p;
+  const lower = (k: number): number => bytes[p + k] | ASCII_LOWER_CASE_BIT;
+  if (length === 3 && lower(0) === 110 && lower(1) === 97 && lower(2) === 110) return Number.NaN; // nan
+  if ((length === 3 || length === 8) && lower(0) === 105 && lower(1) === 110 && lower(2) === 102) {
+    // inf, infinity
+    if (length === 3) return sign * Infinity;
+    if (lower(3) === 105 && lower(4) === 110 && lower(5) === 105 && lower(6) === 116 && lower(7) === 121) {
+      return sign * Infinity;
+    }
+  }
+  return 0;
+}
+
+function grown(values: Float64Array): Float64Array {
+  const larger = new Float64Array(2 * values.length);
+  larger.set(values);
+  return larger;
+}
+
+/** The bytes decoded as readFileSync(path, "utf8") decodes a file, with its failure (a text too long for a string) as TextFileReader words it. */
+function decodeUtf8(bytes: Uint8Array, file: string): string {
+  try {
+    return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString("utf8");
+  } catch (error) {
+    throw new InputError(`cannot read ${file}: ${systemReason(error)}`, { file });
+  }
+}
+
+function firstContentLineHasCommaInBytes(bytes: Uint8Array, pos: number): boolean {
+  const end = bytes.length;
+  while (pos < end) {
+    let lineEnd = bytes.indexOf(LINE_FEED, pos);
+    if (lineEnd < 0) lineEnd = end;
+    let blank = true;
+    for (let p = pos; p < lineEnd; p++) {
+      const c = bytes[p];
+      if (c === COMMA) return true;
+      if (c !== SPACE && c !== TAB && c !== CR) blank = false;
+    }
+    if (!blank) return false;
+    pos = lineEnd + 1;
+  }
+  return false;
+}
+
+/**
  * Value of text[start, end) if it is in decimal syntax, else NaN. Equal to
  * Number(text.slice(start, end)) whenever the syntax is decimal.
  */
@@ -199,23 +550,26 @@ function scanDecimal(text: string, start: number, stop: number): number {
     p++;
   }
 
-  let mantissa = 0;
+  // m = high · 10^lowDigits + low: the first 15 significant digits, then up to 4 more.
+  let high = 0;
+  let low = 0;
+  let lowDigits = 0;
   let significantDigits = 0;
   let exponent = 0;
   let sawDigit = false;
-  let exact = true;
 
   for (; p < stop; p++) {
     c = text.charCodeAt(p);
     if (c < ZERO || c > NINE) break;
     sawDigit = true;
-    if (mantissa !== 0 || c !== ZERO) {
-      if (significantDigits < 16) {
-        mantissa = mantissa * 10 + (c - ZERO);
-        significantDigits++;
-      } else {
-        exact = false;
+    if (significantDigits !== 0 || c !== ZERO) {
+      if (significantDigits < HIGH_DIGITS) {
+        high = high * 10 + (c - ZERO);
+      } else if (significantDigits < MAX_SIGNIFICANT_DIGITS) {
+        low = low * 10 + (c - ZERO);
+        lowDigits++;
       }
+      significantDigits++;
     }
   }
   if (p < stop && text.charCodeAt(p) === DOT) {
@@ -223,17 +577,16 @@ function scanDecimal(text: string, start: number, stop: number): number {
       c = text.charCodeAt(p);
       if (c < ZERO || c > NINE) break;
       sawDigit = true;
-      if (mantissa !== 0 || c !== ZERO) {
-        if (significantDigits < 16) {
-          mantissa = mantissa * 10 + (c - ZERO);
-          significantDigits++;
-          exponent--;
-        } else {
-          exact = false;
+      if (significantDigits !== 0 || c !== ZERO) {
+        if (significantDigits < HIGH_DIGITS) {
+          high = high * 10 + (c - ZERO);
+        } else if (significantDigits < MAX_SIGNIFICANT_DIGITS) {
+          low = low * 10 + (c - ZERO);
+          lowDigits++;
         }
-      } else {
-        exponent--;
+        significantDigits++;
       }
+      exponent--;
     }
   }
   if (!sawDigit) {
@@ -268,11 +621,18 @@ function scanDecimal(text: string, start: number, stop: number): number {
   }
   scanEnd = p;
 
-  if (mantissa === 0) return negative ? -0 : 0;
-  if (exact && mantissa < TWO_TO_53 && exponent >= -22 && exponent <= 22) {
-    const magnitude =
-      exponent >= 0 ? mantissa * EXACT_POWERS_OF_TEN[exponent] : mantissa / EXACT_POWERS_OF_TEN[-exponent];
-    return negative ? -magnitude : magnitude;
+  if (significantDigits === 0) return negative ? -0 : 0;
+  if (significantDigits <= MAX_SIGNIFICANT_DIGITS) {
+    // (With more than 19 significant digits Number() decides.) m is exact when the
+    // computed value is below 2^53: rounding is monotonic, so a sum that reaches 2^53 stays there.
+    const mantissa = lowDigits === 0 ? high : high * EXACT_POWERS_OF_TEN[lowDigits] + low;
+    let magnitude: number;
+    if (mantissa < TWO_TO_53 && exponent >= -22 && exponent <= 22) {
+      magnitude = exponent >= 0 ? mantissa * EXACT_POWERS_OF_TEN[exponent] : mantissa / EXACT_POWERS_OF_TEN[-exponent];
+    } else {
+      magnitude = nearestDecimal(high, low, lowDigits, exponent);
+    }
+    if (magnitude !== UNDECIDED) return negative ? -magnitude : magnitude;
   }
   return Number(text.slice(start, p));
 }

@@ -1,0 +1,108 @@
+// Loading text matrices on two threads (src/io/textMatrixBlocks.ts) must give
+// what the one-thread loader gives (itself checked cell by cell against hand-made
+// matrices in connectomes.test.ts): the same edge-major values bit for bit, and
+// on bad input the same first error (message, file, line, column).
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import seedrandom from "seedrandom";
+import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
+import { isInputError } from "../../../src/errors.js";
+import { loadConnectomes, type ConnectomeOptions, type ConnectomeSubject } from "../../../src/io/connectomes.js";
+import { parallelTextLoading } from "../../../src/io/textMatrixBlocks.js";
+
+const FISHER: ConnectomeOptions = { symmetrize: false, asymmetryTolerance: 1e-9, transform: "fisher-z" };
+const SUBJECTS = 70;
+const REGIONS = 9;
+
+let dir: string;
+beforeAll(() => {
+  dir = mkdtempSync(join(tmpdir(), "plexus-text-blocks-"));
+});
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+const saved = { ...parallelTextLoading };
+afterEach(() => Object.assign(parallelTextLoading, saved));
+
+/** A folder of SUBJECTS symmetric correlation matrices; `damage` may rewrite some subjects' text. */
+function cohort(name: string, damage: (s: number, rows: string[][]) => string | undefined = () => undefined): ConnectomeSubject[] {
+  const folder = join(dir, name);
+  mkdirSync(folder, { recursive: true });
+  const random = seedrandom(name);
+  const subjects: ConnectomeSubject[] = [];
+  for (let s = 0; s < SUBJECTS; s++) {
+    const m = Array.from({ length: REGIONS }, () => new Array<number>(REGIONS).fill(1));
+    for (let i = 0; i < REGIONS; i++) for (let j = i + 1; j < REGIONS; j++) m[i][j] = m[j][i] = (random() - 0.5) * 1.8;
+    const rows = m.map((row) => row.map(String));
+    const id = `sub-${String(s).padStart(3, "0")}`;
+    const text = damage(s, rows) ?? rows.map((row) => row.join("\t")).join("\n") + "\n";
+    if (text !== "") writeFileSync(join(folder, `${id}.tsv`), text);
+    subjects.push({ id, tableRow: s, values: { participant_id: id } });
+  }
+  return subjects;
+}
+
+function load(subjects: ConnectomeSubject[], name: string, threads: "one" | "two" | "worker") {
+  parallelTextLoading.minimumBytes = threads === "one" ? Infinity : 0;
+  parallelTextLoading.callingThreadLoads = threads !== "worker";
+  return loadConnectomes({ kind: "template", template: `${name}/{participant_id}.tsv`, baseDir: dir }, subjects, FISHER);
+}
+
+function errorOf(run: () => unknown): string {
+  try {
+    run();
+  } catch (error) {
+    if (isInputError(error)) return error.format();
+    throw error;
+  }
+  throw new Error("expected an InputError");
+}
+
+describe("two-thread text loading", () => {
+  it("gives the one-thread loader's values bit for bit", () => {
+    const subjects = cohort("clean");
+    const one = load(subjects, "clean", "one");
+    for (const threads of ["two", "worker"] as const) {
+    const two = load(subjects, "clean", threads);
+    expect(two.files).toEqual(one.files);
+    expect(two.data.length).toBe(SUBJECTS * ((REGIONS * (REGIONS - 1)) / 2));
+    const a = new BigUint64Array(Float64Array.from(one.data).buffer);
+    const b = new BigUint64Array(Float64Array.from(two.data).buffer);
+    const first = a.findIndex((bits, i) => bits !== b[i]);
+    expect(first, `${threads}: first differing value: index ${first}, one thread ${one.data[first]}, two threads ${two.data[first]} (tolerance 0)`).toBe(-1);
+    }
+  });
+
+  const damaged: [string, (s: number, rows: string[][]) => string | undefined][] = [
+    [
+      "an asymmetric matrix in a late block and a bad cell in a later one: the earlier subject's error",
+      (s, rows) => {
+        if (s === 50) rows[2][5] = "0.123";
+        if (s === 66) rows[4][1] = "abc";
+        return undefined;
+      },
+    ],
+    ["a missing file", (s) => (s === 37 ? "" : undefined)],
+    [
+      "a matrix of another size",
+      (s, rows) => (s === 58 ? rows.slice(0, 5).map((row) => row.slice(0, 5).join("\t")).join("\n") + "\n" : undefined),
+    ],
+    [
+      "errors in the first block and the last",
+      (s, rows) => {
+        if (s === 3) rows[1][7] = "1.5";
+        if (s === 69) rows[0][1] = "nan";
+        return undefined;
+      },
+    ],
+  ];
+  for (const [label, damage] of damaged) {
+    it(`reports the one-thread loader's first error: ${label}`, () => {
+      const name = label.replace(/[^a-z]+/g, "-");
+      const subjects = cohort(name, damage);
+      const expected = errorOf(() => load(subjects, name, "one"));
+      expect(errorOf(() => load(subjects, name, "two"))).toBe(expected);
+      // Every block on the worker thread: its errors cross back through the message port intact.
+      expect(errorOf(() => load(subjects, name, "worker"))).toBe(expected);
+    });
+  }
+});
