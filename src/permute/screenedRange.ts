@@ -45,8 +45,8 @@ export interface PreparedScreen {
 
 /** Rows (relabelings × vectors) per screened batch: the f32 panel of weights stays in the level-2 cache. */
 const SCREEN_ROWS = 192;
-/** Relabelings per screened batch on the two-level path (the transposed block is made once per batch). */
-const GROUP_SCREEN_BATCH = 256;
+/** Relabelings per screened batch on the two-level path (each tile's subset tables serve the whole batch). */
+const GROUP_SCREEN_BATCH = 512;
 /** Listed edges expected per relabeling times this, plus a floor, is each list's capacity. */
 const CAPACITY_FACTOR = 8;
 const CAPACITY_FLOOR = 256;

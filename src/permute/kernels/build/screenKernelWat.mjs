@@ -16,6 +16,7 @@
 //   lists     per relabeling b: capacity i32 edge indices; counts: i32 per relabeling.
 //             A count above capacity means the list overflowed (the caller recomputes).
 //   sLo, sHi  the two-level path's per-edge bounds on the group sum (f32)
+//   tables    the two-level path's subset sums of one tile (groupTableScreenBlock)
 
 /** Edges per tile of the screened products: one f32x4 holds four rows of one edge; the stores transpose 4 × 4. */
 const SCREEN_EDGES = 4;
@@ -257,52 +258,94 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   // ---- the two-level path: single-precision group sums, screened against per-edge bounds ----
   const GQ = groupQuads;
   const GE = 4 * GQ;
-  emit(1, `;; group sums over each relabeling's group (offsets[b·groupSize + m] = s·W·4 into the f32 transposed block), ${GE} edges per tile;`);
-  emit(1, ";; (relabeling, edge) is listed when its sum reaches sHi_e or falls to sLo_e");
-  emit(1, '(func (export "groupScreenBlock")');
-  emit(2, "(param $blockT i32) (param $width i32) (param $offsets i32) (param $groupSize i32) (param $batch i32)");
+  // The screen of GQ accumulators of group sums (4 edges each) against sHi/sLo at byte offset $at; lists the lanes that reach them.
+  const emitGroupCompare = (indent) => {
+    for (const p of range(GQ)) {
+      emit(
+        indent,
+        `(local.set $c (v128.or (f32x4.ge (local.get $acc${p}) (v128.load offset=${p * 16} (i32.add (local.get $sHi) (local.get $at)))) (f32x4.le (local.get $acc${p}) (v128.load offset=${p * 16} (i32.add (local.get $sLo) (local.get $at))))))`,
+      );
+      emit(indent, "(if (v128.any_true (local.get $c))");
+      emit(indent + 1, "(then");
+      for (const lane of range(4)) {
+        const e = 4 * p + lane;
+        emit(
+          indent + 2,
+          `(if (i32.and (i32.ne (i32x4.extract_lane ${lane} (local.get $c)) (i32.const 0)) (i32.gt_u (local.get $count) (i32.const ${e}))) (then (call $append (local.get $lists) (local.get $counts) (local.get $capacity) (local.get $b) (i32.add (i32.add (local.get $first) (local.get $i)) (i32.const ${e})))))`,
+        );
+      }
+      emit(indent + 1, ")");
+      emit(indent, ")");
+    }
+  };
+
+  // ---- the two-level path with subset tables: for each tile of GE edges, the sums of every subset of each
+  // chunk of `chunkSize` consecutive subjects (2^chunkSize entries per chunk, entry m = entry m without its
+  // lowest bit + that subject's row); a relabeling's group sum is then one entry per chunk, added up:
+  // offsets[b·chunks + c] = (c·2^chunkSize + mask of its group within chunk c)·(GE·4) into the tables ----
+  const ENTRY = GE * 4;
+  emit(1, '(func (export "groupTableScreenBlock")');
+  emit(2, "(param $blockT i32) (param $W i32) (param $width i32) (param $S i32) (param $chunkSize i32)");
+  emit(2, "(param $offsets i32) (param $chunks i32) (param $batch i32) (param $tables i32)");
   emit(2, "(param $sLo i32) (param $sHi i32) (param $first i32) (param $lists i32) (param $counts i32) (param $capacity i32)");
-  emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $col i32) (local $row i32) (local $at i32) (local $c v128)");
+  emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $row i32) (local $at i32) (local $c v128)");
+  emit(2, "(local $chunk i32) (local $s0 i32) (local $entries i32) (local $entry i32) (local $source i32) (local $target i32) (local $previous i32) (local $rowBytes i32) (local $chunkBytes i32)");
   for (const p of range(GQ)) emit(2, `(local $acc${p} v128)`);
+  emit(2, "(local.set $rowBytes (i32.shl (local.get $W) (i32.const 2)))");
+  emit(2, `(local.set $chunkBytes (i32.mul (i32.shl (i32.const 1) (local.get $chunkSize)) (i32.const ${ENTRY})))`);
   emit(2, "(block $tilesDone");
   emit(3, "(loop $tiles");
   emit(4, "(br_if $tilesDone (i32.ge_u (local.get $i) (local.get $width)))");
   emit(4, `(local.set $count (select (i32.const ${GE}) (i32.sub (local.get $width) (local.get $i)) (i32.le_u (i32.add (local.get $i) (i32.const ${GE})) (local.get $width))))`);
   emit(4, "(local.set $at (i32.shl (local.get $i) (i32.const 2)))");
-  emit(4, "(local.set $col (i32.add (local.get $blockT) (local.get $at)))");
+  emit(4, ";; the subset tables of this tile");
+  emit(4, "(local.set $chunk (i32.const 0))");
+  emit(4, "(local.set $s0 (i32.const 0))");
+  emit(4, "(local.set $entry (local.get $tables))");
+  emit(4, "(block $chunksDone");
+  emit(5, "(loop $chunkLoop");
+  emit(6, "(br_if $chunksDone (i32.ge_u (local.get $chunk) (local.get $chunks)))");
+  emit(6, ";; entries: 2^(subjects in this chunk); the last chunk may hold fewer than chunkSize");
+  emit(6, "(local.set $entries (i32.shl (i32.const 1) (select (local.get $chunkSize) (i32.sub (local.get $S) (local.get $s0)) (i32.le_u (i32.add (local.get $s0) (local.get $chunkSize)) (local.get $S)))))");
+  for (const p of range(GQ)) emit(6, `(v128.store offset=${p * 16} (local.get $entry) (v128.const f32x4 0 0 0 0))`);
+  emit(6, "(local.set $m (i32.const 1))");
+  emit(6, "(block $entriesDone");
+  emit(7, "(loop $entryLoop");
+  emit(8, "(br_if $entriesDone (i32.ge_u (local.get $m) (local.get $entries)))");
+  emit(8, "(local.set $previous (i32.add (local.get $entry) (i32.mul (i32.and (local.get $m) (i32.sub (local.get $m) (i32.const 1))) (i32.const " + ENTRY + "))))");
+  emit(8, "(local.set $source (i32.add (i32.add (local.get $blockT) (local.get $at)) (i32.mul (i32.add (local.get $s0) (i32.ctz (local.get $m))) (local.get $rowBytes))))");
+  emit(8, `(local.set $target (i32.add (local.get $entry) (i32.mul (local.get $m) (i32.const ${ENTRY}))))`);
+  for (const p of range(GQ)) {
+    emit(8, `(v128.store offset=${p * 16} (local.get $target) (f32x4.add (v128.load offset=${p * 16} (local.get $previous)) (v128.load offset=${p * 16} (local.get $source))))`);
+  }
+  emit(8, "(local.set $m (i32.add (local.get $m) (i32.const 1)))");
+  emit(8, "(br $entryLoop)");
+  emit(7, ")");
+  emit(6, ")");
+  emit(6, "(local.set $entry (i32.add (local.get $entry) (local.get $chunkBytes)))");
+  emit(6, "(local.set $s0 (i32.add (local.get $s0) (local.get $chunkSize)))");
+  emit(6, "(local.set $chunk (i32.add (local.get $chunk) (i32.const 1)))");
+  emit(6, "(br $chunkLoop)");
+  emit(5, ")");
+  emit(4, ")");
+  emit(4, ";; each relabeling: one table entry per chunk");
   emit(4, "(local.set $m (local.get $offsets))");
   emit(4, "(local.set $b (i32.const 0))");
   emit(4, "(block $batchDone");
   emit(5, "(loop $relabelings");
   emit(6, "(br_if $batchDone (i32.ge_u (local.get $b) (local.get $batch)))");
   for (const p of range(GQ)) emit(6, `(local.set $acc${p} (v128.const f32x4 0 0 0 0))`);
-  emit(6, "(local.set $mEnd (i32.add (local.get $m) (i32.shl (local.get $groupSize) (i32.const 2))))");
-  emit(6, "(block $membersDone");
-  emit(7, "(br_if $membersDone (i32.ge_u (local.get $m) (local.get $mEnd)))");
-  emit(7, "(loop $members");
-  emit(8, "(local.set $row (i32.add (local.get $col) (i32.load (local.get $m))))");
+  emit(6, "(local.set $mEnd (i32.add (local.get $m) (i32.shl (local.get $chunks) (i32.const 2))))");
+  emit(6, "(block $lookupsDone");
+  emit(7, "(br_if $lookupsDone (i32.ge_u (local.get $m) (local.get $mEnd)))");
+  emit(7, "(loop $lookups");
+  emit(8, "(local.set $row (i32.add (local.get $tables) (i32.load (local.get $m))))");
   for (const p of range(GQ)) emit(8, `(local.set $acc${p} (f32x4.add (local.get $acc${p}) (v128.load offset=${p * 16} (local.get $row))))`);
   emit(8, "(local.set $m (i32.add (local.get $m) (i32.const 4)))");
-  emit(8, "(br_if $members (i32.lt_u (local.get $m) (local.get $mEnd)))");
+  emit(8, "(br_if $lookups (i32.lt_u (local.get $m) (local.get $mEnd)))");
   emit(7, ")");
   emit(6, ")");
-  for (const p of range(GQ)) {
-    emit(
-      6,
-      `(local.set $c (v128.or (f32x4.ge (local.get $acc${p}) (v128.load offset=${p * 16} (i32.add (local.get $sHi) (local.get $at)))) (f32x4.le (local.get $acc${p}) (v128.load offset=${p * 16} (i32.add (local.get $sLo) (local.get $at))))))`,
-    );
-    emit(6, "(if (v128.any_true (local.get $c))");
-    emit(7, "(then");
-    for (const lane of range(4)) {
-      const e = 4 * p + lane;
-      emit(
-        8,
-        `(if (i32.and (i32.ne (i32x4.extract_lane ${lane} (local.get $c)) (i32.const 0)) (i32.gt_u (local.get $count) (i32.const ${e}))) (then (call $append (local.get $lists) (local.get $counts) (local.get $capacity) (local.get $b) (i32.add (i32.add (local.get $first) (local.get $i)) (i32.const ${e})))))`,
-      );
-    }
-    emit(7, ")");
-    emit(6, ")");
-  }
+  emitGroupCompare(6);
   emit(6, "(local.set $b (i32.add (local.get $b) (i32.const 1)))");
   emit(6, "(br $relabelings)");
   emit(5, ")");
