@@ -157,10 +157,13 @@ describe("the screened null equals the reference null, bit for bit", () => {
     { ...base, label: "sign flips", scheme: "sign-flip", covariates: false, thresholds: [2.3] },
     { ...base, label: "threshold sweep", scheme: "permute", covariates: true, thresholds: [3, 2.5, 3.5] },
     { ...base, label: "group-sum path, threshold sweep", scheme: "permute", covariates: false, thresholds: [3, 2.5, 3.5] },
+    // 10 subjects, 4 in one group: all 210 distinct arrangements enumerated, the identity first.
+    { S: 10, regions: 40, permutations: 1000, label: "exact enumeration (group-sum path)", scheme: "permute", covariates: false, thresholds: [2.5] },
   ];
   for (const options of cases) {
     it(options.label, () => {
       const context = nullContext(options);
+      if (options.S === 10) expect(context.plan.exact && context.plan.count === 210).toBe(true);
       const tally = compare(context, options.label);
       // The screen must actually have settled most relabelings, or this test would compare the full path with itself.
       expect(tally.screened, `settled by the screen: ${tally.screened}, computed in full: ${tally.full}`).toBeGreaterThan(tally.full);
