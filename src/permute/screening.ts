@@ -70,8 +70,9 @@ export function residualScales(data: KernelData, padding: number): ResidualScale
       if (v > largest) largest = v;
     }
     if (!(largest >= SCALE_LOW && largest <= SCALE_HIGH)) forced.push(e);
-    // Rounded up by one part in 2⁵⁰ so that the sum's own rounding cannot shrink the bound.
-    scale[e] = (kappa * l1 + S * UNDERFLOW_PER_SUBJECT) * (1 + 2 ** -50);
+    // κ carries a factor 4 over the bound it needs (u = 2⁻²³ instead of 2⁻²⁴, then × 2), far more than
+    // covers the double-precision rounding of ‖R_e‖₁ itself and the reference sum's own error.
+    scale[e] = kappa * l1 + S * UNDERFLOW_PER_SUBJECT;
   }
   return { scale, forced: Int32Array.from(forced) };
 }
