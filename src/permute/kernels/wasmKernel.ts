@@ -209,13 +209,30 @@ export interface ScreenSettings {
  */
 const RESIDENT_BYTES = 160 * 1024 * 1024;
 /**
- * Subjects per chunk of the group-sum subset tables: each relabeling's sum is
- * ⌈S/k⌉ table entries instead of its group's rows, at the cost of building 2^k
- * entries per chunk and tile. Measured (S = 200, E = 79,800, 512 relabelings,
- * one core, ms per relabeling): rows one by one 0.66, k = 3: 0.53, 4: 0.50,
- * 5: 0.32–0.43, 6: 0.40.
+ * Subjects per chunk of the group-sum subset tables, chosen per run from the
+ * batch: each relabeling's sum is ⌈S/k⌉ table entries (one load and add of a
+ * tile each) instead of its group's rows, and each tile first builds 2^k
+ * entries per chunk (about twice the cost of a lookup each). A large batch
+ * amortises big tables (k = 5 or 6); a small one (a retry of a few
+ * relabelings) wants small ones. Measured (S = 200, E = 79,800, 512
+ * relabelings, one core, ms per relabeling): rows one by one 0.66, k = 3:
+ * 0.53, 4: 0.50, 5: 0.32–0.43, 6: 0.40.
  */
-const GROUP_CHUNK_SUBJECTS = 5;
+export function groupChunkSize(subjects: number, batch: number): number {
+  let best = MIN_CHUNK_SUBJECTS;
+  let bestCost = Infinity;
+  for (let k = MIN_CHUNK_SUBJECTS; k <= MAX_CHUNK_SUBJECTS; k++) {
+    const chunks = Math.ceil(subjects / k);
+    const cost = chunks * (2 * (1 << k) + batch);
+    if (cost < bestCost) {
+      best = k;
+      bestCost = cost;
+    }
+  }
+  return best;
+}
+const MIN_CHUNK_SUBJECTS = 2;
+const MAX_CHUNK_SUBJECTS = 6;
 /** The resident limit in force (tests lower it to exercise the block-by-block path). */
 export const screenMemory = { residentBytes: RESIDENT_BYTES };
 
@@ -420,7 +437,6 @@ export class WasmPermutationKernel {
     bounds: { sLo: Float32Array; sHi: Float32Array },
     capacity: number,
   ): GroupScreenBatch | undefined {
-    const chunkSize = GROUP_CHUNK_SUBJECTS;
     const { subjects: S, edges: E, residuals } = data;
     const T = this.screenGroupEdgesPerTile;
     const W = this.blockWidth(S, E, T, GROUP_BLOCK_BYTES);
@@ -438,12 +454,14 @@ export class WasmPermutationKernel {
     const singleAt = alignUp(transposedAt + W * S * 8);
     const countsAt = alignUp(singleAt + W * S * 4);
     const listsAt = alignUp(countsAt + batchSize * 4);
-    // Subset tables: one entry of T single-precision sums per subset of each chunk of subjects.
-    const chunks = Math.ceil(S / chunkSize);
+    // Subset tables: one entry of T single-precision sums per subset of each chunk of subjects (room for any chunk size).
+    const mostChunks = Math.ceil(S / MIN_CHUNK_SUBJECTS);
     const entryBytes = T * 4;
     const chunkOffsetsAt = alignUp(listsAt + batchSize * capacity * 4);
-    const tablesAt = alignUp(chunkOffsetsAt + batchSize * chunks * 4);
-    const end = tablesAt + chunks * (1 << chunkSize) * entryBytes;
+    const tablesAt = alignUp(chunkOffsetsAt + batchSize * mostChunks * 4);
+    let tableBytes = 0;
+    for (let k = MIN_CHUNK_SUBJECTS; k <= MAX_CHUNK_SUBJECTS; k++) tableBytes = Math.max(tableBytes, Math.ceil(S / k) * (1 << k) * entryBytes);
+    const end = tablesAt + tableBytes;
     if (!this.reserve(end)) return undefined;
     const token = {};
     const kept = resident && this.resident?.data === data && this.resident.layout === layout;
@@ -470,8 +488,8 @@ export class WasmPermutationKernel {
     const members = new Int32Array(buffer, membersAt, batchSize * G);
     const counts = new Int32Array(buffer, countsAt, batchSize);
     const lists = new Int32Array(buffer, listsAt, batchSize * capacity);
-    const chunkOffsets = new Int32Array(buffer, chunkOffsetsAt, batchSize * chunks);
-    const writeChunkOffsets = (batch: number): void => {
+    const chunkOffsets = new Int32Array(buffer, chunkOffsetsAt, batchSize * mostChunks);
+    const writeChunkOffsets = (batch: number, chunkSize: number, chunks: number): void => {
       const entries = 1 << chunkSize;
       for (let b = 0; b < batch; b++) {
         const at = b * chunks;
@@ -488,7 +506,9 @@ export class WasmPermutationKernel {
       if (this.current !== token) throw new Error("internal: a kernel batch was used after another was prepared on this thread");
       counts.fill(0);
       if (E === 0 || batch === 0) return;
-      writeChunkOffsets(batch);
+      const chunkSize = groupChunkSize(S, batch);
+      const chunks = Math.ceil(S / chunkSize);
+      writeChunkOffsets(batch, chunkSize, chunks);
       const f64 = this.f64;
       for (let e0 = 0; e0 < E; e0 += W) {
         const width = Math.min(W, E - e0);
