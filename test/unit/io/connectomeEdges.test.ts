@@ -68,7 +68,7 @@ describe("writeMatrixEdges", () => {
     ["fisher-z", { ...PLAIN, transform: "fisher-z" }],
     ["symmetrize + fisher-z", { ...PLAIN, symmetrize: true, transform: "fisher-z" }],
   ] as [string, EdgeExtractionOptions][])("gives the documented edges in edge order (%s)", (_name, options) => {
-    for (const n of [2, 3, 7, 30]) {
+    for (const n of [2, 3, 7, 30, 33, 64, 65, 97]) {
       const m = symmetricMatrix(n, n);
       if (options.symmetrize) m[0 * n + 1] += 0.01; // make the triangles differ
       const pairs = edgePairs(n);
@@ -76,6 +76,16 @@ describe("writeMatrixEdges", () => {
       writeMatrixEdges(m, 0, pairs, out, 0, options, { file: "m.txt" });
       expectIdentical(out, Float64Array.from(documentedEdges(m, n, options)), `n = ${n}`);
     }
+  });
+
+  it("an error in a later tile is still the first bad cell in row-major order", () => {
+    const n = 70;
+    const m = symmetricMatrix(n, 3);
+    m[1 * n + 60] = 0.5; // row 2, column 61
+    m[40 * n + 45] = Number.NaN; // row 41, column 46: after it in row-major order
+    const pairs = edgePairs(n);
+    const out = new Float64Array(pairs.edgeCount);
+    expect(() => writeMatrixEdges(m, 0, pairs, out, 0, PLAIN, { file: "m.txt" })).toThrow(/row 2, column 61/);
   });
 
   it("reads a matrix at an offset and writes with a stride and an offset", () => {
