@@ -81,6 +81,9 @@ function screenFromEnvironment(): boolean {
   return value?.trim().toLowerCase() !== "off";
 }
 
+/** Relabelings per full computation behind the screen, which sends back few. */
+const FALLBACK_BATCH = 8;
+
 export interface ScreenTally {
   screened: number;
   full: number;
@@ -108,7 +111,8 @@ export function computeNullRange(context: NullContext, from: number, to: number,
     for (let j = 0; j < extra.length; j++) chunk.extra[j][k - from] = extra[j];
   };
   const level = options.groupSums === false ? undefined : twoLevelOf(context);
-  const exact = new ExactRows(context, level, maxima, record, options.kernel);
+  const screen = (options.screen ?? screenFromEnvironment()) ? prepareScreen(context, level, options.kernel, options.screenCapacity) : undefined;
+  const exact = new ExactRows(context, level, maxima, record, options.kernel, screen ? FALLBACK_BATCH : Infinity);
   let k = from;
   // The identity of an exact enumeration takes the observed values themselves.
   if (k === 1 && k < to && context.plan.exact) {
@@ -116,7 +120,6 @@ export function computeNullRange(context: NullContext, from: number, to: number,
     record(1, maxima.measure(context.observed, extra), extra);
     k++;
   }
-  const screen = (options.screen ?? screenFromEnvironment()) ? prepareScreen(context, level, options.kernel, options.screenCapacity) : undefined;
   if (screen) {
     const unsettled = screenedRows(context, screen, maxima, record, k, to);
     exact.computeList(unsettled);
@@ -146,6 +149,8 @@ export class ExactRows {
     private readonly maxima: NullMaxima,
     private readonly record: NullRecorder,
     private readonly kernelChoice: KernelChoice | undefined,
+    /** Most relabelings per kernel call: a few where it only catches what the screen sends back (less memory to touch). */
+    private readonly batchCap = Infinity,
   ) {
     this.writer = relabelingWriter(context);
     this.extra = new Float64Array(maxima.extraNames.length);
@@ -157,7 +162,7 @@ export class ExactRows {
     const c = vectors.length;
     // An F contrast (several effect vectors) runs on the TypeScript kernel, which holds the F formula.
     const statisticsKernel = selectKernel((kernel.effectVectors ?? 1) > 1 ? "typescript" : this.kernelChoice);
-    const batchSize = statisticsKernel.batchSize(c, kernel.edges);
+    const batchSize = Math.max(1, Math.min(this.batchCap, statisticsKernel.batchSize(c, kernel.edges)));
     const level = this.level;
     if (level) {
       const groups = statisticsKernel.prepareGroups(kernel, batchSize, level);
