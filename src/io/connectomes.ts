@@ -1,9 +1,10 @@
+import { createHash } from "node:crypto";
 import { isAbsolute, resolve } from "node:path";
 import { InputError, type InputLocation } from "../errors.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
 import { parseMatrixBytes } from "./matrixText.js";
-import { loadTextBlocksInParallel, sizeMismatch, worthTwoThreads } from "./textMatrixBlocks.js";
+import { digestHex, loadTextBlocksInParallel, sharedDigests, sizeMismatch, worthTwoThreads } from "./textMatrixBlocks.js";
 import { decodeNpyValues, isNativeFloat64, npyDataOffset, npyValueReader, parseNpyHeader, type NpyHeader } from "./npy.js";
 import { PARTICIPANT_ID } from "./participants.js";
 import { InputFile, TextFileReader } from "./readInputFile.js";
@@ -43,6 +44,12 @@ export interface LoadedConnectomes {
   data: Float64Array;
   /** Resolved path of each file read (one entry for an .npy stack). */
   files: string[];
+  /**
+   * SHA-256 (FIPS 180-4, hex) of each of `files`, from the bytes loaded, when
+   * each was read whole (text matrices); absent for an .npy stack, which is
+   * read in parts.
+   */
+  sha256?: string[];
 }
 
 export const CONNECTOMES_KEY = "connectomes";
@@ -134,9 +141,11 @@ function loadFromTemplate(
   // Many files: two threads read blocks of subjects (textMatrixBlocks.ts), with the same values and errors.
   const files = resolveAllOrUndefined(template, subjects, baseDir);
   if (files && worthTwoThreads(subjects.length, firstBytes.length)) {
-    loadTextBlocksInParallel({ files, hints: subjects.map(hintFor), regionCount: pairs.regionCount, firstFile, data, options });
-    return { ...loaded, files };
+    const digests = sharedDigests(subjects.length);
+    loadTextBlocksInParallel({ files, hints: subjects.map(hintFor), regionCount: pairs.regionCount, firstFile, data, options, digests });
+    return { ...loaded, files, sha256: files.map((_, s) => digestHex(digests, s)) };
   }
+  const sha256 = [sha256Hex(firstBytes)];
   const writer = new EdgeMajorWriter(pairs, data, subjects.length);
   writer.add(matrix.values, 0, options, { file: firstFile, rowLines: matrix.rowLines });
   const read = [firstFile];
@@ -144,12 +153,18 @@ function loadFromTemplate(
     const subject = subjects[s];
     const file = resolveTemplate(template, subject, baseDir);
     const bytes = reader.readBytes(file, hintFor(subject));
+    sha256.push(sha256Hex(bytes));
     matrix = parseMatrixBytes(bytes, file, { allowNonFiniteDiagonal: true }, matrix);
     if (matrix.size !== pairs.regionCount) throw sizeMismatch(file, matrix.size, firstFile, pairs.regionCount, matrix.rowLines[0]);
     writer.add(matrix.values, 0, options, { file, rowLines: matrix.rowLines });
     read.push(file);
   }
-  return { ...loaded, files: read };
+  return { ...loaded, files: read, sha256 };
+}
+
+/** SHA-256 (FIPS 180-4) of a file's bytes, hex, as src/output/provenance.ts sha256File gives it. */
+function sha256Hex(bytes: Uint8Array): string {
+  return createHash("sha256").update(bytes).digest("hex");
 }
 
 /** Every subject's file, or undefined when a template cannot be filled (the one-thread loader then meets that error in order). */

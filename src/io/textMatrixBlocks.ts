@@ -1,3 +1,5 @@
+import { Buffer } from "node:buffer";
+import { createHash } from "node:crypto";
 import { MessageChannel, Worker, receiveMessageOnPort, type MessagePort } from "node:worker_threads";
 import { InputError, isInputError, type InputLocation } from "../errors.js";
 import { edgePairs } from "../edges/edgeIndex.js";
@@ -15,7 +17,8 @@ import { TextFileReader } from "./readInputFile.js";
  * worker with Atomics.wait, so loading stays synchronous. The values are those
  * of the one-thread loader, and so is any error: each block stops at its first
  * bad file, and the error of the lowest failing block is the one raised, which
- * is the error the one-thread loader meets first.
+ * is the error the one-thread loader meets first. Whichever thread reads a
+ * file also takes its SHA-256 from the bytes read, for the run's provenance.
  */
 export interface TextBlockJob {
   /** Each subject's matrix file (resolved) and the hint for a read error. */
@@ -27,6 +30,8 @@ export interface TextBlockJob {
   /** The edge-major subjects × edges array, in a SharedArrayBuffer. */
   data: Float64Array;
   options: EdgeExtractionOptions;
+  /** When given (see sharedDigests): each file's SHA-256, 32 bytes at 32 × subject, in a SharedArrayBuffer. */
+  digests?: Uint8Array;
 }
 
 /** The worker's report of a block it could not load. */
@@ -53,6 +58,18 @@ const STATUS = 2;
 const DONE = 1;
 const FAILED = 2;
 
+/** Room for one SHA-256 digest (32 bytes) per subject, shared with the worker thread. */
+export function sharedDigests(subjects: number): Uint8Array {
+  return new Uint8Array(new SharedArrayBuffer(DIGEST_BYTES * subjects));
+}
+
+/** Subject `s`'s digest from sharedDigests, as hex. */
+export function digestHex(digests: Uint8Array, s: number): string {
+  return Buffer.from(digests.buffer, digests.byteOffset + DIGEST_BYTES * s, DIGEST_BYTES).toString("hex");
+}
+
+const DIGEST_BYTES = 32;
+
 export function blockCount(subjects: number): number {
   return Math.ceil(subjects / SUBJECT_BLOCK_SIZE);
 }
@@ -73,6 +90,7 @@ export function loadBlock(job: TextBlockJob, block: number, reader: TextFileRead
   for (let s = first; s < end; s++) {
     const file = job.files[s];
     const bytes = reader.readBytes(file, job.hints[s]);
+    if (job.digests) job.digests.set(createHash("sha256").update(bytes).digest(), DIGEST_BYTES * s);
     const matrix = parseMatrixBytes(bytes, file, { allowNonFiniteDiagonal: true }, reuse.matrix);
     reuse.matrix = matrix;
     if (matrix.size !== job.regionCount) throw sizeMismatch(file, matrix.size, job.firstFile, job.regionCount, matrix.rowLines[0]);

@@ -28,6 +28,10 @@ export interface InputRecord {
   sha256: string;
 }
 
-export function hashInputs(inputs: { role: string; path: string }[]): InputRecord[] {
-  return inputs.map((input) => ({ ...input, sha256: sha256File(input.path) }));
+/**
+ * Each input with its SHA-256: the one given (taken from the bytes loaded, as
+ * for text matrices) or else the file's, read now (sha256File).
+ */
+export function hashInputs(inputs: { role: string; path: string; sha256?: string }[]): InputRecord[] {
+  return inputs.map((input) => ({ ...input, sha256: input.sha256 ?? sha256File(input.path) }));
 }

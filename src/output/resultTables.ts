@@ -3,7 +3,8 @@ import { formulaVariables } from "../model/formula.js";
 import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { ComponentSummary } from "../inference/components.js";
-import { formatTsv, type Cell } from "./tsvWriter.js";
+import type { EdgeColumns } from "../report/loadResults.js";
+import { formatCell, formatNumber, formatTsv, NumberTexts, TsvBytes, utf8Field, type Cell } from "./tsvWriter.js";
 
 /** Extra per-edge columns after the contract columns, in order. */
 export interface ExtraEdgeColumn {
@@ -13,7 +14,13 @@ export interface ExtraEdgeColumn {
 
 export const EDGE_COLUMNS = ["region_a", "region_b", "statistic", "estimate", "p_unc", "q_fdr", "component"] as const;
 
-/** edges.tsv: one row per edge i<j in the fixed order. */
+/**
+ * edges.tsv, as UTF-8 bytes: one row per edge i<j in the fixed order. Written
+ * field by field rather than through formatTsv's cells (79,800 rows for 400
+ * regions): each region label is formatted once and q_fdr (few distinct
+ * values) through a cache; the bytes are those of formatTsv's text for the
+ * same rows.
+ */
 export function edgesTable(
   pairs: EdgePairs,
   regions: Region[],
@@ -23,23 +30,90 @@ export function edgesTable(
   qFdr: Float64Array,
   labels: Int32Array,
   extra: ExtraEdgeColumn[],
-): string {
-  const rows: Cell[][] = new Array(pairs.edgeCount);
+): Uint8Array {
+  const labelBytes = regions.map((region) => utf8Field(formatCell(region.label)));
+  const qText = new NumberTexts();
+  // About 20 bytes a number: a first guess at the size, grown as needed.
+  const out = new TsvBytes(pairs.edgeCount * (24 + 20 * (5 + extra.length)));
+  out.header([...EDGE_COLUMNS, ...extra.map((c) => c.name)]);
   for (let e = 0; e < pairs.edgeCount; e++) {
-    const finite = Number.isFinite(statistic[e]);
-    const row: Cell[] = [
-      regions[pairs.regionA[e]].label,
-      regions[pairs.regionB[e]].label,
-      finite ? statistic[e] : null,
-      estimate[e],
-      finite ? pUncorrected[e] : null,
-      finite ? qFdr[e] : null,
-      labels[e] > 0 ? labels[e] : null,
-    ];
-    for (const column of extra) row.push(column.values[e]);
-    rows[e] = row;
+    const t = statistic[e];
+    const finite = Number.isFinite(t);
+    out.field(labelBytes[pairs.regionA[e]]);
+    out.tab();
+    out.field(labelBytes[pairs.regionB[e]]);
+    out.tab();
+    if (finite) out.ascii(String(t));
+    out.tab();
+    out.ascii(formatNumber(estimate[e]));
+    out.tab();
+    if (finite) out.ascii(formatNumber(pUncorrected[e]));
+    out.tab();
+    if (finite) out.ascii(qText.text(qFdr[e]));
+    out.tab();
+    if (labels[e] > 0) out.ascii(String(labels[e]));
+    for (let c = 0; c < extra.length; c++) {
+      out.tab();
+      out.ascii(formatNumber(extra[c].values[e]));
+    }
+    out.newline();
   }
-  return formatTsv([...EDGE_COLUMNS, ...extra.map((c) => c.name)], rows);
+  return out.result();
+}
+
+/** A number as it reads back from its cell: the same double, but −0 (written "0") is 0 and a non-finite one (an empty cell) is NaN. */
+function readBack(value: number): number {
+  return Number.isFinite(value) ? value + 0 : NaN;
+}
+
+/**
+ * The columns that src/report/loadResults.ts reads from the text edgesTable
+ * writes for the same arguments, computed without writing or parsing it, so a
+ * report made right after the run need not read edges.tsv back. Number::toString
+ * gives the shortest text that reads back as the same double (ECMA-262,
+ * Number::toString), so only −0 and the empty cells of non-finite numbers change.
+ */
+export function edgeColumnsReadBack(
+  pairs: EdgePairs,
+  statistic: Float64Array,
+  estimate: Float64Array,
+  pUncorrected: Float64Array,
+  qFdr: Float64Array,
+  labels: Int32Array,
+  extra: ExtraEdgeColumn[],
+): EdgeColumns {
+  const count = pairs.edgeCount;
+  const finiteStatistic = (values: ArrayLike<number>): Float64Array => {
+    const out = new Float64Array(count);
+    for (let e = 0; e < count; e++) out[e] = Number.isFinite(statistic[e]) ? readBack(values[e]) : NaN;
+    return out;
+  };
+  const mapped = (values: ArrayLike<number>): Float64Array => {
+    const out = new Float64Array(count);
+    for (let e = 0; e < count; e++) out[e] = readBack(values[e]);
+    return out;
+  };
+  // The reader takes the first column of a name; a column not written reads as NaN throughout.
+  const named = (name: string): Float64Array => {
+    const column = extra.find((c) => c.name === name);
+    return column ? mapped(column.values) : new Float64Array(count).fill(NaN);
+  };
+  const components = new Int32Array(count);
+  for (let e = 0; e < count; e++) components[e] = labels[e] > 0 ? labels[e] : 0;
+  const columns: EdgeColumns = {
+    regionA: pairs.regionA,
+    regionB: pairs.regionB,
+    statistic: finiteStatistic(statistic),
+    estimate: mapped(estimate),
+    pUncorrected: finiteStatistic(pUncorrected),
+    qFdr: finiteStatistic(qFdr),
+    component: components,
+    partialR: named("partial_r"),
+    standardError: named("standard_error"),
+    partialEtaSquared: named("partial_eta_squared"),
+  };
+  if (extra.some((c) => c.name === "p_fwe")) columns.pFwe = named("p_fwe");
+  return columns;
 }
 
 export const COMPONENT_COLUMNS = ["component", "extent", "nodes", "mass", "p_fwe"] as const;

@@ -154,26 +154,75 @@ export interface RobustnessTable {
   rows: { regionA: string; regionB: string; statistic: number; significant: boolean[] }[];
 }
 
-/** Reads a results folder; a missing folder or file, or a malformed one, is an InputError naming it. */
-export function loadResults(dir: string): LoadedResults {
+/**
+ * What the writer of a results folder still holds of it, so that a report made
+ * right after the run reads nothing back from disk: the text of each file it
+ * wrote (by absolute path) and each contrast's edge columns as they read back
+ * from edges.tsv (src/output/resultTables.ts edgeColumnsReadBack), by name.
+ */
+export interface KnownResults {
+  texts: Map<string, string>;
+  edges: Map<string, EdgeColumns>;
+}
+
+/** A surrogate code unit outside a pair (the `u` flag reads a pair as one code point). */
+const LONE_SURROGATE = /\p{Cs}/u;
+
+/**
+ * The files of the folder: a text the writer holds, else the file on disk.
+ * A held text is used only when it is well-formed UTF-16, so that it is the
+ * string the file decodes to (a lone surrogate is written as U+FFFD).
+ */
+class FolderFiles {
+  constructor(private readonly known: KnownResults | undefined) {}
+
+  private held(file: string): string | undefined {
+    const text = this.known?.texts.get(path.resolve(file));
+    return text !== undefined && !LONE_SURROGATE.test(text) ? text : undefined;
+  }
+
+  exists(file: string): boolean {
+    return this.held(file) !== undefined || existsSync(file);
+  }
+
+  text(file: string): string {
+    return this.held(file) ?? readTextFile(file);
+  }
+
+  table(file: string): LocatedTsvTable {
+    return parseTsv(this.text(file), file);
+  }
+
+  edges(contrast: string): EdgeColumns | undefined {
+    return this.known?.edges.get(contrast);
+  }
+}
+
+/**
+ * Reads a results folder; a missing folder or file, or a malformed one, is an
+ * InputError naming it. `known`: what the writer of the folder still holds of
+ * it (the same values, read without the disk).
+ */
+export function loadResults(dir: string, known?: KnownResults): LoadedResults {
+  const files = new FolderFiles(known);
   if (!existsSync(dir) || !statSync(dir).isDirectory()) {
     throw new InputError("not a results folder: the folder does not exist", { file: dir }, "give the folder that `plexus run --out` wrote");
   }
   const summaryFile = path.join(dir, "summary.json");
-  if (!existsSync(summaryFile)) {
+  if (!files.exists(summaryFile)) {
     throw new InputError("not a results folder: summary.json is missing", { file: summaryFile }, "give the folder that `plexus run --out` wrote");
   }
-  const summary = readSummary(summaryFile);
-  const regions = readRegionsTable(path.join(dir, "regions.tsv"), summary.regions);
-  const subjects = readSubjects(path.join(dir, "subjects.tsv"));
-  const contrasts = summary.contrasts.map((contrast) => readContrast(dir, contrast, regions));
+  const summary = readSummary(files, summaryFile);
+  const regions = readRegionsTable(files, path.join(dir, "regions.tsv"), summary.regions);
+  const subjects = readSubjects(files, path.join(dir, "subjects.tsv"));
+  const contrasts = summary.contrasts.map((contrast) => readContrast(files, dir, contrast, regions));
   return { dir, summary, subjects, regions, contrasts };
 }
 
-function readSummary(file: string): ResultsSummary {
+function readSummary(files: FolderFiles, file: string): ResultsSummary {
   let parsed: unknown;
   try {
-    parsed = JSON.parse(readTextFile(file));
+    parsed = JSON.parse(files.text(file));
   } catch (error) {
     if (error instanceof InputError) throw error;
     throw new InputError(`summary.json is not valid JSON: ${(error as Error).message}`, { file });
@@ -213,10 +262,6 @@ function readSummary(file: string): ResultsSummary {
   return parsed as ResultsSummary;
 }
 
-function readTable(file: string): LocatedTsvTable {
-  return parseTsv(readTextFile(file), file);
-}
-
 /** Index of each named column; a missing one is an InputError on the header line. */
 function columnsOf(table: LocatedTsvTable, names: readonly string[]): Map<string, number> {
   const found = new Map<string, number>();
@@ -244,8 +289,8 @@ function numberCell(table: LocatedTsvTable, row: number, column: number): number
   return value;
 }
 
-function readRegionsTable(file: string, count: number): Region[] {
-  const table = readTable(file);
+function readRegionsTable(files: FolderFiles, file: string, count: number): Region[] {
+  const table = files.table(file);
   const columns = columnsOf(table, ["label"]);
   const label = columns.get("label")!;
   const optional = (name: string) => table.header.indexOf(name);
@@ -266,8 +311,8 @@ function readRegionsTable(file: string, count: number): Region[] {
   });
 }
 
-function readSubjects(file: string): SubjectsTable {
-  const table = readTable(file);
+function readSubjects(files: FolderFiles, file: string): SubjectsTable {
+  const table = files.table(file);
   const fixed = columnsOf(table, ["participant_id", "included", "exclusion_reason"]);
   const id = fixed.get("participant_id")!;
   const included = fixed.get("included")!;
@@ -292,10 +337,35 @@ function readSubjects(file: string): SubjectsTable {
 
 const EDGE_COLUMNS = ["region_a", "region_b", "statistic", "estimate", "p_unc", "q_fdr", "component"] as const;
 
-function readContrast(dir: string, summary: ContrastSummary, regions: Region[]): ContrastResults {
+function readContrast(files: FolderFiles, dir: string, summary: ContrastSummary, regions: Region[]): ContrastResults {
   const folder = path.join(dir, summary.name);
-  const edgesFile = path.join(folder, "edges.tsv");
-  const table = readTable(edgesFile);
+  const edges = files.edges(summary.name) ?? readEdges(files, path.join(folder, "edges.tsv"), regions);
+  const components = readComponents(files, path.join(folder, "components.tsv"));
+  let nullDistribution: NullChunk | undefined;
+  if (summary.mode !== null && summary.mode !== undefined) {
+    const nullFile = path.join(folder, "null.tsv");
+    nullDistribution = parseNullTable(files.text(nullFile), nullFile);
+  }
+  const robustnessFile = path.join(folder, "threshold_robustness.tsv");
+  let robustness: RobustnessTable | undefined;
+  if (files.exists(robustnessFile)) {
+    const table = files.table(robustnessFile);
+    const columns = table.header.slice(3, -1);
+    robustness = {
+      thresholds: columns.map((name) => Number(name.replace(/^component_t/, ""))),
+      rows: table.rows.map((row) => ({
+        regionA: tsvCellText(row[0]),
+        regionB: tsvCellText(row[1]),
+        statistic: Number(row[2]),
+        significant: columns.map((_, j) => row[3 + j] !== ""),
+      })),
+    };
+  }
+  return { summary, edges, components, nullDistribution, robustness };
+}
+
+function readEdges(files: FolderFiles, edgesFile: string, regions: Region[]): EdgeColumns {
+  const table = files.table(edgesFile);
   const columns = columnsOf(table, EDGE_COLUMNS);
   const pairs = edgePairs(regions.length);
   if (table.rows.length !== pairs.edgeCount) {
@@ -337,33 +407,11 @@ function readContrast(dir: string, summary: ContrastSummary, regions: Region[]):
     partialEtaSquared: numeric("partial_eta_squared"),
   };
   if (table.header.includes("p_fwe")) edges.pFwe = numeric("p_fwe");
-
-  const components = readComponents(path.join(folder, "components.tsv"));
-  let nullDistribution: NullChunk | undefined;
-  if (summary.mode !== null && summary.mode !== undefined) {
-    const nullFile = path.join(folder, "null.tsv");
-    nullDistribution = parseNullTable(readTextFile(nullFile), nullFile);
-  }
-  const robustnessFile = path.join(folder, "threshold_robustness.tsv");
-  let robustness: RobustnessTable | undefined;
-  if (existsSync(robustnessFile)) {
-    const table = parseTsv(readTextFile(robustnessFile), robustnessFile);
-    const columns = table.header.slice(3, -1);
-    robustness = {
-      thresholds: columns.map((name) => Number(name.replace(/^component_t/, ""))),
-      rows: table.rows.map((row) => ({
-        regionA: tsvCellText(row[0]),
-        regionB: tsvCellText(row[1]),
-        statistic: Number(row[2]),
-        significant: columns.map((_, j) => row[3 + j] !== ""),
-      })),
-    };
-  }
-  return { summary, edges, components, nullDistribution, robustness };
+  return edges;
 }
 
-function readComponents(file: string): ComponentRow[] {
-  const table = readTable(file);
+function readComponents(files: FolderFiles, file: string): ComponentRow[] {
+  const table = files.table(file);
   const columns = columnsOf(table, ["component", "extent", "nodes", "mass", "p_fwe", "sign"]);
   const low = table.header.indexOf("p_fwe_low");
   const high = table.header.indexOf("p_fwe_high");

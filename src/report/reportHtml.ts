@@ -81,16 +81,18 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   const cohortTables = general.filter((t) => t.table.id === "cohort" || t.table.id === "excluded").map(({ table, number }) => htmlTable(table, number));
   const subnetworkTable = general.filter((t) => t.table.id === "subnetworks").map(({ table, number }) => htmlTable(table, number));
 
+  // Sections and figures are lists of lines, joined once with the whole page: a matrix figure
+  // of a few hundred regions is megabytes of text, copied at every join.
   const contrastSections = content.contrasts.map((contrast, k) => {
     const c = summary.contrasts[k];
-    const figures = contrast.figures.map((figure) => {
+    const figures = contrast.figures.flatMap((figure) => {
       figureNumber += 1;
       return [
         `<figure>`,
         `<div class="svg">${figure.svg.trim()}</div>`,
         `<figcaption><strong>Figure ${figureNumber}.</strong> ${h(figure.caption)} <span class="file">(${h(figure.file)})</span></figcaption>`,
         `</figure>`,
-      ].join("\n");
+      ];
     });
     const none =
       contrast.finding.edges.length === 0
@@ -104,7 +106,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
       ...figures,
       ...tablesFor(contrast.name),
       `</section>`,
-    ].join("\n");
+    ];
   });
 
   const inputs = summary.inputs;
@@ -156,7 +158,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     ...cohortTables,
     "</section>",
     ...(subnetworkTable.length > 0 ? ['<section id="subnetworks">', "<h2>Significant subnetworks</h2>", ...subnetworkTable, "</section>"] : []),
-    ...contrastSections,
+    ...contrastSections.flat(),
     '<section id="methods">',
     "<h2>Methods</h2>",
     '<p class="hint">The same text is in methods.md, ready to paste and edit.</p>',

@@ -1,6 +1,6 @@
 import { formatTsv } from "../output/tsvWriter.js";
 import type { CohortOptions } from "./cohortTable.js";
-import { loadResults, type LoadedResults } from "./loadResults.js";
+import { loadResults, type KnownResults, type LoadedResults } from "./loadResults.js";
 import { methodsMarkdown } from "./methodsText.js";
 import { reportContent } from "./reportContent.js";
 import { reportHtml } from "./reportHtml.js";
@@ -29,7 +29,16 @@ export function reportFiles(results: LoadedResults, options: ReportOptions = {})
   return files;
 }
 
-/** Reads the results folder at `resultsDir` and writes every report file through `write`. */
-export function writeReport(resultsDir: string, write: (relativePath: string, content: string) => void, options: ReportOptions = {}): void {
-  for (const [file, text] of reportFiles(loadResults(resultsDir), options)) write(file, text);
+/**
+ * Reads the results folder at `resultsDir` and writes every report file through
+ * `write`; `known` is what the writer of the folder still holds of it (see
+ * loadResults), so that nothing is read back from disk.
+ */
+export function writeReport(
+  resultsDir: string,
+  write: (relativePath: string, content: string) => void,
+  options: ReportOptions = {},
+  known?: KnownResults,
+): void {
+  for (const [file, text] of reportFiles(loadResults(resultsDir, known), options)) write(file, text);
 }

@@ -38,8 +38,11 @@ export interface PreparedAnalysis {
   connectomes: LoadedConnectomes;
   /** Exchangeability block of each kept subject (0-based codes), when `inference.blocks` is set. */
   blocks?: { column: string; codes: Int32Array; labels: string[] };
-  /** Input files with their roles, for provenance (hashes are computed by the writer). */
-  inputs: { role: string; path: string }[];
+  /**
+   * Input files with their roles, for provenance; `sha256` is set where it is
+   * known from loading (text matrices), the writer hashes the rest.
+   */
+  inputs: { role: string; path: string; sha256?: string }[];
   warnings: string[];
 }
 
@@ -198,7 +201,7 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
     { role: "design", path: path.resolve(design.file) },
     { role: "participants", path: participantsPath },
     ...(design.regions ? [{ role: "regions", path: path.resolve(design.baseDir, design.regions) }] : []),
-    ...connectomes.files.map((file) => ({ role: "connectome", path: file })),
+    ...connectomes.files.map((file, k) => ({ role: "connectome", path: file, ...(connectomes.sha256 ? { sha256: connectomes.sha256[k] } : {}) })),
   ];
   return {
     design,

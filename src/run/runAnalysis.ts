@@ -11,7 +11,7 @@ import { ResultsFolder } from "../output/resultsFolder.js";
 import { relabelingSummary, smallestPossibleP } from "../output/relabelingSummary.js";
 import { formatTsv, type Cell } from "../output/tsvWriter.js";
 import { nullTable } from "../output/nullTable.js";
-import { componentsTable, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "../output/resultTables.js";
+import { componentsTable, edgeColumnsReadBack, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "../output/resultTables.js";
 import { SHARD_MANIFEST, type ShardManifest } from "../output/shardManifest.js";
 import { fitAll, observeContrast, type ObservedContrast } from "./analyzeContrasts.js";
 import {
@@ -29,6 +29,7 @@ import {
 import { prepareAnalysis, type PreparedAnalysis } from "./prepareAnalysis.js";
 import { thresholdsOf } from "../io/designFile.js";
 import { writeReport } from "../report/writeReport.js";
+import type { KnownResults } from "../report/loadResults.js";
 
 /** What the user asked for (CLI flags or library call). */
 export interface RunOptions {
@@ -149,8 +150,8 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
     if (options.shard) {
       writeShard(folder, prepared, contrasts, nulls, inputs, fingerprint, options);
     } else {
-      writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
-      writeReport(folder.staging, (relative, content) => folder.write(relative, content));
+      const written = writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
+      writeReport(folder.staging, (relative, content) => folder.write(relative, content), {}, written);
     }
     folder.commit();
     checkpoint?.remove();
@@ -191,7 +192,11 @@ function resultLines(prepared: PreparedAnalysis, contrasts: ObservedContrast[], 
   });
 }
 
-/** Writes every result file into the (staging) results folder. */
+/**
+ * Writes every result file into the (staging) results folder; returns what the
+ * report needs of them (their texts, and each contrast's edge columns as they
+ * read back), so that writeReport need not read them from disk.
+ */
 export function writeResults(
   folder: ResultsFolder,
   prepared: PreparedAnalysis,
@@ -199,7 +204,12 @@ export function writeResults(
   nulls: (ContrastNull | undefined)[],
   inputs: InputRecord[],
   commandLine: string[] | null,
-): void {
+): KnownResults {
+  const known: KnownResults = { texts: new Map(), edges: new Map() };
+  const write = (relative: string, text: string): void => {
+    folder.write(relative, text);
+    known.texts.set(folder.pathOf(relative), text);
+  };
   const fwes: (FamilywiseResult | undefined)[] = [];
   const extras: ContrastExtras[] = [];
   const { inference } = prepared.design;
@@ -223,20 +233,17 @@ export function writeResults(
     if (observed.contrast.kind === "F") extra.push({ name: "partial_eta_squared", values: statistics.partialR });
     else extra.push({ name: "partial_r", values: statistics.partialR }, { name: "standard_error", values: statistics.standardError });
     const name = observed.contrast.name;
+    const labels = free ? free.labels : observed.labels;
     folder.write(
       `${name}/edges.tsv`,
-      edgesTable(
-        prepared.pairs,
-        prepared.regions,
-        statistics.statistic,
-        statistics.estimate,
-        observed.pUncorrected,
-        observed.qFdr,
-        free ? free.labels : observed.labels,
-        extra,
-      ),
+      edgesTable(prepared.pairs, prepared.regions, statistics.statistic, statistics.estimate, observed.pUncorrected, observed.qFdr, labels, extra),
     );
-    folder.write(
+    // The report takes this table's columns, not its text (which it would have to parse).
+    known.edges.set(
+      name,
+      edgeColumnsReadBack(prepared.pairs, statistics.statistic, statistics.estimate, observed.pUncorrected, observed.qFdr, labels, extra),
+    );
+    write(
       `${name}/components.tsv`,
       free
         ? componentsTable(free.components, { pFwe: free.componentP })
@@ -252,7 +259,7 @@ export function writeResults(
     );
     if (sweep) {
       for (const level of sweep) {
-        folder.write(
+        write(
           `${name}/threshold-${level.threshold}/components.tsv`,
           componentsTable(level.components, {
             pFwe: level.componentP.map((r) => r.p),
@@ -260,14 +267,15 @@ export function writeResults(
           }),
         );
       }
-      folder.write(`${name}/threshold_robustness.tsv`, robustnessTable(prepared, observed, sweep, inference.alpha));
+      write(`${name}/threshold_robustness.tsv`, robustnessTable(prepared, observed, sweep, inference.alpha));
     }
-    if (contrastNull) folder.write(`${name}/null.tsv`, nullTable(contrastNull.rows));
+    if (contrastNull) write(`${name}/null.tsv`, nullTable(contrastNull.rows));
   });
-  folder.write("subjects.tsv", subjectsTable(prepared));
-  folder.write("regions.tsv", regionsTable(prepared.regions));
+  write("subjects.tsv", subjectsTable(prepared));
+  write("regions.tsv", regionsTable(prepared.regions));
   const summary = buildSummary(prepared, contrasts, nulls, fwes, inputs, commandLine, extras);
-  folder.write("summary.json", `${JSON.stringify(summary, null, 2)}\n`);
+  write("summary.json", `${JSON.stringify(summary, null, 2)}\n`);
+  return known;
 }
 
 /** Threshold-free and sweep results of a contrast, when the design asks for them. */

@@ -1,3 +1,4 @@
+import { Buffer } from "node:buffer";
 import type { Region } from "../../io/regions.js";
 import type { ContrastResults } from "../loadResults.js";
 import type { SignificantEdges } from "../significantEdges.js";
@@ -40,7 +41,8 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
   const stat = signed ? "t" : "F";
 
   // One path per quantised colour; each cell is a unit square in matrix coordinates.
-  const paths = new Map<number, string[]>();
+  const coordinate = Array.from(position, (p) => asciiBytes(String(p)));
+  const paths = new Map<number, CellSquares>();
   let missing = 0;
   for (let e = 0; e < edges.statistic.length; e++) {
     const t = edges.statistic[e];
@@ -49,11 +51,12 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
       continue;
     }
     const level = Math.round(scalePosition(t, limit, signed) * (LEVELS - 1));
-    const p = position[edges.regionA[e]];
-    const q = position[edges.regionB[e]];
-    const list = paths.get(level) ?? [];
-    list.push(`M${q} ${p}h1v1h-1z`, `M${p} ${q}h1v1h-1z`);
-    paths.set(level, list);
+    const p = coordinate[edges.regionA[e]];
+    const q = coordinate[edges.regionB[e]];
+    let list = paths.get(level);
+    if (list === undefined) paths.set(level, (list = new CellSquares()));
+    list.add(q, p);
+    list.add(p, q);
   }
   const body: string[] = [];
   body.push(text(left, 20, `Edge statistics (${stat}): ${contrast.summary.name}`, { size: 13, weight: "bold" }));
@@ -71,7 +74,7 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
   body.push(`<g transform="translate(${n(left)} ${n(top)}) scale(${n(cell)})" shape-rendering="crispEdges">`);
   for (const level of [...paths.keys()].sort((a, b) => a - b)) {
     const colour = scaleColour(level / (LEVELS - 1));
-    body.push(`<path fill="${colour}" d="${paths.get(level)!.join("")}"/>`);
+    body.push(`<path fill="${colour}" d="${paths.get(level)!.text()}"/>`);
   }
   body.push(`<path fill="#d9d9d9" d="${order.map((_, p) => `M${p} ${p}h1v1h-1z`).join("")}"/>`);
   body.push("</g>");
@@ -145,3 +148,41 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
   return svgDocument(width, height, `Edge-statistic matrix for ${contrast.summary.name}`, body);
 }
 
+/**
+ * The path data of many unit squares, `M{x} {y}h1v1h-1z` each, written as
+ * ASCII bytes (a few hundred thousand cells for a few hundred regions, which
+ * as separate strings cost more than the drawing itself).
+ */
+class CellSquares {
+  private bytes = new Uint8Array(1024);
+  private length = 0;
+
+  /** The square at column `x`, row `y`, each given as the ASCII digits of its coordinate. */
+  add(x: Uint8Array, y: Uint8Array): void {
+    const needed = this.length + x.length + y.length + SQUARE_TAIL.length + 2;
+    if (needed > this.bytes.length) {
+      const grown = new Uint8Array(Math.max(2 * this.bytes.length, needed));
+      grown.set(this.bytes.subarray(0, this.length));
+      this.bytes = grown;
+    }
+    const out = this.bytes;
+    let at = this.length;
+    out[at++] = 0x4d; // M
+    for (let i = 0; i < x.length; i++) out[at++] = x[i];
+    out[at++] = 0x20; // space
+    for (let i = 0; i < y.length; i++) out[at++] = y[i];
+    for (let i = 0; i < SQUARE_TAIL.length; i++) out[at++] = SQUARE_TAIL[i];
+    this.length = at;
+  }
+
+  text(): string {
+    return Buffer.from(this.bytes.buffer, 0, this.length).toString("latin1");
+  }
+}
+
+const SQUARE_TAIL = asciiBytes("h1v1h-1z");
+
+/** The bytes of a text of ASCII characters (a number's digits, path commands). */
+function asciiBytes(text: string): Uint8Array {
+  return Uint8Array.from(text, (c) => c.charCodeAt(0));
+}
