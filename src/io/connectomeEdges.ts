@@ -124,7 +124,7 @@ export class EdgeMajorWriter {
   /**
    * Fills subjects firstSubject … endSubject − 1 (default: all) of the
    * edge-major `out`, in that order; writers of disjoint ranges can share `out`
-   * (worker threads loading blocks of subjects, textMatrixBlocks.ts).
+   * (worker threads loading blocks of subjects, matrixBlocks.ts).
    */
   constructor(
     private readonly pairs: EdgePairs,

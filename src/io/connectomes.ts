@@ -4,8 +4,10 @@ import { InputError, type InputLocation } from "../errors.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
 import { parseMatrixBytes } from "./matrixText.js";
-import { digestHex, loadTextBlocksInParallel, sharedDigests, sizeMismatch, worthTwoThreads } from "./textMatrixBlocks.js";
-import { decodeNpyValues, isNativeFloat64, npyDataOffset, npyValueReader, parseNpyHeader, type NpyHeader } from "./npy.js";
+import { loadBlocksInParallel, worthTwoThreads } from "./matrixBlocks.js";
+import { cOrderMatrices, readExactly, stackMatrixLabel } from "./npyMatrixBlocks.js";
+import { digestHex, sharedDigests, sizeMismatch } from "./textMatrixBlocks.js";
+import { npyDataOffset, npyValueReader, parseNpyHeader, type NpyHeader } from "./npy.js";
 import { PARTICIPANT_ID } from "./participants.js";
 import { InputFile, TextFileReader } from "./readInputFile.js";
 
@@ -138,11 +140,21 @@ function loadFromTemplate(
   const pairs = edgePairs(matrix.size);
   const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
   const loaded = { regionCount: pairs.regionCount, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data };
-  // Many files: two threads read blocks of subjects (textMatrixBlocks.ts), with the same values and errors.
+  // Many files: two threads read blocks of subjects (matrixBlocks.ts), with the same values and errors.
   const files = resolveAllOrUndefined(template, subjects, baseDir);
   if (files && worthTwoThreads(subjects.length, firstBytes.length)) {
     const digests = sharedDigests(subjects.length);
-    loadTextBlocksInParallel({ files, hints: subjects.map(hintFor), regionCount: pairs.regionCount, firstFile, data, options, digests });
+    loadBlocksInParallel({
+      kind: "text",
+      subjectCount: subjects.length,
+      files,
+      hints: subjects.map(hintFor),
+      regionCount: pairs.regionCount,
+      firstFile,
+      data,
+      options,
+      digests,
+    });
     return { ...loaded, files, sha256: files.map((_, s) => digestHex(digests, s)) };
   }
   const sha256 = [sha256Hex(firstBytes)];
@@ -215,13 +227,26 @@ function loadFromStack(file: string, subjects: ConnectomeSubject[], options: Con
     requireTwoRegions(n, { file });
     const pairs = edgePairs(n);
     const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
-    const writer = new EdgeMajorWriter(pairs, data, subjects.length);
-    const matrixOf = header.fortranOrder ? fortranOrderMatrices(input, header) : cOrderMatrices(input, header);
-    for (const subject of subjects) {
-      writer.add(matrixOf(subject.tableRow), 0, options, {
+    const matrixBytes = n * n * header.dtype.itemSize;
+    if (!header.fortranOrder && worthTwoThreads(subjects.length, matrixBytes)) {
+      // Many matrices: two threads read blocks of subjects (matrixBlocks.ts), with the same values and errors.
+      loadBlocksInParallel({
+        kind: "npy",
+        subjectCount: subjects.length,
         file,
-        label: `matrix ${subject.tableRow + 1} of the stack (participant '${subject.id}')`,
+        hint: STACK_HINT,
+        header,
+        tableRows: subjects.map((subject) => subject.tableRow),
+        ids: subjects.map((subject) => subject.id),
+        data,
+        options,
       });
+    } else {
+      const writer = new EdgeMajorWriter(pairs, data, subjects.length);
+      const matrixOf = header.fortranOrder ? fortranOrderMatrices(input, header) : cOrderMatrices(input, header);
+      for (const subject of subjects) {
+        writer.add(matrixOf(subject.tableRow), 0, options, { file, label: stackMatrixLabel(subject.tableRow, subject.id) });
+      }
     }
     return { regionCount: n, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data, files: [file] };
   } finally {
@@ -245,19 +270,6 @@ function readStackHeader(input: InputFile): NpyHeader {
  * float64) into one reused array; the raw bytes go straight into that array
  * when they are float64 in this machine's byte order.
  */
-function cOrderMatrices(input: InputFile, header: NpyHeader): (row: number) => Float64Array {
-  const n = header.shape[1];
-  const values = n * n;
-  const matrixBytes = values * header.dtype.itemSize;
-  const matrix = new Float64Array(values);
-  const native = isNativeFloat64(header.dtype);
-  const raw = native ? new Uint8Array(matrix.buffer) : new Uint8Array(matrixBytes);
-  return (row) => {
-    readExactly(input, raw, header.dataOffset + row * matrixBytes, `matrix ${row + 1}`);
-    if (!native) decodeNpyValues(raw, 0, values, header.dtype, matrix, 0);
-    return matrix;
-  };
-}
 
 /**
  * For a Fortran-order (column-major) stack, where element (s, i, j) is value
@@ -291,17 +303,6 @@ function fortranOrderMatrices(input: InputFile, header: NpyHeader): (row: number
   };
 }
 
-/** Fills `target` from `position`; a file that ends sooner (it changed after its size was taken) is an InputError. */
-function readExactly(input: InputFile, target: Uint8Array, position: number, what: string): void {
-  const got = input.readAt(target, position);
-  if (got < target.length) {
-    throw new InputError(
-      `not a readable .npy file: truncated data: the file ends at byte ${position + got}, within ${what} ` +
-        `(it held ${input.size} bytes when opened; was it changed while being read?)`,
-      { file: input.path },
-    );
-  }
-}
 
 function requireTwoRegions(size: number, location: InputLocation): void {
   if (size < 2) {

@@ -11,7 +11,7 @@ import seedrandom from "seedrandom";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
 import { loadConnectomes, type ConnectomeOptions, type ConnectomeSubject } from "../../../src/io/connectomes.js";
 import { encodeNpy } from "../../../src/io/npy.js";
-import { parallelTextLoading } from "../../../src/io/textMatrixBlocks.js";
+import { parallelLoading } from "../../../src/io/matrixBlocks.js";
 import { hashInputs, sha256File } from "../../../src/output/provenance.js";
 import { prepareAnalysis } from "../../../src/run/prepareAnalysis.js";
 
@@ -42,8 +42,8 @@ beforeAll(() => {
   }
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
-const saved = { ...parallelTextLoading };
-afterEach(() => Object.assign(parallelTextLoading, saved));
+const saved = { ...parallelLoading };
+afterEach(() => Object.assign(parallelLoading, saved));
 
 /** coreutils sha256sum of each file, in order. */
 function coreutilsSha256(files: string[]): string[] {
@@ -55,8 +55,8 @@ function coreutilsSha256(files: string[]): string[] {
 }
 
 function load(threads: "one" | "two" | "worker") {
-  parallelTextLoading.minimumBytes = threads === "one" ? Infinity : 0;
-  parallelTextLoading.callingThreadLoads = threads !== "worker";
+  parallelLoading.minimumBytes = threads === "one" ? Infinity : 0;
+  parallelLoading.callingThreadLoads = threads !== "worker";
   return loadConnectomes({ kind: "template", template: "m/{participant_id}.txt", baseDir: dir }, subjects, OPTIONS);
 }
 
@@ -95,7 +95,7 @@ describe("hashInputs after prepareAnalysis", () => {
       ["subjects: participants.tsv", "connectomes: m/{participant_id}.txt", "model: group", "contrasts:", "  ab: group[a] - group[b]", "inference:", "  method: fdr", ""].join("\n"),
     );
     for (const threads of ["one", "two"] as const) {
-      parallelTextLoading.minimumBytes = threads === "one" ? Infinity : 0;
+      parallelLoading.minimumBytes = threads === "one" ? Infinity : 0;
       const prepared = prepareAnalysis(join(dir, "design.yaml"));
       const connectomes = prepared.inputs.filter((i) => i.role === "connectome");
       expect(connectomes.length).toBe(SUBJECTS);

@@ -1,5 +1,5 @@
-// Loading text matrices on two threads (src/io/textMatrixBlocks.ts) must give
-// what the one-thread loader gives (itself checked cell by cell against hand-made
+// Loading text matrices or a .npy stack on two threads (src/io/matrixBlocks.ts,
+// textMatrixBlocks.ts, npyMatrixBlocks.ts) must give what the one-thread loader gives (itself checked cell by cell against hand-made
 // matrices in connectomes.test.ts): the same edge-major values bit for bit, and
 // on bad input the same first error (message, file, line, column).
 import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from "node:fs";
@@ -9,7 +9,8 @@ import seedrandom from "seedrandom";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
 import { isInputError } from "../../../src/errors.js";
 import { loadConnectomes, type ConnectomeOptions, type ConnectomeSubject } from "../../../src/io/connectomes.js";
-import { parallelTextLoading } from "../../../src/io/textMatrixBlocks.js";
+import { encodeNpy } from "../../../src/io/npy.js";
+import { parallelLoading } from "../../../src/io/matrixBlocks.js";
 
 const FISHER: ConnectomeOptions = { symmetrize: false, asymmetryTolerance: 1e-9, transform: "fisher-z" };
 const SUBJECTS = 70;
@@ -20,8 +21,8 @@ beforeAll(() => {
   dir = mkdtempSync(join(tmpdir(), "plexus-text-blocks-"));
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
-const saved = { ...parallelTextLoading };
-afterEach(() => Object.assign(parallelTextLoading, saved));
+const saved = { ...parallelLoading };
+afterEach(() => Object.assign(parallelLoading, saved));
 
 /** A folder of SUBJECTS symmetric correlation matrices; `damage` may rewrite some subjects' text. */
 function cohort(name: string, damage: (s: number, rows: string[][]) => string | undefined = () => undefined): ConnectomeSubject[] {
@@ -42,8 +43,8 @@ function cohort(name: string, damage: (s: number, rows: string[][]) => string | 
 }
 
 function load(subjects: ConnectomeSubject[], name: string, threads: "one" | "two" | "worker") {
-  parallelTextLoading.minimumBytes = threads === "one" ? Infinity : 0;
-  parallelTextLoading.callingThreadLoads = threads !== "worker";
+  parallelLoading.minimumBytes = threads === "one" ? Infinity : 0;
+  parallelLoading.callingThreadLoads = threads !== "worker";
   return loadConnectomes({ kind: "template", template: `${name}/{participant_id}.tsv`, baseDir: dir }, subjects, FISHER);
 }
 
@@ -105,4 +106,54 @@ describe("two-thread text loading", () => {
       expect(errorOf(() => load(subjects, name, "worker"))).toBe(expected);
     });
   }
+});
+
+describe("two-thread .npy stack loading", () => {
+  /** A stack of `rows` matrices; subjects take the rows in a shuffled order, skipping some (as a participants selection does). */
+  function stack(name: string, damage: (row: number, m: Float64Array) => void = () => undefined) {
+    const rows = 90;
+    const random = seedrandom(name);
+    const values = new Float64Array(rows * REGIONS * REGIONS);
+    for (let r = 0; r < rows; r++) {
+      const m = values.subarray(r * REGIONS * REGIONS, (r + 1) * REGIONS * REGIONS);
+      for (let i = 0; i < REGIONS; i++) {
+        m[i * REGIONS + i] = 1;
+        for (let j = i + 1; j < REGIONS; j++) m[i * REGIONS + j] = m[j * REGIONS + i] = (random() - 0.5) * 1.8;
+      }
+      damage(r, m);
+    }
+    const file = join(dir, `${name}.npy`);
+    writeFileSync(file, encodeNpy([rows, REGIONS, REGIONS], values));
+    const order = Array.from({ length: rows }, (_, r) => r).sort(() => random() - 0.5).slice(0, SUBJECTS);
+    const subjects: ConnectomeSubject[] = order.map((row, s) => ({ id: `sub-${s}`, tableRow: row, values: { participant_id: `sub-${s}` } }));
+    return { file, subjects };
+  }
+  function loadStack(file: string, subjects: ConnectomeSubject[], threads: "one" | "two" | "worker") {
+    parallelLoading.minimumBytes = threads === "one" ? Infinity : 0;
+    parallelLoading.callingThreadLoads = threads !== "worker";
+    return loadConnectomes({ kind: "npy", path: file }, subjects, FISHER);
+  }
+
+  it("gives the one-thread loader's values bit for bit", () => {
+    const { file, subjects } = stack("stack-clean");
+    const one = loadStack(file, subjects, "one");
+    for (const threads of ["two", "worker"] as const) {
+      const other = loadStack(file, subjects, threads);
+      const a = new BigUint64Array(Float64Array.from(one.data).buffer);
+      const b = new BigUint64Array(Float64Array.from(other.data).buffer);
+      const first = a.findIndex((bits, i) => bits !== b[i]);
+      expect(first, `${threads}: first differing value: index ${first}, one thread ${one.data[first]}, two threads ${other.data[first]} (tolerance 0)`).toBe(-1);
+    }
+  });
+
+  it("reports the one-thread loader's first error (an asymmetric matrix, then a correlation of 1)", () => {
+    const { file, subjects } = stack("stack-damaged", (row, m) => {
+      if (row === 12) m[2 * REGIONS + 5] = 0.123;
+      if (row === 40) m[1 * REGIONS + 4] = m[4 * REGIONS + 1] = 1;
+    });
+    const expected = errorOf(() => loadStack(file, subjects, "one"));
+    expect(expected).toMatch(/matrix (13|41) of the stack/);
+    expect(errorOf(() => loadStack(file, subjects, "two"))).toBe(expected);
+    expect(errorOf(() => loadStack(file, subjects, "worker"))).toBe(expected);
+  });
 });
