@@ -11,9 +11,12 @@ import { cpSync, existsSync, readdirSync, readFileSync, writeFileSync } from "no
 import { dirname, join, resolve } from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { runAnalysis } from "../../src/run/runAnalysis.js";
+import { DEFAULT_CHUNK_SIZE, runAnalysis } from "../../src/run/runAnalysis.js";
 import { runSimulation } from "../../src/simulate/runSimulation.js";
 import { scratchFolder } from "../unit/permute/cohortFiles.js";
+
+/** The checkpoint file of the first chunk of relabelings. */
+const FIRST_CHUNK = `patient_gt_control.1-${DEFAULT_CHUNK_SIZE + 1}.json`;
 
 const ROOT = resolve(dirname(fileURLToPath(import.meta.url)), "../..");
 const BIN = join(ROOT, "bin", "plexus.js");
@@ -175,7 +178,7 @@ describe("resume: an interrupted run continued with --resume equals an uninterru
     expect(existsSync(at("killed", "summary.json"))).toBe(false);
     const saved = chunkFiles("killed");
     expect(saved.length).toBeGreaterThan(0);
-    expect(saved.length).toBeLessThan(40); // 2 contrasts × 20 chunks of 250: not all done
+    expect(saved.length).toBeLessThan((2 * 5000) / DEFAULT_CHUNK_SIZE); // 2 contrasts × 5000 relabelings in chunks: not all done
     expectOk(plexus("run", "long.yaml", "--out", "killed", "--resume", "--threads", "2", "-q"), "--resume");
     expect(existsSync(checkpointOf("killed")), "the checkpoint is removed after a finished run").toBe(false);
     expectOk(plexus("run", "long.yaml", "--out", "long-reference", "--threads", "1", "-q"), "uninterrupted run");
@@ -201,7 +204,7 @@ describe("resume: an interrupted run continued with --resume equals an uninterru
       await expect(
         runAnalysis({ designFile: at("design.yaml"), out: at("interrupted"), threads: 1 }, { info() {}, warn() {} }, failing),
       ).rejects.toThrow("interrupted after the first chunk");
-      expect(chunkFiles("interrupted")).toEqual(["patient_gt_control.1-251.json"]);
+      expect(chunkFiles("interrupted")).toEqual([FIRST_CHUNK]);
       cpSync(checkpointOf("interrupted"), at("saved-checkpoint"), { recursive: true });
     });
 
@@ -219,7 +222,7 @@ describe("resume: an interrupted run continued with --resume equals an uninterru
 
     it("a tampered chunk: exit 2 naming the file", () => {
       cpSync(at("saved-checkpoint"), checkpointOf("tampered"), { recursive: true });
-      const chunk = join(checkpointOf("tampered"), "patient_gt_control.1-251.json");
+      const chunk = join(checkpointOf("tampered"), FIRST_CHUNK);
       const record = JSON.parse(readFileSync(chunk, "utf8"));
       record.rows = record.rows.replace(/"maxExtent":\[(\d+)/, (_: string, n: string) => `"maxExtent":[${Number(n) + 1}`);
       writeFileSync(chunk, JSON.stringify(record));
@@ -237,7 +240,7 @@ describe("resume: an interrupted run continued with --resume equals an uninterru
       expectSameResults(at("interrupted"), at("reference"), "--resume");
       // A chunk with a valid checksum but changed rows shows up in null.tsv: the chunk is read, not recomputed.
       cpSync(at("saved-checkpoint"), checkpointOf("forged"), { recursive: true });
-      const chunk = join(checkpointOf("forged"), "patient_gt_control.1-251.json");
+      const chunk = join(checkpointOf("forged"), FIRST_CHUNK);
       const record = JSON.parse(readFileSync(chunk, "utf8"));
       const rows = JSON.parse(record.rows);
       rows.maxExtent[0] = 999;
