@@ -44,9 +44,6 @@ export function measureOptions(context: NullContext): NullMeasureOptions {
   return { thresholds: context.thresholds ?? [context.threshold], tail: context.tail, enhancement: context.enhancement };
 }
 
-/** Relabelings per call of the TypeScript kernel (the SIMD kernel takes more: see kernels/selectKernel.ts). */
-export const RELABELING_BATCH = 8;
-
 export interface NullRangeOptions {
   /** The kernel (default "auto": WebAssembly SIMD where available; PLEXUS_KERNEL overrides). Results are identical. */
   kernel?: KernelChoice;
