@@ -1,6 +1,5 @@
 import { studentTUpperTail } from "../distributions/studentT.js";
-import type { KernelData } from "./permutedStatistics.js";
-import { statisticAt } from "./permutedStatistics.js";
+import { statisticAt, type KernelData } from "./permutedStatistics.js";
 import { groupStatisticAt, residualSums, type TwoLevelEffect } from "./kernels/groupSums.js";
 import { screeningInstance, type KernelChoice } from "./kernels/selectKernel.js";
 import type { NullMaxima } from "./nullMaxima.js";
@@ -21,10 +20,11 @@ import {
  * single-precision kernel lists for each relabeling the edges whose statistic
  * could reach the lowest threshold; those are recomputed with the reference
  * order of operations (statisticAt, groupStatisticAt) and measured
- * (NullMaxima.measureListed). A relabeling whose list overflowed, or where no
- * listed edge passes the threshold (so the largest statistic lies among the
- * unlisted edges), is returned to be computed in full (nullRange.ts ExactRows). Every null row is the
- * reference kernel's, bit for bit.
+ * (NullMaxima.measureListed). A relabeling where no listed edge passes the
+ * threshold (so the largest statistic lies among the unlisted edges) is
+ * screened again lower; one whose list overflowed, or that no lower screen
+ * settles, is returned to be computed in full (nullRange.ts ExactRows). Every
+ * null row is the reference kernel's, bit for bit.
  */
 export interface PreparedScreen {
   batchSize: number;
