@@ -1,7 +1,7 @@
-import { createHash } from "node:crypto";
 import { isAbsolute, resolve } from "node:path";
 import { InputError, type InputLocation } from "../errors.js";
-import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
+import { edgePairs } from "../edges/edgeIndex.js";
+import { sha256Text } from "../output/provenance.js";
 import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
 import { parseMatrixBytes } from "./matrixText.js";
 import { loadBlocksInParallel, worthTwoThreads } from "./matrixBlocks.js";
@@ -141,8 +141,8 @@ function loadFromTemplate(
   const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
   const loaded = { regionCount: pairs.regionCount, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data };
   // Many files: two threads read blocks of subjects (matrixBlocks.ts), with the same values and errors.
-  const files = resolveAllOrUndefined(template, subjects, baseDir);
-  if (files && worthTwoThreads(subjects.length, firstBytes.length)) {
+  const files = worthTwoThreads(subjects.length, firstBytes.length) ? resolveAllOrUndefined(template, subjects, baseDir) : undefined;
+  if (files) {
     const digests = sharedDigests(subjects.length);
     loadBlocksInParallel({
       kind: "text",
@@ -157,7 +157,7 @@ function loadFromTemplate(
     });
     return { ...loaded, files, sha256: files.map((_, s) => digestHex(digests, s)) };
   }
-  const sha256 = [sha256Hex(firstBytes)];
+  const sha256 = [sha256Text(firstBytes)];
   const writer = new EdgeMajorWriter(pairs, data, subjects.length);
   writer.add(matrix.values, 0, options, { file: firstFile, rowLines: matrix.rowLines });
   const read = [firstFile];
@@ -165,18 +165,13 @@ function loadFromTemplate(
     const subject = subjects[s];
     const file = resolveTemplate(template, subject, baseDir);
     const bytes = reader.readBytes(file, hintFor(subject));
-    sha256.push(sha256Hex(bytes));
+    sha256.push(sha256Text(bytes));
     matrix = parseMatrixBytes(bytes, file, { allowNonFiniteDiagonal: true }, matrix);
     if (matrix.size !== pairs.regionCount) throw sizeMismatch(file, matrix.size, firstFile, pairs.regionCount, matrix.rowLines[0]);
     writer.add(matrix.values, 0, options, { file, rowLines: matrix.rowLines });
     read.push(file);
   }
   return { ...loaded, files: read, sha256 };
-}
-
-/** SHA-256 (FIPS 180-4) of a file's bytes, hex, as src/output/provenance.ts sha256File gives it. */
-function sha256Hex(bytes: Uint8Array): string {
-  return createHash("sha256").update(bytes).digest("hex");
 }
 
 /** Every subject's file, or undefined when a template cannot be filled (the one-thread loader then meets that error in order). */

@@ -8,7 +8,7 @@
 // checks, not from a published source. Measured with seed 11: largest component extent 15 with
 // 14 planted edges (93.3 % precision, 93.3 % recall), p_fwe = 1/501, the smallest possible.
 import { spawnSync } from "node:child_process";
-import { readFileSync, writeFileSync } from "node:fs";
+import { writeFileSync } from "node:fs";
 import { dirname, join, resolve } from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, describe, expect, it } from "vitest";

@@ -2,7 +2,6 @@
 // checkpoint write does on a full disk: the run must reject with that error, with one thread or
 // several, and not hang or escape as an uncaught exception. (Common practice; no published source.)
 // Worker threads need the compiled worker in dist/ (npx tsc -p tsconfig.build.json).
-import { join } from "node:path";
 import seedrandom from "seedrandom";
 import { afterAll, describe, expect, it } from "vitest";
 import { runNullEngine } from "../../../src/permute/nullEngine.js";

@@ -8,12 +8,9 @@
 import seedrandom from "seedrandom";
 import { Matrix } from "ml-matrix";
 import { afterEach, describe, expect, it, vi } from "vitest";
-import { edgePairs } from "../../../src/edges/edgeIndex.js";
-import { partitionEffect, reducedResiduals } from "../../../src/permute/effectPartition.js";
 import { computeNullRange, type NullChunk } from "../../../src/permute/nullRange.js";
 import { nullContext } from "./nullContextFixture.js";
 import { permutedStatistics, weightedSums, type KernelData } from "../../../src/permute/permutedStatistics.js";
-import { designRowTypes, planRelabelings, type SchemeKind } from "../../../src/permute/relabelings.js";
 import { groupSumStatistics, twoLevelEffect } from "../../../src/permute/kernels/groupSums.js";
 import { selectKernel } from "../../../src/permute/kernels/selectKernel.js";
 import { WasmPermutationKernel, wasmSimdSupported } from "../../../src/permute/kernels/wasmKernel.js";
