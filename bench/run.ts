@@ -203,6 +203,20 @@ async function main(): Promise<void> {
     "",
   );
 
+  // The two-level screen's kernel alone, by subjects per subset-table chunk.
+  log("subset tables");
+  const tables = child({ kind: "groupTables" }).groupTables ?? [];
+  report.push(
+    "## Two-level screen kernel (subset tables), one core",
+    "",
+    "S = 200, E = 79,800, a batch of 512 relabelings, about 0.3 % of pairs listed (bench/groupTables.ts); the engine's choice for this batch is marked.",
+    "",
+    "| subjects per chunk | ms per relabeling |",
+    "|---|---|",
+    ...tables.map((t) => `| ${t.chunkSize}${t.chosen ? " (chosen)" : ""} | ${fixed(t.msPerRelabeling, 3)} |`),
+    "",
+  );
+
   // Scaling of the permutation engine alone, on invented data (c = 3). Each shape runs at two numbers of
   // relabelings, K and 3K: the difference gives the time per relabeling without the fixed cost of starting
   // (worker threads, the single-precision copy of the residuals each thread keeps), shown separately.

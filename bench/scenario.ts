@@ -8,6 +8,7 @@ import type { NullChunk } from "../src/permute/nullRange.js";
 import { prepareAnalysis } from "../src/run/prepareAnalysis.js";
 import { runAnalysis } from "../src/run/runAnalysis.js";
 import { CACHE } from "./cohorts.js";
+import { benchGroupTables } from "./groupTables.js";
 import { benchReadMatrixText } from "./readMatrixText.js";
 import { syntheticNull } from "./syntheticNull.js";
 
@@ -20,7 +21,8 @@ export type Request =
   | { kind: "analysis"; name: string; design: string; threads: number }
   | { kind: "null"; subjects: number; regions: number; covariates: boolean; permutations: number; threads: number }
   | { kind: "read"; design: string }
-  | { kind: "matrixText" };
+  | { kind: "matrixText" }
+  | { kind: "groupTables" };
 
 export interface Measurement {
   kernel: string;
@@ -38,6 +40,8 @@ export interface Measurement {
   nullHash?: string;
   megabytes?: number;
   megabytesPerSecond?: number;
+  /** groupTables: ms per relabeling for each chunk size. */
+  groupTables?: { chunkSize: number; msPerRelabeling: number; chosen: boolean }[];
   peakRssMegabytes: number;
 }
 
@@ -123,6 +127,11 @@ async function measure(request: Request): Promise<Omit<Measurement, "kernel" | "
       megabytes: bytes / 1e6,
       megabytesPerSecond: bytes / 1e6 / seconds,
     };
+  }
+  if (request.kind === "groupTables") {
+    const start = performance.now();
+    const groupTables = benchGroupTables();
+    return { seconds: (performance.now() - start) / 1000, groupTables };
   }
   const { megabytesPerSecond, megabytes } = benchReadMatrixText();
   return { seconds: megabytes / megabytesPerSecond, megabytes, megabytesPerSecond };

@@ -182,7 +182,8 @@ export interface GroupScreenBatch {
   counts: Int32Array;
   lists: Int32Array;
   capacity: number;
-  run(batch: number): void;
+  /** Screens slots 0..batch−1; chunkSize (subjects per subset table) defaults to groupChunkSize's choice. */
+  run(batch: number, chunkSize?: number): void;
   /** Screens the next runs against other bounds (another threshold). */
   setBounds(bounds: { sLo: Float32Array; sHi: Float32Array }): void;
 }
@@ -212,18 +213,18 @@ const RESIDENT_BYTES = 160 * 1024 * 1024;
  * Subjects per chunk of the group-sum subset tables, chosen per run from the
  * batch: each relabeling's sum is ⌈S/k⌉ table entries (one load and add of a
  * tile each) instead of its group's rows, and each tile first builds 2^k
- * entries per chunk (about twice the cost of a lookup each). A large batch
- * amortises big tables (k = 5 or 6); a small one (a retry of a few
- * relabelings) wants small ones. Measured (S = 200, E = 79,800, 512
- * relabelings, one core, ms per relabeling): rows one by one 0.66, k = 3:
- * 0.53, 4: 0.50, 5: 0.32–0.43, 6: 0.40.
+ * entries per chunk (by doubling, about the cost of a lookup each). A large
+ * batch amortises big tables (k = 7 for 512 relabelings); a small one (a retry
+ * of a few relabelings) wants small ones. Measured by `npm run bench` (S = 200,
+ * E = 79,800, 512 relabelings, one core, ms per relabeling): k = 4: 0.31,
+ * 5: 0.25, 6: 0.21–0.25, 7: 0.19–0.21, 8: 0.21.
  */
 export function groupChunkSize(subjects: number, batch: number): number {
   let best = MIN_CHUNK_SUBJECTS;
   let bestCost = Infinity;
   for (let k = MIN_CHUNK_SUBJECTS; k <= MAX_CHUNK_SUBJECTS; k++) {
     const chunks = Math.ceil(subjects / k);
-    const cost = chunks * (2 * (1 << k) + batch);
+    const cost = chunks * ((1 << k) + batch);
     if (cost < bestCost) {
       best = k;
       bestCost = cost;
@@ -232,7 +233,7 @@ export function groupChunkSize(subjects: number, batch: number): number {
   return best;
 }
 const MIN_CHUNK_SUBJECTS = 2;
-const MAX_CHUNK_SUBJECTS = 6;
+const MAX_CHUNK_SUBJECTS = 8;
 /** The resident limit in force (tests lower it to exercise the block-by-block path). */
 export const screenMemory = { residentBytes: RESIDENT_BYTES };
 
@@ -502,11 +503,11 @@ export class WasmPermutationKernel {
         for (let c = 0; c < chunks; c++) chunkOffsets[at + c] *= entryBytes;
       }
     };
-    const run = (batch: number): void => {
+    const run = (batch: number, chunkSize = groupChunkSize(S, batch)): void => {
       if (this.current !== token) throw new Error("internal: a kernel batch was used after another was prepared on this thread");
+      if (!(chunkSize >= MIN_CHUNK_SUBJECTS && chunkSize <= MAX_CHUNK_SUBJECTS)) throw new Error(`internal: chunks of ${chunkSize} subjects`);
       counts.fill(0);
       if (E === 0 || batch === 0) return;
-      const chunkSize = groupChunkSize(S, batch);
       const chunks = Math.ceil(S / chunkSize);
       writeChunkOffsets(batch, chunkSize, chunks);
       const f64 = this.f64;

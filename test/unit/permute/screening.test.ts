@@ -11,7 +11,7 @@ import { describe, expect, it } from "vitest";
 import { computeNullRange, type NullChunk, type NullContext, type ScreenTally } from "../../../src/permute/nullRange.js";
 import { permutedStatistics, statisticAt } from "../../../src/permute/permutedStatistics.js";
 import { relabelingWriter } from "../../../src/permute/relabelingWriter.js";
-import { WasmPermutationKernel, screenMemory } from "../../../src/permute/kernels/wasmKernel.js";
+import { WasmPermutationKernel, groupChunkSize, screenMemory } from "../../../src/permute/kernels/wasmKernel.js";
 import { float32AtLeast, float32AtMost, gamma, residualScales, screeningApplies } from "../../../src/permute/screening.js";
 import { nullContext, type NullContextOptions } from "./nullContextFixture.js";
 
@@ -142,6 +142,73 @@ describe("the single-precision products stay within the bound the screen assumes
         }
       }
     }
+  });
+});
+
+describe("the two-level screen's subset tables", () => {
+  it("list every (relabeling, edge) whose group sum lies beyond its bounds, and none well inside, for every chunk size (sums from ml-matrix)", () => {
+    const kernel = WasmPermutationKernel.create();
+    if (!kernel) throw new Error("no WebAssembly SIMD in this Node");
+    const random = seedrandom("subset-tables");
+    // 53 subjects (prime: every chunk size leaves a short last chunk), 70 edges (not a multiple of the 16-edge tile).
+    const S = 53;
+    const E = 70;
+    const G = 21;
+    const residuals = Float64Array.from({ length: S * E }, () => (random() - 0.5) * 10 ** Math.floor(random() * 4 - 2));
+    const data = { subjects: S, edges: E, residuals, sumSquares: new Float64Array(E), valid: new Uint8Array(E).fill(1), effectNorm2: 1, df: 1 };
+    const { scale } = residualScales(data, 0);
+    const r = new Matrix(S, E);
+    for (let e = 0; e < E; e++) for (let s = 0; s < S; s++) r.set(s, e, residuals[e * S + s]);
+    const chunkSizes = new Set<number>();
+    for (const batch of [1, 5, 40, 100, 200, 512, 2048]) {
+      chunkSizes.add(groupChunkSize(S, batch));
+      // Bounds around the spread of the group sums, so that about a third of the pairs are listed.
+      const sLo = new Float32Array(E);
+      const sHi = new Float32Array(E);
+      for (let e = 0; e < E; e++) {
+        let norm2 = 0;
+        for (let s = 0; s < S; s++) norm2 += residuals[e * S + s] ** 2;
+        const spread = Math.sqrt((norm2 * G) / S);
+        sLo[e] = Math.fround(-spread * (0.5 + random()));
+        sHi[e] = Math.fround(spread * (0.5 + random()));
+      }
+      const screen = kernel.prepareGroupScreen(data, batch, G, { sLo, sHi }, E);
+      if (!screen) throw new Error("WebAssembly memory refused");
+      const membership = new Matrix(batch, S);
+      for (let b = 0; b < batch; b++) {
+        const subjects = Array.from({ length: S }, (_, s) => s);
+        for (let i = S - 1; i > 0; i--) {
+          const j = Math.floor(random() * (i + 1));
+          [subjects[i], subjects[j]] = [subjects[j], subjects[i]];
+        }
+        const group = subjects.slice(0, G).sort((x, y) => x - y);
+        screen.members.set(group, b * G);
+        for (const s of group) membership.set(b, s, 1);
+      }
+      screen.run(batch);
+      const exact = membership.mmul(r);
+      let listedPairs = 0;
+      for (let b = 0; b < batch; b++) {
+        const count = screen.counts[b];
+        expect(count).toBeLessThanOrEqual(E);
+        const listed = new Set(screen.lists.subarray(b * E, b * E + count));
+        listedPairs += count;
+        for (let e = 0; e < E; e++) {
+          // The single-precision sum's error is at most (S + 2)·2⁻²⁴·‖R_e‖₁ (Higham 2002, γ_n; demotion included): scale / 4.
+          const tolerance = scale[e] / 4;
+          const sum = exact.get(b, e);
+          const outside = sum >= sHi[e] + tolerance || sum <= sLo[e] - tolerance;
+          const inside = sum < sHi[e] - tolerance && sum > sLo[e] + tolerance;
+          if ((outside && !listed.has(e)) || (inside && listed.has(e))) {
+            throw new Error(
+              `batch ${batch} (chunks of ${groupChunkSize(S, batch)}), relabeling ${b}, edge ${e}: ml-matrix sum ${sum}, bounds [${sLo[e]}, ${sHi[e]}], tolerance ${tolerance}, listed ${listed.has(e)}`,
+            );
+          }
+        }
+      }
+      expect(listedPairs).toBeGreaterThan(batch * E * 0.1);
+    }
+    expect([...chunkSizes].sort()).toEqual([2, 3, 4, 5, 6, 7, 8]);
   });
 });
 

@@ -281,7 +281,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
 
   // ---- the two-level path with subset tables: for each tile of GE edges, the sums of every subset of each
   // chunk of `chunkSize` consecutive subjects (2^chunkSize entries per chunk, entry m = entry m without its
-  // lowest bit + that subject's row); a relabeling's group sum is then one entry per chunk, added up:
+  // highest bit + that subject's row); a relabeling's group sum is then one entry per chunk, added up:
   // offsets[b·chunks + c] = (c·2^chunkSize + mask of its group within chunk c)·(GE·4) into the tables ----
   const ENTRY = GE * 4;
   emit(1, '(func (export "groupTableScreenBlock")');
@@ -289,7 +289,8 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(2, "(param $offsets i32) (param $chunks i32) (param $batch i32) (param $tables i32)");
   emit(2, "(param $sLo i32) (param $sHi i32) (param $first i32) (param $lists i32) (param $counts i32) (param $capacity i32)");
   emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $row i32) (local $at i32) (local $c v128)");
-  emit(2, "(local $chunk i32) (local $s0 i32) (local $entries i32) (local $entry i32) (local $source i32) (local $target i32) (local $previous i32) (local $rowBytes i32) (local $chunkBytes i32)");
+  emit(2, "(local $chunk i32) (local $s0 i32) (local $kc i32) (local $j i32) (local $stop i32) (local $entry i32) (local $source i32) (local $target i32) (local $previous i32) (local $rowBytes i32) (local $chunkBytes i32)");
+  for (const p of range(GQ)) emit(2, `(local $r${p} v128)`);
   for (const p of range(GQ)) emit(2, `(local $acc${p} v128)`);
   emit(2, "(local.set $rowBytes (i32.shl (local.get $W) (i32.const 2)))");
   emit(2, `(local.set $chunkBytes (i32.mul (i32.shl (i32.const 1) (local.get $chunkSize)) (i32.const ${ENTRY})))`);
@@ -305,21 +306,30 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(4, "(block $chunksDone");
   emit(5, "(loop $chunkLoop");
   emit(6, "(br_if $chunksDone (i32.ge_u (local.get $chunk) (local.get $chunks)))");
-  emit(6, ";; entries: 2^(subjects in this chunk); the last chunk may hold fewer than chunkSize");
-  emit(6, "(local.set $entries (i32.shl (i32.const 1) (select (local.get $chunkSize) (i32.sub (local.get $S) (local.get $s0)) (i32.le_u (i32.add (local.get $s0) (local.get $chunkSize)) (local.get $S)))))");
+  emit(6, ";; subjects in this chunk: the last chunk may hold fewer than chunkSize");
+  emit(6, "(local.set $kc (select (local.get $chunkSize) (i32.sub (local.get $S) (local.get $s0)) (i32.le_u (i32.add (local.get $s0) (local.get $chunkSize)) (local.get $S))))");
   for (const p of range(GQ)) emit(6, `(v128.store offset=${p * 16} (local.get $entry) (v128.const f32x4 0 0 0 0))`);
-  emit(6, "(local.set $m (i32.const 1))");
-  emit(6, "(block $entriesDone");
-  emit(7, "(loop $entryLoop");
-  emit(8, "(br_if $entriesDone (i32.ge_u (local.get $m) (local.get $entries)))");
-  emit(8, "(local.set $previous (i32.add (local.get $entry) (i32.mul (i32.and (local.get $m) (i32.sub (local.get $m) (i32.const 1))) (i32.const " + ENTRY + "))))");
-  emit(8, "(local.set $source (i32.add (i32.add (local.get $blockT) (local.get $at)) (i32.mul (i32.add (local.get $s0) (i32.ctz (local.get $m))) (local.get $rowBytes))))");
-  emit(8, `(local.set $target (i32.add (local.get $entry) (i32.mul (local.get $m) (i32.const ${ENTRY}))))`);
+  emit(6, ";; doubling: entries [2^j, 2^(j+1)) are entries [0, 2^j) plus the row of subject s0 + j, held in registers");
+  emit(6, ";; (each entry reads one written 2^j entries earlier, so no store waits on the one just before it)");
+  emit(6, "(local.set $j (i32.const 0))");
+  emit(6, "(block $bitsDone");
+  emit(7, "(loop $bits");
+  emit(8, "(br_if $bitsDone (i32.ge_u (local.get $j) (local.get $kc)))");
+  emit(8, "(local.set $source (i32.add (i32.add (local.get $blockT) (local.get $at)) (i32.mul (i32.add (local.get $s0) (local.get $j)) (local.get $rowBytes))))");
+  for (const p of range(GQ)) emit(8, `(local.set $r${p} (v128.load offset=${p * 16} (local.get $source)))`);
+  emit(8, "(local.set $previous (local.get $entry))");
+  emit(8, `(local.set $target (i32.add (local.get $entry) (i32.shl (i32.const ${ENTRY}) (local.get $j))))`);
+  emit(8, "(local.set $stop (local.get $target))");
+  emit(8, "(loop $entryLoop");
   for (const p of range(GQ)) {
-    emit(8, `(v128.store offset=${p * 16} (local.get $target) (f32x4.add (v128.load offset=${p * 16} (local.get $previous)) (v128.load offset=${p * 16} (local.get $source))))`);
+    emit(9, `(v128.store offset=${p * 16} (local.get $target) (f32x4.add (v128.load offset=${p * 16} (local.get $previous)) (local.get $r${p})))`);
   }
-  emit(8, "(local.set $m (i32.add (local.get $m) (i32.const 1)))");
-  emit(8, "(br $entryLoop)");
+  emit(9, `(local.set $previous (i32.add (local.get $previous) (i32.const ${ENTRY})))`);
+  emit(9, `(local.set $target (i32.add (local.get $target) (i32.const ${ENTRY})))`);
+  emit(9, "(br_if $entryLoop (i32.lt_u (local.get $previous) (local.get $stop)))");
+  emit(8, ")");
+  emit(8, "(local.set $j (i32.add (local.get $j) (i32.const 1)))");
+  emit(8, "(br $bits)");
   emit(7, ")");
   emit(6, ")");
   emit(6, "(local.set $entry (i32.add (local.get $entry) (local.get $chunkBytes)))");
