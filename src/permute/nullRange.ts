@@ -57,7 +57,7 @@ export interface NullRangeOptions {
   screen?: boolean;
   /** Counts, for tests and benchmarks: relabelings settled by the screen, and computed in full. */
   tally?: ScreenTally;
-  /** Overrides each relabeling's list capacity on the screened path (tests of the overflow path). */
+  /** Overrides each relabeling's list capacity (and near-list capacity) on the screened path (tests of the overflow path). */
   screenCapacity?: number;
 }
 
@@ -84,6 +84,8 @@ const FALLBACK_BATCH = 8;
 export interface ScreenTally {
   screened: number;
   full: number;
+  /** Of the screened: settled from the near lists of their first run (no edge above the threshold, no second run). */
+  near?: number;
 }
 
 /** One relabeling's null row, recorded into the chunk. */
@@ -118,7 +120,7 @@ export function computeNullRange(context: NullContext, from: number, to: number,
     k++;
   }
   if (screen) {
-    const unsettled = screenedRows(context, screen, maxima, record, k, to);
+    const unsettled = screenedRows(context, screen, maxima, record, k, to, options.tally);
     exact.computeList(unsettled);
     if (options.tally) {
       options.tally.screened += to - k - unsettled.length;

@@ -59,6 +59,7 @@ interface KernelExports {
     counts: number,
     capacity: number,
   ): void;
+  transposeDemoteBlock(src: number, dst: number, S: number, W: number): void;
   groupTableScreenBlock(
     blockT: number,
     W: number,
@@ -75,6 +76,11 @@ interface KernelExports {
     lists: number,
     counts: number,
     capacity: number,
+    nLo: number,
+    nHi: number,
+    nearLists: number,
+    nearCounts: number,
+    nearCapacity: number,
   ): void;
   transposeBlock(source: number, target: number, S: number, W: number): void;
   groupStatisticsBlock(
@@ -177,15 +183,28 @@ export interface ScreenBatch {
 }
 
 /** The two-level path's screened batch: fill `members`, run, read counts and lists as for ScreenBatch. */
+/** Single-precision bounds on an edge's group sum (screening.ts groupSumBounds): a sum at or beyond them is listed. */
+export interface GroupSumBounds {
+  sLo: Float32Array;
+  sHi: Float32Array;
+}
+
 export interface GroupScreenBatch {
   members: Int32Array;
   counts: Int32Array;
   lists: Int32Array;
   capacity: number;
+  /**
+   * The near lists: per relabeling, the edges beyond the near bounds but within the bounds (those a lower
+   * threshold would add), in ascending order; a count above nearCapacity means the list is incomplete.
+   */
+  nearCounts: Int32Array;
+  nearLists: Int32Array;
+  nearCapacity: number;
   /** Screens slots 0..batch−1; chunkSize (subjects per subset table) defaults to groupChunkSize's choice. */
   run(batch: number, chunkSize?: number): void;
-  /** Screens the next runs against other bounds (another threshold). */
-  setBounds(bounds: { sLo: Float32Array; sHi: Float32Array }): void;
+  /** Screens the next runs against other bounds (another threshold), and near bounds (none when omitted). */
+  setBounds(bounds: GroupSumBounds, near?: GroupSumBounds): void;
 }
 
 /** What the products screen needs beyond the kernel data. */
@@ -435,24 +454,28 @@ export class WasmPermutationKernel {
     data: KernelData,
     batchSize: number,
     groupSize: number,
-    bounds: { sLo: Float32Array; sHi: Float32Array },
+    bounds: GroupSumBounds,
     capacity: number,
+    near?: { bounds: GroupSumBounds; capacity: number },
   ): GroupScreenBatch | undefined {
     const { subjects: S, edges: E, residuals } = data;
     const T = this.screenGroupEdgesPerTile;
     const W = this.blockWidth(S, E, T, GROUP_BLOCK_BYTES);
     const G = groupSize;
-    // The transposed single-precision residuals stay in memory (block after block) when they fit in RESIDENT_BYTES.
-    const blocks = Math.ceil(E / W);
-    const residentBytes = blocks * W * S * 4;
-    const resident = residentBytes <= screenMemory.residentBytes;
-    const layout = `transposed:${S}:${E}:${W}`;
-    const sLoAt = resident ? alignUp(residentBytes) : 0;
+    // No resident copy: each batch converts the residuals block by block (about 16 ms per pass for
+    // S = 200, E = 79,800, against about 0.2 ms per relabeling of a batch of 512), which costs less than
+    // touching 64 MB of fresh memory for a resident copy where page faults are dear (3.5 ms per MB on a
+    // virtual machine measured in bench/README.md), and keeps memory down.
+    const nearCapacity = near?.capacity ?? 0;
+    const sLoAt = 0;
     const sHiAt = alignUp(sLoAt + (E + T) * 4);
-    const membersAt = alignUp(sHiAt + (E + T) * 4);
+    const nLoAt = alignUp(sHiAt + (E + T) * 4);
+    const nHiAt = alignUp(nLoAt + (E + T) * 4);
+    const nearCountsAt = alignUp(nHiAt + (E + T) * 4);
+    const nearListsAt = alignUp(nearCountsAt + batchSize * 4);
+    const membersAt = alignUp(nearListsAt + batchSize * nearCapacity * 4);
     const blockAt = alignUp(membersAt + batchSize * G * 4);
-    const transposedAt = alignUp(blockAt + W * S * 8);
-    const singleAt = alignUp(transposedAt + W * S * 8);
+    const singleAt = alignUp(blockAt + W * S * 8);
     const countsAt = alignUp(singleAt + W * S * 4);
     const listsAt = alignUp(countsAt + batchSize * 4);
     // Subset tables: one entry of T single-precision sums per subset of each chunk of subjects (room for any chunk size).
@@ -465,27 +488,30 @@ export class WasmPermutationKernel {
     const end = tablesAt + tableBytes;
     if (!this.reserve(end)) return undefined;
     const token = {};
-    const kept = resident && this.resident?.data === data && this.resident.layout === layout;
-    this.claim(token, kept);
-    if (resident && !kept) {
-      for (let e0 = 0, j = 0; e0 < E; e0 += W, j++) {
-        const width = Math.min(W, E - e0);
-        this.f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
-        this.exports.transposeBlock(blockAt, transposedAt, S, W);
-        this.exports.demoteBlock(transposedAt, j * W * S * 4, W * S);
-      }
-      this.resident = { data, layout };
-    }
+    this.claim(token);
     const buffer = this.exports.memory.buffer;
-    const sLo = new Float32Array(buffer, sLoAt, E + T);
-    const sHi = new Float32Array(buffer, sHiAt, E + T);
-    const setBounds = (next: { sLo: Float32Array; sHi: Float32Array }): void => {
-      sLo.fill(-Infinity);
-      sHi.fill(Infinity);
+    const views = [sLoAt, sHiAt, nLoAt, nHiAt].map((at) => new Float32Array(buffer, at, E + T));
+    const [sLo, sHi, nLo, nHi] = views;
+    // Near bounds lie within the bounds (clamped, so that every lane the bounds list is near-listed first).
+    const setBounds = (next: GroupSumBounds, nextNear: GroupSumBounds = next): void => {
+      for (const [view, value] of [
+        [sLo, -Infinity],
+        [sHi, Infinity],
+        [nLo, -Infinity],
+        [nHi, Infinity],
+      ] as const) {
+        view.fill(value);
+      }
       sLo.set(next.sLo.subarray(0, E));
       sHi.set(next.sHi.subarray(0, E));
+      for (let e = 0; e < E; e++) {
+        nLo[e] = Math.max(nextNear.sLo[e], sLo[e]);
+        nHi[e] = Math.min(nextNear.sHi[e], sHi[e]);
+      }
     };
-    setBounds(bounds);
+    setBounds(bounds, near?.bounds);
+    const nearCounts = new Int32Array(buffer, nearCountsAt, batchSize);
+    const nearLists = new Int32Array(buffer, nearListsAt, batchSize * nearCapacity);
     const members = new Int32Array(buffer, membersAt, batchSize * G);
     const counts = new Int32Array(buffer, countsAt, batchSize);
     const lists = new Int32Array(buffer, listsAt, batchSize * capacity);
@@ -507,21 +533,17 @@ export class WasmPermutationKernel {
       if (this.current !== token) throw new Error("internal: a kernel batch was used after another was prepared on this thread");
       if (!(chunkSize >= MIN_CHUNK_SUBJECTS && chunkSize <= MAX_CHUNK_SUBJECTS)) throw new Error(`internal: chunks of ${chunkSize} subjects`);
       counts.fill(0);
+      nearCounts.fill(0);
       if (E === 0 || batch === 0) return;
       const chunks = Math.ceil(S / chunkSize);
       writeChunkOffsets(batch, chunkSize, chunks);
       const f64 = this.f64;
       for (let e0 = 0; e0 < E; e0 += W) {
         const width = Math.min(W, E - e0);
-        let single = (e0 / W) * W * S * 4;
-        if (!resident) {
-          f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
-          this.exports.transposeBlock(blockAt, transposedAt, S, W);
-          this.exports.demoteBlock(transposedAt, singleAt, W * S);
-          single = singleAt;
-        }
+        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
+        this.exports.transposeDemoteBlock(blockAt, singleAt, S, W);
         this.exports.groupTableScreenBlock(
-          single,
+          singleAt,
           W,
           width,
           S,
@@ -536,10 +558,15 @@ export class WasmPermutationKernel {
           listsAt,
           countsAt,
           capacity,
+          nLoAt + e0 * 4,
+          nHiAt + e0 * 4,
+          nearListsAt,
+          nearCountsAt,
+          nearCapacity,
         );
       }
     };
-    return { members, counts, lists, capacity, run, setBounds };
+    return { members, counts, lists, capacity, nearCounts, nearLists, nearCapacity, run, setBounds };
   }
 
   /** Single-precision products of one tile of 4 edges (for tests; residuals edge-major, 4 × S): products[j·4 + p] for rows j. */

@@ -146,7 +146,7 @@ describe("the single-precision products stay within the bound the screen assumes
 });
 
 describe("the two-level screen's subset tables", () => {
-  it("list every (relabeling, edge) whose group sum lies beyond its bounds, and none well inside, for every chunk size (sums from ml-matrix)", () => {
+  it("list every (relabeling, edge) whose group sum lies beyond its bounds, near-list those between the near bounds and the bounds, for every chunk size (sums from ml-matrix)", () => {
     const kernel = WasmPermutationKernel.create();
     if (!kernel) throw new Error("no WebAssembly SIMD in this Node");
     const random = seedrandom("subset-tables");
@@ -172,7 +172,10 @@ describe("the two-level screen's subset tables", () => {
         sLo[e] = Math.fround(-spread * (0.5 + random()));
         sHi[e] = Math.fround(spread * (0.5 + random()));
       }
-      const screen = kernel.prepareGroupScreen(data, batch, G, { sLo, sHi }, E);
+      // Near bounds (a lower threshold's) at 60–90 % of the bounds: lanes between go to the near lists.
+      const nLo = sLo.map((v) => Math.fround(v * (0.6 + 0.3 * random())));
+      const nHi = sHi.map((v) => Math.fround(v * (0.6 + 0.3 * random())));
+      const screen = kernel.prepareGroupScreen(data, batch, G, { sLo, sHi }, E, { bounds: { sLo: nLo, sHi: nHi }, capacity: E });
       if (!screen) throw new Error("WebAssembly memory refused");
       const membership = new Matrix(batch, S);
       for (let b = 0; b < batch; b++) {
@@ -188,25 +191,32 @@ describe("the two-level screen's subset tables", () => {
       screen.run(batch);
       const exact = membership.mmul(r);
       let listedPairs = 0;
+      let nearPairs = 0;
       for (let b = 0; b < batch; b++) {
         const count = screen.counts[b];
         expect(count).toBeLessThanOrEqual(E);
         const listed = new Set(screen.lists.subarray(b * E, b * E + count));
+        const nearCount = screen.nearCounts[b];
+        const nearListed = new Set(screen.nearLists.subarray(b * E, b * E + nearCount));
         listedPairs += count;
+        nearPairs += nearCount;
         for (let e = 0; e < E; e++) {
           // The single-precision sum's error is at most (S + 2)·2⁻²⁴·‖R_e‖₁ (Higham 2002, γ_n; demotion included): scale / 4.
           const tolerance = scale[e] / 4;
           const sum = exact.get(b, e);
-          const outside = sum >= sHi[e] + tolerance || sum <= sLo[e] - tolerance;
-          const inside = sum < sHi[e] - tolerance && sum > sLo[e] + tolerance;
-          if ((outside && !listed.has(e)) || (inside && listed.has(e))) {
+          const beyond = (lo: number, hi: number) => sum >= hi + tolerance || sum <= lo - tolerance;
+          const within = (lo: number, hi: number) => sum < hi - tolerance && sum > lo + tolerance;
+          const expected = beyond(sLo[e], sHi[e]) ? "listed" : within(nLo[e], nHi[e]) ? "neither" : within(sLo[e], sHi[e]) && beyond(nLo[e], nHi[e]) ? "near" : "either";
+          const actual = listed.has(e) ? (nearListed.has(e) ? "both" : "listed") : nearListed.has(e) ? "near" : "neither";
+          if (actual === "both" || (expected !== "either" && expected !== actual)) {
             throw new Error(
-              `batch ${batch} (chunks of ${groupChunkSize(S, batch)}), relabeling ${b}, edge ${e}: ml-matrix sum ${sum}, bounds [${sLo[e]}, ${sHi[e]}], tolerance ${tolerance}, listed ${listed.has(e)}`,
+              `batch ${batch} (chunks of ${groupChunkSize(S, batch)}), relabeling ${b}, edge ${e}: ml-matrix sum ${sum}, bounds [${sLo[e]}, ${sHi[e]}], near bounds [${nLo[e]}, ${nHi[e]}], tolerance ${tolerance}: expected ${expected}, got ${actual}`,
             );
           }
         }
       }
       expect(listedPairs).toBeGreaterThan(batch * E * 0.1);
+      expect(nearPairs).toBeGreaterThan(batch * E * 0.05);
     }
     expect([...chunkSizes].sort()).toEqual([2, 3, 4, 5, 6, 7, 8]);
   });
@@ -287,6 +297,20 @@ describe("the screened null equals the reference null, bit for bit", () => {
     } finally {
       screenMemory.residentBytes = saved;
     }
+  });
+
+  it("group-sum path: relabelings with no edge above the threshold are settled from their near lists, or by a second run when those overflow", () => {
+    // t = 3.6 on 780 edges with 46 degrees of freedom: about 0.6 edges expected above it, so many relabelings have none.
+    const context = nullContext({ ...base, scheme: "permute", covariates: false, thresholds: [3.6] });
+    const tally = compare(context, "near lists");
+    expect(tally.near ?? 0, `settled from near lists: ${tally.near}, screened: ${tally.screened}`).toBeGreaterThan(10);
+    const small = compare(context, "near lists of capacity 2", 2);
+    expect(small.near ?? 0).toBeLessThan(tally.near ?? 0);
+    const sweep = nullContext({ ...base, scheme: "permute", covariates: false, thresholds: [3.8, 3.5, 4.2], tail: "upper" });
+    expect(compare(sweep, "near lists, upper tail, sweep").near ?? 0).toBeGreaterThan(10);
+    // t = 4.6: many relabelings have no edge above 0.8 × 4.6 either, so their near lists settle nothing.
+    const high = compare(nullContext({ ...base, scheme: "permute", covariates: false, thresholds: [4.6] }), "near lists, t = 4.6");
+    expect(high.near ?? 0).toBeGreaterThan(0);
   });
 
   it("a list that overflows its capacity sends the relabeling to the full computation", () => {

@@ -69,6 +69,50 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(2, ")");
   emit(1, ")");
 
+  // ---- f64 edge-major block → f32 subject-major, round to nearest: dst[s·W + i] = src[i·S + s] for edges i < W
+  // (W a multiple of 4), subjects s < S; 4 edges × 2 subjects at a time ----
+  emit(1, '(func (export "transposeDemoteBlock") (param $src i32) (param $dst i32) (param $S i32) (param $W i32)');
+  emit(2, "(local $i i32) (local $a i32) (local $d i32) (local $aEnd i32) (local $stride i32) (local $rowBytes i32)");
+  emit(2, "(local $x0 v128) (local $x1 v128) (local $x2 v128) (local $x3 v128) (local $lo v128) (local $hi v128)");
+  emit(2, "(local.set $stride (i32.shl (local.get $S) (i32.const 3)))");
+  emit(2, "(local.set $rowBytes (i32.shl (local.get $W) (i32.const 2)))");
+  emit(2, "(block $edgesDone");
+  emit(3, "(loop $edges");
+  emit(4, "(br_if $edgesDone (i32.ge_u (local.get $i) (local.get $W)))");
+  emit(4, "(local.set $a (i32.add (local.get $src) (i32.mul (local.get $i) (local.get $stride))))");
+  emit(4, "(local.set $d (i32.add (local.get $dst) (i32.shl (local.get $i) (i32.const 2))))");
+  emit(4, "(local.set $aEnd (i32.add (local.get $a) (i32.shl (i32.and (local.get $S) (i32.const -2)) (i32.const 3))))");
+  emit(4, "(block $pairsDone");
+  emit(5, "(loop $pairs");
+  emit(6, "(br_if $pairsDone (i32.ge_u (local.get $a) (local.get $aEnd)))");
+  emit(6, ";; x_p = edge i + p, subjects s and s + 1, in the two low lanes");
+  for (const p of [0, 1, 2, 3]) {
+    const address = p === 0 ? "(local.get $a)" : `(i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const ${p})))`;
+    emit(6, `(local.set $x${p} (f32x4.demote_f64x2_zero (v128.load ${address})))`);
+  }
+  emit(6, ";; lo = [e0 s, e1 s, e0 s+1, e1 s+1], hi = the same for edges 2 and 3");
+  emit(6, `(local.set $lo ${shuffle([...lane32(0, 0), ...lane32(1, 0), ...lane32(0, 1), ...lane32(1, 1)], "(local.get $x0)", "(local.get $x1)")})`);
+  emit(6, `(local.set $hi ${shuffle([...lane32(0, 0), ...lane32(1, 0), ...lane32(0, 1), ...lane32(1, 1)], "(local.get $x2)", "(local.get $x3)")})`);
+  emit(6, `(v128.store (local.get $d) ${shuffle([...lane32(0, 0), ...lane32(0, 1), ...lane32(1, 0), ...lane32(1, 1)], "(local.get $lo)", "(local.get $hi)")})`);
+  emit(6, `(v128.store (i32.add (local.get $d) (local.get $rowBytes)) ${shuffle([...lane32(0, 2), ...lane32(0, 3), ...lane32(1, 2), ...lane32(1, 3)], "(local.get $lo)", "(local.get $hi)")})`);
+  emit(6, "(local.set $a (i32.add (local.get $a) (i32.const 16)))");
+  emit(6, "(local.set $d (i32.add (local.get $d) (i32.shl (local.get $rowBytes) (i32.const 1))))");
+  emit(6, "(br $pairs)");
+  emit(5, ")");
+  emit(4, ")");
+  emit(4, "(if (i32.and (local.get $S) (i32.const 1))");
+  emit(5, "(then");
+  for (const p of [0, 1, 2, 3]) {
+    const address = p === 0 ? "(local.get $a)" : `(i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const ${p})))`;
+    emit(6, `(f32.store offset=${4 * p} (local.get $d) (f32.demote_f64 (f64.load ${address})))`);
+  }
+  emit(5, "))");
+  emit(4, "(local.set $i (i32.add (local.get $i) (i32.const 4)))");
+  emit(4, "(br $edges)");
+  emit(3, ")");
+  emit(2, ")");
+  emit(1, ")");
+
   // ---- f64 edge-major block → f32 interleaved by tiles of 4 edges: dst[(t·S + s)·4 + p] = src[(4t + p)·S + s] ----
   emit(1, '(func (export "interleaveBlock") (param $src i32) (param $dst i32) (param $S i32) (param $tiles i32)');
   emit(2, "(local $t i32) (local $s i32) (local $a i32) (local $stride i32)");
@@ -258,21 +302,23 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   // ---- the two-level path: single-precision group sums, screened against per-edge bounds ----
   const GQ = groupQuads;
   const GE = 4 * GQ;
-  // The screen of GQ accumulators of group sums (4 edges each) against sHi/sLo at byte offset $at; lists the lanes that reach them.
+  // The screen of GQ accumulators of group sums (4 edges each) at byte offset $at: lanes at or beyond the near
+  // bounds (nLo/nHi, which lie within sLo/sHi) are tested against sLo/sHi; those that reach them go to the
+  // relabeling's list, the others to its near list (the edges a lower threshold would add).
   const emitGroupCompare = (indent) => {
+    const bound = (array, p) => `(v128.load offset=${p * 16} (i32.add (local.get ${array}) (local.get $at)))`;
     for (const p of range(GQ)) {
-      emit(
-        indent,
-        `(local.set $c (v128.or (f32x4.ge (local.get $acc${p}) (v128.load offset=${p * 16} (i32.add (local.get $sHi) (local.get $at)))) (f32x4.le (local.get $acc${p}) (v128.load offset=${p * 16} (i32.add (local.get $sLo) (local.get $at))))))`,
-      );
+      emit(indent, `(local.set $c (v128.or (f32x4.ge (local.get $acc${p}) ${bound("$nHi", p)}) (f32x4.le (local.get $acc${p}) ${bound("$nLo", p)})))`);
       emit(indent, "(if (v128.any_true (local.get $c))");
       emit(indent + 1, "(then");
+      emit(indent + 2, `(local.set $d (v128.or (f32x4.ge (local.get $acc${p}) ${bound("$sHi", p)}) (f32x4.le (local.get $acc${p}) ${bound("$sLo", p)})))`);
       for (const lane of range(4)) {
         const e = 4 * p + lane;
-        emit(
-          indent + 2,
-          `(if (i32.and (i32.ne (i32x4.extract_lane ${lane} (local.get $c)) (i32.const 0)) (i32.gt_u (local.get $count) (i32.const ${e}))) (then (call $append (local.get $lists) (local.get $counts) (local.get $capacity) (local.get $b) (i32.add (i32.add (local.get $first) (local.get $i)) (i32.const ${e})))))`,
-        );
+        const edge = `(i32.add (i32.add (local.get $first) (local.get $i)) (i32.const ${e}))`;
+        emit(indent + 2, `(if (i32.and (i32.ne (i32x4.extract_lane ${lane} (local.get $c)) (i32.const 0)) (i32.gt_u (local.get $count) (i32.const ${e})))`);
+        emit(indent + 3, `(then (if (i32x4.extract_lane ${lane} (local.get $d))`);
+        emit(indent + 4, `(then (call $append (local.get $lists) (local.get $counts) (local.get $capacity) (local.get $b) ${edge}))`);
+        emit(indent + 4, `(else (call $append (local.get $nearLists) (local.get $nearCounts) (local.get $nearCapacity) (local.get $b) ${edge})))))`);
       }
       emit(indent + 1, ")");
       emit(indent, ")");
@@ -288,7 +334,8 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(2, "(param $blockT i32) (param $W i32) (param $width i32) (param $S i32) (param $chunkSize i32)");
   emit(2, "(param $offsets i32) (param $chunks i32) (param $batch i32) (param $tables i32)");
   emit(2, "(param $sLo i32) (param $sHi i32) (param $first i32) (param $lists i32) (param $counts i32) (param $capacity i32)");
-  emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $row i32) (local $at i32) (local $c v128)");
+  emit(2, "(param $nLo i32) (param $nHi i32) (param $nearLists i32) (param $nearCounts i32) (param $nearCapacity i32)");
+  emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $row i32) (local $at i32) (local $c v128) (local $d v128)");
   emit(2, "(local $chunk i32) (local $s0 i32) (local $kc i32) (local $j i32) (local $stop i32) (local $entry i32) (local $source i32) (local $target i32) (local $previous i32) (local $rowBytes i32) (local $chunkBytes i32)");
   for (const p of range(GQ)) emit(2, `(local $r${p} v128)`);
   for (const p of range(GQ)) emit(2, `(local $acc${p} v128)`);
