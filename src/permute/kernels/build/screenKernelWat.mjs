@@ -69,6 +69,12 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(2, ")");
   emit(1, ")");
 
+  // Edge p of four at $a (edges $stride bytes apart), and one subject of each rounded to single precision at target.
+  const edgeAddress = (p) => (p === 0 ? "(local.get $a)" : `(i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const ${p})))`);
+  const emitRoundFourEdges = (indent, target) => {
+    for (const p of [0, 1, 2, 3]) emit(indent, `(f32.store offset=${4 * p} (local.get ${target}) (f32.demote_f64 (f64.load ${edgeAddress(p)})))`);
+  };
+
   // ---- f64 edge-major block → f32 subject-major, round to nearest: dst[s·W + i] = src[i·S + s] for edges i < W
   // (W a multiple of 4), subjects s < S; 4 edges × 2 subjects at a time ----
   emit(1, '(func (export "transposeDemoteBlock") (param $src i32) (param $dst i32) (param $S i32) (param $W i32)');
@@ -87,8 +93,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(6, "(br_if $pairsDone (i32.ge_u (local.get $a) (local.get $aEnd)))");
   emit(6, ";; x_p = edge i + p, subjects s and s + 1, in the two low lanes");
   for (const p of [0, 1, 2, 3]) {
-    const address = p === 0 ? "(local.get $a)" : `(i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const ${p})))`;
-    emit(6, `(local.set $x${p} (f32x4.demote_f64x2_zero (v128.load ${address})))`);
+    emit(6, `(local.set $x${p} (f32x4.demote_f64x2_zero (v128.load ${edgeAddress(p)})))`);
   }
   emit(6, ";; lo = [e0 s, e1 s, e0 s+1, e1 s+1], hi = the same for edges 2 and 3");
   emit(6, `(local.set $lo ${shuffle([...lane32(0, 0), ...lane32(1, 0), ...lane32(0, 1), ...lane32(1, 1)], "(local.get $x0)", "(local.get $x1)")})`);
@@ -102,10 +107,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(4, ")");
   emit(4, "(if (i32.and (local.get $S) (i32.const 1))");
   emit(5, "(then");
-  for (const p of [0, 1, 2, 3]) {
-    const address = p === 0 ? "(local.get $a)" : `(i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const ${p})))`;
-    emit(6, `(f32.store offset=${4 * p} (local.get $d) (f32.demote_f64 (f64.load ${address})))`);
-  }
+  emitRoundFourEdges(6, "$d");
   emit(5, "))");
   emit(4, "(local.set $i (i32.add (local.get $i) (i32.const 4)))");
   emit(4, "(br $edges)");
@@ -125,10 +127,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(4, "(block $subjectsDone");
   emit(5, "(loop $subjectLoop");
   emit(6, "(br_if $subjectsDone (i32.ge_u (local.get $s) (local.get $S)))");
-  for (const p of [0, 1, 2, 3]) {
-    const address = p === 0 ? "(local.get $a)" : `(i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const ${p})))`;
-    emit(6, `(f32.store offset=${4 * p} (local.get $dst) (f32.demote_f64 (f64.load ${address})))`);
-  }
+  emitRoundFourEdges(6, "$dst");
   emit(6, "(local.set $a (i32.add (local.get $a) (i32.const 8)))");
   emit(6, "(local.set $dst (i32.add (local.get $dst) (i32.const 16)))");
   emit(6, "(local.set $s (i32.add (local.get $s) (i32.const 1)))");
