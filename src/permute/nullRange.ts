@@ -86,6 +86,8 @@ export interface ScreenTally {
   full: number;
   /** Of the screened: settled from the near lists of their first run (no edge above the threshold, no second run). */
   near?: number;
+  /** Of the screened: below the near threshold too, and computed edge by edge with the per-pair recomputation. */
+  direct?: number;
 }
 
 /** One relabeling's null row, recorded into the chunk. */

@@ -187,3 +187,17 @@ export function statisticAt(data: KernelData, weights: Float64Array, rowStart: n
   }
   return sse > 0 ? a / Math.sqrt((sse / df) * effectNorm2) : NaN;
 }
+
+/** statisticAt at the edges edges[from … from+count) into out[e]. */
+export function statisticsAtEdges(
+  data: KernelData,
+  weights: Float64Array,
+  rowStart: number,
+  vectors: number,
+  edges: Int32Array,
+  from: number,
+  count: number,
+  out: Float64Array,
+): void {
+  for (let i = from; i < from + count; i++) out[edges[i]] = statisticAt(data, weights, rowStart, vectors, edges[i]);
+}

@@ -1,7 +1,9 @@
 import { studentTUpperTail } from "../distributions/studentT.js";
-import { statisticAt, type KernelData } from "./permutedStatistics.js";
-import { groupStatisticAt, residualSums, type TwoLevelEffect } from "./kernels/groupSums.js";
+import { statisticsAtEdges, type KernelData } from "./permutedStatistics.js";
+import { groupStatisticsAtEdges, residualSums, type TwoLevelEffect } from "./kernels/groupSums.js";
 import { screeningInstance, type KernelChoice } from "./kernels/selectKernel.js";
+import type { GroupSumBounds } from "./kernels/wasmKernel.js";
+import type { Tail } from "../io/designFile.js";
 import type { NullMaxima } from "./nullMaxima.js";
 import type { NullContext, NullRecorder, ScreenTally } from "./nullRange.js";
 import { relabelingWriter } from "./relabelingWriter.js";
@@ -39,8 +41,8 @@ export interface PreparedScreen {
   retarget(threshold: number): void;
   /** Writes relabeling k into slot b of the batch. */
   fill(k: number, b: number): void;
-  /** The reference statistic of slot b at edge e. */
-  exactAt(b: number, e: number): number;
+  /** The reference statistics of slot b at the edges edges[from … from+count), into out[e]. */
+  exactAt(b: number, edges: Int32Array, from: number, count: number, out: Float64Array): void;
   /**
    * Near lists of the first run at `lowest` (two-level path): per slot, the edges a screen at
    * `threshold` (the first retry's) would add. A slot whose list has no edge above `lowest` is then
@@ -67,6 +69,8 @@ const CAPACITY_FRACTION = 1 / 8;
  * 0–80 edges (median 10) between 0.8 × 3 and 3; a fuller list only means a run at the lower threshold.
  */
 const NEAR_CAPACITY = 256;
+/** Relabelings of a run with no edge above the near threshold either: up to this many are computed edge by edge. */
+const DIRECT_LIMIT = 4;
 
 const scalesOf = new WeakMap<KernelData, ResidualScales>();
 const PADDING = 64;
@@ -78,6 +82,31 @@ function scalesFor(data: KernelData): ResidualScales {
     scalesOf.set(data, scales);
   }
   return scales;
+}
+
+const boundsOf = new WeakMap<KernelData, Map<string, GroupSumBounds>>();
+
+/** groupSumBounds, computed once per kernel data, effect and threshold (every chunk of a run screens against the same). */
+function cachedGroupSumBounds(
+  data: KernelData,
+  level: TwoLevelEffect,
+  sums: Float64Array,
+  scales: ResidualScales,
+  threshold: number,
+  tail: Tail,
+): GroupSumBounds {
+  let cache = boundsOf.get(data);
+  if (!cache) {
+    cache = new Map();
+    boundsOf.set(data, cache);
+  }
+  const key = `${level.inGroup}:${level.other}:${threshold}:${tail}`;
+  let bounds = cache.get(key);
+  if (!bounds) {
+    bounds = groupSumBounds(data, level, sums, scales, threshold, tail, PADDING);
+    cache.set(key, bounds);
+  }
+  return bounds;
 }
 
 /** The screen for this context, or undefined where it does not apply (then every relabeling is computed in full). */
@@ -106,7 +135,7 @@ export function prepareScreen(
   const writer = relabelingWriter(context);
   if (level) {
     const sums = residualSums(kernel);
-    const boundsAt = (threshold: number) => groupSumBounds(kernel, level, sums, scales, threshold, context.tail, PADDING);
+    const boundsAt = (threshold: number) => cachedGroupSumBounds(kernel, level, sums, scales, threshold, context.tail);
     const nearThreshold = lowest * RETRY_FACTOR;
     const nearCapacity = capacityOverride ?? NEAR_CAPACITY;
     const near = screeningApplies(nearThreshold, kernel.df) ? { bounds: boundsAt(nearThreshold), capacity: nearCapacity } : undefined;
@@ -123,7 +152,7 @@ export function prepareScreen(
       run: batch.run,
       retarget: (threshold) => batch.setBounds(boundsAt(threshold)),
       fill: (k, b) => writer.members(k, b, batch.members, level),
-      exactAt: (b, e) => groupStatisticAt(kernel, level, sums, batch.members, b * G, e),
+      exactAt: (b, edges, from, count, out) => groupStatisticsAtEdges(kernel, level, sums, batch.members, b * G, edges, from, count, out),
       near: near && { counts: batch.nearCounts, lists: batch.nearLists, capacity: near.capacity, threshold: nearThreshold },
     };
   }
@@ -148,7 +177,7 @@ export function prepareScreen(
     run: batch.run,
     retarget: (threshold) => batch.setThreshold(screenThreshold(threshold)),
     fill: (k, b) => writer.weights(k, b, batch.weights),
-    exactAt: (b, e) => statisticAt(kernel, batch.weights, b * c * S, c, e),
+    exactAt: (b, edges, from, count, out) => statisticsAtEdges(kernel, batch.weights, b * c * S, c, edges, from, count, out),
   };
 }
 
@@ -219,6 +248,7 @@ function screenList(
   const extra = new Float64Array(maxima.extraNames.length);
   const passed: number[] = [];
   const overflowed: number[] = [];
+  const belowNear: number[] = [];
   for (let i = 0; i < ks.length; ) {
     const batch = Math.min(screen.batchSize, ks.length - i);
     for (let b = 0; b < batch; b++) screen.fill(ks[i + b], b);
@@ -231,10 +261,7 @@ function screenList(
         continue;
       }
       const count = mergeAscending(lists, b * capacity, n, forced, 0, forced.length, listed);
-      for (let j = 0; j < count; j++) {
-        const e = listed[j];
-        values[e] = screen.exactAt(b, e);
-      }
+      screen.exactAt(b, listed, 0, count, values);
       const measured = maxima.measureListed(values, listed, count, extra);
       // Unlisted edges are below `threshold`: the largest statistic is listed only if one passes it.
       if (measured.maxStatistic > threshold) {
@@ -245,7 +272,7 @@ function screenList(
       const nearCount = near ? near.counts[b] : Infinity;
       if (near && nearCount <= near.capacity) {
         const start = b * near.capacity;
-        for (let j = start; j < start + nearCount; j++) values[near.lists[j]] = screen.exactAt(b, near.lists[j]);
+        screen.exactAt(b, near.lists, start, nearCount, values);
         const total = mergeAscending(listed, 0, count, near.lists, start, nearCount, widened);
         const wider = maxima.measureListed(values, widened, total, extra);
         if (wider.maxStatistic > near.threshold) {
@@ -253,10 +280,26 @@ function screenList(
           if (tally) tally.near = (tally.near ?? 0) + 1;
           continue;
         }
+        belowNear.push(k);
+        continue;
       }
       passed.push(k);
     }
     i += batch;
+  }
+  // Every edge of a relabeling below the near threshold too: computed one by one when few (each costs
+  // about as much as one more run of the screen, which they would need, and likely a second).
+  if (belowNear.length <= DIRECT_LIMIT) {
+    const everyEdge = Int32Array.from({ length: E }, (_, e) => e);
+    for (const k of belowNear) {
+      screen.fill(k, 0);
+      screen.exactAt(0, everyEdge, 0, E, values);
+      record(k, maxima.measure(values, extra), extra);
+    }
+    if (tally) tally.direct = (tally.direct ?? 0) + belowNear.length;
+  } else {
+    passed.push(...belowNear);
+    passed.sort((a, b) => a - b);
   }
   return { passed, overflowed };
 }

@@ -9,7 +9,8 @@ import seedrandom from "seedrandom";
 import { Matrix } from "ml-matrix";
 import { describe, expect, it } from "vitest";
 import { computeNullRange, type NullChunk, type NullContext, type ScreenTally } from "../../../src/permute/nullRange.js";
-import { permutedStatistics, statisticAt } from "../../../src/permute/permutedStatistics.js";
+import { permutedStatistics, statisticAt, statisticsAtEdges } from "../../../src/permute/permutedStatistics.js";
+import { groupStatisticsAtEdges, groupSumStatistics, residualSums, twoLevelEffect } from "../../../src/permute/kernels/groupSums.js";
 import { relabelingWriter } from "../../../src/permute/relabelingWriter.js";
 import { WasmPermutationKernel, groupChunkSize, screenMemory } from "../../../src/permute/kernels/wasmKernel.js";
 import { float32AtLeast, float32AtMost, gamma, residualScales, screeningApplies } from "../../../src/permute/screening.js";
@@ -103,6 +104,38 @@ describe("the per-pair recomputation", () => {
           const actual = statisticAt(context.kernel, weights, b * c * S, c, e);
           if (!Object.is(actual, expected[b * E + e])) {
             throw new Error(`relabeling slot ${b}, edge ${e}: statisticAt ${actual}, batch kernel ${expected[b * E + e]}, tolerance 0 (bit-identical)`);
+          }
+        }
+        // A list of edges (an odd count, from an offset), as the screen passes them.
+        const edges = Int32Array.from({ length: E }, (_, e) => (e * 5) % E).filter((_, i) => i % 3 !== 1);
+        const out = new Float64Array(E).fill(12345);
+        statisticsAtEdges(context.kernel, weights, b * c * S, c, edges, 2, 7, out);
+        edges.subarray(2, 9).forEach((e) => expect(Object.is(out[e], expected[b * E + e]), `statisticsAtEdges, slot ${b}, edge ${e}`).toBe(true));
+      }
+    }
+  });
+
+  it("groupStatisticsAtEdges (four edges at a time) gives the two-level reference's bits at every (relabeling, edge)", () => {
+    const context = nullContext({ S: 37, regions: 14, scheme: "permute", covariates: false, permutations: 20 });
+    const level = twoLevelEffect(context.vectors[0]);
+    if (!level) throw new Error("the fixture should take the two-level path");
+    const E = context.kernel.edges;
+    const batch = 5;
+    const members = new Int32Array(batch * level.groupSize);
+    const writer = relabelingWriter(context);
+    for (let b = 0; b < batch; b++) writer.members(b + 2, b, members, level);
+    const expected = new Float64Array(batch * E);
+    groupSumStatistics(context.kernel, level, members, batch, expected);
+    const sums = residualSums(context.kernel);
+    // Every edge in a scrambled order, then lists of every length 0–9 from an offset (the four-at-a-time loop and its rest).
+    const scrambled = Int32Array.from({ length: E }, (_, e) => (e * 37) % E);
+    for (let b = 0; b < batch; b++) {
+      for (const [from, count] of [[0, E], ...Array.from({ length: 10 }, (_, n) => [3, n])]) {
+        const out = new Float64Array(E).fill(12345);
+        groupStatisticsAtEdges(context.kernel, level, sums, members, b * level.groupSize, scrambled, from, count, out);
+        for (const e of scrambled.subarray(from, from + count)) {
+          if (!Object.is(out[e], expected[b * E + e])) {
+            throw new Error(`slot ${b}, edge ${e}: groupStatisticsAtEdges ${out[e]}, groupSumStatistics ${expected[b * E + e]}, tolerance 0 (bit-identical)`);
           }
         }
       }
@@ -299,11 +332,13 @@ describe("the screened null equals the reference null, bit for bit", () => {
     }
   });
 
-  it("group-sum path: relabelings with no edge above the threshold are settled from their near lists, or by a second run when those overflow", () => {
+  it("group-sum path: relabelings with no edge above the threshold are settled from their near lists, edge by edge below those, or by a second run", () => {
     // t = 3.6 on 780 edges with 46 degrees of freedom: about 0.6 edges expected above it, so many relabelings have none.
     const context = nullContext({ ...base, scheme: "permute", covariates: false, thresholds: [3.6] });
     const tally = compare(context, "near lists");
     expect(tally.near ?? 0, `settled from near lists: ${tally.near}, screened: ${tally.screened}`).toBeGreaterThan(10);
+    // A few relabelings have no edge above the near threshold either: computed edge by edge.
+    expect(tally.direct ?? 0).toBeGreaterThan(0);
     const small = compare(context, "near lists of capacity 2", 2);
     expect(small.near ?? 0).toBeLessThan(tally.near ?? 0);
     const sweep = nullContext({ ...base, scheme: "permute", covariates: false, thresholds: [3.8, 3.5, 4.2], tail: "upper" });

@@ -304,6 +304,12 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   // The screen of GQ accumulators of group sums (4 edges each) at byte offset $at: lanes at or beyond the near
   // bounds (nLo/nHi, which lie within sLo/sHi) are tested against sLo/sHi; those that reach them go to the
   // relabeling's list, the others to its near list (the edges a lower threshold would add).
+  // $append's body in line (a call per listed lane costs more than the rest of the listing).
+  const inlineAppend = (lists, counts, capacity, edge) =>
+    `(local.set $appendAt (i32.add (local.get ${counts}) (i32.shl (local.get $b) (i32.const 2)))) ` +
+    `(local.set $appendN (i32.load (local.get $appendAt))) ` +
+    `(if (i32.lt_u (local.get $appendN) (local.get ${capacity})) (then (i32.store (i32.add (local.get ${lists}) (i32.shl (i32.add (i32.mul (local.get $b) (local.get ${capacity})) (local.get $appendN)) (i32.const 2))) ${edge}))) ` +
+    `(i32.store (local.get $appendAt) (i32.add (local.get $appendN) (i32.const 1)))`;
   const emitGroupCompare = (indent) => {
     const bound = (array, p) => `(v128.load offset=${p * 16} (i32.add (local.get ${array}) (local.get $at)))`;
     for (const p of range(GQ)) {
@@ -316,8 +322,8 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
         const edge = `(i32.add (i32.add (local.get $first) (local.get $i)) (i32.const ${e}))`;
         emit(indent + 2, `(if (i32.and (i32.ne (i32x4.extract_lane ${lane} (local.get $c)) (i32.const 0)) (i32.gt_u (local.get $count) (i32.const ${e})))`);
         emit(indent + 3, `(then (if (i32x4.extract_lane ${lane} (local.get $d))`);
-        emit(indent + 4, `(then (call $append (local.get $lists) (local.get $counts) (local.get $capacity) (local.get $b) ${edge}))`);
-        emit(indent + 4, `(else (call $append (local.get $nearLists) (local.get $nearCounts) (local.get $nearCapacity) (local.get $b) ${edge})))))`);
+        emit(indent + 4, `(then ${inlineAppend("$lists", "$counts", "$capacity", edge)})`);
+        emit(indent + 4, `(else ${inlineAppend("$nearLists", "$nearCounts", "$nearCapacity", edge)}))))`);
       }
       emit(indent + 1, ")");
       emit(indent, ")");
@@ -334,7 +340,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(2, "(param $offsets i32) (param $chunks i32) (param $batch i32) (param $tables i32)");
   emit(2, "(param $sLo i32) (param $sHi i32) (param $first i32) (param $lists i32) (param $counts i32) (param $capacity i32)");
   emit(2, "(param $nLo i32) (param $nHi i32) (param $nearLists i32) (param $nearCounts i32) (param $nearCapacity i32)");
-  emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $row i32) (local $at i32) (local $c v128) (local $d v128)");
+  emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $row i32) (local $at i32) (local $c v128) (local $d v128) (local $appendAt i32) (local $appendN i32)");
   emit(2, "(local $chunk i32) (local $s0 i32) (local $kc i32) (local $j i32) (local $stop i32) (local $entry i32) (local $source i32) (local $target i32) (local $previous i32) (local $rowBytes i32) (local $chunkBytes i32)");
   for (const p of range(GQ)) emit(2, `(local $r${p} v128)`);
   for (const p of range(GQ)) emit(2, `(local $acc${p} v128)`);
