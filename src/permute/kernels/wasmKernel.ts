@@ -316,6 +316,15 @@ export class WasmPermutationKernel {
     return true;
   }
 
+  /** Copies the residuals (edge-major) to `at` W edges at a time (the last block narrower), calling body after each copy. */
+  private eachBlock(residuals: Float64Array, S: number, E: number, W: number, at: number, body: (e0: number, width: number) => void): void {
+    for (let e0 = 0; e0 < E; e0 += W) {
+      const width = Math.min(W, E - e0);
+      this.f64.set(residuals.subarray(e0 * S, (e0 + width) * S), at / 8);
+      body(e0, width);
+    }
+  }
+
   /** Edges per copied block for S subjects: a multiple of the edge tile P. */
   blockWidth(S: number, E: number, P: number = this.edgesPerTile, bytes: number = BLOCK_BYTES): number {
     const fit = Math.max(1, Math.floor(bytes / (8 * Math.max(1, S)) / P)) * P;
@@ -381,11 +390,7 @@ export class WasmPermutationKernel {
     const kept = resident && this.resident?.data === data && this.resident.layout === layout;
     this.claim(token, kept);
     if (resident && !kept) {
-      for (let e0 = 0; e0 < E; e0 += W) {
-        const width = Math.min(W, E - e0);
-        this.f64.set(residuals.subarray(e0 * S, (e0 + width) * S), stagingAt / 8);
-        this.exports.interleaveBlock(stagingAt, e0 * S * 4, S, Math.ceil(width / P));
-      }
+      this.eachBlock(residuals, S, E, W, stagingAt, (e0, width) => this.exports.interleaveBlock(stagingAt, e0 * S * 4, S, Math.ceil(width / P)));
       this.resident = { data, layout };
     }
     this.f64.set(data.sumSquares, sumSquaresAt / 8);
@@ -537,10 +542,7 @@ export class WasmPermutationKernel {
       if (E === 0 || batch === 0) return;
       const chunks = Math.ceil(S / chunkSize);
       writeChunkOffsets(batch, chunkSize, chunks);
-      const f64 = this.f64;
-      for (let e0 = 0; e0 < E; e0 += W) {
-        const width = Math.min(W, E - e0);
-        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
+      this.eachBlock(residuals, S, E, W, blockAt, (e0, width) => {
         this.exports.transposeDemoteBlock(blockAt, singleAt, S, W);
         this.exports.groupTableScreenBlock(
           singleAt,
@@ -564,7 +566,7 @@ export class WasmPermutationKernel {
           nearCountsAt,
           nearCapacity,
         );
-      }
+      });
     };
     return { members, counts, lists, capacity, nearCounts, nearLists, nearCapacity, run, setBounds };
   }
@@ -632,10 +634,7 @@ export class WasmPermutationKernel {
       const rows = batch * vectors;
       const rowTiles = Math.ceil(rows / this.rowsPerTile);
       this.packWeights(weights, rows, S, rowTiles, panelAt);
-      const f64 = this.f64;
-      for (let e0 = 0; e0 < E; e0 += W) {
-        const width = Math.min(W, E - e0);
-        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), residualsAt / 8);
+      this.eachBlock(residuals, S, E, W, residualsAt, (e0, width) =>
         this.exports.statisticsBlock(
           panelAt,
           rowTiles,
@@ -651,8 +650,8 @@ export class WasmPermutationKernel {
           df,
           statisticsAt + e0 * 8,
           E,
-        );
-      }
+        ),
+      );
     };
     return { weights, statistics, run };
   }
@@ -691,10 +690,7 @@ export class WasmPermutationKernel {
       if (this.current !== token) throw new Error("internal: a kernel batch was used after another was prepared on this thread");
       if (E === 0 || batch === 0) return;
       for (let i = 0; i < batch * G; i++) offsets[i] = members[i] * rowBytes;
-      const f64 = this.f64;
-      for (let e0 = 0; e0 < E; e0 += W) {
-        const width = Math.min(W, E - e0);
-        f64.set(residuals.subarray(e0 * S, (e0 + width) * S), blockAt / 8);
+      this.eachBlock(residuals, S, E, W, blockAt, (e0, width) => {
         this.exports.transposeBlock(blockAt, transposedAt, S, W);
         this.exports.groupStatisticsBlock(
           transposedAt,
@@ -713,7 +709,7 @@ export class WasmPermutationKernel {
           statisticsAt + e0 * 8,
           E,
         );
-      }
+      });
     };
     return { members, statistics, run };
   }
