@@ -223,9 +223,10 @@ export interface ScreenSettings {
 }
 
 /**
- * Up to this many bytes of single-precision residuals stay in a screening
- * instance's memory for the whole run (no copy per batch); larger data (1,000
- * regions × 500 subjects) are copied in block by block for each batch instead.
+ * On the products screen, up to this many bytes of single-precision residuals
+ * stay in a screening instance's memory for the whole run (no copy per batch);
+ * larger data (1,000 regions × 500 subjects) are copied in block by block for
+ * each batch instead. (The two-level screen always converts per batch.)
  */
 const RESIDENT_BYTES = 160 * 1024 * 1024;
 /**
@@ -256,7 +257,7 @@ const MAX_CHUNK_SUBJECTS = 8;
 /** The resident limit in force (tests lower it to exercise the block-by-block path). */
 export const screenMemory = { residentBytes: RESIDENT_BYTES };
 
-/** Bytes of residuals per block on the two-level path (copied, then transposed beside the copy). */
+/** Bytes of residuals per block on the two-level paths (copied, then transposed beside the copy: in double precision, or rounded to single). */
 const GROUP_BLOCK_BYTES = 128 * 1024;
 
 const alignUp = (n: number): number => Math.ceil(n / ALIGN) * ALIGN;
