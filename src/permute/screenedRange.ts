@@ -42,7 +42,7 @@ export interface PreparedScreen {
   /** Writes relabeling k into slot b of the batch. */
   fill(k: number, b: number): void;
   /** The reference statistics of slot b at the edges edges[from … from+count), into out[e]. */
-  exactAt(b: number, edges: Int32Array, from: number, count: number, out: Float64Array): void;
+  exactAtEdges(b: number, edges: Int32Array, from: number, count: number, out: Float64Array): void;
   /**
    * Near lists of the first run at `lowest` (two-level path): per slot, the edges a screen at
    * `threshold` (the first retry's) would add. A slot whose list has no edge above `lowest` is then
@@ -152,7 +152,7 @@ export function prepareScreen(
       run: batch.run,
       retarget: (threshold) => batch.setBounds(boundsAt(threshold)),
       fill: (k, b) => writer.members(k, b, batch.members, level),
-      exactAt: (b, edges, from, count, out) => groupStatisticsAtEdges(kernel, level, sums, batch.members, b * G, edges, from, count, out),
+      exactAtEdges: (b, edges, from, count, out) => groupStatisticsAtEdges(kernel, level, sums, batch.members, b * G, edges, from, count, out),
       near: near && { counts: batch.nearCounts, lists: batch.nearLists, capacity: near.capacity, threshold: nearThreshold },
     };
   }
@@ -177,7 +177,7 @@ export function prepareScreen(
     run: batch.run,
     retarget: (threshold) => batch.setThreshold(screenThreshold(threshold)),
     fill: (k, b) => writer.weights(k, b, batch.weights),
-    exactAt: (b, edges, from, count, out) => statisticsAtEdges(kernel, batch.weights, b * c * S, c, edges, from, count, out),
+    exactAtEdges: (b, edges, from, count, out) => statisticsAtEdges(kernel, batch.weights, b * c * S, c, edges, from, count, out),
   };
 }
 
@@ -261,7 +261,7 @@ function screenList(
         continue;
       }
       const count = mergeAscending(lists, b * capacity, n, forced, 0, forced.length, listed);
-      screen.exactAt(b, listed, 0, count, values);
+      screen.exactAtEdges(b, listed, 0, count, values);
       const measured = maxima.measureListed(values, listed, count, extra);
       // Unlisted edges are below `threshold`: the largest statistic is listed only if one passes it.
       if (measured.maxStatistic > threshold) {
@@ -272,7 +272,7 @@ function screenList(
       const nearCount = near ? near.counts[b] : Infinity;
       if (near && nearCount <= near.capacity) {
         const start = b * near.capacity;
-        screen.exactAt(b, near.lists, start, nearCount, values);
+        screen.exactAtEdges(b, near.lists, start, nearCount, values);
         const total = mergeAscending(listed, 0, count, near.lists, start, nearCount, widened);
         const wider = maxima.measureListed(values, widened, total, extra);
         if (wider.maxStatistic > near.threshold) {
@@ -293,7 +293,7 @@ function screenList(
     const everyEdge = Int32Array.from({ length: E }, (_, e) => e);
     for (const k of belowNear) {
       screen.fill(k, 0);
-      screen.exactAt(0, everyEdge, 0, E, values);
+      screen.exactAtEdges(0, everyEdge, 0, E, values);
       record(k, maxima.measure(values, extra), extra);
     }
     if (tally) tally.direct = (tally.direct ?? 0) + belowNear.length;

@@ -182,13 +182,13 @@ export interface ScreenBatch {
   setThreshold(threshold: number): void;
 }
 
-/** The two-level path's screened batch: fill `members`, run, read counts and lists as for ScreenBatch. */
 /** Single-precision bounds on an edge's group sum (screening.ts groupSumBounds): a sum at or beyond them is listed. */
 export interface GroupSumBounds {
   sLo: Float32Array;
   sHi: Float32Array;
 }
 
+/** The two-level path's screened batch: fill `members`, run, read counts and lists as for ScreenBatch. */
 export interface GroupScreenBatch {
   members: Int32Array;
   counts: Int32Array;
