@@ -73,7 +73,8 @@ export interface ContrastSummary {
   expression: string;
   /** "t" (one row) or "F" (several rows); absent in folders written before F contrasts, meaning "t". */
   statistic?: "t" | "F";
-  vector: number[];
+  /** t contrasts: the contrast vector. F contrasts: every row of the contrast matrix (folders written before this held row 1 alone). */
+  vector: number[] | number[][];
   /** F contrasts: the contrast matrix, one row per test, and its row count. */
   rows?: number[][];
   df1?: number;
@@ -93,6 +94,12 @@ export interface ContrastSummary {
   critical_size_measure?: "extent" | "mass";
   critical_statistic?: number | null;
   smallest_possible_p?: number;
+}
+
+/** The contrast's rows: `rows` for an F contrast, else the one vector. */
+export function contrastRows(c: ContrastSummary): number[][] {
+  if (c.rows) return c.rows;
+  return Array.isArray(c.vector[0]) ? (c.vector as number[][]) : [c.vector as number[]];
 }
 
 /** subjects.tsv: every participant of the table, the model (and block) columns as read; null = missing. */

@@ -1,6 +1,7 @@
 import { cohortVariables } from "./cohortVariables.js";
 import { escapeHtml } from "./escapeHtml.js";
 import type { LoadedResults } from "./loadResults.js";
+import { contrastRows } from "./loadResults.js";
 import { count, plain, significant } from "./printNumbers.js";
 
 /**
@@ -105,8 +106,8 @@ export function methodsText(results: LoadedResults): MethodsText {
   contrasts.push(
     ...list(summary.contrasts, (c) =>
       c.statistic === "F"
-        ? [{ user: c.name }, mixed ? " (F, " : " (", { user: c.expression }, `, C = ${matrix(c.rows ?? [c.vector])}, ${c.df1 ?? c.rows?.length ?? 1} and ${plain(c.df)} degrees of freedom)`]
-        : [{ user: c.name }, mixed ? " (t, " : " (", { user: c.expression }, `, c = [${c.vector.map((v) => plain(v)).join(", ")}])`],
+        ? [{ user: c.name }, mixed ? " (F, " : " (", { user: c.expression }, `, C = ${matrix(contrastRows(c))}, ${c.df1 ?? c.rows?.length ?? 1} and ${plain(c.df)} degrees of freedom)`]
+        : [{ user: c.name }, mixed ? " (t, " : " (", { user: c.expression }, `, c = [${contrastRows(c)[0].map((v) => plain(v)).join(", ")}])`],
     ),
   );
   contrasts.push(".");

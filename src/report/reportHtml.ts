@@ -1,6 +1,7 @@
 import { escapeHtml } from "./escapeHtml.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
 import type { LoadedResults } from "./loadResults.js";
+import { contrastRows } from "./loadResults.js";
 import { methodsHtml } from "./methodsText.js";
 import { plain } from "./printNumbers.js";
 import type { ReportContent } from "./reportContent.js";
@@ -101,7 +102,9 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     return [
       `<section id="contrast-${k + 1}">`,
       `<h2>Contrast ${h(c.name)}</h2>`,
-      `<p>${code(c.expression)}, c = [${c.vector.map((v) => plain(v)).join(", ")}], df = ${plain(c.df)}.</p>`,
+      c.statistic === "F"
+        ? `<p>${code(c.expression)}, C = [${contrastRows(c).map((row) => row.map((v) => plain(v)).join(", ")).join("; ")}], df = ${plain(c.df1 ?? contrastRows(c).length)} and ${plain(c.df)}.</p>`
+        : `<p>${code(c.expression)}, c = [${contrastRows(c)[0].map((v) => plain(v)).join(", ")}], df = ${plain(c.df)}.</p>`,
       none,
       ...figures,
       ...tablesFor(contrast.name),

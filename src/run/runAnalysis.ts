@@ -385,7 +385,8 @@ export function buildSummary(
         name: observed.contrast.name,
         expression: observed.contrast.expression,
         statistic: observed.contrast.kind,
-        vector: [...observed.contrast.vector],
+        // t: the contrast vector; F: every row of the contrast matrix (the same list as `rows`).
+        vector: observed.contrast.kind === "F" ? observed.contrast.rows.map((r) => [...r]) : [...observed.contrast.vector],
         ...(observed.contrast.kind === "F" ? { rows: observed.contrast.rows.map((r) => [...r]), df1: observed.contrast.rows.length } : {}),
         df: observed.statistics.df,
         edges_without_statistic: observed.statistics.degenerate,

@@ -28,7 +28,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
         `columns     ${matrix.columns.map((c) => c.name).join(", ")}`,
         `df          ${matrix.rows - matrix.cols}`,
         ...prepared.contrasts.map(
-          (c) => `contrast    ${c.name}: ${c.expression}  ->  [${[...c.vector].join(", ")}]`,
+          (c) => `contrast    ${c.name}: ${c.expression}  ->  ${formatContrastRows(c.kind === "F" ? c.rows : [c.vector], c.kind)}`,
         ),
         `inference   ${design.inference.method}, threshold ${design.inference.threshold}, size ${design.inference.size}, tail ${design.inference.tail}, alpha ${design.inference.alpha}`,
       ];
@@ -73,6 +73,12 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
     .action((shards: string[], flags: { out: string; force: boolean; quiet: boolean }) => {
       mergeShards(shards, { out: flags.out, force: flags.force, quiet: flags.quiet, commandLine: ["plexus", ...argv()] }, log);
     });
+}
+
+/** A t contrast as `[a, b, …]`; an F contrast as its rows, `[[a, b, …], [c, d, …]]`, every row shown. */
+export function formatContrastRows(rows: readonly Float64Array[], kind: "t" | "F"): string {
+  const row = (values: Float64Array) => `[${[...values].join(", ")}]`;
+  return kind === "F" ? `[${rows.map(row).join(", ")}]` : row(rows[0]);
 }
 
 interface RunFlags {
