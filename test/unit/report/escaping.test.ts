@@ -4,6 +4,7 @@ import { formatTsv } from "../../../src/output/tsvWriter.js";
 import { escapeHtml } from "../../../src/report/escapeHtml.js";
 import { escapeLatex } from "../../../src/report/escapeLatex.js";
 import { escapeMarkdown } from "../../../src/report/escapeMarkdown.js";
+import { markdownTable } from "../../../src/report/tables/markdownTable.js";
 import { tsvCellText } from "../../../src/report/tsvCellText.js";
 
 // Expected strings follow the HTML Living Standard's character references, CommonMark's
@@ -24,6 +25,13 @@ describe("escapeMarkdown", () => {
   });
   it("escapeMarkdown escapes emphasis, code and link characters and joins lines", () => {
     expect(escapeMarkdown("*a*_b_`c`[d](e)\nf")).toBe("\\*a\\*\\_b\\_\\`c\\`\\[d\\](e) f");
+  });
+  it("escapeMarkdown escapes $ so a viewer that renders $…$ as maths shows the text", () => {
+    expect(escapeMarkdown("cost $5 to $10")).toBe("cost \\$5 to \\$10");
+  });
+  it("a tables.md table escapes $ in its title, headers, cells and notes", () => {
+    const table = { id: "t", title: "Price $", columns: [{ header: "$a", align: "left" as const }], rows: [{ cells: ["x$y$"] }], notes: ["$n$"] };
+    expect(markdownTable(table, 1)).toBe("**Table 1. Price \\$**\n\n| \\$a |\n| :--- |\n| x\\$y\\$ |\n\n\\$n\\$\n");
   });
 });
 
