@@ -6,7 +6,9 @@ import { contrastVarianceFactor, type EdgeFit } from "./fitEdges.js";
  * with s² = SSE/(S − rank X) (e.g. Searle 1971, Linear Models, §5.5), its
  * upper-tail p-value, and the partial correlation r = t/√(t² + df) as an
  * effect size (Rosenthal 1994, in The Handbook of Research Synthesis).
- * An edge whose residual variance is zero relative to its data gets NaN.
+ * An edge whose residual variance is zero relative to its data (`isDegenerate`)
+ * gets NaN for all five: its estimate and standard error would be rounding
+ * noise too (a constant edge, or one the design fits exactly).
  */
 export interface EdgeStatistics {
   df: number;
@@ -22,6 +24,11 @@ export interface EdgeStatistics {
 /** Residual norms at or below this fraction of the data norm count as zero (rounding level). */
 export const ZERO_RESIDUAL_RELATIVE = 1e-10;
 
+/**
+ * The one rule for "zero residual variance": SSE ≤ (1e-10)² · Σ y² over the
+ * edge's values (√SSE at most 1e-10 of the data's norm), or SSE not finite.
+ * Such an edge has no statistic, estimate, standard error, p or effect size.
+ */
 export function isDegenerate(sse: number, sumSquares: number): boolean {
   return !(sse > ZERO_RESIDUAL_RELATIVE * ZERO_RESIDUAL_RELATIVE * sumSquares) || !Number.isFinite(sse);
 }
@@ -36,17 +43,18 @@ export function contrastStatistics(fit: EdgeFit, contrast: ArrayLike<number>): E
   const partialR = new Float64Array(E);
   let degenerate = 0;
   for (let e = 0; e < E; e++) {
-    let value = 0;
-    for (let k = 0; k < p; k++) value += contrast[k] * coefficients[k * E + e];
-    estimate[e] = value;
     if (isDegenerate(sse[e], sumSquares[e])) {
       degenerate++;
       statistic[e] = NaN;
-      standardError[e] = sse[e] >= 0 ? Math.sqrt((sse[e] / df) * factor) : NaN;
+      estimate[e] = NaN;
+      standardError[e] = NaN;
       pUncorrected[e] = NaN;
       partialR[e] = NaN;
       continue;
     }
+    let value = 0;
+    for (let k = 0; k < p; k++) value += contrast[k] * coefficients[k * E + e];
+    estimate[e] = value;
     const se = Math.sqrt((sse[e] / df) * factor);
     const t = value / se;
     standardError[e] = se;
