@@ -16,4 +16,11 @@ export interface ShardManifest {
   mode: "exact" | "monte-carlo";
   contrasts: string[];
   inputs: InputRecord[];
+  /** Every other file of the shard folder (`<contrast>/null.tsv`, `/`-separated) with its SHA-256; merge checks them before reading. */
+  files: ShardFile[];
+}
+
+export interface ShardFile {
+  path: string;
+  sha256: string;
 }

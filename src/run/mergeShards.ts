@@ -1,10 +1,10 @@
 import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
-import { InputError } from "../errors.js";
+import { InputError, inputErrors } from "../errors.js";
 import { concatenateChunks } from "../permute/nullEngine.js";
 import type { NullChunk } from "../permute/nullRange.js";
 import { parseNullTable } from "../output/nullTable.js";
-import { hashInputs } from "../output/provenance.js";
+import { hashInputs, sha256Text } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
 import { SHARD_MANIFEST, type ShardManifest } from "../output/shardManifest.js";
 import { fitAll, observeContrast } from "./analyzeContrasts.js";
@@ -26,9 +26,47 @@ function readManifest(folder: string): ShardManifest {
 }
 
 /**
+ * Reads every file a shard's manifest lists and checks its SHA-256 against
+ * the manifest, so a truncated or damaged file is blamed on its own shard
+ * before anything is read from it. Returns the verified texts by full path;
+ * every mismatch of every shard is reported in one error.
+ */
+function verifyShardFiles(shards: { folder: string; manifest: ShardManifest }[], count: number): Map<string, string> {
+  const texts = new Map<string, string>();
+  const problems: InputError[] = [];
+  for (const { folder, manifest } of shards) {
+    const which = `shard ${manifest.shard.index}/${count}`;
+    if (!Array.isArray(manifest.files)) {
+      problems.push(
+        new InputError(`${SHARD_MANIFEST} of ${which} lists no SHA-256 of its files (an older plexus wrote it)`, { file: path.join(folder, SHARD_MANIFEST) }, "run this shard again"),
+      );
+      continue;
+    }
+    for (const listed of manifest.files) {
+      const file = path.join(folder, ...listed.path.split("/"));
+      const name = path.basename(listed.path);
+      if (!existsSync(file)) {
+        problems.push(new InputError(`${name} of ${which} is missing (it is listed in ${SHARD_MANIFEST})`, { file }));
+        continue;
+      }
+      const bytes = readFileSync(file);
+      if (sha256Text(bytes) !== listed.sha256) {
+        problems.push(new InputError(`${name} of ${which} is damaged or truncated: its SHA-256 differs from ${SHARD_MANIFEST}`, { file }, "run this shard again"));
+        continue;
+      }
+      texts.set(file, bytes.toString("utf8"));
+    }
+  }
+  const error = inputErrors(problems);
+  if (error) throw error;
+  return texts;
+}
+
+/**
  * Merges shard folders into the results of an unsharded run: checks that
  * the shards come from the same design, inputs (SHA-256) and seed, that none
- * is missing or repeated, then writes the same outputs a single run writes.
+ * is missing or repeated and that every file still has the SHA-256 its
+ * manifest recorded, then writes the same outputs a single run writes.
  */
 export function mergeShards(
   shardFolders: string[],
@@ -68,6 +106,10 @@ export function mergeShards(
       file: manifests[0].folder,
     });
   }
+  const verified = verifyShardFiles(
+    [...byIndex.keys()].sort((a, b) => a - b).map((k) => byIndex.get(k)!),
+    first.shard.count,
+  );
   const prepared = prepareAnalysis(first.design);
   const inputs = hashInputs(prepared.inputs);
   if (runFingerprint(prepared, inputs) !== first.fingerprint) {
@@ -90,8 +132,9 @@ export function mergeShards(
       for (let k = 1; k <= first.shard.count; k++) {
         const { folder: shardFolder } = byIndex.get(k)!;
         const file = path.join(shardFolder, observed.contrast.name, "null.tsv");
-        if (!existsSync(file)) throw new InputError("the shard has no null distribution for this contrast", { file });
-        const chunk = parseNullTable(readFileSync(file, "utf8"), file);
+        const text = verified.get(file);
+        if (text === undefined) throw new InputError(`the shard has no null distribution for this contrast (none is listed in ${SHARD_MANIFEST})`, { file });
+        const chunk = parseNullTable(text, file);
         const expectedFrom = k === 1 ? 1 : chunks[chunks.length - 1].to;
         if (chunk.from !== expectedFrom && chunk.to > chunk.from) {
           throw new InputError(`expected relabelings from ${expectedFrom}, found from ${chunk.from}`, { file });

@@ -6,7 +6,7 @@ import { VERSION } from "../version.js";
 import { silentProgress, type Progress } from "../cli/progress.js";
 import { Checkpoint } from "../permute/checkpoint.js";
 import { defaultThreads } from "../permute/nullEngine.js";
-import { hashInputs, type InputRecord } from "../output/provenance.js";
+import { hashInputs, sha256Text, type InputRecord } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
 import { relabelingSummary, smallestPossibleP } from "../output/relabelingSummary.js";
 import { formatTsv, type Cell } from "../output/tsvWriter.js";
@@ -323,6 +323,7 @@ function writeShard(
   options: RunOptions,
 ): void {
   const first = nulls[0]!;
+  const tables = contrasts.map((observed, i) => ({ path: `${observed.contrast.name}/null.tsv`, text: nullTable(nulls[i]!.rows) }));
   const manifest: ShardManifest = {
     tool: { name: "plexus", version: VERSION },
     design: path.resolve(prepared.design.file),
@@ -334,9 +335,10 @@ function writeShard(
     mode: first.setup.context.plan.exact ? "exact" : "monte-carlo",
     contrasts: contrasts.map((c) => c.contrast.name),
     inputs,
+    files: tables.map((table) => ({ path: table.path, sha256: sha256Text(table.text) })),
   };
   folder.write(SHARD_MANIFEST, `${JSON.stringify(manifest, null, 2)}\n`);
-  contrasts.forEach((observed, i) => folder.write(`${observed.contrast.name}/null.tsv`, nullTable(nulls[i]!.rows)));
+  for (const table of tables) folder.write(table.path, table.text);
 }
 
 function finiteOrNull(value: number): number | null {
