@@ -153,9 +153,26 @@ export class EdgeMajorWriter {
       throw new RangeError(`EdgeMajorWriter: more than ${this.end} subjects`);
     }
     writeMatrixEdges(matrix, matrixOffset, this.pairs, this.block, this.rows * edgeCount, options, origin);
+    this.next();
+  }
+
+  /**
+   * Passes over the next subject, whose matrix could not be read or failed a
+   * check, leaving its edges NaN, so the loader can go on to find every bad matrix.
+   */
+  skip(): void {
+    const edgeCount = this.pairs.edgeCount;
+    if (this.blockStart + this.rows >= this.end) {
+      throw new RangeError(`EdgeMajorWriter: more than ${this.end} subjects`);
+    }
+    this.block.fill(NaN, this.rows * edgeCount, (this.rows + 1) * edgeCount);
+    this.next();
+  }
+
+  private next(): void {
     this.rows++;
     if (this.rows === this.blockSize || this.blockStart + this.rows === this.end) {
-      transposeBlock(this.block, this.rows, edgeCount, this.out, this.subjectCount, this.blockStart);
+      transposeBlock(this.block, this.rows, this.pairs.edgeCount, this.out, this.subjectCount, this.blockStart);
       this.blockStart += this.rows;
       this.rows = 0;
     }

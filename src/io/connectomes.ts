@@ -1,12 +1,12 @@
 import { isAbsolute, resolve } from "node:path";
-import { InputError, type InputLocation } from "../errors.js";
+import { InputError, inputErrors, isInputError, type InputLocation } from "../errors.js";
 import { edgePairs } from "../edges/edgeIndex.js";
-import { sha256Text } from "../output/provenance.js";
 import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
 import { parseMatrixBytes } from "./matrixText.js";
-import { loadBlocksInParallel, worthTwoThreads } from "./matrixBlocks.js";
+import { loadBlocksInOrder, loadBlocksInParallel, worthTwoThreads } from "./matrixBlocks.js";
+import { loadSubject } from "./matrixProblems.js";
 import { cOrderMatrices, readExactly, stackMatrixLabel } from "./npyMatrixBlocks.js";
-import { digestHex, sharedDigests, sizeMismatch } from "./textMatrixBlocks.js";
+import { digestHex, sharedDigests, type TextBlockJob } from "./textMatrixBlocks.js";
 import { npyDataOffset, npyValueReader, parseNpyHeader, type NpyHeader } from "./npy.js";
 import { PARTICIPANT_ID } from "./participants.js";
 import { InputFile, TextFileReader } from "./readInputFile.js";
@@ -128,59 +128,73 @@ function loadFromTemplate(
   if (subjects.length === 0) {
     throw new InputError("no participants to load connectivity matrices for", { key: CONNECTOMES_KEY });
   }
-  const hintFor = (subject: ConnectomeSubject): string =>
-    `connectivity matrix of participant '${subject.id}' (from the template '${template}')`;
-  // One byte buffer and, while the size stays the same, one matrix's arrays serve every file:
-  // the writer has copied a matrix's edges before the next file is read.
-  const reader = new TextFileReader();
-  const firstFile = resolveTemplate(template, subjects[0], baseDir);
-  const firstBytes = reader.readBytes(firstFile, hintFor(subjects[0]));
-  let matrix = parseMatrixBytes(firstBytes, firstFile, { allowNonFiniteDiagonal: true });
-  requireTwoRegions(matrix.size, { file: firstFile, line: matrix.rowLines[0] });
-  const pairs = edgePairs(matrix.size);
+  const hints = subjects.map((subject) => `connectivity matrix of participant '${subject.id}' (from the template '${template}')`);
+  const files = resolveAll(template, subjects, baseDir);
+  const reference = referenceMatrix(files, hints);
+  const pairs = edgePairs(reference.size);
   const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
-  const loaded = { regionCount: pairs.regionCount, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data };
+  const digests = sharedDigests(subjects.length);
+  const job: TextBlockJob = {
+    kind: "text",
+    subjectCount: subjects.length,
+    files,
+    hints,
+    regionCount: pairs.regionCount,
+    firstFile: reference.file,
+    data,
+    options,
+    digests,
+  };
   // Many files: two threads read blocks of subjects (matrixBlocks.ts), with the same values and errors.
-  const files = worthTwoThreads(subjects.length, firstBytes.length) ? resolveAllOrUndefined(template, subjects, baseDir) : undefined;
-  if (files) {
-    const digests = sharedDigests(subjects.length);
-    loadBlocksInParallel({
-      kind: "text",
-      subjectCount: subjects.length,
-      files,
-      hints: subjects.map(hintFor),
-      regionCount: pairs.regionCount,
-      firstFile,
-      data,
-      options,
-      digests,
-    });
-    return { ...loaded, files, sha256: files.map((_, s) => digestHex(digests, s)) };
-  }
-  const sha256 = [sha256Text(firstBytes)];
-  const writer = new EdgeMajorWriter(pairs, data, subjects.length);
-  writer.add(matrix.values, 0, options, { file: firstFile, rowLines: matrix.rowLines });
-  const read = [firstFile];
-  for (let s = 1; s < subjects.length; s++) {
-    const subject = subjects[s];
-    const file = resolveTemplate(template, subject, baseDir);
-    const bytes = reader.readBytes(file, hintFor(subject));
-    sha256.push(sha256Text(bytes));
-    matrix = parseMatrixBytes(bytes, file, { allowNonFiniteDiagonal: true }, matrix);
-    if (matrix.size !== pairs.regionCount) throw sizeMismatch(file, matrix.size, firstFile, pairs.regionCount, matrix.rowLines[0]);
-    writer.add(matrix.values, 0, options, { file, rowLines: matrix.rowLines });
-    read.push(file);
-  }
-  return { ...loaded, files: read, sha256 };
+  if (worthTwoThreads(subjects.length, reference.bytes)) loadBlocksInParallel(job);
+  else loadBlocksInOrder(job);
+  return {
+    regionCount: pairs.regionCount,
+    edgeCount: pairs.edgeCount,
+    subjectCount: subjects.length,
+    data,
+    files,
+    sha256: files.map((_, s) => digestHex(digests, s)),
+  };
 }
 
-/** Every subject's file, or undefined when a template cannot be filled (the one-thread loader then meets that error in order). */
-function resolveAllOrUndefined(template: string, subjects: ConnectomeSubject[], baseDir: string): string[] | undefined {
-  try {
-    return subjects.map((subject) => resolveTemplate(template, subject, baseDir));
-  } catch {
-    return undefined;
+/** Every subject's file from the template; the problems of all subjects in one error (each distinct one once). */
+function resolveAll(template: string, subjects: ConnectomeSubject[], baseDir: string): string[] {
+  const problems = new Map<string, InputError>();
+  const files = subjects.map((subject) => {
+    try {
+      return resolveTemplate(template, subject, baseDir);
+    } catch (error) {
+      if (!isInputError(error)) throw error;
+      if (!problems.has(error.format())) problems.set(error.format(), error);
+      return "";
+    }
+  });
+  const error = inputErrors([...problems.values()]);
+  if (error) throw error;
+  return files;
+}
+
+/**
+ * The matrix every other must match in size: the first file, in subject order,
+ * that reads as a matrix of at least 2 regions. When none does, every file's
+ * problem is raised at once.
+ */
+function referenceMatrix(files: string[], hints: string[]): { file: string; size: number; bytes: number } {
+  const reader = new TextFileReader();
+  const problems: InputError[] = [];
+  for (let s = 0; s < files.length; s++) {
+    try {
+      const bytes = reader.readBytes(files[s], hints[s]);
+      const matrix = parseMatrixBytes(bytes, files[s], { allowNonFiniteDiagonal: true });
+      requireTwoRegions(matrix.size, { file: files[s], line: matrix.rowLines[0] });
+      return { file: files[s], size: matrix.size, bytes: bytes.length };
+    } catch (error) {
+      if (!isInputError(error)) throw error;
+      problems.push(error);
+    }
   }
+  throw inputErrors(problems)!;
 }
 
 const STACK_HINT = "the .npy stack of connectivity matrices";
@@ -239,9 +253,14 @@ function loadFromStack(file: string, subjects: ConnectomeSubject[], options: Con
     } else {
       const writer = new EdgeMajorWriter(pairs, data, subjects.length);
       const matrixOf = header.fortranOrder ? fortranOrderMatrices(input, header) : cOrderMatrices(input, header);
+      const problems: InputError[] = [];
       for (const subject of subjects) {
-        writer.add(matrixOf(subject.tableRow), 0, options, { file, label: stackMatrixLabel(subject.tableRow, subject.id) });
+        loadSubject(writer, problems, () =>
+          writer.add(matrixOf(subject.tableRow), 0, options, { file, label: stackMatrixLabel(subject.tableRow, subject.id) }),
+        );
       }
+      const error = inputErrors(problems);
+      if (error) throw error;
     }
     return { regionCount: n, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data, files: [file] };
   } finally {

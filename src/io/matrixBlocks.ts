@@ -1,5 +1,5 @@
 import { MessageChannel, Worker, receiveMessageOnPort, type MessagePort } from "node:worker_threads";
-import { InputError, isInputError, type InputLocation } from "../errors.js";
+import { InputError, inputErrors, isInputError, type InputLocation } from "../errors.js";
 import { availableThreads, workerScript } from "../parallel/workerPool.js";
 import { SUBJECT_BLOCK_SIZE } from "./connectomeEdges.js";
 import { npyBlockLoader, type NpyBlockJob } from "./npyMatrixBlocks.js";
@@ -14,25 +14,33 @@ import { textBlockLoader, type TextBlockJob } from "./textMatrixBlocks.js";
  * npyMatrixBlocks.ts) and write its subjects' columns of the shared edge-major
  * array (disjoint columns, so no locking). The calling thread waits for the
  * worker with Atomics.wait, so loading stays synchronous. The values are those
- * of the one-thread loader, and so is any error: each block stops at its first
- * bad matrix, and the error of the lowest failing block is the one raised,
- * which is the error the one-thread loader meets first.
+ * of the one-thread loader (loadBlocksInOrder), and so is any error: each block
+ * goes on past a bad matrix and reports every one, and the problems of all
+ * blocks are raised together in subject order (block by block), whichever
+ * thread loaded which block.
  */
 export type BlockJob = TextBlockJob | NpyBlockJob;
 
 /** Loads blocks of one job on one thread (holding its reader and buffers between blocks). */
 export interface BlockLoader {
-  /** Reads and writes the subjects of `block`, in order; throws the first error. */
-  load(block: number): void;
+  /**
+   * Reads and writes the subjects of `block`, in order, and returns the problem
+   * with each bad matrix (in subject order); throws a problem that stops the
+   * whole block (e.g. a stack that cannot be opened) or a bug.
+   */
+  load(block: number): InputError[];
   close(): void;
 }
 
-/** The worker's report of a block it could not load. */
+/** The worker's report of a block it could not load: the problems with its matrices, or a bug. */
 export interface BlockFailure {
   block: number;
-  input?: { message: string; location: InputLocation; hint?: string };
+  inputs?: { message: string; location: InputLocation; hint?: string }[];
   internal?: string;
 }
+
+/** What went wrong in one block: the located problems with its matrices, or an error that is a bug. */
+type Failure = InputError[] | Error;
 
 /** Tuning, read by connectomes.ts (tests lower the size to exercise two threads on small inputs). */
 export const parallelLoading = {
@@ -56,7 +64,7 @@ function blockLoaderFor(job: BlockJob): BlockLoader {
 }
 
 /** Takes blocks from the shared counter until none is left; failures go to `fail`. */
-function takeBlocks(job: BlockJob, control: Int32Array, fail: (block: number, error: unknown) => void): void {
+function takeBlocks(job: BlockJob, control: Int32Array, fail: (block: number, failure: Failure) => void): void {
   const blocks = blockCount(job.subjectCount);
   const loader = blockLoaderFor(job);
   try {
@@ -70,13 +78,17 @@ function takeBlocks(job: BlockJob, control: Int32Array, fail: (block: number, er
   }
 }
 
-function finishBlock(control: Int32Array, block: number, load: () => void, fail: (block: number, error: unknown) => void): void {
+function finishBlock(control: Int32Array, block: number, load: () => InputError[], fail: (block: number, failure: Failure) => void): void {
   let status = DONE;
   try {
-    load();
+    const problems = load();
+    if (problems.length > 0) {
+      status = FAILED;
+      fail(block, problems);
+    }
   } catch (error) {
     status = FAILED;
-    fail(block, error);
+    fail(block, isInputError(error) ? [error] : error instanceof Error ? error : new Error(String(error)));
   }
   Atomics.store(control, STATUS + block, status);
   Atomics.add(control, FINISHED, 1);
@@ -88,12 +100,38 @@ export function worthTwoThreads(subjects: number, bytesPerSubject: number): bool
   return availableThreads() >= 2 && subjects >= 2 * SUBJECT_BLOCK_SIZE && subjects * bytesPerSubject >= parallelLoading.minimumBytes;
 }
 
-/** Loads every subject of the job on this thread and one worker thread; throws the lowest failing block's error. */
+/** Loads every subject of the job on this thread alone, block after block; throws every problem found (failureOf). */
+export function loadBlocksInOrder(job: BlockJob): void {
+  const blocks = blockCount(job.subjectCount);
+  const control = new Int32Array(STATUS + blocks);
+  const failures = new Map<number, Failure>();
+  const loader = blockLoaderFor(job);
+  try {
+    for (let block = 0; block < blocks; block++) finishBlock(control, block, () => loader.load(block), (b, failure) => void failures.set(b, failure));
+  } finally {
+    loader.close();
+  }
+  throwFailures(failures);
+}
+
+/**
+ * The failures of all blocks as one error: a bug (the lowest block's) if there
+ * is one, else every block's problems in block order, so in subject order.
+ */
+function throwFailures(failures: Map<number, Failure>): void {
+  if (failures.size === 0) return;
+  const blocks = [...failures.keys()].sort((a, b) => a - b);
+  const bug = blocks.map((block) => failures.get(block)!).find((failure) => !Array.isArray(failure));
+  if (bug) throw bug;
+  throw inputErrors(blocks.flatMap((block) => failures.get(block) as InputError[]))!;
+}
+
+/** Loads every subject of the job on this thread and one worker thread; throws every problem found, as loadBlocksInOrder does. */
 export function loadBlocksInParallel(job: BlockJob): void {
   const blocks = blockCount(job.subjectCount);
   const control = new Int32Array(new SharedArrayBuffer(4 * (STATUS + blocks)));
-  const failures = new Map<number, unknown>();
-  const fail = (block: number, error: unknown): void => void failures.set(block, error);
+  const failures = new Map<number, Failure>();
+  const fail = (block: number, failure: Failure): void => void failures.set(block, failure);
   const channel = new MessageChannel();
   let worker: Worker | undefined;
   try {
@@ -116,7 +154,7 @@ export function loadBlocksInParallel(job: BlockJob): void {
     channel.port1.close();
     void worker?.terminate();
   }
-  if (failures.size > 0) throw failures.get(Math.min(...failures.keys()));
+  throwFailures(failures);
 }
 
 /**
@@ -124,7 +162,7 @@ export function loadBlocksInParallel(job: BlockJob): void {
  * (a worker that never started or stopped), this thread loads the blocks still
  * unfinished itself: they hold the same values whoever writes them.
  */
-function awaitBlocks(job: BlockJob, control: Int32Array, blocks: number, fail: (block: number, error: unknown) => void): void {
+function awaitBlocks(job: BlockJob, control: Int32Array, blocks: number, fail: (block: number, failure: Failure) => void): void {
   let last = Atomics.load(control, FINISHED);
   let waited = 0;
   while (last < blocks) {
@@ -147,17 +185,17 @@ function awaitBlocks(job: BlockJob, control: Int32Array, blocks: number, fail: (
   }
 }
 
-function failureError(failure: BlockFailure): Error {
-  if (failure.input) return new InputError(failure.input.message, failure.input.location, failure.input.hint);
+function failureError(failure: BlockFailure): Failure {
+  if (failure.inputs) return failure.inputs.map((input) => new InputError(input.message, input.location, input.hint));
   return new Error(`loading connectivity matrices on a worker thread failed: ${failure.internal ?? "unknown error"}`);
 }
 
 /** The worker's side: load blocks, report failures through the port. */
 export function runBlockWorker(job: BlockJob, control: Int32Array, port: MessagePort): void {
-  takeBlocks(job, control, (block, error) => {
-    const failure: BlockFailure = isInputError(error)
-      ? { block, input: { message: error.message, location: error.location, hint: error.hint } }
-      : { block, internal: error instanceof Error ? (error.stack ?? error.message) : String(error) };
-    port.postMessage(failure);
+  takeBlocks(job, control, (block, failure) => {
+    const report: BlockFailure = Array.isArray(failure)
+      ? { block, inputs: failure.map((error) => ({ message: error.message, location: error.location, hint: error.hint })) }
+      : { block, internal: failure.stack ?? failure.message };
+    port.postMessage(report);
   });
 }

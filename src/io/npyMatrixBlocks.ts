@@ -1,4 +1,5 @@
 import { InputError } from "../errors.js";
+import { loadSubject } from "./matrixProblems.js";
 import { edgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, SUBJECT_BLOCK_SIZE, type EdgeExtractionOptions } from "./connectomeEdges.js";
 import type { BlockLoader } from "./matrixBlocks.js";
@@ -70,10 +71,12 @@ export function npyBlockLoader(job: NpyBlockJob): BlockLoader {
       const S = job.subjectCount;
       const { first, end } = blockSubjects(block, S);
       const writer = new EdgeMajorWriter(pairs, job.data, S, SUBJECT_BLOCK_SIZE, first, end);
+      const problems: InputError[] = [];
       for (let s = first; s < end; s++) {
         const row = job.tableRows[s];
-        writer.add(matrixOf(row), 0, job.options, { file: job.file, label: stackMatrixLabel(row, job.ids[s]) });
+        loadSubject(writer, problems, () => writer.add(matrixOf!(row), 0, job.options, { file: job.file, label: stackMatrixLabel(row, job.ids[s]) }));
       }
+      return problems;
     },
     close() {
       input?.close();

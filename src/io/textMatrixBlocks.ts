@@ -1,6 +1,7 @@
 import { Buffer } from "node:buffer";
 import { createHash } from "node:crypto";
 import { InputError } from "../errors.js";
+import { loadSubject } from "./matrixProblems.js";
 import { edgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, SUBJECT_BLOCK_SIZE, type EdgeExtractionOptions } from "./connectomeEdges.js";
 import type { BlockLoader } from "./matrixBlocks.js";
@@ -20,7 +21,7 @@ export interface TextBlockJob {
   files: string[];
   hints: string[];
   regionCount: number;
-  /** The first subject's file, named when another file's size differs. */
+  /** The file whose size every matrix must have (the first that reads), named when another file's size differs. */
   firstFile: string;
   /** The edge-major subjects × edges array, in a SharedArrayBuffer. */
   data: Float64Array;
@@ -58,15 +59,19 @@ export function textBlockLoader(job: TextBlockJob): BlockLoader {
       const S = job.subjectCount;
       const { first, end } = blockSubjects(block, S);
       const writer = new EdgeMajorWriter(pairs, job.data, S, SUBJECT_BLOCK_SIZE, first, end);
+      const problems: InputError[] = [];
       for (let s = first; s < end; s++) {
-        const file = job.files[s];
-        const bytes = reader.readBytes(file, job.hints[s]);
-        if (job.digests) job.digests.set(createHash("sha256").update(bytes).digest(), DIGEST_BYTES * s);
-        const matrix = parseMatrixBytes(bytes, file, { allowNonFiniteDiagonal: true }, reuse);
-        reuse = matrix;
-        if (matrix.size !== job.regionCount) throw sizeMismatch(file, matrix.size, job.firstFile, job.regionCount, matrix.rowLines[0]);
-        writer.add(matrix.values, 0, job.options, { file, rowLines: matrix.rowLines });
+        loadSubject(writer, problems, () => {
+          const file = job.files[s];
+          const bytes = reader.readBytes(file, job.hints[s]);
+          if (job.digests) job.digests.set(createHash("sha256").update(bytes).digest(), DIGEST_BYTES * s);
+          const matrix = parseMatrixBytes(bytes, file, { allowNonFiniteDiagonal: true }, reuse);
+          reuse = matrix;
+          if (matrix.size !== job.regionCount) throw sizeMismatch(file, matrix.size, job.firstFile, job.regionCount, matrix.rowLines[0]);
+          writer.add(matrix.values, 0, job.options, { file, rowLines: matrix.rowLines });
+        });
       }
+      return problems;
     },
     close() {},
   };

@@ -1,7 +1,7 @@
 // Loading text matrices or a .npy stack on two threads (src/io/matrixBlocks.ts,
 // textMatrixBlocks.ts, npyMatrixBlocks.ts) must give what the one-thread loader gives (itself checked cell by cell against hand-made
 // matrices in connectomes.test.ts): the same edge-major values bit for bit, and
-// on bad input the same first error (message, file, line, column).
+// on bad input the same error (every bad matrix, in subject order: message, file, line, column).
 import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -106,6 +106,38 @@ describe("two-thread text loading", () => {
       expect(errorOf(() => load(subjects, name, "worker"))).toBe(expected);
     });
   }
+
+  it("lists every bad matrix, in subject order, whatever thread loads which block (3 bad of 70, in three blocks)", () => {
+    const subjects = cohort("three-bad", (s, rows) => {
+      if (s === 2) rows[1][7] = "1.5";
+      if (s === 37) return "";
+      if (s === 66) rows[4][1] = "abc";
+      return undefined;
+    });
+    const expected = errorOf(() => load(subjects, "three-bad", "one"));
+    const lines = expected.split("\n").filter((line) => !line.startsWith("  "));
+    expect(lines).toHaveLength(4);
+    expect(lines[0]).toMatch(/sub-002\.tsv:2:8: matrix is not symmetric/);
+    expect(lines[1]).toMatch(/sub-037\.tsv: .*no such file/);
+    expect(lines[2]).toMatch(/sub-066\.tsv:5:2: .*abc/);
+    expect(lines[3]).toBe("(3 problems in all)");
+    expect(errorOf(() => load(subjects, "three-bad", "two"))).toBe(expected);
+    expect(errorOf(() => load(subjects, "three-bad", "worker"))).toBe(expected);
+  });
+
+  it("beyond 20 problems lists the first 20 in subject order and counts the rest, whatever the threads", () => {
+    const subjects = cohort("many-bad", (s, rows) => {
+      if (s % 3 === 0) rows[0][1] = "nan";
+      return undefined;
+    });
+    const expected = errorOf(() => load(subjects, "many-bad", "one"));
+    const lines = expected.split("\n");
+    expect(lines).toHaveLength(21);
+    lines.slice(0, 20).forEach((line, k) => expect(line).toContain(`sub-${String(3 * k).padStart(3, "0")}.tsv:1:2: `));
+    expect(lines[20]).toBe("… and 4 more (24 problems in all)");
+    expect(errorOf(() => load(subjects, "many-bad", "two"))).toBe(expected);
+    expect(errorOf(() => load(subjects, "many-bad", "worker"))).toBe(expected);
+  });
 });
 
 describe("two-thread .npy stack loading", () => {
@@ -153,6 +185,10 @@ describe("two-thread .npy stack loading", () => {
     });
     const expected = errorOf(() => loadStack(file, subjects, "one"));
     expect(expected).toMatch(/matrix (13|41) of the stack/);
+    // Both bad matrices are reported (if the participants selection took both rows), in subject order.
+    const taken = [12, 40].filter((row) => subjects.some((subject) => subject.tableRow === row));
+    for (const row of taken) expect(expected).toContain(`matrix ${row + 1} of the stack`);
+    if (taken.length === 2) expect(expected).toContain("(2 problems in all)");
     expect(errorOf(() => loadStack(file, subjects, "two"))).toBe(expected);
     expect(errorOf(() => loadStack(file, subjects, "worker"))).toBe(expected);
   });
