@@ -6,7 +6,7 @@ import type { NullChunk } from "../permute/nullRange.js";
 import { parseNullTable } from "../output/nullTable.js";
 import { hashInputs, sha256Text } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
-import { SHARD_MANIFEST, type ShardManifest } from "../output/shardManifest.js";
+import { SHARD_MANIFEST, type ShardFile, type ShardManifest } from "../output/shardManifest.js";
 import { fitAll, observeContrast } from "./analyzeContrasts.js";
 import { setupNull, type ContrastNull } from "./permutationInference.js";
 import { prepareAnalysis } from "./prepareAnalysis.js";
@@ -23,6 +23,18 @@ function readManifest(folder: string): ShardManifest {
   } catch (error) {
     throw new InputError(`the shard manifest is not valid JSON: ${(error as Error).message}`, { file });
   }
+}
+
+/** A `files` entry of shard.json: a relative `/`-separated path that stays inside the folder, and a hex SHA-256. */
+function isShardFile(entry: unknown): entry is ShardFile {
+  if (typeof entry !== "object" || entry === null) return false;
+  const { path: relative, sha256 } = entry as Record<string, unknown>;
+  return (
+    typeof relative === "string" &&
+    typeof sha256 === "string" &&
+    /^[0-9a-f]{64}$/.test(sha256) &&
+    relative.split("/").every((part) => part !== "" && part !== "." && part !== ".." && !part.includes("\\"))
+  );
 }
 
 /**
@@ -42,7 +54,11 @@ function verifyShardFiles(shards: { folder: string; manifest: ShardManifest }[],
       );
       continue;
     }
-    for (const listed of manifest.files) {
+    for (const [k, listed] of (manifest.files as unknown[]).entries()) {
+      if (!isShardFile(listed)) {
+        problems.push(new InputError(`${SHARD_MANIFEST} of ${which}: files[${k}] is not a file inside the shard folder with its SHA-256`, { file: path.join(folder, SHARD_MANIFEST) }));
+        continue;
+      }
       const file = path.join(folder, ...listed.path.split("/"));
       const name = path.basename(listed.path);
       if (!existsSync(file)) {

@@ -78,6 +78,22 @@ describe("shard checksums", () => {
     expect(existsSync(out)).toBe(false);
   });
 
+  it("a shard.json without checksums (or with a path leaving the folder) is refused, naming the shard", async () => {
+    const old = copyOf(2, "no-sums-2");
+    const manifestFile = path.join(old, "shard.json");
+    const manifest = JSON.parse(readFileSync(manifestFile, "utf8"));
+    delete manifest.files;
+    writeFileSync(manifestFile, JSON.stringify(manifest));
+    const escaping = copyOf(3, "escaping-3");
+    const other = JSON.parse(readFileSync(path.join(escaping, "shard.json"), "utf8"));
+    other.files[0].path = "../shard-1/up/null.tsv";
+    writeFileSync(path.join(escaping, "shard.json"), JSON.stringify(other));
+    const result = await runCli(["merge", shard(1), old, escaping, "--out", path.join(root, "merged-no-sums")]);
+    expect(result.code).toBe(2);
+    expect(result.stderr).toContain(`${manifestFile}: shard.json of shard 2/3 lists no SHA-256 of its files`);
+    expect(result.stderr).toContain(`${path.join(escaping, "shard.json")}: shard.json of shard 3/3: files[0] is not a file inside the shard folder`);
+  });
+
   it("two damaged shards are both reported in one error", async () => {
     const one = copyOf(1, "damaged-1");
     const three = copyOf(3, "damaged-3");
