@@ -1,5 +1,6 @@
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, renameSync, rmSync, rmdirSync, statSync, writeFileSync } from "node:fs";
-import { basename, dirname, join, resolve } from "node:path";
+import { createHash } from "node:crypto";
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, renameSync, rmSync, rmdirSync, statSync, writeFileSync } from "node:fs";
+import { basename, dirname, join, relative, resolve, sep } from "node:path";
 import { InputError } from "../errors.js";
 import { encodeNpy } from "../io/npy.js";
 import type { SimulatedCohort } from "./simulateCohort.js";
@@ -10,15 +11,18 @@ export interface WriteCohortOptions {
   /** Write planted.tsv (region_a, region_b labels) when the cohort has a planted effect. */
   plantedFile: boolean;
   /**
-   * Replace the cohort files of an existing, non-empty folder. Only the files a
-   * cohort consists of are removed (participants.tsv, regions.tsv, planted.tsv,
-   * connectomes.npy and connectomes/*.tsv); anything else there is kept.
+   * Replace a cohort that plexus simulated earlier into an existing folder.
+   * Only files listed in its record (cohort.json) and unchanged since are
+   * removed; anything else there is kept, and a file the new cohort would
+   * overwrite that plexus did not write (or that was edited) is refused.
    */
   force?: boolean;
 }
 
-const COHORT_FILES = ["participants.tsv", "regions.tsv", "planted.tsv", "connectomes.npy"] as const;
 const CONNECTOME_FOLDER = "connectomes";
+/** The record of the files a simulated cohort consists of, with their SHA-256, written beside them. */
+export const COHORT_RECORD = "cohort.json";
+const WRITTEN_BY = "plexus simulate";
 
 function tsvText(header: readonly string[] | null, rows: readonly (readonly string[])[]): string {
   const lines = header ? [header.join("\t")] : [];
@@ -63,18 +67,71 @@ function writeCohortFiles(folder: string, cohort: SimulatedCohort, options: Writ
     const rows = cohort.plantedEdges.map(([i, j]) => [cohort.regions[i].label, cohort.regions[j].label]);
     writeFileSync(join(folder, "planted.tsv"), tsvText(["region_a", "region_b"], rows));
   }
+  const files: Record<string, string> = {};
+  for (const name of filesUnder(folder)) files[name] = sha256Of(join(folder, name));
+  writeFileSync(join(folder, COHORT_RECORD), `${JSON.stringify({ written_by: WRITTEN_BY, files }, null, 2)}\n`);
 }
 
-/** Removes the files an earlier cohort left in `folder`, and nothing else. */
-function removeCohortFiles(folder: string): void {
-  for (const name of COHORT_FILES) rmSync(join(folder, name), { force: true });
-  const connectomes = join(folder, CONNECTOME_FOLDER);
-  if (existsSync(connectomes) && statSync(connectomes).isDirectory()) {
-    for (const name of readdirSync(connectomes)) {
-      if (name.endsWith(".tsv")) rmSync(join(connectomes, name), { force: true });
+/** Relative paths ('/'-separated) of the files under `folder`, sorted. */
+function filesUnder(folder: string): string[] {
+  const names: string[] = [];
+  const walk = (dir: string) => {
+    for (const entry of readdirSync(dir, { withFileTypes: true })) {
+      const full = join(dir, entry.name);
+      if (entry.isDirectory()) walk(full);
+      else names.push(relative(folder, full).split(sep).join("/"));
     }
-    if (readdirSync(connectomes).length === 0) rmdirSync(connectomes);
+  };
+  walk(folder);
+  return names.sort();
+}
+
+function sha256Of(file: string): string {
+  return createHash("sha256").update(readFileSync(file)).digest("hex");
+}
+
+/** The files of an earlier simulated cohort in `folder`, from its record; empty when there is none or it is not plexus's. */
+function recordedFiles(folder: string): Map<string, string> {
+  try {
+    const record = JSON.parse(readFileSync(join(folder, COHORT_RECORD), "utf8")) as { written_by?: unknown; files?: unknown };
+    if (record.written_by !== WRITTEN_BY || typeof record.files !== "object" || record.files === null) return new Map();
+    return new Map(Object.entries(record.files as Record<string, unknown>).filter((e): e is [string, string] => typeof e[1] === "string"));
+  } catch {
+    return new Map();
   }
+}
+
+/**
+ * The files of `folder` that writing the cohort in `staging` would replace, when
+ * any of them is not an unchanged file of an earlier simulated cohort: refused.
+ */
+function refuseForeignFiles(folder: string, staging: string, dir: string): void {
+  const recorded = recordedFiles(folder);
+  const foreign: string[] = [];
+  for (const name of filesUnder(staging)) {
+    const target = join(folder, name);
+    if (!existsSync(target)) continue;
+    if (name === COHORT_RECORD ? recorded.size === 0 : recorded.get(name) !== sha256Of(target)) foreign.push(name);
+  }
+  if (foreign.length > 0) {
+    throw new InputError(
+      `the folder holds ${foreign.length} file${foreign.length > 1 ? "s" : ""} that plexus simulate did not write or that were changed since (${foreign.slice(0, 5).join(", ")}${foreign.length > 5 ? ", …" : ""}); --force replaces only an unchanged simulated cohort`,
+      { file: dir },
+      "choose a new folder; nothing was changed",
+    );
+  }
+}
+
+/** Removes the unchanged files an earlier simulated cohort left in `folder` (from its record), and nothing else. */
+function removeCohortFiles(folder: string): void {
+  const recorded = recordedFiles(folder);
+  for (const [name, hash] of recorded) {
+    const file = join(folder, name);
+    if (existsSync(file) && statSync(file).isFile() && sha256Of(file) === hash) rmSync(file);
+  }
+  if (recorded.size > 0) rmSync(join(folder, COHORT_RECORD), { force: true });
+  const connectomes = join(folder, CONNECTOME_FOLDER);
+  if (existsSync(connectomes) && statSync(connectomes).isDirectory() && readdirSync(connectomes).length === 0) rmdirSync(connectomes);
 }
 
 /** Moves every entry of `from` into `to` (merging into an existing connectomes/ folder), then removes `from`. */
@@ -97,7 +154,8 @@ function moveEntries(from: string, to: string): void {
  * z hemisphere system), the connectomes, and planted.tsv when there is an
  * effect. Files are written into a temporary sibling folder first and renamed
  * into place, so a failed run leaves no half-written cohort. Refuses an
- * existing non-empty folder unless `force`.
+ * existing non-empty folder unless `force`, and with `force` replaces only the
+ * unchanged files of an earlier simulated cohort (cohort.json lists them).
  */
 export function writeCohort(dir: string, cohort: SimulatedCohort, options: WriteCohortOptions): void {
   const target = resolve(dir);
@@ -126,6 +184,7 @@ export function writeCohort(dir: string, cohort: SimulatedCohort, options: Write
       rmdirSync(target);
       renameSync(staging, target);
     } else {
+      refuseForeignFiles(target, staging, dir);
       removeCohortFiles(target);
       moveEntries(staging, target);
     }

@@ -52,7 +52,7 @@ describe("demo-cohort/", () => {
       force: false,
     });
     const expected = treeDigest(out);
-    expect(Object.keys(expected)).toHaveLength(63);
+    expect(Object.keys(expected)).toHaveLength(64); // 60 matrices, participants, regions, planted, cohort.json
     expect(treeDigest(DEMO)).toEqual(expected);
   });
 

@@ -62,7 +62,7 @@ describe("plexus simulate", () => {
     );
     expect(sink.stderr).toBe("");
     expect(code).toBe(0);
-    expect(readdirSync(out).sort()).toEqual(["connectomes.npy", "participants.tsv", "regions.tsv"]);
+    expect(readdirSync(out).sort()).toEqual(["cohort.json", "connectomes.npy", "participants.tsv", "regions.tsv"]);
     expect(readFileSync(join(out, "participants.tsv"), "utf8").split("\n")[0]).toBe("participant_id\tgroup");
   });
 

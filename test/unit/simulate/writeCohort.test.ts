@@ -53,7 +53,7 @@ describe("writeCohort", () => {
     writeCohort(out, cohort, { format: "tsv", plantedFile: true });
 
     expect(readdirSync(root)).toEqual(["cohort"]);
-    expect(readdirSync(out).sort()).toEqual(["connectomes", "participants.tsv", "planted.tsv", "regions.tsv"]);
+    expect(readdirSync(out).sort()).toEqual(["cohort.json", "connectomes", "participants.tsv", "planted.tsv", "regions.tsv"]);
     expect(readdirSync(join(out, "connectomes")).sort()).toEqual(
       ["sub-001", "sub-002", "sub-003", "sub-004", "sub-005"].map((id) => `${id}.tsv`),
     );
@@ -95,7 +95,7 @@ describe("writeCohort", () => {
     const out = join(scratchDir(), "npy");
     const cohort = simulateCohort(OPTIONS, simulationRandom(2));
     writeCohort(out, cohort, { format: "npy", plantedFile: true });
-    expect(readdirSync(out).sort()).toEqual(["connectomes.npy", "participants.tsv", "planted.tsv", "regions.tsv"]);
+    expect(readdirSync(out).sort()).toEqual(["cohort.json", "connectomes.npy", "participants.tsv", "planted.tsv", "regions.tsv"]);
     const bytes = readFileSync(join(out, "connectomes.npy"));
     // Magic string and version byte from the NPY format description (NumPy documentation, numpy.lib.format).
     expect(Array.from(bytes.subarray(0, 6))).toEqual([0x93, 0x4e, 0x55, 0x4d, 0x50, 0x59]);
@@ -168,7 +168,7 @@ describe("writeCohort", () => {
     writeFileSync(join(out, "README.md"), "about this cohort");
     const smaller = simulateCohort({ ...OPTIONS, effect: null }, simulationRandom(5));
     writeCohort(out, smaller, { format: "tsv", plantedFile: true, force: true });
-    expect(readdirSync(out).sort()).toEqual(["README.md", "connectomes", "participants.tsv", "regions.tsv"]);
+    expect(readdirSync(out).sort()).toEqual(["README.md", "cohort.json", "connectomes", "participants.tsv", "regions.tsv"]);
     expect(readdirSync(join(out, "connectomes"))).toHaveLength(5);
     expect(readFileSync(join(out, "README.md"), "utf8")).toBe("about this cohort");
 
@@ -178,6 +178,34 @@ describe("writeCohort", () => {
     expect(replaced).toEqual(treeDigest(fresh));
 
     writeCohort(out, smaller, { format: "npy", plantedFile: true, force: true });
-    expect(readdirSync(out).sort()).toEqual(["README.md", "connectomes.npy", "participants.tsv", "regions.tsv"]);
+    expect(readdirSync(out).sort()).toEqual(["README.md", "cohort.json", "connectomes.npy", "participants.tsv", "regions.tsv"]);
+  });
+
+  it("with force, refuses a folder holding a user's own cohort files and changes nothing there", () => {
+    const out = join(scratchDir(), "users-study");
+    mkdirSync(join(out, "connectomes"), { recursive: true });
+    writeFileSync(join(out, "participants.tsv"), "participant_id\tgroup\nreal-01\tpatient\n");
+    writeFileSync(join(out, "connectomes", "real-01.tsv"), "1\t0.5\n0.5\t1\n");
+    const before = treeDigest(out);
+    let caught: unknown;
+    try {
+      writeCohort(out, simulateCohort(OPTIONS, simulationRandom(2)), { format: "tsv", plantedFile: true, force: true });
+    } catch (error) {
+      caught = error;
+    }
+    expect(caught).toBeInstanceOf(InputError);
+    expect((caught as InputError).format()).toContain("participants.tsv");
+    expect(treeDigest(out)).toEqual(before);
+  });
+
+  it("with force, refuses to overwrite a simulated file the user has edited since", () => {
+    const out = join(scratchDir(), "edited");
+    writeCohort(out, simulateCohort(OPTIONS, simulationRandom(1)), { format: "tsv", plantedFile: true });
+    writeFileSync(join(out, "participants.tsv"), `${readFileSync(join(out, "participants.tsv"), "utf8")}# my notes\n`);
+    const before = treeDigest(out);
+    expect(() =>
+      writeCohort(out, simulateCohort(OPTIONS, simulationRandom(3)), { format: "tsv", plantedFile: true, force: true }),
+    ).toThrow(/did not write or that were changed since \(participants\.tsv\)/);
+    expect(treeDigest(out)).toEqual(before);
   });
 });
