@@ -34,14 +34,20 @@ export class OutputLock {
     const file = OutputLock.fileFor(output);
     const holder: LockHolder = { tool: "plexus", pid: process.pid, host: os.hostname(), started: new Date().toISOString() };
     const temporary = `${file}.${process.pid}-${Date.now().toString(36)}`;
-    writeFileSync(temporary, `${JSON.stringify(holder)}\n`);
+    const cannotLock = (error: unknown) =>
+      new InputError(`cannot create the lock file ${file} (${(error as NodeJS.ErrnoException).code ?? (error as Error).message})`, { file: output }, "the folder holding the output must be writable");
+    try {
+      writeFileSync(temporary, `${JSON.stringify(holder)}\n`);
+    } catch (error) {
+      throw cannotLock(error);
+    }
     try {
       for (let attempt = 0; ; attempt++) {
         try {
           linkSync(temporary, file);
           return new OutputLock(file);
         } catch (error) {
-          if ((error as NodeJS.ErrnoException).code !== "EEXIST") throw error;
+          if ((error as NodeJS.ErrnoException).code !== "EEXIST") throw cannotLock(error);
         }
         const held = readHolder(file);
         if (attempt === 0 && held && held.host === os.hostname() && !processAlive(held.pid)) {

@@ -204,7 +204,7 @@ describe("--force replaces only a folder plexus wrote, holding nothing else", ()
 });
 
 describe("contrast names that collide with what plexus writes, or are no portable folder name, are refused at check", () => {
-  const names = ["figures", "tables", "summary.json", "Report.html", "plexus-files.json", "shard.json", "con", "a."];
+  const names = ["figures", "tables", "summary.json", "Report.html", "plexus-files.json", "shard.json", "con", "a.", "a/b", "..", ".hidden"];
   it.each(names)("'%s'", async (name) => {
     const lines = [...DESIGN];
     lines[7] = `  ${name}: group[patient] - group[control]`;
