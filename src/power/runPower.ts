@@ -115,16 +115,16 @@ export async function runPower(
   progress: Progress = silentProgress,
   warn: (text: string) => void = () => {},
 ): Promise<PowerResult> {
-  let opened: ResultsFolder | undefined;
+  const opened: { folder?: ResultsFolder } = {};
   const regionsFile = options.regionsFile ? [path.resolve(options.regionsFile)] : [];
   // The output is checked (inputs, lock, --force rule) before a pilot's matrices are read.
   const open = (inputs: GuardedInputs) => {
-    opened = ResultsFolder.open(options.out, { force: options.force ?? false, inputs: { files: [...inputs.files, ...regionsFile], folders: inputs.folders }, warn });
+    opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs: { files: [...inputs.files, ...regionsFile], folders: inputs.folders }, warn });
   };
   try {
     if (!options.pilotDesign) open({ files: [], folders: [] });
     const { plan, pilotNote } = planPower(options, open);
-    const folder = opened as ResultsFolder | undefined;
+    const folder = opened.folder;
     if (!folder) throw new Error("the output folder was not opened before the matrices were read");
     const threads = options.threads ?? availableThreads();
     const chunk = Math.max(1, Math.min(25, Math.ceil(options.cohorts / (4 * threads))));
@@ -194,7 +194,7 @@ export async function runPower(
     folder.commit();
     return { estimates, sampleSize, outputFolder: folder.target };
   } catch (error) {
-    (opened as ResultsFolder | undefined)?.abandon();
+    opened.folder?.abandon();
     throw error;
   }
 }

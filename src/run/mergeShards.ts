@@ -68,19 +68,19 @@ export function mergeShards(
       file: manifests[0].folder,
     });
   }
-  let opened: ResultsFolder | undefined;
+  const opened: { folder?: ResultsFolder } = {};
   try {
     // The output is checked (inputs and shards, lock, --force rule) before any matrix is read.
     const prepared = prepareAnalysis(first.design, {
       beforeMatrices: (_design, inputs) => {
-        opened = ResultsFolder.open(options.out, {
+        opened.folder = ResultsFolder.open(options.out, {
           force: options.force ?? false,
           inputs: { files: inputs.files, folders: [...inputs.folders, ...shardFolders] },
           warn: log.warn,
         });
       },
     });
-    const folder = opened as ResultsFolder | undefined;
+    const folder = opened.folder;
     if (!folder) throw new Error("the output folder was not opened before the matrices were read");
     const inputs = hashInputs(prepared.inputs);
     if (runFingerprint(prepared, inputs) !== first.fingerprint) {
@@ -122,7 +122,7 @@ export function mergeShards(
     if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);
     return folder.target;
   } catch (error) {
-    (opened as ResultsFolder | undefined)?.abandon();
+    opened.folder?.abandon();
     throw error;
   }
 }

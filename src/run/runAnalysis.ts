@@ -102,14 +102,14 @@ export function runFingerprint(prepared: PreparedAnalysis, inputs: InputRecord[]
 
 /** Runs a design end to end and writes the results (or one shard) folder atomically. */
 export async function runAnalysis(options: RunOptions, log: RunLog, progress: Progress = silentProgress): Promise<RunResult> {
-  let folder: ResultsFolder | undefined;
+  const opened: { folder?: ResultsFolder } = {};
   let checkpoint: Checkpoint | undefined;
   let removeInterruptNote: (() => void) | undefined;
   try {
     // The output is checked (inputs, lock, --force rule, checkpoint) before any matrix is read.
     const prepared = prepareAnalysis(options.designFile, {
       beforeMatrices: (design, inputs) => {
-        folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs, warn: log.warn });
+        opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs, warn: log.warn });
         if (design.inference.method !== "fdr" && !options.shard && !options.resume && !options.force) refuseUnfinishedCheckpoint(options.out);
       },
     });
@@ -123,7 +123,7 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
     }
     const chunkSize = options.chunkSize ?? DEFAULT_CHUNK_SIZE;
     const threads = options.threads ?? defaultThreads();
-    const output = folder as ResultsFolder | undefined;
+    const output = opened.folder;
     if (!output) throw new Error("the output folder was not opened before the matrices were read");
     const inputs = hashInputs(prepared.inputs);
     const fingerprint = runFingerprint(prepared, inputs);
@@ -180,7 +180,7 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
     // A checkpoint with no finished permutation holds nothing worth resuming: it goes with the failed run.
     if (checkpoint && !checkpoint.hasChunks()) checkpoint.remove();
     removeInterruptNote?.();
-    (folder as ResultsFolder | undefined)?.abandon();
+    opened.folder?.abandon();
     throw error;
   }
 }

@@ -41,15 +41,15 @@ export const STRENGTH_CHUNK_SIZE = 250;
 
 export async function runStrength(options: StrengthOptions, log: StrengthLog, progress: Progress = silentProgress): Promise<StrengthResult> {
   const measure = resolveMeasure(options);
-  let opened: ResultsFolder | undefined;
+  const opened: { folder?: ResultsFolder } = {};
   try {
     // The output is checked (inputs, lock, --force rule) before any matrix is read.
     const prepared = prepareAnalysis(options.designFile, {
       beforeMatrices: (_design, inputs) => {
-        opened = ResultsFolder.open(options.out, { force: options.force ?? false, inputs: withSelectionInputs(inputs, options.selection), warn: log.warn });
+        opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs: withSelectionInputs(inputs, options.selection), warn: log.warn });
       },
     });
-    const folder = opened as ResultsFolder | undefined;
+    const folder = opened.folder;
     if (!folder) throw new Error("the output folder was not opened before the matrices were read");
     refuseFContrasts(prepared);
     const warnings = [...prepared.warnings];
@@ -99,7 +99,7 @@ export async function runStrength(options: StrengthOptions, log: StrengthLog, pr
     }
     return { prepared, analysis, outputFolder: folder.target, warnings, overlap: source?.overlap };
   } catch (error) {
-    (opened as ResultsFolder | undefined)?.abandon();
+    opened.folder?.abandon();
     throw error;
   }
 }
