@@ -1,50 +1,68 @@
-import { existsSync, mkdirSync, readdirSync, renameSync, rmSync, writeFileSync } from "node:fs";
+import { existsSync, lstatSync, mkdirSync, readdirSync, renameSync, rmSync, statSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import { InputError } from "../errors.js";
+import { refuseInputOverlap, type GuardedInputs } from "./inputOverlap.js";
+import { onInterrupt } from "./interruptCleanup.js";
+import { OutputLock, processAlive } from "./outputLock.js";
+import { describeForeign, foreignContents, readRecord, recordText, sha256Of, WRITTEN_RECORD } from "./writtenRecord.js";
+
+export interface OpenOptions {
+  force: boolean;
+  /** What the command reads: the folder may not be, hold or lie inside any of it. */
+  inputs?: GuardedInputs;
+  /** Where a warning goes (a stale lock taken over). */
+  warn?: (text: string) => void;
+}
 
 /**
  * A results folder written all at once: files go into a temporary sibling
  * folder and only a complete set is renamed into place, so a failure at any
  * point (including a full disk) leaves any earlier results exactly as they were.
+ * The folder's lock is held from `open` to `commit` or `abandon`; Ctrl-C or
+ * SIGTERM in between removes the temporary folder and the lock.
  */
 export class ResultsFolder {
-  readonly target: string;
-  readonly staging: string;
   private finished = false;
+  private readonly written = new Map<string, string>();
 
-  private constructor(target: string, staging: string) {
-    this.target = target;
-    this.staging = staging;
-  }
+  private constructor(
+    readonly target: string,
+    readonly staging: string,
+    private readonly lock: OutputLock,
+    private readonly forget: () => void,
+  ) {}
 
-  /** Refuses an existing non-empty target unless `force`; creates the staging folder. */
-  static open(target: string, options: { force: boolean; optionName?: string }): ResultsFolder {
+  /**
+   * Checks the target before anything is computed: not an input and not among
+   * them; locked by no other process; absent, empty, or (with `force`) a
+   * folder plexus wrote that holds nothing else. Then takes the lock and
+   * creates the staging folder.
+   */
+  static open(target: string, options: OpenOptions): ResultsFolder {
     const resolved = path.resolve(target);
-    if (existsSync(resolved)) {
-      let entries: string[];
-      try {
-        entries = readdirSync(resolved);
-      } catch {
-        throw new InputError(`the output path exists and is not a folder`, { file: target });
-      }
-      if (entries.length > 0 && !options.force) {
-        throw new InputError(
-          "the output folder exists and is not empty",
-          { file: target },
-          `choose another folder, or add ${options.optionName ?? "--force"} to replace it`,
-        );
-      }
-    }
+    if (options.inputs) refuseInputOverlap(target, options.inputs);
     const parent = path.dirname(resolved);
     try {
       mkdirSync(parent, { recursive: true });
     } catch (error) {
       throw new InputError(`cannot create the folder ${parent}: ${(error as Error).message}`, { file: target });
     }
-    removeAbandonedStaging(parent, path.basename(resolved));
-    const staging = path.join(parent, `.${path.basename(resolved)}.plexus-tmp-${process.pid}-${Date.now().toString(36)}`);
-    mkdirSync(staging, { recursive: true });
-    return new ResultsFolder(resolved, staging);
+    const lock = OutputLock.acquire(resolved, options.warn);
+    try {
+      refuseUnreplaceable(target, resolved, options.force);
+      removeAbandonedStaging(parent, path.basename(resolved));
+      const staging = path.join(parent, `.${path.basename(resolved)}.plexus-tmp-${process.pid}-${Date.now().toString(36)}`);
+      mkdirSync(staging, { recursive: true });
+      const forget = onInterrupt(() => {
+        rmSync(staging, { recursive: true, force: true });
+        lock.release();
+        return `nothing was written to ${target}`;
+      });
+      return new ResultsFolder(resolved, staging, lock, forget);
+    } catch (error) {
+      lock.release();
+      throw error;
+    }
   }
 
   /** Path inside the staging folder for a relative name; refuses names that leave the folder. */
@@ -70,11 +88,13 @@ export class ResultsFolder {
         "nothing was changed in the output folder; free space or choose another folder, then run again (add --resume to reuse the finished permutations)",
       );
     }
+    this.written.set(path.relative(this.staging, full).split(path.sep).join("/"), sha256Of(content));
   }
 
-  /** Moves the complete results into place, replacing an earlier folder only now. */
+  /** Writes the record of the files written, then moves the complete results into place, replacing an earlier folder only now. */
   commit(): void {
     if (this.finished) return;
+    this.write(WRITTEN_RECORD, recordText(this.written));
     const old = `${this.staging}-old`;
     const hadTarget = existsSync(this.target);
     if (hadTarget) renameSync(this.target, old);
@@ -85,14 +105,68 @@ export class ResultsFolder {
       throw error;
     }
     if (hadTarget) rmSync(old, { recursive: true, force: true });
-    this.finished = true;
+    this.finish();
   }
 
   /** Removes the staging folder after a failure; the target is untouched. */
   abandon(): void {
     if (this.finished) return;
     rmSync(this.staging, { recursive: true, force: true });
+    this.finish();
+  }
+
+  private finish(): void {
     this.finished = true;
+    this.forget();
+    this.lock.release();
+  }
+}
+
+/**
+ * The rule for an existing target: an empty folder is used as it is; any
+ * other folder only with `force`, and only when plexus wrote it (its record
+ * names plexus) and it holds nothing else, unchanged.
+ */
+function refuseUnreplaceable(target: string, resolved: string, force: boolean): void {
+  if (!existsSync(resolved) && !isLink(resolved)) return;
+  let entries: string[];
+  try {
+    if (!statSync(resolved).isDirectory()) throw new Error("not a folder");
+    entries = readdirSync(resolved);
+  } catch {
+    throw new InputError("the output path exists and is not a folder", { file: target }, "choose a folder name; plexus never replaces a file with a folder");
+  }
+  if (entries.length === 0) return;
+  if (!force) {
+    throw new InputError(
+      "the output folder exists and is not empty",
+      { file: target },
+      "choose another folder, or add --force to replace it (only a folder plexus wrote can be replaced)",
+    );
+  }
+  const record = readRecord(resolved);
+  if (!record) {
+    throw new InputError(
+      `--force replaces only a folder plexus wrote, and this one has no ${WRITTEN_RECORD} (it holds ${entries.length} entr${entries.length === 1 ? "y" : "ies"}, e.g. ${entries.sort()[0]})`,
+      { file: target },
+      "choose another folder, or move its contents away yourself",
+    );
+  }
+  const foreign = foreignContents(resolved, record);
+  if (foreign.unknown.length > 0 || foreign.changed.length > 0) {
+    throw new InputError(
+      `--force replaces only a folder plexus wrote that holds nothing else, and this one holds ${describeForeign(foreign)}`,
+      { file: target },
+      "move those files out of the folder (or choose another folder), then run again",
+    );
+  }
+}
+
+function isLink(file: string): boolean {
+  try {
+    return lstatSync(file).isSymbolicLink();
+  } catch {
+    return false;
   }
 }
 
@@ -110,14 +184,5 @@ function removeAbandonedStaging(parent: string, base: string): void {
     const pid = Number(name.slice(prefix.length).split("-")[0]);
     if (!Number.isInteger(pid) || pid === process.pid || processAlive(pid)) continue;
     rmSync(path.join(parent, name), { recursive: true, force: true });
-  }
-}
-
-function processAlive(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch (error) {
-    return (error as NodeJS.ErrnoException).code === "EPERM";
   }
 }

@@ -36,25 +36,48 @@ export class Checkpoint {
     return new Checkpoint(folder, fingerprint);
   }
 
-  /** Opens an earlier checkpoint for --resume; refuses one made for other inputs or options. */
+  /** True when the checkpoint of this output holds at least one finished chunk. */
+  static holdsChunks(outputFolder: string): boolean {
+    const folder = Checkpoint.folderFor(outputFolder);
+    try {
+      return readdirSync(folder).some(isChunkFile);
+    } catch {
+      return false;
+    }
+  }
+
+  /**
+   * Opens an earlier checkpoint for --resume; refuses one made for other
+   * inputs or options (or damaged) when it holds finished chunks, and
+   * replaces it when it holds none (nothing would be lost).
+   */
   static resume(outputFolder: string, fingerprint: string): Checkpoint {
     const folder = Checkpoint.folderFor(outputFolder);
     const manifestPath = path.join(folder, "manifest.json");
-    if (!existsSync(manifestPath)) return Checkpoint.create(outputFolder, fingerprint);
+    if (!existsSync(manifestPath) || !Checkpoint.holdsChunks(outputFolder)) return Checkpoint.create(outputFolder, fingerprint);
     let recorded: unknown;
     try {
       recorded = JSON.parse(readFileSync(manifestPath, "utf8")).fingerprint;
     } catch {
-      throw new InputError("the checkpoint's manifest is damaged", { file: manifestPath }, `delete ${folder} and run again without --resume`);
+      throw new InputError("the checkpoint's manifest is damaged", { file: manifestPath }, START_OVER);
     }
     if (recorded !== fingerprint) {
       throw new InputError(
         "the checkpoint was made for a different design, inputs, seed or options",
         { file: manifestPath },
-        `run without --resume to start over (the checkpoint will be replaced), or restore the original inputs`,
+        `${START_OVER}, or restore the original inputs and options`,
       );
     }
     return new Checkpoint(folder, fingerprint);
+  }
+
+  /** True when at least one chunk has been saved. */
+  hasChunks(): boolean {
+    try {
+      return readdirSync(this.folder).some(isChunkFile);
+    } catch {
+      return false;
+    }
   }
 
   private chunkPath(contrast: string, from: number, to: number): string {
@@ -110,7 +133,7 @@ export class Checkpoint {
         throw new InputError(
           `a checkpoint chunk is damaged (${(error as Error).message})`,
           { file },
-          "run without --resume to start over",
+          START_OVER,
         );
       }
       out.set(chunk.from, chunk);
@@ -121,6 +144,14 @@ export class Checkpoint {
   remove(): void {
     rmSync(this.folder, { recursive: true, force: true });
   }
+}
+
+/** The advice when a checkpoint cannot be resumed: the one way to start over, which never sends the user back here. */
+const START_OVER = "run without --resume and with --force to start over (the checkpoint is replaced)";
+
+/** `<contrast>.<from>-<to>.json`, as `save` names a chunk. */
+function isChunkFile(name: string): boolean {
+  return /\.\d+-\d+\.json$/.test(name);
 }
 
 function sha256(text: string): string {

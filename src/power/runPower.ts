@@ -7,6 +7,7 @@ import { silentProgress } from "../cli/progress.js";
 import { readRegions, type Region } from "../io/regions.js";
 import { fitEdges } from "../edges/fitEdges.js";
 import { runOnWorkers, workerScript, availableThreads } from "../parallel/workerPool.js";
+import type { GuardedInputs } from "../output/inputOverlap.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
 import { formatTsv } from "../output/tsvWriter.js";
 import { prepareAnalysis } from "../run/prepareAnalysis.js";
@@ -37,13 +38,16 @@ export interface PowerOptions {
 }
 
 /** Builds the plan: regions, the planted subnetwork and (with a pilot) unit-variance residual vectors. */
-export function planPower(options: PowerOptions): { plan: PowerPlan; regions: Region[] | null; pilotNote: string | null } {
+export function planPower(
+  options: PowerOptions,
+  beforeMatrices?: (inputs: GuardedInputs) => void,
+): { plan: PowerPlan; regions: Region[] | null; pilotNote: string | null } {
   let regions: Region[] | null = null;
   let regionCount = options.regions ?? 0;
   let pilot: PowerPlan["pilot"] = null;
   let pilotNote: string | null = null;
   if (options.pilotDesign) {
-    const prepared = prepareAnalysis(options.pilotDesign);
+    const prepared = prepareAnalysis(options.pilotDesign, { beforeMatrices: (_design, inputs) => beforeMatrices?.(inputs) });
     const { matrix, connectomes } = prepared;
     const S = matrix.rows;
     const E = connectomes.edgeCount;
@@ -106,10 +110,22 @@ export interface PowerResult {
   outputFolder: string;
 }
 
-export async function runPower(options: PowerOptions, progress: Progress = silentProgress): Promise<PowerResult> {
-  const { plan, pilotNote } = planPower(options);
-  const folder = ResultsFolder.open(options.out, { force: options.force ?? false });
+export async function runPower(
+  options: PowerOptions,
+  progress: Progress = silentProgress,
+  warn: (text: string) => void = () => {},
+): Promise<PowerResult> {
+  const opened: { folder?: ResultsFolder } = {};
+  const regionsFile = options.regionsFile ? [path.resolve(options.regionsFile)] : [];
+  // The output is checked (inputs, lock, --force rule) before a pilot's matrices are read.
+  const open = (inputs: GuardedInputs) => {
+    opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs: { files: [...inputs.files, ...regionsFile], folders: inputs.folders }, warn });
+  };
   try {
+    if (!options.pilotDesign) open({ files: [], folders: [] });
+    const { plan, pilotNote } = planPower(options, open);
+    const folder = opened.folder;
+    if (!folder) throw new Error("the output folder was not opened before the matrices were read");
     const threads = options.threads ?? availableThreads();
     const chunk = Math.max(1, Math.min(25, Math.ceil(options.cohorts / (4 * threads))));
     const estimates: PowerEstimate[] = [];
@@ -178,7 +194,7 @@ export async function runPower(options: PowerOptions, progress: Progress = silen
     folder.commit();
     return { estimates, sampleSize, outputFolder: folder.target };
   } catch (error) {
-    folder.abandon();
+    opened.folder?.abandon();
     throw error;
   }
 }

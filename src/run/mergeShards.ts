@@ -126,20 +126,31 @@ export function mergeShards(
     [...byIndex.keys()].sort((a, b) => a - b).map((k) => byIndex.get(k)!),
     first.shard.count,
   );
-  const prepared = prepareAnalysis(first.design);
-  const inputs = hashInputs(prepared.inputs);
-  if (runFingerprint(prepared, inputs) !== first.fingerprint) {
-    const changed = first.inputs.filter((recorded) => !inputs.some((now) => now.path === recorded.path && now.sha256 === recorded.sha256));
-    throw new InputError(
-      changed.length > 0
-        ? `the inputs changed since the shards ran: ${changed.map((c) => c.path).join(", ")}`
-        : "the design file's options changed since the shards ran",
-      { file: first.design },
-    );
-  }
-  for (const warning of prepared.warnings) log.warn(warning);
-  const folder = ResultsFolder.open(options.out, { force: options.force ?? false });
+  const opened: { folder?: ResultsFolder } = {};
   try {
+    // The output is checked (inputs and shards, lock, --force rule) before any matrix is read.
+    const prepared = prepareAnalysis(first.design, {
+      beforeMatrices: (_design, inputs) => {
+        opened.folder = ResultsFolder.open(options.out, {
+          force: options.force ?? false,
+          inputs: { files: inputs.files, folders: [...inputs.folders, ...shardFolders] },
+          warn: log.warn,
+        });
+      },
+    });
+    const folder = opened.folder;
+    if (!folder) throw new Error("the output folder was not opened before the matrices were read");
+    const inputs = hashInputs(prepared.inputs);
+    if (runFingerprint(prepared, inputs) !== first.fingerprint) {
+      const changed = first.inputs.filter((recorded) => !inputs.some((now) => now.path === recorded.path && now.sha256 === recorded.sha256));
+      throw new InputError(
+        changed.length > 0
+          ? `the inputs changed since the shards ran: ${changed.map((c) => c.path).join(", ")}`
+          : "the design file's options changed since the shards ran",
+        { file: first.design },
+      );
+    }
+    for (const warning of prepared.warnings) log.warn(warning);
     const fit = fitAll(prepared);
     const contrasts = prepared.contrasts.map((contrast) => observeContrast(prepared, fit, contrast));
     const nulls: ContrastNull[] = contrasts.map((observed, index) => {
@@ -167,10 +178,10 @@ export function mergeShards(
     writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
     writeReport(folder.staging, (relative, content) => folder.write(relative, content));
     folder.commit();
+    if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);
+    return folder.target;
   } catch (error) {
-    folder.abandon();
+    opened.folder?.abandon();
     throw error;
   }
-  if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);
-  return folder.target;
 }

@@ -1,6 +1,6 @@
 import path from "node:path";
 import { InputError } from "../errors.js";
-import { loadConnectomes, type ConnectomeSource, type LoadedConnectomes } from "../io/connectomes.js";
+import { loadConnectomes, resolveTemplate, type ConnectomeSource, type ConnectomeSubject, type LoadedConnectomes } from "../io/connectomes.js";
 import { designKeyLocation, readDesign, type DesignSpec } from "../io/designFile.js";
 import { nearestName } from "../io/nearestName.js";
 import { readParticipants, type ParticipantsTable } from "../io/participants.js";
@@ -10,6 +10,8 @@ import { parseContrast, type Contrast } from "../model/contrast.js";
 import { buildDesignMatrix, type DesignMatrix } from "../model/designMatrix.js";
 import { formulaVariables, parseFormula, type Formula } from "../model/formula.js";
 import { codeVariable, type Variable } from "../model/variables.js";
+import type { GuardedInputs } from "../output/inputOverlap.js";
+import { contrastFolderProblem } from "../output/reservedNames.js";
 
 export interface ExcludedSubject {
   id: string;
@@ -56,14 +58,33 @@ export function connectomeSource(design: DesignSpec): ConnectomeSource {
   );
 }
 
-/** Reads and validates every input of a design file, in the order a user would fix them. */
-export function prepareAnalysis(designFile: string): PreparedAnalysis {
-  const design = readDesign(designFile);
-  return prepareFromDesign(design);
+export interface PrepareHooks {
+  /**
+   * Called once the design and the participants table are read and checked,
+   * before any matrix is read, with every input the run will read (the output
+   * is checked against them here, so that a wrong --out fails at once).
+   */
+  beforeMatrices?: (design: DesignSpec, inputs: GuardedInputs) => void;
 }
 
-export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
+/** Reads and validates every input of a design file, in the order a user would fix them. */
+export function prepareAnalysis(designFile: string, hooks: PrepareHooks = {}): PreparedAnalysis {
+  const design = readDesign(designFile);
+  return prepareFromDesign(design, hooks);
+}
+
+export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}): PreparedAnalysis {
   const where = (key: string) => designKeyLocation(design, key);
+  for (const spec of design.contrasts) {
+    const problem = contrastFolderProblem(spec.name);
+    if (problem) {
+      throw new InputError(
+        `contrast name '${spec.name}' cannot be the folder of its results: ${problem}`,
+        { file: design.file, key: spec.key, line: spec.line },
+        "rename the contrast",
+      );
+    }
+  }
   const formula = parseFormula(design.model, where("model"));
   const { inference } = design;
   if (inference.method !== "fdr" && 1 / (inference.permutations + 1) > inference.alpha) {
@@ -176,13 +197,16 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
   }
 
   const source = connectomeSource(design);
+  const subjectOfRow = (row: number): ConnectomeSubject => ({
+    id: participants.ids[row],
+    tableRow: row,
+    values: Object.fromEntries(participants.header.map((name) => [name, participants.columns.get(name)![row]])),
+  });
+  const regionsPath = design.regions ? path.resolve(design.baseDir, design.regions) : undefined;
+  hooks.beforeMatrices?.(design, plannedInputs(design, source, participantsPath, regionsPath, participants.ids.map((_, row) => subjectOfRow(row))));
   const connectomes = loadConnectomes(
     source,
-    kept.map((k) => ({
-      id: k.id,
-      tableRow: k.tableRow,
-      values: Object.fromEntries(participants.header.map((name) => [name, participants.columns.get(name)![k.tableRow]])),
-    })),
+    kept.map((k) => subjectOfRow(k.tableRow)),
     {
       symmetrize: design.symmetrize,
       asymmetryTolerance: design.asymmetryTolerance,
@@ -193,14 +217,12 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
   if (connectomes.regionCount < 2) {
     throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
   }
-  const regions = design.regions
-    ? readRegions(path.resolve(design.baseDir, design.regions), connectomes.regionCount)
-    : defaultRegions(connectomes.regionCount);
+  const regions = regionsPath ? readRegions(regionsPath, connectomes.regionCount) : defaultRegions(connectomes.regionCount);
 
   const inputs = [
     { role: "design", path: path.resolve(design.file) },
     { role: "participants", path: participantsPath },
-    ...(design.regions ? [{ role: "regions", path: path.resolve(design.baseDir, design.regions) }] : []),
+    ...(regionsPath ? [{ role: "regions", path: regionsPath }] : []),
     ...connectomes.files.map((file, k) => ({ role: "connectome", path: file, ...(connectomes.sha256 ? { sha256: connectomes.sha256[k] } : {}) })),
   ];
   return {
@@ -218,4 +240,36 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
     inputs,
     warnings,
   };
+}
+
+/**
+ * Every file a design reads, without reading a matrix: the design, the
+ * tables, and each participant's matrix (the template filled for every row
+ * of the participants table, left-out subjects included) or the .npy stack;
+ * the folders holding per-participant matrices are input folders.
+ */
+function plannedInputs(
+  design: DesignSpec,
+  source: ConnectomeSource,
+  participantsPath: string,
+  regionsPath: string | undefined,
+  subjects: ConnectomeSubject[],
+): GuardedInputs {
+  const files = [path.resolve(design.file), participantsPath, ...(regionsPath ? [regionsPath] : [])];
+  const folders = new Set<string>();
+  if (source.kind === "npy") {
+    files.push(source.path);
+  } else {
+    for (const subject of subjects) {
+      let file: string;
+      try {
+        file = resolveTemplate(source.template, subject, source.baseDir);
+      } catch {
+        continue; // a row the template cannot fill (e.g. n/a): the loader reports it if that subject is used
+      }
+      files.push(file);
+      folders.add(path.dirname(file));
+    }
+  }
+  return { files, folders: [...folders] };
 }

@@ -8,6 +8,7 @@ import { Checkpoint } from "../permute/checkpoint.js";
 import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs, sha256Text, type InputRecord } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
+import { onInterrupt } from "../output/interruptCleanup.js";
 import { relabelingSummary, smallestPossibleP } from "../output/relabelingSummary.js";
 import { formatTsv, type Cell } from "../output/tsvWriter.js";
 import { nullTable } from "../output/nullTable.js";
@@ -101,34 +102,34 @@ export function runFingerprint(prepared: PreparedAnalysis, inputs: InputRecord[]
 
 /** Runs a design end to end and writes the results (or one shard) folder atomically. */
 export async function runAnalysis(options: RunOptions, log: RunLog, progress: Progress = silentProgress): Promise<RunResult> {
-  const prepared = prepareAnalysis(options.designFile);
-  for (const warning of prepared.warnings) log.warn(warning);
-  const permutations = needsPermutations(prepared);
-  if (options.shard && !permutations) {
-    throw new InputError("--shard splits the permutations, but this design's method (fdr) draws none", {
-      file: prepared.design.file,
-      key: "inference.method",
-    });
-  }
-  const chunkSize = options.chunkSize ?? DEFAULT_CHUNK_SIZE;
-  const threads = options.threads ?? defaultThreads();
-  const folder = ResultsFolder.open(options.out, { force: options.force ?? false });
+  const opened: { folder?: ResultsFolder } = {};
   let checkpoint: Checkpoint | undefined;
+  let removeInterruptNote: (() => void) | undefined;
   try {
+    // The output is checked (inputs, lock, --force rule, checkpoint) before any matrix is read.
+    const prepared = prepareAnalysis(options.designFile, {
+      beforeMatrices: (design, inputs) => {
+        opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs, warn: log.warn });
+        if (design.inference.method !== "fdr" && !options.shard && !options.resume && !options.force) refuseUnfinishedCheckpoint(options.out);
+      },
+    });
+    for (const warning of prepared.warnings) log.warn(warning);
+    const permutations = needsPermutations(prepared);
+    if (options.shard && !permutations) {
+      throw new InputError("--shard splits the permutations, but this design's method (fdr) draws none", {
+        file: prepared.design.file,
+        key: "inference.method",
+      });
+    }
+    const chunkSize = options.chunkSize ?? DEFAULT_CHUNK_SIZE;
+    const threads = options.threads ?? defaultThreads();
+    const output = opened.folder;
+    if (!output) throw new Error("the output folder was not opened before the matrices were read");
     const inputs = hashInputs(prepared.inputs);
     const fingerprint = runFingerprint(prepared, inputs);
     if (permutations && !options.shard) {
-      if (options.resume) {
-        checkpoint = Checkpoint.resume(options.out, fingerprint);
-      } else if (Checkpoint.exists(options.out) && !options.force) {
-        throw new InputError(
-          "an interrupted run left a checkpoint for this output folder",
-          { file: Checkpoint.folderFor(options.out) },
-          "add --resume to continue it, or --force to start over",
-        );
-      } else {
-        checkpoint = Checkpoint.create(options.out, fingerprint);
-      }
+      checkpoint = options.resume ? Checkpoint.resume(options.out, fingerprint) : Checkpoint.create(options.out, fingerprint);
+      removeInterruptNote = onInterrupt(() => (checkpoint?.hasChunks() ? "the finished permutations are kept: add --resume to continue" : undefined));
     }
     const fit = fitAll(prepared);
     const contrasts = prepared.contrasts.map((contrast) => observeContrast(prepared, fit, contrast));
@@ -154,16 +155,17 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
     }
     if (permutations) prepared.connectomes.data = new Float64Array(0);
     if (options.shard) {
-      writeShard(folder, prepared, contrasts, nulls, inputs, fingerprint, options);
+      writeShard(output, prepared, contrasts, nulls, inputs, fingerprint, options);
     } else {
-      const written = writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
-      writeReport(folder.staging, (relative, content) => folder.write(relative, content), {}, written);
+      const written = writeResults(output, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
+      writeReport(output.staging, (relative, content) => output.write(relative, content), {}, written);
     }
-    folder.commit();
+    output.commit();
     checkpoint?.remove();
+    removeInterruptNote?.();
     if (!options.quiet) {
       if (!options.shard) for (const line of resultLines(prepared, contrasts, nulls)) log.info(line);
-      log.info(`${options.shard ? "shard" : "results"} written to ${folder.target}`);
+      log.info(`${options.shard ? "shard" : "results"} written to ${output.target}`);
     }
     for (const observed of contrasts) {
       const degenerate = observed.statistics.degenerate;
@@ -173,11 +175,28 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
         );
       }
     }
-    return { prepared, contrasts, nulls, outputFolder: folder.target, inputs };
+    return { prepared, contrasts, nulls, outputFolder: output.target, inputs };
   } catch (error) {
-    folder.abandon();
+    // A checkpoint with no finished permutation holds nothing worth resuming: it goes with the failed run.
+    if (checkpoint && !checkpoint.hasChunks()) checkpoint.remove();
+    removeInterruptNote?.();
+    opened.folder?.abandon();
     throw error;
   }
+}
+
+/**
+ * Without --resume or --force, a checkpoint holding finished permutations is
+ * not thrown away silently; one holding none (left by a run that failed
+ * early) is simply replaced.
+ */
+function refuseUnfinishedCheckpoint(out: string): void {
+  if (!Checkpoint.exists(out) || !Checkpoint.holdsChunks(out)) return;
+  throw new InputError(
+    "an interrupted run left a checkpoint for this output folder",
+    { file: Checkpoint.folderFor(out) },
+    "add --resume to continue it, or --force to start over",
+  );
 }
 
 function resultLines(prepared: PreparedAnalysis, contrasts: ObservedContrast[], nulls: (ContrastNull | undefined)[]): string[] {

@@ -1,15 +1,14 @@
-import { existsSync, renameSync, rmSync, statSync, writeFileSync } from "node:fs";
-import path from "node:path";
 import { InputError } from "../errors.js";
 import { formulaVariables } from "../model/formula.js";
 import { hashInputs } from "../output/provenance.js";
+import { checkResultFile, writeResultFile } from "../output/resultFile.js";
 import { prepareAnalysis, type PreparedAnalysis } from "../run/prepareAnalysis.js";
 import type { EdgeSet } from "./edgeSets.js";
 import { edgeSetMean } from "./measures.js";
 import { circularityWarning, sampleOverlap, type SampleOverlap } from "./sampleOverlap.js";
 import { selectEdgeSets } from "./selectEdgeSets.js";
 import { hasEdgeSet, OPTION, type EdgeSelection } from "./strengthOptions.js";
-import type { StrengthLog } from "./runStrength.js";
+import { withSelectionInputs, type StrengthLog } from "./runStrength.js";
 import { valuesTable } from "./strengthTables.js";
 
 /**
@@ -40,34 +39,6 @@ export interface ExtractResult {
   warnings: string[];
 }
 
-function checkOutputFile(out: string, force: boolean): string {
-  const target = path.resolve(out);
-  if (existsSync(target)) {
-    if (statSync(target).isDirectory()) throw new InputError("the output path is a folder; give a file name such as values.tsv", { key: OPTION.out });
-    if (!force) throw new InputError(`the output file ${out} exists`, { key: OPTION.out }, "choose another name, or add --force to replace it");
-  } else if (!existsSync(path.dirname(target))) {
-    throw new InputError(`the folder of the output file does not exist: ${path.dirname(target)}`, { key: OPTION.out });
-  }
-  return target;
-}
-
-/** Writes `content` to a temporary sibling of `target`, then renames it into place. */
-function writeAtomically(target: string, content: string): void {
-  const temporary = path.join(path.dirname(target), `.${path.basename(target)}.plexus-tmp-${process.pid}-${Date.now().toString(36)}`);
-  try {
-    writeFileSync(temporary, content);
-    renameSync(temporary, target);
-  } catch (error) {
-    rmSync(temporary, { force: true });
-    const code = (error as NodeJS.ErrnoException).code;
-    throw new InputError(
-      `cannot write the values (${code ?? (error as Error).message})${code === "ENOSPC" ? ": the disk is full" : ""}`,
-      { file: target },
-      "nothing was changed at that path",
-    );
-  }
-}
-
 export function runExtract(options: ExtractOptions, log: StrengthLog): ExtractResult {
   const { selection } = options;
   if (!hasEdgeSet(selection)) {
@@ -80,8 +51,13 @@ export function runExtract(options: ExtractOptions, log: StrengthLog): ExtractRe
   if ((selection.components?.length ?? 0) > 0 && !selection.from) {
     throw new InputError("--component picks components of the results folder given with --from", { key: OPTION.component }, "add --from RESULTS_DIR/<contrast>");
   }
-  const target = checkOutputFile(options.out, options.force ?? false);
-  const prepared = prepareAnalysis(options.designFile);
+  let target = "";
+  // The output is checked (not an input, not among them, the --force rule) before any matrix is read.
+  const prepared = prepareAnalysis(options.designFile, {
+    beforeMatrices: (_design, inputs) => {
+      target = checkResultFile(options.out, { force: options.force ?? false, inputs: withSelectionInputs(inputs, selection), key: OPTION.out });
+    },
+  });
   const warnings = [...prepared.warnings];
   for (const warning of prepared.warnings) log.warn(warning);
   const selected = selectEdgeSets(selection, prepared.regions, prepared.pairs);
@@ -105,7 +81,7 @@ export function runExtract(options: ExtractOptions, log: StrengthLog): ExtractRe
     const column = prepared.participants.columns.get(name)!;
     return { name, cells: prepared.kept.map((k) => column[k.tableRow]) };
   });
-  writeAtomically(target, valuesTable(ids, cells, selected.sets.map((s) => s.name), values));
+  writeResultFile(target, valuesTable(ids, cells, selected.sets.map((s) => s.name), values));
   if (!options.quiet) {
     for (const set of selected.sets) log.info(`${set.name}: ${set.description}, ${set.edges.length} edges`);
     log.info(`mean connectivity of ${selected.sets.length} edge set(s) for ${S} participants written to ${target}`);

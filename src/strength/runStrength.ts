@@ -1,7 +1,10 @@
+import { existsSync } from "node:fs";
+import path from "node:path";
 import { silentProgress, type Progress } from "../cli/progress.js";
 import { InputError } from "../errors.js";
 import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs } from "../output/provenance.js";
+import type { GuardedInputs } from "../output/inputOverlap.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
 import { pValue } from "../report/printNumbers.js";
 import { prepareAnalysis, type PreparedAnalysis } from "../run/prepareAnalysis.js";
@@ -9,7 +12,7 @@ import { circularityWarning, sampleOverlap, type SampleOverlap } from "./sampleO
 import { selectEdgeSets } from "./selectEdgeSets.js";
 import { analyzeStrength, type StrengthAnalysis } from "./strengthAnalysis.js";
 import { strengthMarkdown } from "./strengthMarkdown.js";
-import { resolveMeasure, type StrengthOptions } from "./strengthOptions.js";
+import { resolveMeasure, type EdgeSelection, type StrengthOptions } from "./strengthOptions.js";
 import { strengthSummary } from "./strengthSummary.js";
 import type { SubnetworkSource } from "./subnetworksFromResults.js";
 import { measuresTable, nodesTable, valuesTable } from "./strengthTables.js";
@@ -38,13 +41,20 @@ export const STRENGTH_CHUNK_SIZE = 250;
 
 export async function runStrength(options: StrengthOptions, log: StrengthLog, progress: Progress = silentProgress): Promise<StrengthResult> {
   const measure = resolveMeasure(options);
-  const prepared = prepareAnalysis(options.designFile);
-  refuseFContrasts(prepared);
-  const warnings = [...prepared.warnings];
-  for (const warning of prepared.warnings) log.warn(warning);
-  const selected = measure === "subnetwork" ? selectEdgeSets(options.selection ?? {}, prepared.regions, prepared.pairs) : undefined;
-  const folder = ResultsFolder.open(options.out, { force: options.force ?? false });
+  const opened: { folder?: ResultsFolder } = {};
   try {
+    // The output is checked (inputs, lock, --force rule) before any matrix is read.
+    const prepared = prepareAnalysis(options.designFile, {
+      beforeMatrices: (_design, inputs) => {
+        opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs: withSelectionInputs(inputs, options.selection), warn: log.warn });
+      },
+    });
+    const folder = opened.folder;
+    if (!folder) throw new Error("the output folder was not opened before the matrices were read");
+    refuseFContrasts(prepared);
+    const warnings = [...prepared.warnings];
+    for (const warning of prepared.warnings) log.warn(warning);
+    const selected = measure === "subnetwork" ? selectEdgeSets(options.selection ?? {}, prepared.regions, prepared.pairs) : undefined;
     const inputs = hashInputs([...prepared.inputs, ...(selected?.files ?? [])]);
     let source: { subnetworks: SubnetworkSource; overlap: SampleOverlap } | undefined;
     if (selected?.source) {
@@ -89,9 +99,26 @@ export async function runStrength(options: StrengthOptions, log: StrengthLog, pr
     }
     return { prepared, analysis, outputFolder: folder.target, warnings, overlap: source?.overlap };
   } catch (error) {
-    folder.abandon();
+    opened.folder?.abandon();
     throw error;
   }
+}
+
+/**
+ * A design's inputs plus what an edge selection reads: an edge list, and the
+ * contrast folder given with --from together with the results folder holding
+ * it (the folder above, when it has a summary.json).
+ */
+export function withSelectionInputs(inputs: GuardedInputs, selection: EdgeSelection | undefined): GuardedInputs {
+  const files = [...inputs.files];
+  const folders = [...inputs.folders];
+  if (selection?.pairs) files.push(path.resolve(selection.pairs));
+  if (selection?.from) {
+    const from = path.resolve(selection.from);
+    folders.push(from);
+    if (existsSync(path.join(path.dirname(from), "summary.json"))) folders.push(path.dirname(from));
+  }
+  return { files, folders };
 }
 
 /** The tables report β, SE and t per measure: a one-row (t) contrast each. */

@@ -311,7 +311,7 @@ describe("plexus check and run on bad inputs: exit 2, the place named, no stack 
     await expectUserError(design, path.join(dir, "out"), [new RegExp(`${escape(file)}:3:4`), /'abc'/, /not a number/]);
   });
 
-  it("an existing non-empty --out without --force: exit 2 naming the folder and --force; with --force: exit 0", async () => {
+  it("an existing non-empty --out without --force: exit 2 naming the folder and --force; with --force: exit 0 only for a folder plexus wrote", async () => {
     const { dir, design } = studyFolder("existing-out", DESIGN);
     const out = path.join(dir, "results");
     mkdirSync(out);
@@ -323,9 +323,16 @@ describe("plexus check and run on bad inputs: exit 2, the place named, no stack 
     expect(refused.stderr).not.toContain("    at ");
     expect(readFileSync(path.join(out, "keep.txt"), "utf8")).toBe("earlier results\n");
 
+    // A folder plexus did not write is never replaced, even with --force.
+    const notOurs = await runCli(["run", design, "--out", out, "--threads", "1", "--force", "--quiet"]);
+    expect(notOurs.code, notOurs.stderr).toBe(2);
+    expect(notOurs.stderr).toContain("keep.txt");
+    expect(readFileSync(path.join(out, "keep.txt"), "utf8")).toBe("earlier results\n");
+
+    rmSync(out, { recursive: true });
+    expect((await runCli(["run", design, "--out", out, "--threads", "1", "--quiet"])).code).toBe(0);
     const forced = await runCli(["run", design, "--out", out, "--threads", "1", "--force", "--quiet"]);
     expect(forced.code, forced.stderr).toBe(0);
-    expect(existsSync(path.join(out, "keep.txt"))).toBe(false);
     expect(existsSync(path.join(out, "patient_gt_control", "edges.tsv"))).toBe(true);
   });
 });

@@ -70,7 +70,7 @@ describe("plexus strength", () => {
     const result = await runCli(["strength", design, "--out", out, "--threads", "1"]);
     expect(result.stderr).not.toContain("error");
     expect(result.code).toBe(0);
-    expect(readdirSync(out).sort()).toEqual(["age_down", "patient_gt_control", "results.md", "strength_values.tsv", "summary.json"]);
+    expect(readdirSync(out).sort()).toEqual(["age_down", "patient_gt_control", "plexus-files.json", "results.md", "strength_values.tsv", "summary.json"]);
     const { rows, labels, matrices } = raw();
     const strength = rowSums(matrices);
 

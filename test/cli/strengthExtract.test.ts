@@ -160,7 +160,7 @@ describe("plexus extract", () => {
       });
     }
 
-    it("an existing output file without --force; replaced with --force", async () => {
+    it("an existing output file: refused without --force; with --force replaced only when plexus wrote it, unchanged", async () => {
       const out = path.join(root, "existing.tsv");
       writeFileSync(out, "keep\n");
       const from = path.join(results(), "patient_gt_control");
@@ -168,9 +168,23 @@ describe("plexus extract", () => {
       expect(refused.code).toBe(2);
       expect(refused.stderr).toContain("--out");
       expect(readFileSync(out, "utf8")).toBe("keep\n");
-      const forced = await runCli(["extract", discovery, "--from", from, "--out", out, "-q", "--force"]);
-      expect(forced.code).toBe(0);
-      expect(readFileSync(out, "utf8").startsWith("participant_id\t")).toBe(true);
+      // A file of the user's own is never replaced, even with --force.
+      const notOurs = await runCli(["extract", discovery, "--from", from, "--out", out, "-q", "--force"]);
+      expect(notOurs.code, notOurs.stderr).toBe(2);
+      expect(notOurs.stderr).toContain("not written by plexus");
+      expect(readFileSync(out, "utf8")).toBe("keep\n");
+      // A file plexus wrote is replaced with --force.
+      const ours = path.join(root, "ours.tsv");
+      expect((await runCli(["extract", discovery, "--from", from, "--out", ours, "-q"])).code).toBe(0);
+      const forced = await runCli(["extract", discovery, "--from", from, "--out", ours, "-q", "--force"]);
+      expect(forced.code, forced.stderr).toBe(0);
+      expect(readFileSync(ours, "utf8").startsWith("participant_id\t")).toBe(true);
+      // Once changed by hand, it is the user's: --force refuses it.
+      writeFileSync(ours, `${readFileSync(ours, "utf8")}# my note\n`);
+      const changed = await runCli(["extract", discovery, "--from", from, "--out", ours, "-q", "--force"]);
+      expect(changed.code, changed.stderr).toBe(2);
+      expect(changed.stderr).toContain("changed since plexus wrote it");
+      expect(readFileSync(ours, "utf8")).toContain("# my note");
     });
   });
 });

@@ -75,6 +75,7 @@ export function registerPower(program: Command, sink: OutputSink, argv: () => st
           commandLine: ["plexus", ...argv()],
         },
         quiet ? silentProgress : stderrProgress(sink),
+        (warning) => sink.err(`plexus: warning: ${warning}\n`),
       );
       if (!quiet) {
         for (const [method, n] of Object.entries(result.sampleSize)) {
