@@ -3,6 +3,8 @@ import { InputError } from "../errors.js";
 import { loadConnectomes, type ConnectomeSource, type LoadedConnectomes } from "../io/connectomes.js";
 import { designKeyLocation, readDesign, type DesignSpec } from "../io/designFile.js";
 import { nearestName } from "../io/nearestName.js";
+import { checkModelColumns } from "../io/numericCells.js";
+import { printable } from "../io/printable.js";
 import { readParticipants, type ParticipantsTable } from "../io/participants.js";
 import { defaultRegions, readRegions, type Region } from "../io/regions.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
@@ -74,7 +76,7 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
     );
   }
   const participantsPath = path.resolve(design.baseDir, design.subjects);
-  const participants = readParticipants(participantsPath);
+  const participants = readParticipants(participantsPath, design.missingValues);
   const available = participants.header;
 
   const needed = formulaVariables(formula);
@@ -88,6 +90,7 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
       );
     }
   }
+  checkModelColumns(participants, needed, new Set(Object.keys(design.levels)));
   for (const factor of Object.keys(design.levels)) {
     if (!needed.includes(factor)) {
       throw new InputError(`'levels' names '${factor}', which is not in the model`, where("levels"));
@@ -119,14 +122,14 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
     throw new InputError(
       `no subject has values in every model column (${checked.join(", ")})`,
       { file: participants.file },
-      "check for n/a cells in those columns",
+      `check for missing values (${design.missingValues.map((v) => JSON.stringify(v)).join(", ")}) in those columns`,
     );
   }
   const warnings: string[] = [];
   if (excluded.length > 0) {
     warnings.push(
       `${excluded.length} subject${excluded.length > 1 ? "s" : ""} left out for missing values: ${excluded
-        .map((x) => `${x.id} (${x.reason})`)
+        .map((x) => `${printable(x.id)} (${x.reason})`)
         .join("; ")}`,
     );
   }
@@ -156,6 +159,7 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
   const contrasts = design.contrasts.map((spec) =>
     parseContrast(spec.name, spec.expression, matrix, { file: design.file, key: spec.key, line: spec.line }),
   );
+  for (const contrast of contrasts) if (contrast.note) warnings.push(contrast.note);
   for (const [k, contrast] of contrasts.entries()) {
     if (contrast.kind === "F" && inference.tail !== "upper") {
       const spec = design.contrasts[k];

@@ -272,6 +272,23 @@ describe("buildDesignMatrix refuses designs it cannot estimate, naming the colum
     expect(error.hint).toBeDefined();
   });
 
+  it("a value that is not finite (built by hand; the readers refuse it) is named by column, never a blank rank message", () => {
+    const age = Float64Array.from(lm.data.age);
+    age[1] = Infinity;
+    const variables = new Map<string, Variable>([["age", { name: "age", kind: "numeric", values: age, center: 0 }]]);
+    const error = expectInputError(() => buildDesignMatrix(parseFormula("age"), variables, subjects, MODEL_KEY), {
+      ...MODEL_KEY,
+      message: [/the design column 'age' has a value that is not a finite number/],
+    });
+    expect(error.message).not.toMatch(/column +is/);
+  });
+
+  it("codeVariable refuses a numeric text that overflows, naming its line", () => {
+    const values = lm.data.age.map(String);
+    values[2] = "1e400";
+    expectInputError(() => codeVariable("age", source(values), options), { file: "participants.tsv", line: 4, message: [/'1e400', which is not a finite number/] });
+  });
+
   it("a column proportional to another (age in months): collinear columns named", () => {
     const variables = new Map<string, Variable>([
       ["age", numeric("age", lm.data.age)],
