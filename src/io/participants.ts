@@ -58,8 +58,9 @@ export function parseParticipants(
   const firstLineOf = new Map<string, number>();
   for (let r = 0; r < rows.length; r++) {
     const id = rows[r][0];
-    if (isMissingCell(id, missingValues)) {
-      throw new InputError(`missing ${PARTICIPANT_ID} ('${printable(id)}' is a missing-value code): every row needs an ID`, {
+    if (id === "" || isMissingCell(id, missingValues)) {
+      const what = id === "" ? `empty ${PARTICIPANT_ID}` : `missing ${PARTICIPANT_ID} ('${printable(id)}' is a missing-value code)`;
+      throw new InputError(`${what}: every row needs an ID`, {
         file,
         line: lines[r],
         column: 1,

@@ -5,6 +5,7 @@ import { designKeyLocation, readDesign, type DesignSpec } from "../io/designFile
 import { nearestName } from "../io/nearestName.js";
 import { checkModelColumns } from "../io/numericCells.js";
 import { printable } from "../io/printable.js";
+import { checkTemplateValues } from "../io/templateValues.js";
 import { readParticipants, type ParticipantsTable } from "../io/participants.js";
 import { defaultRegions, readRegions, type Region } from "../io/regions.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
@@ -180,6 +181,9 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
   }
 
   const source = connectomeSource(design);
+  if (source.kind === "template") {
+    checkTemplateValues(source.template, participants, kept.map((k) => k.tableRow), "connectomes");
+  }
   const connectomes = loadConnectomes(
     source,
     kept.map((k) => ({

@@ -168,3 +168,49 @@ describe("numbers that are not finite", () => {
     );
   });
 });
+
+describe("values put into path templates", () => {
+  it("an ID with a path separator or '..' is an error naming the participants file line; the file outside is never read", async () => {
+    const rows = table();
+    rows[2] = rows[2].replace(/^sub-02/, "../outside/victim");
+    rows[5] = rows[5].replace(/^sub-05/, "..");
+    rows[7] = rows[7].replace(/^sub-07/, "a\\b");
+    const design = study("traversal", rows, [...HEAD, "model: group + age", "contrasts:", "  up: group[patient] - group[control]"]);
+    const outside = path.join(root, "traversal", "outside");
+    mkdirSync(outside);
+    writeFileSync(path.join(outside, "victim.tsv"), matrixText(99));
+    const result = await runCli(["check", design]);
+    expectUserError(
+      result,
+      /participants\.tsv:3:1: 3 values of the participants table cannot be put into the path template/,
+      /participants\.tsv:3:1 participant_id '\.\.\/outside\/victim' has a path separator/,
+      /participants\.tsv:6:1 participant_id '\.\.' is '\.\.'/,
+      /participants\.tsv:8:1 participant_id 'a\\b' has a path separator/,
+    );
+  });
+
+  it("any column used in the template is checked, with its column number", async () => {
+    const rows = table().map((r, k) => (k === 3 ? r.replace(/\tc$/, "\t../c") : r));
+    const design = study("site-template", rows, ["subjects: participants.tsv", "connectomes: connectomes/{participant_id}.tsv#{site}", "model: group", "contrasts:", "  up: group[patient] - group[control]"]);
+    expectUserError(await runCli(["check", design]), /participants\.tsv:4:4 site '\.\.\/c' has a path separator/);
+  });
+
+  it("an ID with control characters is refused for the path, and printed escaped", async () => {
+    const rows = table();
+    rows[3] = rows[3].replace(/^sub-03/, "sub-\u001b[2J03");
+    const design = study("escape-id", rows, [...HEAD, "model: group + age", "contrasts:", "  up: group[patient] - group[control]"]);
+    const result = await runCli(["check", design]);
+    expectUserError(result, /participants\.tsv:4:1 participant_id 'sub-\\x1b\[2J03' has a control character/);
+    expect(result.stderr).not.toContain("\u001b");
+  });
+
+  it("an ID with control characters in a warning is printed escaped", async () => {
+    const rows = table();
+    rows[3] = rows[3].replace(/^sub-03(\t\w+\t)\d+/, "sub-\u001b[31m03$1NA");
+    const design = study("escape-warning", rows, [...HEAD, "model: group + age", "contrasts:", "  up: group[patient] - group[control]"]);
+    const result = await runCli(["check", design]);
+    expect(result.code, result.stderr).toBe(0);
+    expect(result.stderr).toContain("sub-\\x1b[31m03 (missing age)");
+    expect(result.stderr).not.toContain("\u001b");
+  });
+});
