@@ -6,13 +6,14 @@ import { nearestName } from "../io/nearestName.js";
 import { checkModelColumns } from "../io/numericCells.js";
 import { printable } from "../io/printable.js";
 import { checkTemplateValues } from "../io/templateValues.js";
-import { readParticipants, type ParticipantsTable } from "../io/participants.js";
+import { PARTICIPANT_ID, readParticipants, type ParticipantsTable } from "../io/participants.js";
 import { defaultRegions, readRegions, type Region } from "../io/regions.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
 import { parseContrast, type Contrast } from "../model/contrast.js";
 import { buildDesignMatrix, type DesignMatrix } from "../model/designMatrix.js";
 import { formulaVariables, parseFormula, type Formula } from "../model/formula.js";
 import { codeVariable, type Variable } from "../model/variables.js";
+import { checkRelabelings } from "../permute/exchangeability.js";
 
 export interface ExcludedSubject {
   id: string;
@@ -101,6 +102,13 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
     if (!needed.includes(name)) throw new InputError(`'center' names '${name}', which is not in the model`, where("center"));
   }
   const blockColumn = design.inference.blocks;
+  if (blockColumn === PARTICIPANT_ID) {
+    throw new InputError(
+      `the exchangeability blocks column cannot be '${PARTICIPANT_ID}': every block would hold one subject`,
+      where("inference.blocks"),
+      "name a column that groups several subjects (e.g. family or site), or remove `blocks:`",
+    );
+  }
   if (blockColumn !== undefined && !participants.columns.has(blockColumn)) {
     const near = nearestName(blockColumn, available);
     throw new InputError(
@@ -178,6 +186,16 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
     const values = kept.map((k) => column[k.tableRow]!);
     const labels = [...new Set(values)];
     blocks = { column: blockColumn, codes: Int32Array.from(values, (v) => labels.indexOf(v)), labels };
+  }
+  if (inference.method !== "fdr") {
+    checkRelabelings({
+      matrix,
+      contrasts,
+      contrastWhere: design.contrasts.map((spec) => ({ file: design.file, key: spec.key, line: spec.line })),
+      inference,
+      blocks: blocks?.codes,
+      where,
+    });
   }
 
   const source = connectomeSource(design);

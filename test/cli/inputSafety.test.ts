@@ -214,3 +214,34 @@ describe("values put into path templates", () => {
     expect(result.stderr).not.toContain("\u001b");
   });
 });
+
+describe("design errors found in preparation (plexus check), before any checkpoint", () => {
+  const base = [...HEAD, "model: group + age", "contrasts:", "  up: group[patient] - group[control]"];
+
+  it("blocks: participant_id (every block one subject) is an error at inference.blocks from check", async () => {
+    const design = study("blocks-id", table(), [...base, "inference:", "  permutations: 99", "  blocks: participant_id"]);
+    const checked = await runCli(["check", design]);
+    expectUserError(checked, /key 'inference.blocks'/);
+    const out = path.join(root, "blocks-id-out");
+    const run = await runCli(["run", design, "--out", out]);
+    expectUserError(run, /key 'inference.blocks'/);
+    expect(run.stderr).not.toMatch(/subjects\.tsv/);
+  });
+
+  it("a blocks column with one subject per block allows no permutation: an error at inference.blocks from check", async () => {
+    const rows = table().map((r, k) => (k === 0 ? `${r}\tscan` : `${r}\tscan-${k}`));
+    const design = study("blocks-unique", rows, [...base, "inference:", "  permutations: 99", "  blocks: scan"]);
+    expectUserError(await runCli(["check", design]), /key 'inference.blocks'/, /the only permutation for 'up' is the identity/);
+  });
+
+  it("scheme: permute on a contrast of the constant term is found by check, at the contrast's key", async () => {
+    const design = study("permute-constant", table(), [...HEAD, "model: 1", "contrasts:", "  mean: intercept", "inference:", "  permutations: 99", "  scheme: permute"]);
+    expectUserError(await runCli(["check", design]), /design\.yaml:5, key 'contrasts.mean'/, /permuting rows cannot change/);
+  });
+
+  it("block_permutation: whole with blocks of unequal size is an error at inference.block_permutation from check", async () => {
+    const rows = table().map((r, k) => (k === 0 ? `${r}\tfamily` : `${r}\t${k <= 5 ? "f1" : k <= 9 ? "f2" : "f3"}`));
+    const design = study("whole-unequal", rows, [...base, "inference:", "  permutations: 99", "  blocks: family", "  block_permutation: whole"]);
+    expectUserError(await runCli(["check", design]), /key 'inference.block_permutation'/, /equal size/);
+  });
+});
