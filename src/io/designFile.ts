@@ -107,6 +107,8 @@ export const MISSING_VALUE_LENGTH_LIMIT = 100;
 export const THRESHOLD_LIST_LIMIT = 20;
 /** At most this many permutations. */
 export const PERMUTATIONS_LIMIT = 10_000_000;
+/** At most this many contrasts (each has its own permutations). */
+export const CONTRASTS_LIMIT = 1000;
 /** At most this many levels listed for one factor. */
 export const LEVELS_LIMIT = 10_000;
 
@@ -266,6 +268,9 @@ export function parseDesign(text: string, file: string): DesignSpec {
     contrasts.push({ name, expression, key, line });
   }
   if (contrasts.length === 0) throw new InputError("'contrasts' lists no contrast", where("contrasts"));
+  if (contrasts.length > CONTRASTS_LIMIT) {
+    throw new InputError(`'contrasts' lists ${contrasts.length} contrasts, more than the limit of ${CONTRASTS_LIMIT}`, where("contrasts"));
+  }
   const lowerNames = new Set<string>();
   for (const c of contrasts) {
     const lower = c.name.toLowerCase();

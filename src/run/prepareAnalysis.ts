@@ -8,12 +8,16 @@ import { printable } from "../io/printable.js";
 import { checkTemplateValues } from "../io/templateValues.js";
 import { PARTICIPANT_ID, readParticipants, type ParticipantsTable } from "../io/participants.js";
 import { defaultRegions, readRegions, type Region } from "../io/regions.js";
+import { contrastStatistics } from "../edges/contrastStatistics.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
+import { fitEdges } from "../edges/fitEdges.js";
+import { contrastFStatistics } from "../edges/fStatistics.js";
 import { parseContrast, type Contrast } from "../model/contrast.js";
 import { buildDesignMatrix, type DesignMatrix } from "../model/designMatrix.js";
 import { formulaVariables, parseFormula, type Formula } from "../model/formula.js";
 import { codeVariable, type Variable } from "../model/variables.js";
 import { checkRelabelings } from "../permute/exchangeability.js";
+import { checkEnhancementLevels } from "./enhancementLevels.js";
 
 export interface ExcludedSubject {
   id: string;
@@ -218,6 +222,15 @@ export function prepareFromDesign(design: DesignSpec): PreparedAnalysis {
   );
   if (connectomes.regionCount < 2) {
     throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
+  }
+  if (inference.method === "threshold-free") {
+    // The enhancement's work grows with the largest statistic ÷ step: fit once here, so that `check` and a run
+    // refuse a step that is too fine before any checkpoint or relabeling.
+    const fit = fitEdges(matrix.values, matrix.rows, matrix.cols, connectomes.data, connectomes.edgeCount);
+    for (const contrast of contrasts) {
+      const statistic = contrast.kind === "F" ? contrastFStatistics(fit, contrast.rows).statistic : contrastStatistics(fit, contrast.vector).statistic;
+      checkEnhancementLevels(statistic, inference, where("inference.enhancement.step"));
+    }
   }
   const regions = design.regions
     ? readRegions(path.resolve(design.baseDir, design.regions), connectomes.regionCount)

@@ -2,7 +2,7 @@
 // strings. Each case is a user mistake that must end in exit 2 with a located message (file:line
 // and column, or the design key), no stack trace and no temporary path, or a data choice that
 // must be honoured (missing-value codes, listwise deletion).
-import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -243,5 +243,47 @@ describe("design errors found in preparation (plexus check), before any checkpoi
     const rows = table().map((r, k) => (k === 0 ? `${r}\tfamily` : `${r}\t${k <= 5 ? "f1" : k <= 9 ? "f2" : "f3"}`));
     const design = study("whole-unequal", rows, [...base, "inference:", "  permutations: 99", "  blocks: family", "  block_permutation: whole"]);
     expectUserError(await runCli(["check", design]), /key 'inference.block_permutation'/, /equal size/);
+  });
+});
+
+describe("bounded work", () => {
+  it("an enhancement step giving over 10,000 levels is an error at its key, from check, before any checkpoint", async () => {
+    const design = study("tiny-step", table(), [
+      ...HEAD,
+      "model: group + age",
+      "contrasts:",
+      "  up: group[patient] - group[control]",
+      "inference:",
+      "  method: threshold-free",
+      "  permutations: 99",
+      "  enhancement:",
+      "    step: 1.0e-9",
+    ]);
+    expectUserError(await runCli(["check", design]), /design\.yaml:10, key 'inference.enhancement.step'/, /more than the limit of 10,000/);
+    const out = path.join(root, "tiny-step-out");
+    const result = await runCli(["run", design, "--out", out, "--quiet"]);
+    expectUserError(result, /design\.yaml:10, key 'inference.enhancement.step'/, /more than the limit of 10,000/, /use a step of at least/);
+    expect(result.stderr).not.toMatch(/relabelings/);
+    expect(readdirSync(root).filter((name) => name.includes("tiny-step-out"))).toEqual([]); // no checkpoint, no results folder
+  });
+});
+
+describe("model formulas and contrasts through the CLI", () => {
+  it("model: y ~ group is an error at the model key and line", async () => {
+    const design = study("tilde", table(), [...HEAD, "model: y ~ group", "contrasts:", "  up: group[patient] - group[control]"]);
+    expectUserError(await runCli(["check", design]), /design\.yaml:3, key 'model'/, /has a '~'/, /`model: group`/);
+  });
+
+  it("a contrast 1e400*age is an error at its key", async () => {
+    const design = study("contrast-overflow", table(), [...HEAD, "model: group + age", "contrasts:", "  big: 1e400*age"]);
+    expectUserError(await runCli(["check", design]), /design\.yaml:5, key 'contrasts.big'/, /not a finite number/);
+  });
+
+  it("f: group (a two-level factor alone) is accepted as its t contrast, with a note", async () => {
+    const design = study("f-group", table(), [...HEAD, "model: group + age", "contrasts:", "  f: group"]);
+    const result = await runCli(["check", design]);
+    expect(result.code, result.stderr).toBe(0);
+    expect(result.stdout).toMatch(/contrast    f: group  ->  \[0, 1, 0\]/);
+    expect(result.stderr).toMatch(/tested as the t contrast group\[patient\]/);
   });
 });

@@ -458,6 +458,24 @@ describe("parseDesign never throws anything but an InputError (fast-check)", () 
   });
 });
 
+describe("parseDesign: bounded lists", () => {
+  it("more than 1000 contrasts are refused, naming the limit", () => {
+    const many = ["contrasts:", ...Array.from({ length: 1001 }, (_, k) => `  c${k}: age`)];
+    const text = ["subjects: p.tsv", "connectomes: c/{participant_id}.tsv", "model: age", ...many].join("\n");
+    expectInputError(() => parseDesign(text, FILE), { file: FILE, key: "contrasts", line: 4, message: [/1001 contrasts, more than the limit of 1000/] });
+  });
+
+  it("a threshold list of more than 20 is refused, naming the limit", () => {
+    const list = Array.from({ length: 21 }, (_, k) => 2 + k / 10).join(", ");
+    expectInputError(() => parseDesign(withBase(`inference:\n  threshold: [${list}]`), FILE), {
+      file: FILE,
+      key: "inference.threshold",
+      line: 7,
+      message: [/1 to 20 different/],
+    });
+  });
+});
+
 describe("parseDesign: missing_values", () => {
   it("replaces the default list of cell texts read as missing", () => {
     expect(parseDesign(withBase('missing_values: ["", "-999", "NA"]'), FILE).missingValues).toEqual(["", "-999", "NA"]);
