@@ -1,4 +1,5 @@
 import { InputError } from "../errors.js";
+import { listCells, type LocatedCell } from "./cellList.js";
 import type { ParticipantsTable } from "./participants.js";
 import { printable } from "./printable.js";
 
@@ -17,19 +18,16 @@ export function cellKind(cell: string): CellKind {
   return NON_FINITE_WORD.test(cell) ? "non-finite" : "text";
 }
 
-/** At most this many bad cells are listed in one message; the rest are counted. */
-export const LISTED_CELLS_LIMIT = 10;
-
 /**
  * Checks the model's columns before they are coded. A column not listed under
  * `levels:` is numeric when at least one of its non-missing cells is a number;
  * then every other non-missing cell must be a finite number too. A cell that
  * is not finite is an error in any column not under `levels:`. Every bad cell
- * of every column is reported in one error (up to LISTED_CELLS_LIMIT listed,
+ * of every column is reported in one error (up to 10 listed,
  * the rest counted), each as file:line:column.
  */
 export function checkModelColumns(table: ParticipantsTable, columns: string[], factorsByChoice: Set<string>): void {
-  const problems: { line: number; column: number; name: string; cell: string; kind: CellKind }[] = [];
+  const problems: (LocatedCell & { name: string })[] = [];
   for (const name of columns) {
     if (factorsByChoice.has(name)) continue;
     const cells = table.columns.get(name)!;
@@ -38,23 +36,19 @@ export function checkModelColumns(table: ParticipantsTable, columns: string[], f
     const numeric = kinds.some((k) => k === "number" || k === "non-finite");
     kinds.forEach((kind, row) => {
       if (kind === "non-finite" || (numeric && kind === "text")) {
-        problems.push({ line: table.lines[row], column, name, cell: cells[row]!, kind });
+        const note = kind === "non-finite" ? " (not a finite number)" : "";
+        problems.push({ line: table.lines[row], column, name, text: `${name} '${printable(cells[row]!)}'${note}` });
       }
     });
   }
   if (problems.length === 0) return;
-  problems.sort((a, b) => a.line - b.line || a.column - b.column);
-  const first = problems[0];
   const names = [...new Set(problems.map((p) => p.name))];
-  const listed = problems
-    .slice(0, LISTED_CELLS_LIMIT)
-    .map((p) => `${table.file}:${p.line}:${p.column} ${p.name} '${printable(p.cell)}'${p.kind === "non-finite" ? " (not a finite number)" : ""}`);
-  const rest = problems.length - listed.length;
+  const listed = listCells(table.file, problems);
   throw new InputError(
     `${problems.length} cell${problems.length > 1 ? "s" : ""} of the numeric model column${names.length > 1 ? "s" : ""} ${names
       .map((n) => `'${n}'`)
-      .join(", ")} ${problems.length > 1 ? "are" : "is"} not a finite number:\n    ${listed.join("\n    ")}${rest > 0 ? `\n    … and ${rest} more` : ""}`,
-    { file: table.file, line: first.line, column: first.column },
+      .join(", ")} ${problems.length > 1 ? "are" : "is"} not a finite number:${listed}`,
+    { file: table.file, line: problems[0].line, column: problems[0].column },
     "fix these cells, add their text to `missing_values:` if it marks a missing value, or list the column under `levels:` to treat it as a factor",
   );
 }

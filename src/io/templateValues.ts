@@ -1,5 +1,5 @@
 import { InputError } from "../errors.js";
-import { LISTED_CELLS_LIMIT } from "./numericCells.js";
+import { listCells, type LocatedCell } from "./cellList.js";
 import { PARTICIPANT_ID, type ParticipantsTable } from "./participants.js";
 import { printable } from "./printable.js";
 
@@ -23,10 +23,10 @@ export function templateColumns(template: string): string[] {
 /**
  * Checks every cell a path template will take from the given rows before any
  * file is opened; every unsafe cell is reported in one error (up to
- * LISTED_CELLS_LIMIT listed), naming the participants file, line and column.
+ * 10 listed), naming the participants file, line and column.
  */
 export function checkTemplateValues(template: string, table: ParticipantsTable, rows: number[], key: string): void {
-  const problems: { line: number; column: number; text: string }[] = [];
+  const problems: LocatedCell[] = [];
   for (const name of new Set(templateColumns(template))) {
     const column = table.header.indexOf(name);
     if (column < 0 && name !== PARTICIPANT_ID) continue; // resolveTemplate names an unknown column
@@ -39,11 +39,9 @@ export function checkTemplateValues(template: string, table: ParticipantsTable, 
     }
   }
   if (problems.length === 0) return;
-  problems.sort((a, b) => a.line - b.line || a.column - b.column);
-  const listed = problems.slice(0, LISTED_CELLS_LIMIT).map((p) => `${table.file}:${p.line}:${p.column} ${p.text}`);
-  const rest = problems.length - listed.length;
+  const listed = listCells(table.file, problems);
   throw new InputError(
-    `${problems.length} value${problems.length > 1 ? "s" : ""} of the participants table cannot be put into the path template '${template}' (key '${key}'):\n    ${listed.join("\n    ")}${rest > 0 ? `\n    … and ${rest} more` : ""}`,
+    `${problems.length} value${problems.length > 1 ? "s" : ""} of the participants table cannot be put into the path template '${template}' (key '${key}'):${listed}`,
     { file: table.file, line: problems[0].line, column: problems[0].column },
     "a value filled into a path must be a plain file-name part: no '/', '\\', control characters, and not '.' or '..'",
   );
