@@ -8,6 +8,7 @@ import { readDesign } from "../../../src/io/designFile.js";
 import { readParticipants } from "../../../src/io/participants.js";
 import { DESIGN_FILE_LIMIT_BYTES, InputFile, TextFileReader, readTextFile, readTextInput } from "../../../src/io/readInputFile.js";
 import { readRegions } from "../../../src/io/regions.js";
+import { readPairsFile } from "../../../src/strength/readPairsFile.js";
 import { expectInputError } from "./inputErrorAssertions.js";
 
 let dir: string;
@@ -187,12 +188,13 @@ describe("only regular files are read, text inputs have a size limit and must be
     expect(readTextInput(good, { limitBytes: 1000, what: "the table" })).toBe("région\t区域\n");
   });
 
-  it("the design file, participants and regions readers go through these checks", () => {
+  it("the design file, participants, regions and edge-list readers go through these checks", () => {
     const link = join(dir, "zero-design.yaml");
     symlinkSync("/dev/zero", link);
     expectInputError(() => readDesign(link), { file: link, message: ["a character device"] });
     expectInputError(() => readParticipants(link), { file: link, message: ["a character device"] });
     expectInputError(() => readRegions(link), { file: link, message: ["a character device"] });
+    expectInputError(() => readPairsFile(link, [{ label: "A" }, { label: "B" }]), { file: link, message: ["a character device"] });
     const big = file("big-design.yaml", `# ${"x".repeat(DESIGN_FILE_LIMIT_BYTES)}\n`);
     expectInputError(() => readDesign(big), { file: big, message: ["the design file is", "1 MiB"] });
     const bad = file("bad-design.yaml", Buffer.concat([Buffer.from("subjects: p.tsv\nmodel: gr"), Buffer.from([0xff]), Buffer.from("oup\n")]));
