@@ -8,7 +8,7 @@ export { VERSION } from "./version.js";
 
 // 1. Inputs
 export { readDesign, parseDesign, type DesignSpec, type InferenceSpec, type ContrastSpec } from "./io/designFile.js";
-export { readParticipants, parseParticipants, type ParticipantsTable } from "./io/participants.js";
+export { readParticipants, parseParticipants, DEFAULT_MISSING_VALUES, type ParticipantsTable } from "./io/participants.js";
 export { parseMatrixText } from "./io/matrixText.js";
 export { parseNpy, encodeNpy, type NpyArray } from "./io/npy.js";
 export { readRegions, parseRegions, defaultRegions, type Region } from "./io/regions.js";

@@ -1,5 +1,6 @@
 import { Command, CommanderError } from "commander";
 import { isInputError } from "../errors.js";
+import { printable } from "../io/printable.js";
 import { VERSION } from "../version.js";
 import { registerCommands } from "./commands/index.js";
 
@@ -36,7 +37,7 @@ export async function main(argv: string[], sink: OutputSink = processSink): Prom
       return 2;
     }
     if (isInputError(error)) {
-      sink.err(`plexus: error: ${error.format()}\n`);
+      sink.err(`plexus: error: ${printable(error.format())}\n`);
       return 2;
     }
     const stack = error instanceof Error ? (error.stack ?? error.message) : String(error);

@@ -9,7 +9,9 @@ import { cOrderMatrices, readExactly, stackMatrixLabel } from "./npyMatrixBlocks
 import { digestHex, sharedDigests, type TextBlockJob } from "./textMatrixBlocks.js";
 import { npyDataOffset, npyValueReader, parseNpyHeader, type NpyHeader } from "./npy.js";
 import { PARTICIPANT_ID } from "./participants.js";
+import { printable } from "./printable.js";
 import { InputFile, TextFileReader } from "./readInputFile.js";
+import { unsafePathValue } from "./templateValues.js";
 
 /**
  * Loading every subject's connectivity matrix into one edge-major array of
@@ -102,6 +104,10 @@ export function resolveTemplate(
         `path template '${template}' uses {${name}}, but participant '${subject.id}' has no value (n/a) in that column`,
         { key },
       );
+    }
+    const unsafe = unsafePathValue(value);
+    if (unsafe) {
+      throw new InputError(`path template '${template}' uses {${name}}, but participant '${printable(subject.id)}' has a value that ${unsafe}`, { key });
     }
     out += value;
     p = close + 1;

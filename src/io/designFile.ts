@@ -2,7 +2,8 @@ import path from "node:path";
 import { LineCounter, parseDocument, isMap, isScalar, isSeq, type Node, type Pair } from "yaml";
 import { InputError } from "../errors.js";
 import { nearestName } from "./nearestName.js";
-import { readTextFile } from "./readInputFile.js";
+import { DEFAULT_MISSING_VALUES } from "./participants.js";
+import { DESIGN_FILE_LIMIT_BYTES, readTextInput } from "./readInputFile.js";
 
 export type InferenceMethod = "components" | "fdr" | "max-t" | "threshold-free";
 export type SizeMeasure = "extent" | "mass";
@@ -56,6 +57,8 @@ export interface DesignSpec {
   connectomes: string;
   regions?: string;
   model: string;
+  /** Cell texts of the participants table read as missing (`missing_values`). */
+  missingValues: string[];
   levels: Record<string, string[]>;
   center: string[];
   contrasts: ContrastSpec[];
@@ -72,6 +75,7 @@ const TOP_KEYS = [
   "connectomes",
   "regions",
   "model",
+  "missing_values",
   "levels",
   "center",
   "contrasts",
@@ -95,6 +99,18 @@ const INFERENCE_KEYS = [
   "enhancement",
 ] as const;
 const ENHANCEMENT_KEYS = ["extent_exponent", "height_exponent", "step"] as const;
+
+/** At most this many missing-value codes, each at most this many characters. */
+export const MISSING_VALUES_LIMIT = 100;
+export const MISSING_VALUE_LENGTH_LIMIT = 100;
+/** At most this many thresholds in a sweep. */
+export const THRESHOLD_LIST_LIMIT = 20;
+/** At most this many permutations. */
+export const PERMUTATIONS_LIMIT = 10_000_000;
+/** At most this many contrasts (each has its own permutations). */
+export const CONTRASTS_LIMIT = 1000;
+/** At most this many levels listed for one factor. */
+export const LEVELS_LIMIT = 10_000;
 
 export const DEFAULT_INFERENCE: InferenceSpec = {
   method: "components",
@@ -122,13 +138,17 @@ export function thresholdsOf(inference: Pick<InferenceSpec, "threshold" | "thres
 
 /** Reads a design file from disk; see `parseDesign`. */
 export function readDesign(file: string): DesignSpec {
-  return parseDesign(readTextFile(file, "check the design file's path (relative to the current folder)"), file);
+  return parseDesign(
+    readTextInput(file, { limitBytes: DESIGN_FILE_LIMIT_BYTES, what: "the design file", hint: "check the design file's path (relative to the current folder)" }),
+    file,
+  );
 }
 
 /** Parses design-file YAML (1.2 core schema, no custom tags) into a checked DesignSpec. */
 export function parseDesign(text: string, file: string): DesignSpec {
   const lineCounter = new LineCounter();
-  const doc = parseDocument(text.replace(/^\uFEFF/, ""), {
+  const source = text.replace(/^\uFEFF/, "");
+  const doc = parseDocument(source, {
     lineCounter,
     version: "1.2",
     schema: "core",
@@ -156,6 +176,11 @@ export function parseDesign(text: string, file: string): DesignSpec {
     });
   }
   const lines = new Map<string, number>();
+  /** A value as the file writes it (so `1e400` is shown as written, not as Infinity). */
+  const written = (node: Node | null | undefined): string => {
+    const range = node?.range;
+    return range ? source.slice(range[0], range[1]).trim() : String(node ? node.toJSON() : node);
+  };
   const where = (key: string) => ({ file, key, line: lines.get(key) });
 
   const checkKeys = (pairs: Pair[], allowed: readonly string[], prefix: string) => {
@@ -243,6 +268,9 @@ export function parseDesign(text: string, file: string): DesignSpec {
     contrasts.push({ name, expression, key, line });
   }
   if (contrasts.length === 0) throw new InputError("'contrasts' lists no contrast", where("contrasts"));
+  if (contrasts.length > CONTRASTS_LIMIT) {
+    throw new InputError(`'contrasts' lists ${contrasts.length} contrasts, more than the limit of ${CONTRASTS_LIMIT}`, where("contrasts"));
+  }
   const lowerNames = new Set<string>();
   for (const c of contrasts) {
     const lower = c.name.toLowerCase();
@@ -256,6 +284,26 @@ export function parseDesign(text: string, file: string): DesignSpec {
     lowerNames.add(lower);
   }
 
+  // missing_values: [text, ...]
+  let missingValues = [...DEFAULT_MISSING_VALUES];
+  const missingNode = top.get("missing_values");
+  if (missingNode !== undefined && missingNode !== null) {
+    const value = (missingNode as Node).toJSON();
+    const list = typeof value === "string" ? [value] : value;
+    if (
+      !Array.isArray(list) ||
+      list.length > MISSING_VALUES_LIMIT ||
+      !list.every((v) => typeof v === "string" && v.length <= MISSING_VALUE_LENGTH_LIMIT && v === v.trim() && !/[\t\r\n]/.test(v))
+    ) {
+      throw new InputError(
+        `'missing_values' lists the cell texts read as missing: up to ${MISSING_VALUES_LIMIT} quoted texts without tabs or surrounding spaces, each up to ${MISSING_VALUE_LENGTH_LIMIT} characters`,
+        where("missing_values"),
+        `e.g. missing_values: ["", "n/a", "NA", "-999"] (quote every entry; [] means no cell is missing); the default is [${DEFAULT_MISSING_VALUES.map((v) => JSON.stringify(v)).join(", ")}]`,
+      );
+    }
+    missingValues = [...new Set(list as string[])];
+  }
+
   // levels: { factor: [level, ...] }
   const levels: Record<string, string[]> = {};
   const levelsValue = plain("levels");
@@ -264,8 +312,13 @@ export function parseDesign(text: string, file: string): DesignSpec {
       throw new InputError("'levels' maps a factor column to its level order, e.g. { group: [control, patient] }", where("levels"));
     }
     for (const [factor, list] of Object.entries(levelsValue)) {
-      if (!Array.isArray(list) || list.length < 2 || !list.every((v) => typeof v === "string" || typeof v === "number")) {
-        throw new InputError(`levels of '${factor}' must be a list of at least two level names`, where("levels"));
+      if (
+        !Array.isArray(list) ||
+        list.length < 2 ||
+        list.length > LEVELS_LIMIT ||
+        !list.every((v) => typeof v === "string" || (typeof v === "number" && Number.isFinite(v)))
+      ) {
+        throw new InputError(`levels of '${factor}' must be a list of at least two level names (at most ${LEVELS_LIMIT.toLocaleString("en-US")}; texts or finite numbers)`, where("levels"));
       }
       const names = list.map(String);
       if (new Set(names).size !== names.length) {
@@ -290,8 +343,8 @@ export function parseDesign(text: string, file: string): DesignSpec {
   const symmetrize = plain("symmetrize") ?? false;
   if (typeof symmetrize !== "boolean") throw new InputError("'symmetrize' must be true or false", where("symmetrize"));
   const tolerance = plain("asymmetry_tolerance") ?? 1e-6;
-  if (typeof tolerance !== "number" || !(tolerance >= 0)) {
-    throw new InputError("'asymmetry_tolerance' must be a number ≥ 0", where("asymmetry_tolerance"));
+  if (typeof tolerance !== "number" || !Number.isFinite(tolerance) || !(tolerance >= 0)) {
+    throw new InputError(`'asymmetry_tolerance' must be a finite number ≥ 0; found '${written(top.get("asymmetry_tolerance"))}'`, where("asymmetry_tolerance"));
   }
 
   // inference
@@ -316,7 +369,7 @@ export function parseDesign(text: string, file: string): DesignSpec {
       const value = get(name);
       if (value === undefined) return undefined;
       if (typeof value !== "number" || !Number.isFinite(value) || !check(value)) {
-        throw new InputError(`'inference.${name}' must be ${rule}; found '${String(value)}'`, where(`inference.${name}`));
+        throw new InputError(`'inference.${name}' must be ${rule}; found '${written(opts.get(name))}'`, where(`inference.${name}`));
       }
       return value;
     };
@@ -330,12 +383,12 @@ export function parseDesign(text: string, file: string): DesignSpec {
     if (Array.isArray(thresholdValue)) {
       if (
         thresholdValue.length === 0 ||
-        thresholdValue.length > 20 ||
+        thresholdValue.length > THRESHOLD_LIST_LIMIT ||
         !thresholdValue.every((v) => typeof v === "number" && Number.isFinite(v) && v > 0) ||
         new Set(thresholdValue).size !== thresholdValue.length
       ) {
         throw new InputError(
-          "'inference.threshold' as a list needs 1 to 20 different positive numbers, e.g. [2.5, 3.0, 3.5]",
+          `'inference.threshold' as a list needs 1 to ${THRESHOLD_LIST_LIMIT} different positive finite numbers, e.g. [2.5, 3.0, 3.5]`,
           where("inference.threshold"),
         );
       }
@@ -356,7 +409,7 @@ export function parseDesign(text: string, file: string): DesignSpec {
         if (node === undefined || node === null) return fallback;
         const value = (node as Node).toJSON();
         if (typeof value !== "number" || !Number.isFinite(value) || !check(value)) {
-          throw new InputError(`'inference.enhancement.${name}' must be ${rule}; found '${String(value)}'`, where(`inference.enhancement.${name}`));
+          throw new InputError(`'inference.enhancement.${name}' must be ${rule}; found '${written(node)}'`, where(`inference.enhancement.${name}`));
         }
         return value;
       };
@@ -368,7 +421,7 @@ export function parseDesign(text: string, file: string): DesignSpec {
     }
     inference.alpha = number("alpha", (v) => v > 0 && v < 1, "between 0 and 1 (exclusive)") ?? inference.alpha;
     inference.permutations =
-      number("permutations", (v) => Number.isInteger(v) && v >= 1 && v <= 10_000_000, "a whole number from 1 to 10,000,000") ??
+      number("permutations", (v) => Number.isInteger(v) && v >= 1 && v <= PERMUTATIONS_LIMIT, `a whole number from 1 to ${PERMUTATIONS_LIMIT.toLocaleString("en-US")}`) ??
       inference.permutations;
     inference.seed = number("seed", (v) => Number.isInteger(v) && v >= 0 && v <= Number.MAX_SAFE_INTEGER, "a whole number ≥ 0") ?? inference.seed;
     const blocks = get("blocks");
@@ -386,6 +439,7 @@ export function parseDesign(text: string, file: string): DesignSpec {
     subjects: requireString("subjects"),
     connectomes: requireString("connectomes"),
     regions: optionalString("regions"),
+    missingValues,
     model: (() => {
       const value = plain("model");
       if (value === undefined) throw new InputError("the design needs 'model', e.g. `model: group + age + sex`", { file, key: "model" });

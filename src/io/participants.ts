@@ -1,16 +1,17 @@
 import { InputError } from "../errors.js";
-import { readTextFile } from "./readInputFile.js";
-import { parseTsv } from "./tsv.js";
+import { printable } from "./printable.js";
+import { parseTsv, readTableText } from "./tsv.js";
 
 /**
  * A participants table in the BIDS `participants.tsv` convention: the first
- * column is `participant_id`, one row per participant, `n/a` marks a missing value.
+ * column is `participant_id`, one row per participant; a cell whose whole text
+ * is one of the missing-value codes (the design's `missing_values`) is missing.
  */
 export interface ParticipantsTable {
   file: string;
   /** `participant_id` of each row, in file order. */
   ids: string[];
-  /** Every column (participant_id included) by name; `n/a` and empty cells are null. */
+  /** Every column (participant_id included) by name; missing-value cells are null. */
   columns: Map<string, (string | null)[]>;
   /** 1-based file line of each row. */
   lines: number[];
@@ -19,9 +20,16 @@ export interface ParticipantsTable {
 
 export const PARTICIPANT_ID = "participant_id";
 
-/** The BIDS marker of a missing value; an empty cell is treated the same way. */
-export function isMissingCell(cell: string): boolean {
-  return cell === "" || cell === "n/a";
+/**
+ * The cell texts read as a missing value unless the design's `missing_values`
+ * says otherwise: empty, BIDS's `n/a` (and `N/A`), R's `NA`, and `NaN`/`nan`
+ * as numeric software writes a missing number.
+ */
+export const DEFAULT_MISSING_VALUES: readonly string[] = ["", "n/a", "N/A", "NA", "NaN", "nan"];
+
+/** True when the cell (already trimmed of spaces) is exactly one of the missing-value codes. */
+export function isMissingCell(cell: string, missingValues: readonly string[]): boolean {
+  return missingValues.includes(cell);
 }
 
 /**
@@ -29,7 +37,11 @@ export function isMissingCell(cell: string): boolean {
  * column other than `participant_id`, an empty or repeated ID, and a table
  * without rows.
  */
-export function parseParticipants(text: string, file: string): ParticipantsTable {
+export function parseParticipants(
+  text: string,
+  file: string,
+  missingValues: readonly string[] = DEFAULT_MISSING_VALUES,
+): ParticipantsTable {
   const table = parseTsv(text, file);
   const { header, rows, lines, headerLine } = table;
   if (header[0] !== PARTICIPANT_ID) {
@@ -46,8 +58,9 @@ export function parseParticipants(text: string, file: string): ParticipantsTable
   const firstLineOf = new Map<string, number>();
   for (let r = 0; r < rows.length; r++) {
     const id = rows[r][0];
-    if (isMissingCell(id)) {
-      throw new InputError(`empty ${PARTICIPANT_ID} ('${id}'): every row needs an ID`, {
+    if (id === "" || isMissingCell(id, missingValues)) {
+      const what = id === "" ? `empty ${PARTICIPANT_ID}` : `missing ${PARTICIPANT_ID} ('${printable(id)}' is a missing-value code)`;
+      throw new InputError(`${what}: every row needs an ID`, {
         file,
         line: lines[r],
         column: 1,
@@ -55,7 +68,7 @@ export function parseParticipants(text: string, file: string): ParticipantsTable
     }
     const earlier = firstLineOf.get(id);
     if (earlier !== undefined) {
-      throw new InputError(`duplicate ${PARTICIPANT_ID} '${id}' on lines ${earlier} and ${lines[r]}`, {
+      throw new InputError(`duplicate ${PARTICIPANT_ID} '${printable(id)}' on lines ${earlier} and ${lines[r]}`, {
         file,
         line: lines[r],
         column: 1,
@@ -69,13 +82,13 @@ export function parseParticipants(text: string, file: string): ParticipantsTable
   for (let c = 0; c < header.length; c++) {
     columns.set(
       header[c],
-      rows.map((row) => (isMissingCell(row[c]) ? null : row[c])),
+      rows.map((row) => (isMissingCell(row[c], missingValues) ? null : row[c])),
     );
   }
   return { file, ids, columns, lines: lines.slice(), header: header.slice() };
 }
 
 /** Reads and parses a participants table; an unreadable file is an InputError naming it. */
-export function readParticipants(path: string): ParticipantsTable {
-  return parseParticipants(readTextFile(path), path);
+export function readParticipants(path: string, missingValues: readonly string[] = DEFAULT_MISSING_VALUES): ParticipantsTable {
+  return parseParticipants(readTableText(path, "the participants table"), path, missingValues);
 }

@@ -1,13 +1,22 @@
 import { Buffer, constants, isAscii } from "node:buffer";
-import { closeSync, fstatSync, openSync, readFileSync, readSync } from "node:fs";
+import { closeSync, fstatSync, openSync, readFileSync, readSync, statSync, type Stats } from "node:fs";
 import { InputError } from "../errors.js";
+
+/** The largest design file read: 1 MiB (a design is a page of YAML). */
+export const DESIGN_FILE_LIMIT_BYTES = 2 ** 20;
+/** The largest participants, regions or edge-list table read: 256 MiB. */
+export const TABLE_FILE_LIMIT_BYTES = 2 ** 28;
 
 /**
  * Reading a user's input file: any failure of the operating system (missing
  * file, no permission, a directory) becomes an InputError that names the file
- * and the system's reason, so the CLI prints one line and no stack.
+ * and the system's reason, so the CLI prints one line and no stack. Only a
+ * regular file (or a symbolic link to one) is opened: a device, a FIFO or a
+ * socket is refused before it is opened (reading /dev/zero never ends, opening
+ * a FIFO waits for a writer).
  */
 export function readTextFile(path: string, hint?: string): string {
+  requireRegularFile(path, hint);
   try {
     return readFileSync(path, "utf8");
   } catch (error) {
@@ -15,13 +24,94 @@ export function readTextFile(path: string, hint?: string): string {
   }
 }
 
+/**
+ * A text input the user wrote (design file, participants, regions or edge-list
+ * table): a regular file of at most `limitBytes` bytes, in valid UTF-8 (an
+ * invalid byte is an InputError naming its line, never silently replaced).
+ */
+export function readTextInput(path: string, options: { limitBytes: number; what: string; hint?: string }): string {
+  const size = requireRegularFile(path, options.hint).size;
+  if (size > options.limitBytes) throw tooLarge(path, size, options.limitBytes, options.what);
+  let bytes: Buffer;
+  try {
+    bytes = readFileSync(path);
+  } catch (error) {
+    throw cannotRead(path, error, options.hint);
+  }
+  if (bytes.length > options.limitBytes) throw tooLarge(path, bytes.length, options.limitBytes, options.what);
+  return decodeUtf8(bytes, path);
+}
+
+/**
+ * Decodes UTF-8 strictly (a leading byte-order mark is dropped); the first
+ * invalid byte is an InputError naming its line. A newline byte never occurs
+ * inside a multi-byte sequence, so the bad line is the first line that does
+ * not decode on its own.
+ */
+export function decodeUtf8(bytes: Uint8Array, file: string): string {
+  try {
+    return new TextDecoder("utf-8", { fatal: true }).decode(bytes);
+  } catch {
+    const strict = new TextDecoder("utf-8", { fatal: true, ignoreBOM: true });
+    let start = 0;
+    for (let line = 1; ; line++) {
+      let end = bytes.indexOf(0x0a, start);
+      if (end < 0) end = bytes.length;
+      try {
+        strict.decode(bytes.subarray(start, end));
+      } catch {
+        throw new InputError("the file is not valid UTF-8 text", { file, line }, "save it as UTF-8 (plain text) and check this line for stray bytes");
+      }
+      if (end === bytes.length) break;
+      start = end + 1;
+    }
+    throw new InputError("the file is not valid UTF-8 text", { file }, "save it as UTF-8 (plain text)");
+  }
+}
+
 /** The bytes of a user's input file; failures as for `readTextFile`. */
 export function readBinaryFile(path: string, hint?: string): Uint8Array {
+  requireRegularFile(path, hint);
   try {
     return readFileSync(path);
   } catch (error) {
     throw cannotRead(path, error, hint);
   }
+}
+
+/**
+ * The file's status when `path` is a regular file or a symbolic link to one;
+ * otherwise an InputError naming the kind of file found. Checked with stat,
+ * before anything opens the file.
+ */
+export function requireRegularFile(path: string, hint?: string): Stats {
+  let stats: Stats;
+  try {
+    stats = statSync(path);
+  } catch (error) {
+    throw cannotRead(path, error, hint);
+  }
+  if (!stats.isFile()) {
+    throw new InputError(`cannot read ${path}: it is ${fileKind(stats)}, not a regular file`, { file: path }, hint ?? "name a regular file (or a link to one)");
+  }
+  return stats;
+}
+
+function fileKind(stats: Stats): string {
+  if (stats.isDirectory()) return "a directory";
+  if (stats.isFIFO()) return "a named pipe (FIFO)";
+  if (stats.isCharacterDevice()) return "a character device";
+  if (stats.isBlockDevice()) return "a block device";
+  if (stats.isSocket()) return "a socket";
+  return "not a regular file";
+}
+
+function tooLarge(path: string, size: number, limit: number, what: string): InputError {
+  return new InputError(
+    `${what} is ${size.toLocaleString("en-US")} bytes, more than the limit of ${limit.toLocaleString("en-US")} bytes (${limit / 2 ** 20} MiB)`,
+    { file: path },
+    `check that this is the ${what} you meant`,
+  );
 }
 
 /**
@@ -52,6 +142,7 @@ export class TextFileReader {
    * A missing or unreadable file, or one over 2 GiB, is the InputError `read` gives.
    */
   readBytes(path: string, hint?: string): Buffer {
+    requireRegularFile(path, hint);
     try {
       const length = this.readWhole(path); // may replace this.buffer
       return this.buffer.subarray(0, length);
@@ -64,7 +155,9 @@ export class TextFileReader {
   private readWhole(path: string): number {
     const fd = openSync(path, "r");
     try {
-      const size = fstatSync(fd).size;
+      const stats = fstatSync(fd);
+      if (!stats.isFile()) throw new Error("not a regular file");
+      const size = stats.size;
       // What readFileSync(path, "utf8") says of a file over 2 GiB (smaller ones fail alike when decoded).
       if (size > MAX_WHOLE_FILE_BYTES) {
         throw new Error(`Cannot create a string longer than 0x${constants.MAX_STRING_LENGTH.toString(16)} characters`);
@@ -103,10 +196,13 @@ export class InputFile {
   ) {}
 
   static open(path: string, hint?: string): InputFile {
+    requireRegularFile(path, hint);
     let fd: number | undefined;
     try {
       fd = openSync(path, "r");
-      return new InputFile(path, fd, fstatSync(fd).size, hint);
+      const stats = fstatSync(fd);
+      if (!stats.isFile()) throw new Error("not a regular file");
+      return new InputFile(path, fd, stats.size, hint);
     } catch (error) {
       if (fd !== undefined) closeSync(fd);
       throw cannotRead(path, error, hint);

@@ -1,7 +1,9 @@
 import { InputError } from "../errors.js";
 import { isMissingCell } from "./participants.js";
-import { readTextFile } from "./readInputFile.js";
-import { parseTsv } from "./tsv.js";
+import { parseTsv, readTableText } from "./tsv.js";
+
+/** A regions table's missing-value codes (BIDS): `n/a` and an empty cell; `NA` may be a label. */
+const REGION_MISSING_VALUES: readonly string[] = ["", "n/a"];
 
 /** One network node: its label and, optionally, coordinates, hemisphere and system (module). */
 export interface Region {
@@ -50,7 +52,7 @@ export function parseRegions(text: string, file: string, expectedCount?: number)
     const row = rows[r];
     const line = lines[r];
     const label = row[labelColumn];
-    if (isMissingCell(label)) {
+    if (isMissingCell(label, REGION_MISSING_VALUES)) {
       throw new InputError(`region ${r + 1} has no label`, { file, line, column: labelColumn + 1 });
     }
     const earlier = lineOfLabel.get(label);
@@ -81,8 +83,8 @@ export function parseRegions(text: string, file: string, expectedCount?: number)
       region.y = y;
       region.z = z;
     }
-    if (hemisphereColumn >= 0 && !isMissingCell(row[hemisphereColumn])) region.hemisphere = row[hemisphereColumn];
-    if (systemColumn >= 0 && !isMissingCell(row[systemColumn])) region.system = row[systemColumn];
+    if (hemisphereColumn >= 0 && !isMissingCell(row[hemisphereColumn], REGION_MISSING_VALUES)) region.hemisphere = row[hemisphereColumn];
+    if (systemColumn >= 0 && !isMissingCell(row[systemColumn], REGION_MISSING_VALUES)) region.system = row[systemColumn];
     regions.push(region);
   }
 
@@ -100,7 +102,7 @@ export function parseRegions(text: string, file: string, expectedCount?: number)
 
 /** Reads and parses a regions table; an unreadable file is an InputError naming it. */
 export function readRegions(path: string, expectedCount?: number): Region[] {
-  return parseRegions(readTextFile(path), path, expectedCount);
+  return parseRegions(readTableText(path, "the regions table"), path, expectedCount);
 }
 
 /** Regions labelled "1" … "N", for matrices given without a regions table. */

@@ -1,5 +1,5 @@
 import { InputError } from "../errors.js";
-import { readTextFile } from "./readInputFile.js";
+import { TABLE_FILE_LIMIT_BYTES, readTextInput } from "./readInputFile.js";
 
 /**
  * A tab-separated table with a header row (the layout of BIDS `.tsv` files).
@@ -66,8 +66,13 @@ export function parseTsv(text: string, file: string): LocatedTsvTable {
 }
 
 /** Reads and parses a tab-separated file; an unreadable file is an InputError naming it. */
-export function readTsv(path: string): LocatedTsvTable {
-  return parseTsv(readTextFile(path), path);
+export function readTsv(path: string, what = "the table"): LocatedTsvTable {
+  return parseTsv(readTableText(path, what), path);
+}
+
+/** A table's text: a regular file of at most 256 MiB in valid UTF-8 (see readTextInput). */
+export function readTableText(path: string, what = "the table"): string {
+  return readTextInput(path, { limitBytes: TABLE_FILE_LIMIT_BYTES, what });
 }
 
 function checkHeader(names: string[], file: string, line: number): void {

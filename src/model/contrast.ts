@@ -1,3 +1,4 @@
+import { CholeskyDecomposition, Matrix, solve } from "ml-matrix";
 import { InputError, type InputLocation } from "../errors.js";
 import type { DesignMatrix } from "./designMatrix.js";
 import { rankReport } from "./rank.js";
@@ -19,6 +20,8 @@ export interface Contrast {
   rows: Float64Array[];
   /** The expression as written, for reports. */
   expression: string;
+  /** How a contrast was read when that differs from what its form suggests (a factor named alone that has one column). */
+  note?: string;
 }
 
 /** A contrast as the design file may write it: one expression or vector, or several rows (an F contrast). */
@@ -126,11 +129,28 @@ export function parseContrast(
   } else if (typeof expression === "string") {
     const term = termColumns(expression.trim(), design);
     if (term && term.length > 1) rowExpressions = term.map((j) => Array.from({ length: design.cols }, (_, k) => (k === j ? 1 : 0)));
+    if (term && term.length === 1) {
+      // A factor term named alone with one column (a two-level factor): its F test has one row, and an F
+      // with one row is the square of the t of that column, so it is tested as that t contrast.
+      const vector = new Float64Array(design.cols);
+      vector[term[0]] = 1;
+      checkContrastVariance([vector], design, where);
+      const column = design.columns[term[0]].name;
+      return {
+        name,
+        kind: "t",
+        vector,
+        rows: [vector],
+        expression: expression.trim(),
+        note: `'${name}' names '${expression.trim()}' alone, which has one design column (${column}): tested as the t contrast ${column} (an F test of one row is this t squared; with \`tail: both\` the two p-values are the same)`,
+      };
+    }
   }
   if (rowExpressions) {
     if (rowExpressions.length === 0) throw new InputError("an F contrast needs at least one row", where);
     const rows = rowExpressions.map((row, k) => parseContrastRow(`${name} row ${k + 1}`, row, design, where).vector);
     checkIndependentRows(rows, where);
+    checkContrastVariance(rows, design, where);
     const written = typeof expression === "string" ? expression.trim() : JSON.stringify(expression);
     if (rows.length === 1) return { name, kind: "t", vector: rows[0], rows, expression: written };
     return { name, kind: "F", vector: rows[0], rows, expression: written };
@@ -192,10 +212,21 @@ function parseContrastRow(
     }
     if (!expression.every(Number.isFinite)) throw new InputError("a contrast vector must list finite numbers", where);
     expression.forEach((v, j) => (vector[j] = v));
+
   } else {
     written = expression.trim();
     if (written === "") throw new InputError("the contrast is empty", where);
-    for (const { coefficient, body } of splitTerms(written, where)) {
+    const term = termColumns(written, design);
+    if (term && term.length > 1) {
+      const columns = term.map((j) => columnNames[j]);
+      throw new InputError(
+        `'${written}' has ${term.length} design columns (${columns.join(", ")}), so it is not one row of a contrast`,
+        where,
+        `name one column per row, e.g. [${columns.join(", ")}] as the rows of an F contrast, or make '${written}' the whole contrast (not a list) to test all its columns`,
+      );
+    }
+    if (term) vector[term[0]] = 1;
+    for (const { coefficient, body } of term ? [] : splitTerms(written, where)) {
       if (body === "intercept") {
         const j = columnNames.indexOf("intercept");
         if (j < 0) throw new InputError("the contrast names the intercept, but the model has none", where);
@@ -214,7 +245,7 @@ function parseContrastRow(
         }
         if (variable.kind === "factor" && atom.level === undefined) {
           throw new InputError(
-            `'${atom.variable}' is a factor: name a level, e.g. ${atom.variable}[${variable.levels[1]}] - ${atom.variable}[${variable.levels[0]}], or write '${atom.variable}' alone for an F test of all its levels`,
+            `'${atom.variable}' is a factor: inside the expression '${written}' name one of its levels, e.g. ${atom.variable}[${variable.levels[1]}] - ${atom.variable}[${variable.levels[0]}] (a contrast that is '${atom.variable}' and nothing else tests all its levels)`,
             where,
           );
         }
@@ -260,7 +291,12 @@ function parseContrastRow(
       where,
     );
   }
+  const notFinite = vector.findIndex((v) => !Number.isFinite(v));
+  if (notFinite >= 0) {
+    throw new InputError(`the contrast '${written}' gives the column '${columnNames[notFinite]}' a weight that is not a finite number (a number in it overflows)`, where, "write weights of ordinary size, e.g. `age` or `0.5*site[b] + 0.5*site[c]`");
+  }
   checkEstimable(vector, design, where, written);
+  checkContrastVariance([vector], design, where);
   return { name, kind: "t", vector, rows: [vector], expression: written };
 }
 
@@ -274,4 +310,35 @@ function checkEstimable(vector: Float64Array, design: DesignMatrix, where: Input
   if (report.rank === design.cols) return;
   const involved = vector.reduce<string[]>((list, v, j) => (v !== 0 ? [...list, design.columns[j].name] : list), []);
   throw new InputError(`the contrast '${written}' is not estimable in this design (columns ${involved.join(", ")})`, where);
+}
+
+/**
+ * The contrast's variance factor must be usable: c'(X'X)⁻¹c finite and
+ * positive for a t contrast, C(X'X)⁻¹C' finite and positive definite for an
+ * F contrast (rows of huge or tiny weights overflow or vanish), else every
+ * edge's statistic would be empty.
+ */
+function checkContrastVariance(rows: Float64Array[], design: DesignMatrix, where: InputLocation): void {
+  const p = design.cols;
+  const x = new Matrix(design.rows, p);
+  for (let i = 0; i < design.rows; i++) for (let j = 0; j < p; j++) x.set(i, j, design.values[i * p + j]);
+  const c = new Matrix(rows.map((r) => Array.from(r)));
+  let usable: boolean;
+  try {
+    const raw = c.mmul(solve(x.transpose().mmul(x), c.transpose()));
+    const product = raw.clone().add(raw.transpose()).mul(0.5); // symmetric up to rounding; Cholesky needs it exactly
+    const finite = product.to1DArray().every(Number.isFinite);
+    usable = finite && (rows.length === 1 ? product.get(0, 0) > 0 : new CholeskyDecomposition(product).isPositiveDefinite());
+  } catch {
+    usable = false;
+  }
+  if (!usable) {
+    throw new InputError(
+      rows.length === 1
+        ? "this contrast's variance factor c'(X'X)⁻¹c is not a finite positive number (its weights overflow or vanish), so no edge would have a statistic"
+        : "this F contrast's matrix C(X'X)⁻¹C' is not finite and invertible (its weights overflow or vanish), so no edge would have a statistic",
+      where,
+      "write weights of ordinary size (e.g. 1 or 0.5)",
+    );
+  }
 }

@@ -93,9 +93,15 @@ export function buildDesignMatrix(
       modelKey,
     );
   }
+  const notFinite = columns.findIndex((_, j) => data[j].some((v) => !Number.isFinite(v)));
+  if (notFinite >= 0) {
+    throw new InputError(`the design column '${columns[notFinite].name}' has a value that is not a finite number`, modelKey);
+  }
   const report = rankReport(values, rows, cols);
   if (report.rank < cols) {
-    const sets = report.collinearSets.map((set) => set.map((j) => columns[j].name).join(", "));
+    const named = report.collinearSets.filter((set) => set.length > 0);
+    if (named.length === 0) named.push(columns.map((_, j) => j));
+    const sets = named.map((set) => set.map((j) => columns[j].name).join(", "));
     throw new InputError(
       `the design is rank-deficient (rank ${report.rank} of ${cols} columns): ${sets
         .map((s) => (s.includes(",") ? `columns ${s} are collinear` : `column ${s} is zero or constant-duplicate`))

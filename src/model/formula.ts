@@ -55,7 +55,16 @@ function tokenize(source: string, where: InputLocation): Token[] {
 
 /** Parses a model formula; `where` locates it (design file and key) for errors. */
 export function parseFormula(source: string, where: InputLocation = { key: "model" }): Formula {
-  const text = source.replace(/^\s*[A-Za-z_.][A-Za-z0-9_.]*\s*~/, "").trim();
+  const outsideBackticks = source.replace(/`[^`]*`/g, "``");
+  if (outsideBackticks.includes("~")) {
+    const right = outsideBackticks.slice(outsideBackticks.lastIndexOf("~") + 1).trim() === "" ? "" : source.slice(source.lastIndexOf("~") + 1).trim();
+    throw new InputError(
+      `the model formula '${source.trim()}' has a '~': the response is always the connectivity of each edge, so the model is only the right-hand side`,
+      where,
+      `write \`model: ${right === "" ? "group + age" : right}\``,
+    );
+  }
+  const text = source.trim();
   if (text === "") throw new InputError("the model formula is empty", where, "e.g. `model: group + age + sex`");
   const tokens = tokenize(text, where);
   let pos = 0;

@@ -39,6 +39,14 @@ export function codeVariable(
   const categorical = options.levels !== undefined || values.some((v) => !isNumericText(v));
   if (!categorical) {
     const numbers = Float64Array.from(values, (v) => Number(v));
+    const overflow = numbers.findIndex((v) => !Number.isFinite(v));
+    if (overflow >= 0) {
+      throw new InputError(
+        `'${name}' has the value '${values[overflow]}', which is not a finite number`,
+        { file: source.file, line: source.lines[overflow] },
+        "correct the participants table",
+      );
+    }
     const first = numbers[0];
     if (numbers.every((v) => v === first)) {
       throw new InputError(

@@ -145,7 +145,8 @@ export function componentsTable(components: ComponentSummary[], inference: Compo
  */
 export function subjectsTable(prepared: PreparedAnalysis): string {
   const columns = formulaVariables(prepared.formula);
-  if (prepared.blocks && !columns.includes(prepared.blocks.column)) columns.push(prepared.blocks.column);
+  const blockColumn = prepared.blocks?.column;
+  if (blockColumn !== undefined && blockColumn !== "participant_id" && !columns.includes(blockColumn)) columns.push(blockColumn);
   const excluded = new Map(prepared.excluded.map((x) => [x.id, x.reason]));
   const { participants } = prepared;
   const rows: Cell[][] = participants.ids.map((id, row) => [

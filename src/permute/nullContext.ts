@@ -1,10 +1,13 @@
-import { InputError, type InputLocation } from "../errors.js";
+import type { InputLocation } from "../errors.js";
 import { thresholdsOf, type InferenceSpec } from "../io/designFile.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { partitionEffect, partitionEffectRows, reducedResiduals, type EffectPartition } from "./effectPartition.js";
 import type { NullContext } from "./nullRange.js";
+import { checkWholeBlockSizes, chooseScheme } from "./exchangeability.js";
 import { designRowTypes, planRelabelings, type SchemeKind } from "./relabelings.js";
+
+export { chooseScheme } from "./exchangeability.js";
 
 export interface NullSetup {
   context: NullContext;
@@ -17,33 +20,6 @@ export interface NullSetup {
 /** Allocates a Float64Array that worker threads can read without copying. */
 export function sharedFloat64(length: number): Float64Array {
   return new Float64Array(new SharedArrayBuffer(length * Float64Array.BYTES_PER_ELEMENT));
-}
-
-/**
- * Chooses the scheme (Winkler et al. 2014): a contrast on the constant term
- * (the one-sample case, or paired differences) cannot be tested by permuting
- * rows and is tested by sign flips; any other contrast by Freedman–Lane
- * permutation of the reduced-model residuals.
- */
-export function chooseScheme(partition: Pick<EffectPartition, "constantInModel" | "constantInNuisance" | "effectNorm2">, requested: InferenceSpec["scheme"], where: InputLocation): {
-  scheme: SchemeKind;
-  reason: string;
-} {
-  const testsConstant = partition.constantInModel && !partition.constantInNuisance;
-  if (requested === "permute") {
-    if (testsConstant || !(partition.effectNorm2 > 0)) {
-      throw new InputError(
-        "this contrast tests the constant term (a one-sample mean), which permuting rows cannot change",
-        where,
-        "use `scheme: sign-flip` (or leave `scheme: auto`)",
-      );
-    }
-    return { scheme: "permute", reason: "requested in the design" };
-  }
-  if (requested === "sign-flip") return { scheme: "sign-flip", reason: "requested in the design" };
-  return testsConstant
-    ? { scheme: "sign-flip", reason: "the contrast tests the constant term (one-sample design), so signs are flipped" }
-    : { scheme: "permute", reason: "Freedman–Lane permutation of the reduced-model residuals" };
 }
 
 export function buildNullContext(options: {
@@ -84,17 +60,7 @@ export function buildNullContext(options: {
   const reduced = reducedResiduals(data, S, edges, partition.nuisanceBasis, residuals);
   const valid = Uint8Array.from(observed, (t) => (Number.isFinite(t) ? 1 : 0));
   const blocks = options.blocks ? [...options.blocks] : undefined;
-  if (blocks && inference.blockPermutation === "whole") {
-    const sizes = new Map<number, number>();
-    for (const b of blocks) sizes.set(b, (sizes.get(b) ?? 0) + 1);
-    if (new Set(sizes.values()).size > 1) {
-      throw new InputError(
-        "whole-block permutation needs exchangeability blocks of equal size",
-        { ...options.where, key: "inference.block_permutation" },
-        "use `block_permutation: within`, or blocks of equal size",
-      );
-    }
-  }
+  if (blocks && inference.blockPermutation === "whole") checkWholeBlockSizes(blocks, options.where);
   const plan = planRelabelings({
     kind: scheme,
     rowTypes: designRowTypes(matrix.values, S, matrix.cols),

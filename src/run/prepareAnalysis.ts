@@ -3,15 +3,23 @@ import { InputError } from "../errors.js";
 import { loadConnectomes, resolveTemplate, type ConnectomeSource, type ConnectomeSubject, type LoadedConnectomes } from "../io/connectomes.js";
 import { designKeyLocation, readDesign, type DesignSpec } from "../io/designFile.js";
 import { nearestName } from "../io/nearestName.js";
-import { readParticipants, type ParticipantsTable } from "../io/participants.js";
+import { checkModelColumns } from "../io/numericCells.js";
+import { printable } from "../io/printable.js";
+import { checkTemplateValues } from "../io/templateValues.js";
+import { PARTICIPANT_ID, readParticipants, type ParticipantsTable } from "../io/participants.js";
 import { defaultRegions, readRegions, type Region } from "../io/regions.js";
+import { contrastStatistics } from "../edges/contrastStatistics.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
+import { fitEdges } from "../edges/fitEdges.js";
+import { contrastFStatistics } from "../edges/fStatistics.js";
 import { parseContrast, type Contrast } from "../model/contrast.js";
 import { buildDesignMatrix, type DesignMatrix } from "../model/designMatrix.js";
 import { formulaVariables, parseFormula, type Formula } from "../model/formula.js";
 import { codeVariable, type Variable } from "../model/variables.js";
 import type { GuardedInputs } from "../output/inputOverlap.js";
 import { contrastFolderProblem } from "../output/reservedNames.js";
+import { checkRelabelings } from "../permute/exchangeability.js";
+import { checkEnhancementLevels } from "./enhancementLevels.js";
 
 export interface ExcludedSubject {
   id: string;
@@ -95,7 +103,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     );
   }
   const participantsPath = path.resolve(design.baseDir, design.subjects);
-  const participants = readParticipants(participantsPath);
+  const participants = readParticipants(participantsPath, design.missingValues);
   const available = participants.header;
 
   const needed = formulaVariables(formula);
@@ -109,6 +117,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
       );
     }
   }
+  checkModelColumns(participants, needed, new Set(Object.keys(design.levels)));
   for (const factor of Object.keys(design.levels)) {
     if (!needed.includes(factor)) {
       throw new InputError(`'levels' names '${factor}', which is not in the model`, where("levels"));
@@ -118,6 +127,13 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     if (!needed.includes(name)) throw new InputError(`'center' names '${name}', which is not in the model`, where("center"));
   }
   const blockColumn = design.inference.blocks;
+  if (blockColumn === PARTICIPANT_ID) {
+    throw new InputError(
+      `the exchangeability blocks column cannot be '${PARTICIPANT_ID}': every block would hold one subject`,
+      where("inference.blocks"),
+      "name a column that groups several subjects (e.g. family or site), or remove `blocks:`",
+    );
+  }
   if (blockColumn !== undefined && !participants.columns.has(blockColumn)) {
     const near = nearestName(blockColumn, available);
     throw new InputError(
@@ -140,14 +156,14 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     throw new InputError(
       `no subject has values in every model column (${checked.join(", ")})`,
       { file: participants.file },
-      "check for n/a cells in those columns",
+      `check for missing values (${design.missingValues.map((v) => JSON.stringify(v)).join(", ")}) in those columns`,
     );
   }
   const warnings: string[] = [];
   if (excluded.length > 0) {
     warnings.push(
       `${excluded.length} subject${excluded.length > 1 ? "s" : ""} left out for missing values: ${excluded
-        .map((x) => `${x.id} (${x.reason})`)
+        .map((x) => `${printable(x.id)} (${x.reason})`)
         .join("; ")}`,
     );
   }
@@ -177,6 +193,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   const contrasts = design.contrasts.map((spec) =>
     parseContrast(spec.name, spec.expression, matrix, { file: design.file, key: spec.key, line: spec.line }),
   );
+  for (const contrast of contrasts) if (contrast.note) warnings.push(contrast.note);
   for (const [k, contrast] of contrasts.entries()) {
     if (contrast.kind === "F" && inference.tail !== "upper") {
       const spec = design.contrasts[k];
@@ -195,8 +212,21 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     const labels = [...new Set(values)];
     blocks = { column: blockColumn, codes: Int32Array.from(values, (v) => labels.indexOf(v)), labels };
   }
+  if (inference.method !== "fdr") {
+    checkRelabelings({
+      matrix,
+      contrasts,
+      contrastWhere: design.contrasts.map((spec) => ({ file: design.file, key: spec.key, line: spec.line })),
+      inference,
+      blocks: blocks?.codes,
+      where,
+    });
+  }
 
   const source = connectomeSource(design);
+  if (source.kind === "template") {
+    checkTemplateValues(source.template, participants, kept.map((k) => k.tableRow), "connectomes");
+  }
   const subjectOfRow = (row: number): ConnectomeSubject => ({
     id: participants.ids[row],
     tableRow: row,
@@ -216,6 +246,15 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   );
   if (connectomes.regionCount < 2) {
     throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
+  }
+  if (inference.method === "threshold-free") {
+    // The enhancement's work grows with the largest statistic ÷ step: fit once here, so that `check` and a run
+    // refuse a step that is too fine before any checkpoint or relabeling.
+    const fit = fitEdges(matrix.values, matrix.rows, matrix.cols, connectomes.data, connectomes.edgeCount);
+    for (const contrast of contrasts) {
+      const statistic = contrast.kind === "F" ? contrastFStatistics(fit, contrast.rows).statistic : contrastStatistics(fit, contrast.vector).statistic;
+      checkEnhancementLevels(statistic, inference, where("inference.enhancement.step"));
+    }
   }
   const regions = regionsPath ? readRegions(regionsPath, connectomes.regionCount) : defaultRegions(connectomes.regionCount);
 

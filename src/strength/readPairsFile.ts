@@ -12,7 +12,7 @@ import { readTsv } from "../io/tsv.js";
  * Returns the edge indices in ascending order.
  */
 export function readPairsFile(file: string, regions: Region[]): Uint32Array {
-  const table = readTsv(file);
+  const table = readTsv(file, "the edge list");
   const columnOf = (name: string) => {
     const index = table.header.indexOf(name);
     if (index < 0) {

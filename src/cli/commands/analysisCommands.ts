@@ -4,14 +4,15 @@ import { prepareAnalysis } from "../../run/prepareAnalysis.js";
 import { runAnalysis } from "../../run/runAnalysis.js";
 import { mergeShards } from "../../run/mergeShards.js";
 import { InputError } from "../../errors.js";
+import { printable } from "../../io/printable.js";
 import { silentProgress, stderrProgress } from "../progress.js";
 import type { OutputSink } from "../main.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */
 export function registerAnalysisCommands(program: Command, sink: OutputSink, argv: () => string[]): void {
   const log = {
-    info: (text: string) => sink.err(`${text}\n`),
-    warn: (text: string) => sink.err(`plexus: warning: ${text}\n`),
+    info: (text: string) => sink.err(`${printable(text)}\n`),
+    warn: (text: string) => sink.err(`plexus: warning: ${printable(text)}\n`),
   };
   program
     .command("check")
@@ -32,8 +33,8 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
         ),
         `inference   ${design.inference.method}, threshold ${design.inference.threshold}, size ${design.inference.size}, tail ${design.inference.tail}, alpha ${design.inference.alpha}`,
       ];
-      for (const warning of prepared.warnings) sink.err(`plexus: warning: ${warning}\n`);
-      sink.out(`${lines.join("\n")}\nok: the design and its inputs are valid\n`);
+      for (const warning of prepared.warnings) log.warn(warning);
+      sink.out(`${printable(lines.join("\n"))}\nok: the design and its inputs are valid\n`);
     });
 
   program

@@ -6,6 +6,7 @@ import { MEASURE_KINDS, OPTION, type EdgeSelection, type MeasureKind } from "../
 import type { OutputSink } from "../main.js";
 import { silentProgress, stderrProgress } from "../progress.js";
 import { parseThreads } from "./analysisCommands.js";
+import { printable } from "../../io/printable.js";
 
 /** The flags as commander hands them over: text, or booleans for switches. */
 interface SelectionFlags {
@@ -81,8 +82,8 @@ function parseMeasure(text: string | undefined): MeasureKind | undefined {
 /** `plexus strength DESIGN --out DIR` and `plexus extract DESIGN --from … --out FILE`. */
 export function registerStrength(program: Command, sink: OutputSink, argv: () => string[]): void {
   const log = {
-    info: (text: string) => sink.err(`${text}\n`),
-    warn: (text: string) => sink.err(`plexus: warning: ${text}\n`),
+    info: (text: string) => sink.err(`${printable(text)}\n`),
+    warn: (text: string) => sink.err(`plexus: warning: ${printable(text)}\n`),
   };
   program
     .command("strength")

@@ -34,6 +34,7 @@ describe("parseDesign: a minimal design and the defaults", () => {
     expect(design.regions).toBeUndefined();
     expect(design.model).toBe("group + age");
     expect(design.levels).toEqual({});
+    expect(design.missingValues).toEqual(["", "n/a", "N/A", "NA", "NaN", "nan"]);
     expect(design.center).toEqual([]);
     expect(design.contrasts).toEqual([{ name: "up", expression: "group[patient] - group[control]", key: "contrasts.up", line: 5 }]);
     expect(design.transform).toBe("none");
@@ -261,7 +262,7 @@ describe("parseDesign: unknown keys (line and a did-you-mean hint)", () => {
       file: FILE,
       line: 6,
       key: "zzzzzzzzzz",
-      hint: /valid keys: subjects, connectomes, regions, model, levels, center, contrasts, transform, symmetrize, asymmetry_tolerance, inference/,
+      hint: /valid keys: subjects, connectomes, regions, model, missing_values, levels, center, contrasts, transform, symmetrize, asymmetry_tolerance, inference/,
     });
     expectInputError(() => parseDesign(withBase("inference:", "  qqqqqqqqqqqq: 1"), FILE), {
       file: FILE,
@@ -315,6 +316,22 @@ describe("parseDesign: bad values (InputError at the key and its line)", () => {
     ["inference:\n  alpha: 0", "inference.alpha", 7, /between 0 and 1/],
     ["inference:\n  blocks: ''", "inference.blocks", 7, /names a column/],
     ["inference:\n  blocks: [site]", "inference.blocks", 7, /names a column/],
+    // Numbers that overflow a double (YAML reads 1e400 as Infinity) are refused by key, as written.
+    ["asymmetry_tolerance: 1e400", "asymmetry_tolerance", 6, /must be a finite number ≥ 0; found '1e400'/],
+    ["inference:\n  threshold: 1e400", "inference.threshold", 7, /positive number .*; found '1e400'/],
+    ["inference:\n  threshold: [2, 1e400]", "inference.threshold", 7, /positive finite numbers/],
+    ["inference:\n  alpha: 1e400", "inference.alpha", 7, /found '1e400'/],
+    ["inference:\n  permutations: 1e400", "inference.permutations", 7, /found '1e400'/],
+    ["inference:\n  seed: 1e400", "inference.seed", 7, /found '1e400'/],
+    ["inference:\n  enhancement:\n    step: 1e400", "inference.enhancement.step", 8, /found '1e400'/],
+    ["inference:\n  enhancement:\n    height_exponent: -1e400", "inference.enhancement.height_exponent", 8, /found '-1e400'/],
+    ["levels:\n  site: [1e400, 2]", "levels", 6, /texts or finite numbers/],
+    // missing_values: quoted texts, bounded.
+    ["missing_values: 3", "missing_values", 6, /'missing_values' lists the cell texts read as missing/],
+    ["missing_values: [NA, -999]", "missing_values", 6, /quoted texts/],
+    ["missing_values: {a: b}", "missing_values", 6, /quoted texts/],
+    ["missing_values: [' NA']", "missing_values", 6, /without tabs or surrounding spaces/],
+    [`missing_values: [${Array.from({ length: 101 }, (_, k) => `"m${k}"`).join(", ")}]`, "missing_values", 6, /up to 100/],
   ];
   for (const [text, key, line, message] of bad) {
     it(`'${text.replace(/\n\s*/g, " ")}' → ${key}:${line}`, () => {
@@ -438,5 +455,31 @@ describe("parseDesign never throws anything but an InputError (fast-check)", () 
       }),
       { seed: 33, numRuns: 1000 },
     );
+  });
+});
+
+describe("parseDesign: bounded lists", () => {
+  it("more than 1000 contrasts are refused, naming the limit", () => {
+    const many = ["contrasts:", ...Array.from({ length: 1001 }, (_, k) => `  c${k}: age`)];
+    const text = ["subjects: p.tsv", "connectomes: c/{participant_id}.tsv", "model: age", ...many].join("\n");
+    expectInputError(() => parseDesign(text, FILE), { file: FILE, key: "contrasts", line: 4, message: [/1001 contrasts, more than the limit of 1000/] });
+  });
+
+  it("a threshold list of more than 20 is refused, naming the limit", () => {
+    const list = Array.from({ length: 21 }, (_, k) => 2 + k / 10).join(", ");
+    expectInputError(() => parseDesign(withBase(`inference:\n  threshold: [${list}]`), FILE), {
+      file: FILE,
+      key: "inference.threshold",
+      line: 7,
+      message: [/1 to 20 different/],
+    });
+  });
+});
+
+describe("parseDesign: missing_values", () => {
+  it("replaces the default list of cell texts read as missing", () => {
+    expect(parseDesign(withBase('missing_values: ["", "-999", "NA"]'), FILE).missingValues).toEqual(["", "-999", "NA"]);
+    expect(parseDesign(withBase("missing_values: []"), FILE).missingValues).toEqual([]);
+    expect(parseDesign(withBase("missing_values: missing"), FILE).missingValues).toEqual(["missing"]);
   });
 });

@@ -57,6 +57,38 @@ describe("parseParticipants", () => {
     });
   });
 
+  it("reads every default missing-value code as null: empty, n/a, N/A, NA, NaN, nan (and nothing else)", () => {
+    const text = "participant_id\tage\ns1\t\ns2\tn/a\ns3\tN/A\ns4\tNA\ns5\tNaN\ns6\tnan\ns7\tna\ns8\tNULL\ns9\t41\n";
+    const table = parseParticipants(text, "p.tsv");
+    expect(table.columns.get("age")).toEqual([null, null, null, null, null, null, "na", "NULL", "41"]);
+  });
+
+  it("takes the missing-value codes as a parameter (the design's missing_values)", () => {
+    const text = "participant_id\tage\ns1\t-999\ns2\tNA\ns3\t\n";
+    expect(parseParticipants(text, "p.tsv", ["-999"]).columns.get("age")).toEqual([null, "NA", ""]);
+    expect(parseParticipants(text, "p.tsv", []).columns.get("age")).toEqual(["-999", "NA", ""]);
+  });
+
+  it("a participant_id that is a missing-value code is an error naming the line", () => {
+    expectInputError(() => parseParticipants("participant_id\tage\ns1\t3\nNA\t4\n", "p.tsv"), {
+      file: "p.tsv",
+      line: 3,
+      column: 1,
+      message: ["missing participant_id ('NA' is a missing-value code)"],
+    });
+    expect(parseParticipants("participant_id\tage\nNA\t4\n", "p.tsv", ["n/a"]).ids).toEqual(["NA"]);
+  });
+
+  it("control characters of an ID are escaped in messages", () => {
+    const error = expectInputError(() => parseParticipants("participant_id\tage\ns\u001b[31m\t3\ns\u001b[31m\t4\n", "p.tsv"), {
+      file: "p.tsv",
+      line: 3,
+      column: 1,
+    });
+    expect(error.message).toContain("'s\\x1b[31m'");
+    expect(error.message).not.toContain("\u001b");
+  });
+
   it("a header without rows is an 'empty participants table'", () => {
     expectInputError(() => parseParticipants("participant_id\tage\n\n", "p.tsv"), {
       file: "p.tsv",

@@ -1,9 +1,14 @@
-import { mkdirSync, mkdtempSync, rmSync, truncateSync, writeFileSync } from "node:fs";
+import { execFileSync } from "node:child_process";
+import { mkdirSync, mkdtempSync, rmSync, symlinkSync, truncateSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { InputError } from "../../../src/errors.js";
-import { InputFile, TextFileReader, readTextFile } from "../../../src/io/readInputFile.js";
+import { readDesign } from "../../../src/io/designFile.js";
+import { readParticipants } from "../../../src/io/participants.js";
+import { DESIGN_FILE_LIMIT_BYTES, InputFile, TextFileReader, readTextFile, readTextInput } from "../../../src/io/readInputFile.js";
+import { readRegions } from "../../../src/io/regions.js";
+import { readPairsFile } from "../../../src/strength/readPairsFile.js";
 import { expectInputError } from "./inputErrorAssertions.js";
 
 let dir: string;
@@ -130,14 +135,69 @@ describe("InputFile", () => {
     });
   });
 
-  it("a folder is an InputError naming it when read", () => {
+  it("a folder is an InputError naming it when opened (checked with stat, before opening)", () => {
     const folder = join(dir, "folder-input");
     mkdirSync(folder, { recursive: true });
-    const input = InputFile.open(folder);
-    try {
-      expectInputError(() => input.readAt(new Uint8Array(10), 0), { file: folder, message: ["cannot read", "EISDIR"] });
-    } finally {
-      input.close();
-    }
+    expectInputError(() => InputFile.open(folder), { file: folder, message: ["cannot read", "a directory, not a regular file"] });
+  });
+});
+
+describe("only regular files are read, text inputs have a size limit and must be UTF-8", () => {
+  it("a symbolic link to a character device (/dev/zero, which never ends) is refused before it is opened", () => {
+    const link = join(dir, "zero-link.tsv");
+    symlinkSync("/dev/zero", link);
+    expectInputError(() => readTextFile(link), { file: link, message: ["a character device, not a regular file"] });
+    expectInputError(() => readTextInput(link, { limitBytes: 100, what: "the table" }), { file: link, message: ["a character device"] });
+    expectInputError(() => new TextFileReader().readBytes(link), { file: link, message: ["a character device"] });
+    expectInputError(() => InputFile.open(link), { file: link, message: ["a character device"] });
+  });
+
+  it("a named pipe (FIFO) is refused instead of waiting forever for a writer", () => {
+    const fifo = join(dir, "pipe.tsv");
+    execFileSync("mkfifo", [fifo]);
+    expectInputError(() => readTextInput(fifo, { limitBytes: 100, what: "the table" }), { file: fifo, message: ["a named pipe (FIFO), not a regular file"] });
+    expectInputError(() => new TextFileReader().read(fifo), { file: fifo, message: ["a named pipe"] });
+    expectInputError(() => InputFile.open(fifo), { file: fifo, message: ["a named pipe"] });
+  });
+
+  it("a symbolic link to a regular file is read", () => {
+    const target = file("target.tsv", "a\tb\n");
+    const link = join(dir, "link-to-target.tsv");
+    symlinkSync(target, link);
+    expect(readTextInput(link, { limitBytes: 100, what: "the table" })).toBe("a\tb\n");
+  });
+
+  it("a text input over its limit is refused, naming the limit", () => {
+    const big = file("big.yaml", "x".repeat(101));
+    expectInputError(() => readTextInput(big, { limitBytes: 100, what: "the design file" }), {
+      file: big,
+      message: ["the design file is 101 bytes, more than the limit of 100 bytes"],
+    });
+    expect(readTextInput(file("just.yaml", "x".repeat(100)), { limitBytes: 100, what: "the design file" })).toHaveLength(100);
+  });
+
+  it("invalid UTF-8 is an error naming the line of the first bad byte (never replaced silently)", () => {
+    const bad = file("latin1.tsv", Buffer.concat([Buffer.from("participant_id\tsite\nsub-01\tz"), Buffer.from([0xfc]), Buffer.from("rich\n")]));
+    expectInputError(() => readTextInput(bad, { limitBytes: 1000, what: "the table" }), { file: bad, line: 2, message: ["not valid UTF-8"] });
+    const truncated = file("cut.tsv", Buffer.from([0x61, 0x0a, 0x62, 0x0a, 0x63, 0xe2, 0x82]));
+    expectInputError(() => readTextInput(truncated, { limitBytes: 1000, what: "the table" }), { file: truncated, line: 3 });
+  });
+
+  it("valid UTF-8 with a byte-order mark and non-ASCII text is read as readFileSync reads it, without the mark", () => {
+    const good = file("utf8.tsv", "\ufeffrégion\t区域\n");
+    expect(readTextInput(good, { limitBytes: 1000, what: "the table" })).toBe("région\t区域\n");
+  });
+
+  it("the design file, participants, regions and edge-list readers go through these checks", () => {
+    const link = join(dir, "zero-design.yaml");
+    symlinkSync("/dev/zero", link);
+    expectInputError(() => readDesign(link), { file: link, message: ["a character device"] });
+    expectInputError(() => readParticipants(link), { file: link, message: ["a character device"] });
+    expectInputError(() => readRegions(link), { file: link, message: ["a character device"] });
+    expectInputError(() => readPairsFile(link, [{ label: "A" }, { label: "B" }]), { file: link, message: ["a character device"] });
+    const big = file("big-design.yaml", `# ${"x".repeat(DESIGN_FILE_LIMIT_BYTES)}\n`);
+    expectInputError(() => readDesign(big), { file: big, message: ["the design file is", "1 MiB"] });
+    const bad = file("bad-design.yaml", Buffer.concat([Buffer.from("subjects: p.tsv\nmodel: gr"), Buffer.from([0xff]), Buffer.from("oup\n")]));
+    expectInputError(() => readDesign(bad), { file: bad, line: 2, message: ["not valid UTF-8"] });
   });
 });

@@ -129,7 +129,11 @@ describe("parseContrast: every bad expression is an InputError at the contrast's
   const bad: Array<[string, RegExp]> = [
     ["", /empty/],
     ["   ", /empty/],
-    ["group", /'group' is a factor: name a level, e\.g\. group\[patient\] - group\[control\]/],
+    ["2*group", /'group' is a factor: inside the expression '2\*group' name one of its levels, e\.g\. group\[patient\] - group\[control\]/],
+    ["1e400*age", /gives the column 'age' a weight that is not a finite number/],
+    ["age - 1e400*age", /gives the column 'age' a weight that is not a finite number/],
+    ["1e300*age", /variance factor c'\(X'X\)⁻¹c is not a finite positive number/],
+    ["1e-300*age", /variance factor c'\(X'X\)⁻¹c is not a finite positive number/],
     ["site[east]", /'east' is not a level of 'site' \(levels: north, central, south\)/],
     ["age[1]", /'age' is numeric and has no levels/],
     ["sex", /names 'sex', which is not in the model \(group, age, site\)/],
@@ -227,5 +231,35 @@ describe("parseContrast never throws anything but an InputError (fast-check, aga
       }),
       { seed: 5, numRuns: 1000 },
     );
+  });
+});
+
+describe("a factor term named alone with one design column (a two-level factor)", () => {
+  it("is accepted as the t contrast of that column, and says so (an F of one row is that t squared)", () => {
+    const contrast = parseContrast("f", "group", X, WHERE);
+    expect(contrast.kind).toBe("t");
+    expect(Array.from(contrast.vector)).toEqual([0, 1, 0, 0, 0, 0]);
+    expect(contrast.note).toMatch(/one design column \(group\[patient\]\): tested as the t contrast group\[patient\]/);
+  });
+
+  it("is accepted as one row of a list of rows", () => {
+    const contrast = parseContrast("f", ["group", "age"], X, WHERE);
+    expect(contrast.kind).toBe("F");
+    expect(contrast.rows.map((r) => Array.from(r))).toEqual([
+      [0, 1, 0, 0, 0, 0],
+      [0, 0, 1, 0, 0, 0],
+    ]);
+  });
+
+  it("a factor of several columns as one row is refused with advice that differs from the input", () => {
+    const error = expectInputError(() => parseContrast("f", ["site", "age"], X, WHERE), { ...WHERE, message: [/'site' has 2 design columns/] });
+    expect(error.hint).toMatch(/\[site\[central\], site\[south\]\]/);
+  });
+
+  it("an F contrast whose weights overflow C(X'X)⁻¹C' is refused at its key", () => {
+    expectInputError(() => parseContrast("f", [[0, 1e300, 0, 0, 0, 0], [0, 0, 1e300, 0, 0, 0]], X, WHERE), {
+      ...WHERE,
+      message: [/variance factor c'\(X'X\)⁻¹c is not a finite positive number|C\(X'X\)⁻¹C' is not finite and invertible/],
+    });
   });
 });

@@ -145,9 +145,9 @@ describe("buildDesignMatrix vs R model.matrix (lm_contrasts.json)", () => {
     }
   }
 
-  it("the R formula text itself (with its `y ~` response) parses to the same design", () => {
+  it("the R formula's right-hand side (its `y ~` response removed: plexus refuses a '~') parses to the same design", () => {
     for (const model of lm.models) {
-      const fromR = buildFor(model.formula);
+      const fromR = buildFor(model.formula.slice(model.formula.indexOf("~") + 1));
       const fromPlexus = buildFor(PLEXUS_FORMULAS[model.formula][0]);
       expect(fromR.columns).toEqual(fromPlexus.columns);
       expect(Array.from(fromR.values)).toEqual(Array.from(fromPlexus.values));
@@ -270,6 +270,23 @@ describe("buildDesignMatrix refuses designs it cannot estimate, naming the colum
       message: [/rank-deficient/, /rank 3 of 4/, /age, age2/],
     });
     expect(error.hint).toBeDefined();
+  });
+
+  it("a value that is not finite (built by hand; the readers refuse it) is named by column, never a blank rank message", () => {
+    const age = Float64Array.from(lm.data.age);
+    age[1] = Infinity;
+    const variables = new Map<string, Variable>([["age", { name: "age", kind: "numeric", values: age, center: 0 }]]);
+    const error = expectInputError(() => buildDesignMatrix(parseFormula("age"), variables, subjects, MODEL_KEY), {
+      ...MODEL_KEY,
+      message: [/the design column 'age' has a value that is not a finite number/],
+    });
+    expect(error.message).not.toMatch(/column +is/);
+  });
+
+  it("codeVariable refuses a numeric text that overflows, naming its line", () => {
+    const values = lm.data.age.map(String);
+    values[2] = "1e400";
+    expectInputError(() => codeVariable("age", source(values), options), { file: "participants.tsv", line: 4, message: [/'1e400', which is not a finite number/] });
   });
 
   it("a column proportional to another (age in months): collinear columns named", () => {

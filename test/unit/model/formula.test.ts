@@ -14,7 +14,6 @@ const WHERE = { file: "study.yaml", key: "model", line: 7 };
 describe("parseFormula: valid formulas (meaning as in R's ?formula)", () => {
   const cases: Array<[string, Formula]> = [
     ["group + age + sex", { intercept: true, terms: [["group"], ["age"], ["sex"]] }],
-    ["y ~ group + age", { intercept: true, terms: [["group"], ["age"]] }],
     ["group * age", { intercept: true, terms: [["group"], ["age"], ["group", "age"]] }],
     ["group + age + group:age", { intercept: true, terms: [["group"], ["age"], ["group", "age"]] }],
     ["a * b:c", { intercept: true, terms: [["a"], ["b", "c"], ["a", "b", "c"]] }],
@@ -86,7 +85,8 @@ describe("parseFormula: every bad input is an InputError at the given location",
   const bad: Array<[string, RegExp]> = [
     ["", /empty/],
     ["   ", /empty/],
-    ["y ~", /empty/],
+    ["y ~", /has a '~': the response is always the connectivity of each edge/],
+    ["y ~ group + age", /has a '~': the response is always the connectivity of each edge/],
     ["0", /no columns/],
     ["-1", /no columns/],
     ["1 + 0", /no columns/],
@@ -104,8 +104,8 @@ describe("parseFormula: every bad input is an InputError at the given location",
     ["group:", /expected a column name/],
     ["`unclosed + age", /unclosed backtick/],
     ["gr@up", /unexpected character '@' at position 3/],
-    ["~ group", /unexpected character '~' at position 1/],
-    ["y ~ x ~ z", /unexpected character '~'/],
+    ["~ group", /has a '~'/],
+    ["y ~ x ~ z", /has a '~'/],
     ["x + -1", /unexpected '-'/],
     ["group * ", /expected a column name/],
   ];
@@ -114,6 +114,14 @@ describe("parseFormula: every bad input is an InputError at the given location",
       expectInputError(() => parseFormula(text, WHERE), { ...WHERE, message: [message] });
     });
   }
+
+  it("a '~' is refused with the right-hand side to write instead (the edge is the response; y would be dropped silently)", () => {
+    expectInputError(() => parseFormula("y ~ group", WHERE), { ...WHERE, message: [/only the right-hand side/], hint: /`model: group`/ });
+  });
+
+  it("a '~' inside a backtick-quoted column name is part of the name", () => {
+    expect(parseFormula("`a~b` + group", WHERE).terms).toEqual([["a~b"], ["group"]]);
+  });
 
   it("the unexpected-character error carries a hint about backticks", () => {
     expectInputError(() => parseFormula("age²", WHERE), { ...WHERE, message: [/unexpected character/], hint: /backticks/ });
