@@ -6,7 +6,7 @@ import { mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from "node
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { main, type OutputSink } from "../../src/cli/main.js";
+import { runCli } from "../unit/strength/strengthTestFiles.js";
 
 let root = "";
 beforeAll(() => {
@@ -16,13 +16,6 @@ afterAll(() => {
   if (root) rmSync(root, { recursive: true, force: true });
 });
 
-async function runCli(argv: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  let out = "";
-  let err = "";
-  const sink: OutputSink = { out: (t) => void (out += t), err: (t) => void (err += t), errIsTerminal: false };
-  const code = await main(argv, sink);
-  return { code, stdout: out, stderr: err };
-}
 
 const REGIONS = 4;
 

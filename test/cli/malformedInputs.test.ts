@@ -13,7 +13,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import fc from "fast-check";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { main, type OutputSink } from "../../src/cli/main.js";
+import { runCli } from "../unit/strength/strengthTestFiles.js";
 
 const RUNS = Number(process.env.PLEXUS_FUZZ_RUNS ?? 300);
 const REGIONS = 5;
@@ -245,18 +245,6 @@ function snapshot(dir: string, skip: (relative: string) => boolean = () => false
   return files;
 }
 
-function captureSink(): OutputSink & { stdout: () => string; stderr: () => string } {
-  let out = "";
-  let err = "";
-  return {
-    out: (text) => void (out += text),
-    err: (text) => void (err += text),
-    errIsTerminal: false,
-    stdout: () => out,
-    stderr: () => err,
-  };
-}
-
 const LOCATED = /(design\.yaml|participants\.tsv|regions\.tsv|sub-\d+\.tsv|connectomes|results|precious|fresh|study|key ')/;
 
 describe("malformed inputs never lose data and never fail with an internal error (fast-check)", () => {
@@ -282,16 +270,15 @@ describe("malformed inputs never lose data and never fail with an internal error
                 ...(testCase.force ? ["--force"] : []),
                 ...(testCase.resume ? ["--resume"] : []),
               ];
-        const sink = captureSink();
-        const code = await main(argv, sink);
-        const context = `case ${caseNumber}: ${JSON.stringify(testCase)}\nstderr: ${sink.stderr()}`;
+        const { code, stdout, stderr } = await runCli(argv);
+        const context = `case ${caseNumber}: ${JSON.stringify(testCase)}\nstderr: ${stderr}`;
 
         expect(code, context).not.toBe(1);
         expect([0, 2], context).toContain(code);
-        expect(sink.stderr(), context).not.toMatch(/internal error|\n\s+at /);
-        if (code === 2) expect(/plexus: error: .*/.exec(sink.stderr())?.[0], context).toMatch(LOCATED);
+        expect(stderr, context).not.toMatch(/internal error|\n\s+at /);
+        if (code === 2) expect(/plexus: error: .*/.exec(stderr)?.[0], context).toMatch(LOCATED);
         // age is numeric in every case: a stray cell must never turn it into a factor silently.
-        if (code === 0 && testCase.command === "check") expect(sink.stdout(), context).not.toMatch(/age\[/);
+        if (code === 0 && testCase.command === "check") expect(stdout, context).not.toMatch(/age\[/);
 
         // Inputs unchanged, nothing added or removed outside --out and its checkpoint.
         const outside = (relative: string) => {
@@ -335,9 +322,8 @@ describe("malformed inputs never lose data and never fail with an internal error
 
   it("the unmutated study runs (the fuzz starts from a valid study)", async () => {
     const dir = writeStudy([]);
-    const sink = captureSink();
-    const code = await main(["run", path.join(dir, "study", "design.yaml"), "--out", path.join(dir, "results"), "--threads", "1", "--quiet"], sink);
-    expect(code, sink.stderr()).toBe(0);
+    const { code, stderr } = await runCli(["run", path.join(dir, "study", "design.yaml"), "--out", path.join(dir, "results"), "--threads", "1", "--quiet"]);
+    expect(code, stderr).toBe(0);
     expect(existsSync(path.join(dir, "results", "summary.json"))).toBe(true);
     unlinkSync(path.join(dir, "results", "summary.json"));
   });
