@@ -3,7 +3,7 @@ import path from "node:path";
 import { InputError } from "../errors.js";
 import { VERSION } from "../version.js";
 import { refuseInputOverlap, type GuardedInputs } from "./inputOverlap.js";
-import { sha256Of } from "./writtenRecord.js";
+import { sha256Text } from "./provenance.js";
 
 /**
  * A single result file (`plexus extract --out FILE`), written to a temporary
@@ -42,7 +42,7 @@ export function checkResultFile(out: string, options: { force: boolean; inputs: 
       "choose another name, or move the file away yourself",
     );
   }
-  if (sha256Of(readFileSync(target)) !== recorded) {
+  if (sha256Text(readFileSync(target)) !== recorded) {
     throw new InputError(
       `--force replaces only a file plexus wrote, unchanged, and ${out} changed since plexus wrote it`,
       { key: options.key },
@@ -58,7 +58,7 @@ export function writeResultFile(target: string, content: string): void {
   const recordTemporary = `${temporary}.record`;
   try {
     writeFileSync(temporary, content);
-    writeFileSync(recordTemporary, `${JSON.stringify({ tool: { name: "plexus", version: VERSION }, sha256: sha256Of(content) }, null, 2)}\n`);
+    writeFileSync(recordTemporary, `${JSON.stringify({ tool: { name: "plexus", version: VERSION }, sha256: sha256Text(content) }, null, 2)}\n`);
     renameSync(temporary, target);
     renameSync(recordTemporary, fileRecordFor(target));
   } catch (error) {

@@ -4,7 +4,8 @@ import { InputError } from "../errors.js";
 import { refuseInputOverlap, type GuardedInputs } from "./inputOverlap.js";
 import { onInterrupt } from "./interruptCleanup.js";
 import { OutputLock, processAlive } from "./outputLock.js";
-import { describeForeign, foreignContents, readRecord, recordText, sha256Of, WRITTEN_RECORD } from "./writtenRecord.js";
+import { sha256Text } from "./provenance.js";
+import { describeForeign, foreignContents, readRecord, recordText, WRITTEN_RECORD } from "./writtenRecord.js";
 
 export interface OpenOptions {
   force: boolean;
@@ -88,7 +89,7 @@ export class ResultsFolder {
         "nothing was changed in the output folder; free space or choose another folder, then run again (add --resume to reuse the finished permutations)",
       );
     }
-    this.written.set(path.relative(this.staging, full).split(path.sep).join("/"), sha256Of(content));
+    this.written.set(path.relative(this.staging, full).split(path.sep).join("/"), sha256Text(content));
   }
 
   /** Writes the record of the files written, then moves the complete results into place, replacing an earlier folder only now. */

@@ -4,7 +4,8 @@ import { InputError } from "../errors.js";
 import { systemReason } from "../io/readInputFile.js";
 import { onInterrupt } from "./interruptCleanup.js";
 import { OutputLock } from "./outputLock.js";
-import { readRecord, recordText, REPORT_STAGING_PREFIX, sha256Of, WRITTEN_RECORD } from "./writtenRecord.js";
+import { sha256Text } from "./provenance.js";
+import { readRecord, recordText, REPORT_STAGING_PREFIX, WRITTEN_RECORD } from "./writtenRecord.js";
 
 /**
  * Rewrites files of an existing results folder (`plexus report DIR`): under
@@ -36,7 +37,7 @@ export function rewriteResultsFolder(dir: string, produce: () => Map<string, str
     }
     const refused = [...files.keys()].filter((relative) => {
       const target = path.join(root, relative);
-      return existsSync(target) && (record.get(relative) === undefined || sha256Of(readFileSyncSafe(target)) !== record.get(relative));
+      return existsSync(target) && (record.get(relative) === undefined || sha256Text(readFileSyncSafe(target)) !== record.get(relative));
     });
     if (refused.length > 0) {
       throw new InputError(
@@ -59,7 +60,7 @@ export function rewriteResultsFolder(dir: string, produce: () => Map<string, str
       const full = inside(staging, relative);
       mkdirSync(path.dirname(full), { recursive: true });
       writeFileSync(full, text);
-      record.set(relative, sha256Of(text));
+      record.set(relative, sha256Text(text));
     }
     writeFileSync(path.join(staging, WRITTEN_RECORD), recordText(record));
     for (const relative of files.keys()) {

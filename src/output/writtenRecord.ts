@@ -1,4 +1,4 @@
-import { createHash } from "node:crypto";
+import { sha256Text } from "./provenance.js";
 import { existsSync, lstatSync, readdirSync, readFileSync } from "node:fs";
 import path from "node:path";
 import { VERSION } from "../version.js";
@@ -19,10 +19,6 @@ export interface WrittenRecord {
   tool: { name: string; version: string };
   /** Relative path ('/'-separated) → SHA-256 of the bytes written. */
   files: Record<string, string>;
-}
-
-export function sha256Of(content: string | Uint8Array): string {
-  return createHash("sha256").update(content).digest("hex");
 }
 
 export function recordText(files: Map<string, string>): string {
@@ -70,7 +66,7 @@ export function foreignContents(folder: string, record: Map<string, string>): Fo
       const stat = lstatSync(full);
       if (stat.isDirectory()) walk(inner);
       else if (!stat.isFile() || !record.has(inner)) result.unknown.push(inner);
-      else if (sha256Of(readFileSync(full)) !== record.get(inner)) result.changed.push(inner);
+      else if (sha256Text(readFileSync(full)) !== record.get(inner)) result.changed.push(inner);
     }
   };
   walk("");

@@ -1,8 +1,8 @@
-import { createHash } from "node:crypto";
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, renameSync, rmSync, rmdirSync, statSync, writeFileSync } from "node:fs";
 import { basename, dirname, join, relative, resolve, sep } from "node:path";
 import { InputError } from "../errors.js";
 import { encodeNpy } from "../io/npy.js";
+import { sha256File } from "../output/provenance.js";
 import type { SimulatedCohort } from "./simulateCohort.js";
 
 export interface WriteCohortOptions {
@@ -68,7 +68,7 @@ function writeCohortFiles(folder: string, cohort: SimulatedCohort, options: Writ
     writeFileSync(join(folder, "planted.tsv"), tsvText(["region_a", "region_b"], rows));
   }
   const files: Record<string, string> = {};
-  for (const name of filesUnder(folder)) files[name] = sha256Of(join(folder, name));
+  for (const name of filesUnder(folder)) files[name] = sha256File(join(folder, name));
   writeFileSync(join(folder, COHORT_RECORD), `${JSON.stringify({ written_by: WRITTEN_BY, files }, null, 2)}\n`);
 }
 
@@ -84,10 +84,6 @@ function filesUnder(folder: string): string[] {
   };
   walk(folder);
   return names.sort();
-}
-
-function sha256Of(file: string): string {
-  return createHash("sha256").update(readFileSync(file)).digest("hex");
 }
 
 /** The files of an earlier simulated cohort in `folder`, from its record; empty when there is none or it is not plexus's. */
@@ -111,7 +107,7 @@ function refuseForeignFiles(folder: string, staging: string, dir: string): void 
   for (const name of filesUnder(staging)) {
     const target = join(folder, name);
     if (!existsSync(target)) continue;
-    if (name === COHORT_RECORD ? recorded.size === 0 : recorded.get(name) !== sha256Of(target)) foreign.push(name);
+    if (name === COHORT_RECORD ? recorded.size === 0 : recorded.get(name) !== sha256File(target)) foreign.push(name);
   }
   if (foreign.length > 0) {
     throw new InputError(
@@ -127,7 +123,7 @@ function removeCohortFiles(folder: string): void {
   const recorded = recordedFiles(folder);
   for (const [name, hash] of recorded) {
     const file = join(folder, name);
-    if (existsSync(file) && statSync(file).isFile() && sha256Of(file) === hash) rmSync(file);
+    if (existsSync(file) && statSync(file).isFile() && sha256File(file) === hash) rmSync(file);
   }
   if (recorded.size > 0) rmSync(join(folder, COHORT_RECORD), { force: true });
   const connectomes = join(folder, CONNECTOME_FOLDER);
