@@ -110,7 +110,7 @@ function tooLarge(path: string, size: number, limit: number, what: string): Inpu
   return new InputError(
     `${what} is ${size.toLocaleString("en-US")} bytes, more than the limit of ${limit.toLocaleString("en-US")} bytes (${limit / 2 ** 20} MiB)`,
     { file: path },
-    `check that this is the ${what} you meant`,
+    "check that this is the file you meant",
   );
 }
 

@@ -22,6 +22,7 @@ export function refuseInputOverlap(out: string, inputs: GuardedInputs, option = 
   const target = realPath(out);
   const problems: string[] = [];
   const contained: string[] = [];
+  const containedFolders: string[] = [];
   for (const file of inputs.files) {
     const real = realPath(file);
     if (real === target) problems.push(`is an input of this analysis (${file})`);
@@ -31,16 +32,21 @@ export function refuseInputOverlap(out: string, inputs: GuardedInputs, option = 
     const real = realPath(folder);
     if (real === target) problems.push(`is an input folder of this analysis (${folder})`);
     else if (isWithin(target, real)) problems.push(`lies inside an input folder (${folder})`);
-    else if (isWithin(real, target)) contained.push(folder);
+    else if (isWithin(real, target)) containedFolders.push(folder);
   }
-  if (contained.length > 0) {
-    const unique = [...new Set(contained)];
-    problems.push(`contains ${unique.length === 1 ? "an input" : `${unique.length} inputs`} of this analysis (e.g. ${unique[0]})`);
+  const files = [...new Set(contained)];
+  const folders = [...new Set(containedFolders)];
+  if (files.length > 0 || folders.length > 0) {
+    const counted = [
+      ...(files.length > 0 ? [files.length === 1 ? "an input file" : `${files.length} input files`] : []),
+      ...(folders.length > 0 ? [folders.length === 1 ? "an input folder" : `${folders.length} input folders`] : []),
+    ];
+    problems.push(`contains ${counted.join(" and ")} of this analysis (e.g. ${files[0] ?? folders[0]})`);
   }
   if (problems.length === 0) return;
   throw new InputError(
     `the output ${out} ${problems[0]}; plexus never writes over or among its inputs, with or without --force`,
     { key: option },
-    "choose a folder that is not an input, holds none and is not inside a folder of inputs (e.g. results/ beside the design file)",
+    "choose a path that is not an input, holds none and is not inside a folder of inputs (e.g. results/ beside the design file)",
   );
 }

@@ -91,5 +91,31 @@ export function checkRelabelings(options: {
         blocks ? "name a column that groups several subjects (e.g. family or site), or remove `blocks:`" : undefined,
       );
     }
+    if (scheme === "permute" && blocks && !whole && testedColumnsConstantWithinBlocks(matrix, contrast, blocks)) {
+      throw new InputError(
+        `'${contrast.name}' tests columns that do not vary within any exchangeability block (every block holds one value of them), so permuting within blocks cannot change its statistic and its null distribution would be the observed value alone`,
+        options.where("inference.blocks"),
+        "block on a column that groups subjects of both kinds (e.g. family or site), use `block_permutation: whole` to exchange whole blocks, or remove `blocks:`",
+      );
+    }
   });
+}
+
+/**
+ * True when every design column the contrast weights is constant within each
+ * block: permutations within blocks then leave the tested effect where it is.
+ */
+function testedColumnsConstantWithinBlocks(matrix: DesignMatrix, contrast: Contrast, blocks: Int32Array): boolean {
+  const { rows, cols, values } = matrix;
+  for (let j = 0; j < cols; j++) {
+    if (contrast.rows.every((row) => row[j] === 0)) continue;
+    const first = new Map<number, number>();
+    for (let s = 0; s < rows; s++) {
+      const value = values[s * cols + j];
+      const seen = first.get(blocks[s]);
+      if (seen === undefined) first.set(blocks[s], value);
+      else if (seen !== value) return false;
+    }
+  }
+  return true;
 }

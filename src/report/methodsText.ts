@@ -126,12 +126,15 @@ export function methodsText(results: LoadedResults): MethodsText {
   const inferenceText: Segment[] = [];
   const permuted = summary.contrasts.filter((c) => c.mode === "exact" || c.mode === "monte-carlo");
   if (permuted.length > 0) {
+    // F contrasts have no direction (tail is upper for them); a mixed family names both statistics.
+    const permutedF = permuted.filter((c) => c.statistic === "F").length;
+    const stat = permutedF === 0 ? "t" : permutedF === permuted.length ? "F" : "statistic (t or F)";
     const rule =
       inference.tail === "both"
-        ? `whose |t| exceeded ${plain(inference.threshold)} (positive and negative edges separately)`
+        ? `whose |${stat}| exceeded ${plain(inference.threshold)} (positive and negative edges separately)`
         : inference.tail === "lower"
-          ? `whose t fell below −${plain(inference.threshold)}`
-          : `whose t exceeded ${plain(inference.threshold)}`;
+          ? `whose ${stat} fell below −${plain(inference.threshold)}`
+          : `whose ${stat} exceeded ${plain(inference.threshold)}`;
     const enhancedOnly = inference.method === "threshold-free" && inference.enhancement !== undefined;
     if (enhancedOnly) {
       const e = inference.enhancement!;
@@ -144,7 +147,7 @@ export function methodsText(results: LoadedResults): MethodsText {
       );
       inferenceText.push(
         inference.size === "mass"
-          ? "mass, the sum over its edges of the amount by which |t| exceeded the threshold."
+          ? `mass, the sum over its edges of the amount by which ${stat === "t" ? "|t|" : stat} exceeded the threshold.`
           : "extent, the number of its edges.",
       );
       inferenceText.push(" Each observed component was compared with the distribution, over relabelings of the data, of the largest component's size.");

@@ -25,7 +25,15 @@ export function checkEnhancementLevels(statistic: ArrayLike<number>, inference: 
     throw new InputError(
       `with step ${step}, the largest statistic (${largest.toPrecision(4)}) gives ${levels.toPrecision(3)} enhancement levels, more than the limit of ${ENHANCEMENT_LEVELS_LIMIT.toLocaleString("en-US")}`,
       where,
-      `use a step of at least ${(largest / ENHANCEMENT_LEVELS_LIMIT).toPrecision(2)} (0.1 is usual)`,
+      `use a step of at least ${smallestStep(largest)} (0.1 is usual)`,
     );
   }
+}
+
+/** The smallest step of two significant digits that keeps the levels within the limit (as the user would type it). */
+export function smallestStep(largest: number): string {
+  const unit = 10 ** (Math.floor(Math.log10(largest / ENHANCEMENT_LEVELS_LIMIT)) - 1);
+  let digits = Math.ceil(largest / ENHANCEMENT_LEVELS_LIMIT / unit);
+  while (largest / Number((digits * unit).toPrecision(2)) > ENHANCEMENT_LEVELS_LIMIT) digits++;
+  return String(Number((digits * unit).toPrecision(2)));
 }

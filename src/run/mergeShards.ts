@@ -93,7 +93,7 @@ export function mergeShards(
   const manifests = shardFolders.map((folder) => ({ folder, manifest: readManifest(folder) }));
   const first = manifests[0].manifest;
   for (const { folder, manifest } of manifests.slice(1)) {
-    if (manifest.fingerprint !== first.fingerprint || manifest.design !== first.design) {
+    if (manifest.fingerprint !== first.fingerprint) {
       throw new InputError(
         "this shard belongs to a different design, inputs, seed or options than the first shard",
         { file: path.join(folder, SHARD_MANIFEST) },
@@ -118,9 +118,12 @@ export function mergeShards(
   const missing: number[] = [];
   for (let k = 1; k <= first.shard.count; k++) if (!byIndex.has(k)) missing.push(k);
   if (missing.length > 0) {
-    throw new InputError(`shard${missing.length > 1 ? "s" : ""} ${missing.map((k) => `${k}/${first.shard.count}`).join(", ")} missing`, {
-      file: manifests[0].folder,
-    });
+    const given = [...byIndex.keys()].sort((a, b) => a - b).map((k) => `${k}/${first.shard.count}`);
+    throw new InputError(
+      `shard${missing.length > 1 ? "s" : ""} ${missing.map((k) => `${k}/${first.shard.count}`).join(", ")} missing: the folders given hold shard${given.length > 1 ? "s" : ""} ${given.join(", ")}`,
+      {},
+      "add the missing shard folders to the command (each shard folder has a shard.json naming its k/n)",
+    );
   }
   const verified = verifyShardFiles(
     [...byIndex.keys()].sort((a, b) => a - b).map((k) => byIndex.get(k)!),

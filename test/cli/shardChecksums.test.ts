@@ -63,6 +63,24 @@ describe("shard checksums", () => {
     expect(existsSync(path.join(root, "merged", "summary.json"))).toBe(true);
   });
 
+  it("a shard run from a byte-identical copy of the study in another folder merges, with the same null as the shards run in place", async () => {
+    const elsewhere = path.join(root, "copy-elsewhere");
+    for (const name of ["participants.tsv", "regions.tsv", "connectomes", "design.yaml"]) {
+      cpSync(path.join(root, name), path.join(elsewhere, name), { recursive: true });
+    }
+    const moved = path.join(root, "shard-2-elsewhere");
+    const ran = await runCli(["run", path.join(elsewhere, "design.yaml"), "--out", moved, "--shard", "2/3", "--threads", "1", "--quiet"]);
+    expect(ran.code, ran.stderr).toBe(0);
+    const out = path.join(root, "merged-elsewhere");
+    const result = await runCli(["merge", shard(1), moved, shard(3), "--out", out, "--quiet"]);
+    expect(result.code, result.stderr).toBe(0);
+    const reference = path.join(root, "merged-reference");
+    expect((await runCli(["merge", shard(1), shard(2), shard(3), "--out", reference, "--quiet"])).code).toBe(0);
+    for (const name of ["up/null.tsv", "down/null.tsv", "up/edges.tsv"]) {
+      expect(readFileSync(path.join(out, name), "utf8"), name).toBe(readFileSync(path.join(reference, name), "utf8"));
+    }
+  });
+
   it("a truncated null.tsv of shard 2/3: exit 2, the message names shard 2/3 and its folder, no results folder", async () => {
     const damaged = copyOf(2, "damaged-2");
     truncate(path.join(damaged, "up", "null.tsv"));

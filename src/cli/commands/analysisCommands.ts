@@ -43,7 +43,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
     .argument("<design>", "design file (YAML)")
     .requiredOption("-o, --out <dir>", "results folder (must not exist or be empty, unless --force)")
     .option("-f, --force", "replace an existing results folder (and start over from any checkpoint)", false)
-    .option("-q, --quiet", "print nothing but errors", false)
+    .option("-q, --quiet", "print nothing but warnings and errors", false)
     .option("-t, --threads <n>", "worker threads for the permutations (default: all cores)")
     .option("--shard <k/n>", "compute only the k-th of n equal shares of the permutations; combine with `plexus merge`")
     .option("--resume", "continue an interrupted run from its checkpoint", false)
@@ -70,7 +70,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
     .argument("<shards...>", "the shard folders, in any order")
     .requiredOption("-o, --out <dir>", "results folder (must not exist or be empty, unless --force)")
     .option("-f, --force", "replace an existing results folder", false)
-    .option("-q, --quiet", "print nothing but errors", false)
+    .option("-q, --quiet", "print nothing but warnings and errors", false)
     .action((shards: string[], flags: { out: string; force: boolean; quiet: boolean }) => {
       mergeShards(shards, { out: flags.out, force: flags.force, quiet: flags.quiet, commandLine: ["plexus", ...argv()] }, log);
     });

@@ -38,7 +38,7 @@ export function registerPower(program: Command, sink: OutputSink, argv: () => st
     .option("--target <p>", "power to reach", "0.8")
     .option("-t, --threads <n>", "worker threads (default: all cores)")
     .option("-f, --force", "replace an existing output folder", false)
-    .option("-q, --quiet", "print nothing but errors", false)
+    .option("-q, --quiet", "print nothing but warnings and errors", false)
     .action(async (flags: Record<string, string | boolean | undefined>) => {
       const text = (name: string) => flags[name] as string | undefined;
       const perGroup = String(text("perGroup"))

@@ -100,7 +100,7 @@ export function registerStrength(program: Command, sink: OutputSink, argv: () =>
     .option("--component <ids>", "with --from: these component ids instead of every component with p_fwe ≤ alpha")
     .option("-t, --threads <n>", "worker threads for the permutations (default: all cores)")
     .option("-f, --force", "replace an existing results folder", false)
-    .option("-q, --quiet", "print nothing but errors and warnings", false)
+    .option("-q, --quiet", "print nothing but warnings and errors", false)
     .action(async (designFile: string, flags: StrengthFlags) => {
       await runStrength(
         {
@@ -131,7 +131,7 @@ export function registerStrength(program: Command, sink: OutputSink, argv: () =>
     .option("--system <names>", "the edges within each of these systems, comma-separated")
     .option("--between <a,b>", "the edges between two systems")
     .option("-f, --force", "replace an existing file", false)
-    .option("-q, --quiet", "print nothing but errors and warnings", false)
+    .option("-q, --quiet", "print nothing but warnings and errors", false)
     .action((designFile: string, flags: ExtractFlags) => {
       runExtract({ designFile, out: flags.out, selection: parseSelection(flags), force: flags.force, quiet: flags.quiet }, log);
     });
