@@ -1,6 +1,6 @@
 import { existsSync, lstatSync, mkdirSync, readdirSync, renameSync, rmSync, statSync, writeFileSync } from "node:fs";
 import path from "node:path";
-import { InputError } from "../errors.js";
+import { InputError, isInputError } from "../errors.js";
 import { refuseInputOverlap, type GuardedInputs } from "./inputOverlap.js";
 import { onInterrupt } from "./interruptCleanup.js";
 import { OutputLock, processAlive } from "./outputLock.js";
@@ -90,6 +90,25 @@ export class ResultsFolder {
       );
     }
     this.written.set(path.relative(this.staging, full).split(path.sep).join("/"), sha256Text(content));
+  }
+
+  /**
+   * Runs `work` (which reads back what was just written, e.g. the report),
+   * naming in any input error the results folder the user asked for instead
+   * of the temporary staging folder.
+   */
+  readingBack<T>(work: () => T): T {
+    try {
+      return work();
+    } catch (error) {
+      const file = isInputError(error) ? error.location.file : undefined;
+      if (!isInputError(error) || file === undefined || !(file === this.staging || file.startsWith(this.staging + path.sep))) throw error;
+      throw new InputError(
+        `${error.message} (while reading back the results being written; nothing was written)`,
+        { ...error.location, file: this.target + file.slice(this.staging.length) },
+        error.hint,
+      );
+    }
   }
 
   /** Writes the record of the files written, then moves the complete results into place, replacing an earlier folder only now. */

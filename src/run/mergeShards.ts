@@ -179,7 +179,7 @@ export function mergeShards(
       return { setup, rows: concatenateChunks(chunks, 1, total + 1) };
     });
     writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
-    writeReport(folder.staging, (relative, content) => folder.write(relative, content));
+    folder.readingBack(() => writeReport(folder.staging, (relative, content) => folder.write(relative, content)));
     folder.commit();
     if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);
     return folder.target;

@@ -158,7 +158,7 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
       writeShard(output, prepared, contrasts, nulls, inputs, fingerprint, options);
     } else {
       const written = writeResults(output, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
-      writeReport(output.staging, (relative, content) => output.write(relative, content), {}, written);
+      output.readingBack(() => writeReport(output.staging, (relative, content) => output.write(relative, content), {}, written));
     }
     output.commit();
     checkpoint?.remove();
