@@ -284,21 +284,25 @@ export function parseDesign(text: string, file: string): DesignSpec {
     lowerNames.add(lower);
   }
 
-  // missing_values: [text, ...]
+  // missing_values: [text, ...], or one text; numbers are taken as written (-999, 99.0)
   let missingValues = [...DEFAULT_MISSING_VALUES];
   const missingNode = top.get("missing_values");
   if (missingNode !== undefined && missingNode !== null) {
-    const value = (missingNode as Node).toJSON();
-    const list = typeof value === "string" ? [value] : value;
+    const entry = (node: unknown): string | undefined => {
+      if (!isScalar(node)) return undefined;
+      if (typeof node.value === "string") return node.value;
+      if (typeof node.value === "number") return written(node);
+      return undefined;
+    };
+    const list = isSeq(missingNode) ? missingNode.items.map(entry) : [entry(missingNode)];
     if (
-      !Array.isArray(list) ||
       list.length > MISSING_VALUES_LIMIT ||
-      !list.every((v) => typeof v === "string" && v.length <= MISSING_VALUE_LENGTH_LIMIT && v === v.trim() && !/[\t\r\n]/.test(v))
+      !list.every((v): v is string => typeof v === "string" && v.length <= MISSING_VALUE_LENGTH_LIMIT && v === v.trim() && !/[\t\r\n]/.test(v))
     ) {
       throw new InputError(
-        `'missing_values' lists the cell texts read as missing: up to ${MISSING_VALUES_LIMIT} quoted texts without tabs or surrounding spaces, each up to ${MISSING_VALUE_LENGTH_LIMIT} characters`,
+        `'missing_values' lists the cell texts read as missing: up to ${MISSING_VALUES_LIMIT} texts or numbers without tabs or surrounding spaces, each up to ${MISSING_VALUE_LENGTH_LIMIT} characters`,
         where("missing_values"),
-        `e.g. missing_values: ["", "n/a", "NA", "-999"] (quote every entry; [] means no cell is missing); the default is [${DEFAULT_MISSING_VALUES.map((v) => JSON.stringify(v)).join(", ")}]`,
+        `e.g. missing_values: [n/a, NA, -999] (it replaces the default list [${DEFAULT_MISSING_VALUES.map((v) => JSON.stringify(v)).join(", ")}]; an empty cell is always missing)`,
       );
     }
     missingValues = [...new Set(list as string[])];

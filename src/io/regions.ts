@@ -1,5 +1,7 @@
-import { InputError } from "../errors.js";
+import { InputError, inputErrors } from "../errors.js";
+import { controlCharacterProblem } from "./controlCharacters.js";
 import { isMissingCell } from "./participants.js";
+import { printable } from "./printable.js";
 import { parseTsv, readTableText } from "./tsv.js";
 
 /** A regions table's missing-value codes (BIDS): `n/a` and an empty cell; `NA` may be a label. */
@@ -21,7 +23,10 @@ const DECIMAL = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/;
  * Parses a regions table (tab-separated, header row). `label` is required;
  * `x`, `y`, `z` come all three or not at all and must be finite numbers;
  * `hemisphere` and `system` are optional text (`n/a` or empty = absent); other
- * columns are ignored. Labels must be unique, and when `expectedCount` is given
+ * columns are ignored. Labels must be unique; a label, hemisphere or system
+ * with a control character is refused, since it would be written raw into
+ * the results. The problems of every row are raised as one error, each at its
+ * file:line:column. When `expectedCount` is given
  * (the matrices' N) the table must have exactly that many rows.
  */
 export function parseRegions(text: string, file: string, expectedCount?: number): Region[] {
@@ -48,22 +53,29 @@ export function parseRegions(text: string, file: string, expectedCount?: number)
 
   const regions: Region[] = [];
   const lineOfLabel = new Map<string, number>();
+  const problems: InputError[] = [];
   for (let r = 0; r < rows.length; r++) {
     const row = rows[r];
     const line = lines[r];
+    for (const c of [labelColumn, hemisphereColumn, systemColumn]) {
+      const problem = c >= 0 ? controlCharacterProblem(header[c], row[c]) : undefined;
+      if (problem) problems.push(new InputError(problem, { file, line, column: c + 1 }, "remove the control character from the regions table"));
+    }
     const label = row[labelColumn];
     if (isMissingCell(label, REGION_MISSING_VALUES)) {
-      throw new InputError(`region ${r + 1} has no label`, { file, line, column: labelColumn + 1 });
+      problems.push(new InputError(`region ${r + 1} has no label`, { file, line, column: labelColumn + 1 }));
     }
     const earlier = lineOfLabel.get(label);
-    if (earlier !== undefined) {
-      throw new InputError(`duplicate region label '${label}' on lines ${earlier} and ${line}`, {
-        file,
-        line,
-        column: labelColumn + 1,
-      });
+    if (earlier !== undefined && !isMissingCell(label, REGION_MISSING_VALUES)) {
+      problems.push(
+        new InputError(`duplicate region label '${printable(label)}' on lines ${earlier} and ${line}`, {
+          file,
+          line,
+          column: labelColumn + 1,
+        }),
+      );
     }
-    lineOfLabel.set(label, line);
+    if (earlier === undefined) lineOfLabel.set(label, line);
 
     const region: Region = { label };
     if (coordinateCount === 3) {
@@ -71,11 +83,13 @@ export function parseRegions(text: string, file: string, expectedCount?: number)
         const cell = row[c];
         const value = DECIMAL.test(cell) ? Number(cell) : Number.NaN;
         if (!Number.isFinite(value)) {
-          throw new InputError(`coordinate ${header[c]} of region '${label}' is not a finite number: '${cell}'`, {
-            file,
-            line,
-            column: c + 1,
-          });
+          problems.push(
+            new InputError(`coordinate ${header[c]} of region '${printable(label)}' is not a finite number: '${printable(cell)}'`, {
+              file,
+              line,
+              column: c + 1,
+            }),
+          );
         }
         return value;
       });
@@ -88,6 +102,8 @@ export function parseRegions(text: string, file: string, expectedCount?: number)
     regions.push(region);
   }
 
+  const error = inputErrors(problems);
+  if (error) throw error;
   if (expectedCount !== undefined && regions.length !== expectedCount) {
     throw new InputError(
       `the regions table has ${regions.length} rows but the matrices have ${expectedCount} regions`,

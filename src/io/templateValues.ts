@@ -1,5 +1,6 @@
 import { InputError } from "../errors.js";
 import { listCells, type LocatedCell } from "./cellList.js";
+import { hasControlCharacter } from "./controlCharacters.js";
 import { PARTICIPANT_ID, type ParticipantsTable } from "./participants.js";
 import { printable } from "./printable.js";
 
@@ -9,7 +10,7 @@ import { printable } from "./printable.js";
  * when it can: no path separator (`/`, `\`), not `.` or `..`, no control character.
  */
 export function unsafePathValue(value: string): string | undefined {
-  if (/[\u0000-\u001f\u007f-\u009f]/.test(value)) return "has a control character";
+  if (hasControlCharacter(value)) return "has a control character";
   if (value.includes("/") || value.includes("\\")) return "has a path separator ('/' or '\\')";
   if (value === "." || value === "..") return `is '${value}'`;
   return undefined;
@@ -26,6 +27,12 @@ export function templateColumns(template: string): string[] {
  * 10 listed), naming the participants file, line and column.
  */
 export function checkTemplateValues(template: string, table: ParticipantsTable, rows: number[], key: string): void {
+  const problem = templateValueProblem(template, table, rows, key);
+  if (problem) throw problem;
+}
+
+/** The error `checkTemplateValues` raises, returned instead (null when every value is safe). */
+export function templateValueProblem(template: string, table: ParticipantsTable, rows: number[], key: string): InputError | null {
   const problems: LocatedCell[] = [];
   for (const name of new Set(templateColumns(template))) {
     const column = table.header.indexOf(name);
@@ -38,9 +45,9 @@ export function checkTemplateValues(template: string, table: ParticipantsTable, 
       if (reason) problems.push({ line: table.lines[row], column: Math.max(column, 0) + 1, text: `${name} '${printable(value)}' ${reason}` });
     }
   }
-  if (problems.length === 0) return;
+  if (problems.length === 0) return null;
   const listed = listCells(table.file, problems);
-  throw new InputError(
+  return new InputError(
     `${problems.length} value${problems.length > 1 ? "s" : ""} of the participants table cannot be put into the path template '${template}' (key '${key}'):${listed}`,
     { file: table.file, line: problems[0].line, column: problems[0].column },
     "a value filled into a path must be a plain file-name part: no '/', '\\', control characters, and not '.' or '..'",

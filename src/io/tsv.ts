@@ -1,4 +1,6 @@
 import { InputError } from "../errors.js";
+import { hasControlCharacter } from "./controlCharacters.js";
+import { printable } from "./printable.js";
 import { TABLE_FILE_LIMIT_BYTES, readTextInput } from "./readInputFile.js";
 
 /**
@@ -24,7 +26,8 @@ export interface LocatedTsvTable extends TsvTable {
  * lines anywhere, and spaces around cells (they are trimmed). A tab is always a
  * separator, so a tab at the end of a line adds an empty last field.
  * Rejected with a located InputError: an empty file, an empty or repeated
- * column name, and a row whose field count differs from the header's.
+ * column name, a column name with a control character, and a row whose field
+ * count differs from the header's.
  */
 export function parseTsv(text: string, file: string): LocatedTsvTable {
   const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
@@ -81,6 +84,13 @@ function checkHeader(names: string[], file: string, line: number): void {
     const name = names[c];
     if (name === "") {
       throw new InputError(`column ${c + 1} of the header has no name`, { file, line, column: c + 1 });
+    }
+    if (hasControlCharacter(name)) {
+      throw new InputError(
+        `the column name '${printable(name)}' has a control character`,
+        { file, line, column: c + 1 },
+        "remove the control character from the header (names are written into the results)",
+      );
     }
     const earlier = seen.get(name);
     if (earlier !== undefined) {

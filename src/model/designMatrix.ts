@@ -97,6 +97,19 @@ export function buildDesignMatrix(
   if (notFinite >= 0) {
     throw new InputError(`the design column '${columns[notFinite].name}' has a value that is not a finite number`, modelKey);
   }
+  // Sums of squares and cross-products that overflow would make the rank check see a zero column (and the
+  // fit a non-finite one): name the column whose values are too large instead.
+  const overflowing = overflowingCrossProduct(data);
+  if (overflowing) {
+    const [a, b] = overflowing.map((j) => columns[j].name);
+    throw new InputError(
+      a === b
+        ? `the design column '${a}' has values so large that their sum of squares is not a finite number in double precision`
+        : `the design columns '${a}' and '${b}' have values so large that the sum of their products is not a finite number in double precision`,
+      modelKey,
+      "give the variables in other units so that their values are smaller (model cells must be below 1e150 in magnitude)",
+    );
+  }
   const report = rankReport(values, rows, cols);
   if (report.rank < cols) {
     const named = report.collinearSets.filter((set) => set.length > 0);
@@ -111,4 +124,22 @@ export function buildDesignMatrix(
     );
   }
   return { rows, cols, values, columns, variables, formula };
+}
+
+/**
+ * The first design column whose sum of squares is not finite, as [j, j], else
+ * the first pair (j < k) whose cross-product Σ x_j·x_k (an entry of X'X) is
+ * not finite, or undefined when every entry of X'X is finite.
+ */
+function overflowingCrossProduct(data: Float64Array[]): [number, number] | undefined {
+  const crossProduct = (a: Float64Array, b: Float64Array): number => {
+    let sum = 0;
+    for (let i = 0; i < a.length; i++) sum += a[i] * b[i];
+    return sum;
+  };
+  for (let j = 0; j < data.length; j++) if (!Number.isFinite(crossProduct(data[j], data[j]))) return [j, j];
+  for (let j = 0; j < data.length; j++) {
+    for (let k = j + 1; k < data.length; k++) if (!Number.isFinite(crossProduct(data[j], data[k]))) return [j, k];
+  }
+  return undefined;
 }

@@ -1,12 +1,14 @@
 import path from "node:path";
-import { InputError } from "../errors.js";
+import { InputError, inputErrors } from "../errors.js";
 import { loadConnectomes, resolveTemplate, type ConnectomeSource, type ConnectomeSubject, type LoadedConnectomes } from "../io/connectomes.js";
 import { designKeyLocation, readDesign, type DesignSpec } from "../io/designFile.js";
 import { nearestName } from "../io/nearestName.js";
-import { checkModelColumns } from "../io/numericCells.js";
+import { factorCellProblems } from "../io/factorCells.js";
+import { missingCodeLevelWarnings } from "../io/missingCodeLevels.js";
+import { modelColumnProblems } from "../io/numericCells.js";
 import { printable } from "../io/printable.js";
-import { checkTemplateValues } from "../io/templateValues.js";
-import { PARTICIPANT_ID, readParticipants, type ParticipantsTable } from "../io/participants.js";
+import { templateValueProblem } from "../io/templateValues.js";
+import { PARTICIPANT_ID, readParticipantsCollecting, type ParticipantsTable } from "../io/participants.js";
 import { defaultRegions, readRegions, type Region } from "../io/regions.js";
 import { contrastStatistics } from "../edges/contrastStatistics.js";
 import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
@@ -103,7 +105,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     );
   }
   const participantsPath = path.resolve(design.baseDir, design.subjects);
-  const participants = readParticipants(participantsPath, design.missingValues);
+  const { table: participants, problems: tableProblems } = readParticipantsCollecting(participantsPath, design.missingValues);
   const available = participants.header;
 
   const needed = formulaVariables(formula);
@@ -117,7 +119,6 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
       );
     }
   }
-  checkModelColumns(participants, needed, new Set(Object.keys(design.levels)));
   for (const factor of Object.keys(design.levels)) {
     if (!needed.includes(factor)) {
       throw new InputError(`'levels' names '${factor}', which is not in the model`, where("levels"));
@@ -152,6 +153,21 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     if (missing.length > 0) excluded.push({ id, line: participants.lines[row], reason: `missing ${missing.join(", ")}` });
     else kept.push({ id, tableRow: row });
   });
+
+  // Every problem of the participants table's cells, reported in one pass, in file order.
+  const source = connectomeSource(design);
+  const cellProblems = [
+    ...tableProblems,
+    ...modelColumnProblems(participants, needed, new Set(Object.keys(design.levels))),
+    ...factorCellProblems(participants, needed, design.levels, blockColumn),
+  ];
+  if (source.kind === "template") {
+    const problem = templateValueProblem(source.template, participants, kept.map((k) => k.tableRow), "connectomes");
+    if (problem) cellProblems.push(problem);
+  }
+  cellProblems.sort((a, b) => (a.location.line ?? 0) - (b.location.line ?? 0) || (a.location.column ?? 0) - (b.location.column ?? 0));
+  const cellError = inputErrors(cellProblems);
+  if (cellError) throw cellError;
   if (kept.length === 0) {
     throw new InputError(
       `no subject has values in every model column (${checked.join(", ")})`,
@@ -189,6 +205,15 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
       ),
     );
   }
+  const factorColumns = [...variables.values()].filter((v) => v.kind === "factor").map((v) => v.name);
+  warnings.push(
+    ...missingCodeLevelWarnings(
+      participants,
+      blockColumn ? [...factorColumns, blockColumn] : factorColumns,
+      kept.map((k) => k.tableRow),
+      design.missingValues,
+    ),
+  );
   const matrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
   const contrasts = design.contrasts.map((spec) =>
     parseContrast(spec.name, spec.expression, matrix, { file: design.file, key: spec.key, line: spec.line }),
@@ -223,10 +248,6 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     });
   }
 
-  const source = connectomeSource(design);
-  if (source.kind === "template") {
-    checkTemplateValues(source.template, participants, kept.map((k) => k.tableRow), "connectomes");
-  }
   const subjectOfRow = (row: number): ConnectomeSubject => ({
     id: participants.ids[row],
     tableRow: row,

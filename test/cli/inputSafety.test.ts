@@ -197,13 +197,12 @@ describe("values put into path templates", () => {
     expect(result.stderr).not.toContain("\u001b");
   });
 
-  it("an ID with control characters in a warning is printed escaped", async () => {
+  it("an ID with control characters is refused even when its row is left out, and printed escaped", async () => {
     const rows = table();
     rows[3] = rows[3].replace(/^sub-03(\t\w+\t)\d+/, "sub-\u001b[31m03$1NA");
     const design = study("escape-warning", rows, [...HEAD, "model: group + age", "contrasts:", "  up: group[patient] - group[control]"]);
     const result = await runCli(["check", design]);
-    expect(result.code, result.stderr).toBe(0);
-    expect(result.stderr).toContain("sub-\\x1b[31m03 (missing age)");
+    expectUserError(result, /participants\.tsv:4:1: participant_id 'sub-\\x1b\[31m03' has a control character/);
     expect(result.stderr).not.toContain("\u001b");
   });
 });
@@ -278,5 +277,120 @@ describe("model formulas and contrasts through the CLI", () => {
     expect(result.code, result.stderr).toBe(0);
     expect(result.stdout).toMatch(/contrast    f: group  ->  \[0, 1, 0\]/);
     expect(result.stderr).toMatch(/tested as the t contrast group\[patient\]/);
+  });
+});
+
+/** `table()` with a `sex` column whose cells are given (default F/M alternating). */
+function tableWithSex(sex: (string | undefined)[]): string[] {
+  return table().map((row, k) => (k === 0 ? `${row}\tsex` : `${row}\t${sex[k - 1] ?? (k % 3 ? "F" : "M")}`));
+}
+
+describe("a custom missing_values list", () => {
+  it("an empty cell is still missing, and a default code left out of the list is a level with a warning naming it", async () => {
+    const sex: (string | undefined)[] = [];
+    sex[2] = "";
+    sex[5] = "n/a";
+    sex[8] = "n/a";
+    const ages = table().slice(1).map((r) => r.split("\t")[2]);
+    ages[0] = "-999";
+    const design = study("custom-codes-factor", tableWithSex(sex).map((r, k) => (k === 1 ? r.replace(/\t\d+\t/, "\t-999\t") : r)), [
+      ...HEAD,
+      'missing_values: ["-999"]',
+      "model: group + age + sex",
+      "contrasts:",
+      "  up: group[patient] - group[control]",
+    ]);
+    const result = await runCli(["check", design]);
+    expect(result.code, result.stderr).toBe(0);
+    expect(result.stdout).toMatch(/columns     intercept, group\[patient\], age, sex\[M\], sex\[n\/a\]\n/);
+    expect(result.stdout).toMatch(/subjects    10 used of 12 \(2 left out for missing values\)/);
+    expect(result.stderr).toMatch(/sub-03 \(missing sex\)/);
+    expect(result.stderr).toMatch(
+      /warning: 'sex' has the level 'n\/a' in 2 subjects \(\S*participants\.tsv lines 7, 10\): 'n\/a' is a missing-value code by default, but this design's missing_values leaves it out, so it is treated as a level; add "n\/a" to missing_values to make these cells missing/,
+    );
+  });
+
+  it("numbers and a bare scalar are accepted: missing_values: [-999, NA]", async () => {
+    const ages = table().slice(1).map((r) => r.split("\t")[2]);
+    ages[0] = "-999";
+    ages[1] = "NA";
+    const design = study("numeric-codes", table(ages), [...HEAD, "missing_values: [-999, NA]", "model: age", "contrasts:", "  up: age"]);
+    const result = await runCli(["check", design]);
+    expect(result.code, result.stderr).toBe(0);
+    expect(result.stdout).toMatch(/10 used of 12/);
+    const scalar = study("scalar-code", table(ages), [...HEAD, "missing_values: -999", "model: age", "contrasts:", "  up: age"]);
+    expectUserError(await runCli(["check", scalar]), /participants\.tsv:3:3: 1 cell of the numeric model column 'age' is not a finite number/);
+  });
+});
+
+describe("every problem of the participants table in one pass", () => {
+  it("repeated IDs, a stray non-number and a level not under levels: are reported together, in line order", async () => {
+    const rows = table();
+    rows[5] = rows[5].replace(/^sub-05/, "sub-02");
+    rows[9] = rows[9].replace(/^sub-09/, "sub-02");
+    rows[10] = rows[10].replace(/\t\d+\t/, "\tunknown\t");
+    rows[11] = rows[11].replace(/^(sub-11\t)\w+/, "$1patiant");
+    const design = study("all-at-once", rows, [...HEAD, "model: group + age", "levels:", "  group: [control, patient]", "contrasts:", "  up: group[patient] - group[control]"]);
+    const result = await runCli(["check", design]);
+    expectUserError(
+      result,
+      /participants\.tsv:6:1: duplicate participant_id 'sub-02' on lines 3 and 6\n/,
+      /participants\.tsv:10:1: duplicate participant_id 'sub-02' on lines 3 and 10\n/,
+      /participants\.tsv:11:3: 1 cell of the numeric model column 'age' is not a finite number:\n\s+\S+participants\.tsv:11:3 age 'unknown'/,
+      /participants\.tsv:12:2: 'group' has the value 'patiant', which is not among the levels given in the design \(control, patient\)/,
+      /\(4 problems in all\)/,
+    );
+  });
+
+  it("every cell of a factor outside its levels: is listed, with its line and column", async () => {
+    const rows = table().map((r, k) => (k === 2 || k === 7 ? r.replace(/\tpatient\t/, "\tpatiant\t").replace(/\tcontrol\t/, "\tcontrl\t") : r));
+    const design = study("levels-all", rows, [...HEAD, "model: group", "levels:", "  group: [control, patient]", "contrasts:", "  up: group[patient] - group[control]"]);
+    expectUserError(
+      await runCli(["check", design]),
+      /participants\.tsv:3:2: 'group' has the value 'patiant'/,
+      /participants\.tsv:8:2: 'group' has the value 'contrl'/,
+      /\(2 problems in all\)/,
+    );
+  });
+});
+
+describe("numbers too large for the model", () => {
+  it("an age of 1e200 or -1e300 is an error listing the cells and the limit, not a rank message", async () => {
+    const ages = table().slice(1).map((r) => r.split("\t")[2]);
+    ages[3] = "1e200";
+    ages[7] = "-1e300";
+    const design = study("huge", table(ages), [...HEAD, "model: group + age", "contrasts:", "  up: group[patient] - group[control]"]);
+    const result = await runCli(["check", design]);
+    expectUserError(
+      result,
+      /participants\.tsv:5:3: 2 cells of the numeric model column 'age' are too large for the model \(magnitude 1e150 or more: its square would overflow double precision\):/,
+      /participants\.tsv:5:3 age '1e200'/,
+      /participants\.tsv:9:3 age '-1e300'/,
+    );
+    expect(result.stderr).not.toMatch(/rank/);
+  });
+});
+
+describe("control characters never reach the outputs", () => {
+  it("a factor level with a control character is refused at file:line:column, printed escaped", async () => {
+    const rows = table().map((r, k) => (k === 4 ? r.replace(/\t[abc]$/, "\tb\u001b[2J") : r));
+    const design = study("escape-level", rows, [...HEAD, "model: group + site", "contrasts:", "  up: group[patient] - group[control]"]);
+    const result = await runCli(["check", design]);
+    expectUserError(result, /participants\.tsv:5:4: site 'b\\x1b\[2J' has a control character/);
+    expect(result.stderr).not.toContain("\u001b");
+  });
+
+  it("a blocks label with a control character is refused, even in a column of numbers", async () => {
+    const rows = table().map((r, k) => (k === 0 ? `${r}\tfamily` : `${r}\t${k === 6 ? "3\u001b[0m" : String(1 + (k % 4))}`));
+    const design = study("escape-block", rows, [...HEAD, "model: group", "contrasts:", "  up: group[patient] - group[control]", "inference:", "  permutations: 99", "  blocks: family"]);
+    expectUserError(await runCli(["check", design]), /participants\.tsv:7:5: family '3\\x1b\[0m' has a control character/);
+  });
+
+  it("a region label with a control character is refused at file:line:column", async () => {
+    const design = study("escape-region", table(), [...HEAD, "regions: regions.tsv", "model: group", "contrasts:", "  up: group[patient] - group[control]"]);
+    writeFileSync(path.join(path.dirname(design), "regions.tsv"), "label\tsystem\nr1\tvis\nr\u001b]0;x\u0007\tvis\nr3\tdm\u0085\nr4\tdm\n");
+    const result = await runCli(["check", design]);
+    expectUserError(result, /regions\.tsv:3:1: label 'r\\x1b\]0;x\\x07' has a control character/, /regions\.tsv:4:2: system 'dm\\x85' has a control character/);
+    expect(result.stderr).not.toMatch(/[\u001b\u0007\u0085]/);
   });
 });

@@ -326,10 +326,10 @@ describe("parseDesign: bad values (InputError at the key and its line)", () => {
     ["inference:\n  enhancement:\n    step: 1e400", "inference.enhancement.step", 8, /found '1e400'/],
     ["inference:\n  enhancement:\n    height_exponent: -1e400", "inference.enhancement.height_exponent", 8, /found '-1e400'/],
     ["levels:\n  site: [1e400, 2]", "levels", 6, /texts or finite numbers/],
-    // missing_values: quoted texts, bounded.
-    ["missing_values: 3", "missing_values", 6, /'missing_values' lists the cell texts read as missing/],
-    ["missing_values: [NA, -999]", "missing_values", 6, /quoted texts/],
-    ["missing_values: {a: b}", "missing_values", 6, /quoted texts/],
+    // missing_values: texts or numbers, bounded.
+    ["missing_values: true", "missing_values", 6, /'missing_values' lists the cell texts read as missing/],
+    ["missing_values: [NA, [-999]]", "missing_values", 6, /texts or numbers/],
+    ["missing_values: {a: b}", "missing_values", 6, /texts or numbers/],
     ["missing_values: [' NA']", "missing_values", 6, /without tabs or surrounding spaces/],
     [`missing_values: [${Array.from({ length: 101 }, (_, k) => `"m${k}"`).join(", ")}]`, "missing_values", 6, /up to 100/],
   ];
@@ -481,5 +481,12 @@ describe("parseDesign: missing_values", () => {
     expect(parseDesign(withBase('missing_values: ["", "-999", "NA"]'), FILE).missingValues).toEqual(["", "-999", "NA"]);
     expect(parseDesign(withBase("missing_values: []"), FILE).missingValues).toEqual([]);
     expect(parseDesign(withBase("missing_values: missing"), FILE).missingValues).toEqual(["missing"]);
+  });
+
+  it("takes numbers as the YAML source writes them, and a bare scalar as a list of one", () => {
+    expect(parseDesign(withBase("missing_values: [-999, NA, 99.0, 1e3]"), FILE).missingValues).toEqual(["-999", "NA", "99.0", "1e3"]);
+    expect(parseDesign(withBase("missing_values: -999"), FILE).missingValues).toEqual(["-999"]);
+    expect(parseDesign(withBase("missing_values: NA"), FILE).missingValues).toEqual(["NA"]);
+    expect(parseDesign(withBase("missing_values:\n  - -999\n  - '.'"), FILE).missingValues).toEqual(["-999", "."]);
   });
 });

@@ -65,8 +65,25 @@ describe("parseParticipants", () => {
 
   it("takes the missing-value codes as a parameter (the design's missing_values)", () => {
     const text = "participant_id\tage\ns1\t-999\ns2\tNA\ns3\t\n";
-    expect(parseParticipants(text, "p.tsv", ["-999"]).columns.get("age")).toEqual([null, "NA", ""]);
-    expect(parseParticipants(text, "p.tsv", []).columns.get("age")).toEqual(["-999", "NA", ""]);
+    expect(parseParticipants(text, "p.tsv", ["-999"]).columns.get("age")).toEqual([null, "NA", null]);
+    expect(parseParticipants(text, "p.tsv", []).columns.get("age")).toEqual(["-999", "NA", null]);
+  });
+
+  it("an empty cell is missing whatever the codes (an empty category or number means nothing)", () => {
+    const text = "participant_id\tsex\ns1\tF\ns2\t\ns3\t  \ns4\tM\n";
+    expect(parseParticipants(text, "p.tsv", ["-999"]).columns.get("sex")).toEqual(["F", null, null, "M"]);
+    expect(parseParticipants(text, "p.tsv", []).columns.get("sex")).toEqual(["F", null, null, "M"]);
+  });
+
+  it("reports every ID problem in one error, in line order: empty, missing-value code, repeated", () => {
+    const text = "participant_id\tage\ns1\t3\n\t4\ns1\t5\nNA\t6\ns2\t7\ns2\t8\n";
+    const error = expectInputError(() => parseParticipants(text, "p.tsv"), { file: "p.tsv", line: 3, column: 1, message: ["empty participant_id"] });
+    expect(error.problems.map((p) => [p.location.line, p.message])).toEqual([
+      [3, "empty participant_id: every row needs an ID"],
+      [4, "duplicate participant_id 's1' on lines 2 and 4"],
+      [5, "missing participant_id ('NA' is a missing-value code): every row needs an ID"],
+      [7, "duplicate participant_id 's2' on lines 6 and 7"],
+    ]);
   });
 
   it("a participant_id that is a missing-value code is an error naming the line", () => {
@@ -79,14 +96,17 @@ describe("parseParticipants", () => {
     expect(parseParticipants("participant_id\tage\nNA\t4\n", "p.tsv", ["n/a"]).ids).toEqual(["NA"]);
   });
 
-  it("control characters of an ID are escaped in messages", () => {
-    const error = expectInputError(() => parseParticipants("participant_id\tage\ns\u001b[31m\t3\ns\u001b[31m\t4\n", "p.tsv"), {
+  it("an ID with a control character is refused at its line and column, and printed escaped", () => {
+    const error = expectInputError(() => parseParticipants("participant_id\tage\ns\u001b[31m\t3\ns\u001b[31m\t4\ns\u0007\t5\n", "p.tsv"), {
       file: "p.tsv",
-      line: 3,
+      line: 2,
       column: 1,
+      message: ["participant_id 's\\x1b[31m' has a control character"],
     });
-    expect(error.message).toContain("'s\\x1b[31m'");
-    expect(error.message).not.toContain("\u001b");
+    expect(error.problems.map((p) => p.location.line)).toEqual([2, 3, 3, 4]); // line 3: control character and duplicate
+    expect(error.format()).toContain("duplicate participant_id 's\\x1b[31m' on lines 2 and 3");
+    expect(error.format()).toContain("'s\\x07' has a control character");
+    expect(error.format()).not.toMatch(/[\u0000-\u0009\u000b-\u001f]/);
   });
 
   it("a header without rows is an 'empty participants table'", () => {

@@ -61,6 +61,21 @@ describe("parseRegions", () => {
     expectInputError(() => parseRegions("x\ty\tz\tlabel\n1\t2\t3\tn/a\n", "r.tsv"), { file: "r.tsv", line: 2, column: 4 });
   });
 
+  it("a control character in a label, hemisphere or system is an error at file:line:column, every such cell at once", () => {
+    const text = "label\themisphere\tsystem\nA\u001b[2J\tL\tvis\nB\tR\u0000\tvis\nC\tL\tdm\r\u0085\n";
+    const error = expectInputError(() => parseRegions(text, "r.tsv"), { file: "r.tsv", line: 2, column: 1, message: ["label 'A\\x1b[2J' has a control character"] });
+    expect(error.problems.map((p) => [p.location.line, p.location.column])).toEqual([
+      [2, 1],
+      [3, 2],
+      [4, 3],
+    ]);
+  });
+
+  it("reports a repeated label and a bad coordinate of later rows together", () => {
+    const error = expectInputError(() => parseRegions("label\tx\ty\tz\nA\t1\t2\t3\nA\t1\t2\t3\nB\t1\tq\t3\n", "r.tsv"), { file: "r.tsv", line: 3, column: 1 });
+    expect(error.problems.map((p) => p.location.line)).toEqual([3, 4]);
+  });
+
   it("a row count other than the expected count names both counts", () => {
     expectInputError(() => parseRegions(TABLE, "regions.tsv", 4), {
       file: "regions.tsv",

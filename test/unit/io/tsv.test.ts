@@ -68,6 +68,11 @@ describe("parseTsv", () => {
     });
   });
 
+  it("a column name with a control character is an error naming its column, printed escaped", () => {
+    const error = expectInputError(() => parseTsv("id\tag\u001b[8me\n", "d.tsv"), { file: "d.tsv", line: 1, column: 2, message: ["'ag\\x1b[8me' has a control character"] });
+    expect(error.message).not.toContain("\u001b");
+  });
+
   it("an empty column name is an error naming its column", () => {
     expectInputError(() => parseTsv("id\t\tage\n", "d.tsv"), { file: "d.tsv", line: 1, column: 2 });
   });

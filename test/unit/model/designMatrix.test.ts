@@ -283,6 +283,30 @@ describe("buildDesignMatrix refuses designs it cannot estimate, naming the colum
     expect(error.message).not.toMatch(/column +is/);
   });
 
+  it("a column whose sum of squares overflows is named as too large, never called rank-deficient", () => {
+    const age = Float64Array.from(lm.data.age, (a) => a * 1e160);
+    const variables = new Map<string, Variable>([["age", { name: "age", kind: "numeric", values: age, center: 0 }]]);
+    const error = expectInputError(() => buildDesignMatrix(parseFormula("age"), variables, subjects, MODEL_KEY), {
+      ...MODEL_KEY,
+      message: [/the design column 'age' has values so large that their sum of squares is not a finite number/],
+    });
+    expect(error.message).not.toMatch(/rank/);
+  });
+
+  it("an interaction of two columns below the cell limit whose product overflows is named by its column", () => {
+    // Each cell is below 1e150, but age:score reaches 1e280 and its square overflows.
+    const big = (name: string) => numeric(name, lm.data.age.map((a) => a * 1e138));
+    const variables = new Map<string, Variable>([
+      ["age", big("age")],
+      ["score", big("score")],
+    ]);
+    const error = expectInputError(() => buildDesignMatrix(parseFormula("age * score"), variables, subjects, MODEL_KEY), {
+      ...MODEL_KEY,
+      message: [/'age:score' has values so large/],
+    });
+    expect(error.message).not.toMatch(/rank/);
+  });
+
   it("codeVariable refuses a numeric text that overflows, naming its line", () => {
     const values = lm.data.age.map(String);
     values[2] = "1e400";
