@@ -88,7 +88,7 @@ const WEIRD_VALUES: unknown[] = [
   "", "NA", "nan", "N/A", "n/a", "NaN", "1e400", "-1e400", "Infinity", "0", "-1", "1e-9", "1.0e-9", "3", "abc",
   "../outside/victim", "a/b", "..", "\u001b[31mred", "x\u0000y", "group", "age", "figures", "tables", "summary.json",
   "y ~ group", "participant_id", "site", "whole", "within", "both", "lower", "max-t", "fdr", "threshold-free",
-  0, -1, 1, 2, 1e400, -1e400, 1e-9, 0.5, 1.5, 1e9, 2 ** 31, true, false, null, [], [1, 2], ["a"], {}, { a: 1 },
+  0, -1, 1, 2, 1e400, -1e400, 1e200, -999, ["-999"], "NA", 1e-9, 0.5, 1.5, 1e9, 2 ** 31, true, false, null, [], [1, 2], ["a"], {}, { a: 1 },
   [[0, 1, 0, 0], [0, 0, 1, 0]], "[0, 1, 0, 0]", "1e400*age", "group[patient]", "site", "sex[M] - sex[F]",
 ];
 
@@ -98,11 +98,11 @@ const DESIGN_KEYS = [
   "contrasts.x", "transform", "symmetrize", "asymmetry_tolerance", "inference", "inference.method",
   "inference.threshold", "inference.size", "inference.tail", "inference.permutations", "inference.seed",
   "inference.alpha", "inference.fdr", "inference.scheme", "inference.blocks", "inference.block_permutation",
-  "inference.enhancement", "inference.enhancement.step", "inference.enhancement.extent_exponent", "unknown_key",
+  "inference.enhancement", "inference.enhancement.step", "inference.enhancement.extent_exponent", "missing_values", "unknown_key",
 ];
 
 const CELL_VALUES = [
-  "", "NA", "N/A", "nan", "NaN", "n/a", "1e400", "-inf", "Infinity", "unknown", "6O", "../outside/victim", "a/b",
+  "", "NA", "N/A", "nan", "NaN", "n/a", "1e400", "1e200", "-inf", "Infinity", "unknown", "6O", "x\r", "../outside/victim", "a/b",
   "..", "\u001b[2J", "x\ty", "sub-01", "patient", "control", "F", "M", "0", "-3", "1e-300", "\u00e9t\u00e9", "\ufeff",
 ];
 
