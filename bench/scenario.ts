@@ -1,7 +1,7 @@
 import { createHash } from "node:crypto";
 import { statSync } from "node:fs";
 import path from "node:path";
-import type { Progress } from "../src/cli/progress.js";
+import type { Progress } from "../src/common/progress.js";
 import { selectKernel } from "../src/permute/kernels/selectKernel.js";
 import { runNullEngine } from "../src/permute/nullEngine.js";
 import type { NullChunk } from "../src/permute/nullRange.js";

@@ -7,7 +7,8 @@ export { InputError, isInputError, type InputLocation } from "./errors.js";
 export { VERSION } from "./version.js";
 
 // 1. Inputs
-export { readDesign, parseDesign, type DesignSpec, type InferenceSpec, type ContrastSpec } from "./io/designFile.js";
+export { readDesign, parseDesign, type DesignSpec, type ContrastSpec } from "./io/designFile.js";
+export type { InferenceSpec, Tail } from "./common/inferenceOptions.js";
 export { readParticipants, parseParticipants, DEFAULT_MISSING_VALUES, type ParticipantsTable } from "./io/participants.js";
 export { parseMatrixText } from "./io/matrixText.js";
 export { parseNpy, encodeNpy, type NpyArray } from "./io/npy.js";

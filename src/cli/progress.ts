@@ -1,19 +1,6 @@
+import type { Progress } from "../common/progress.js";
 import type { OutputSink } from "./main.js";
 
-/**
- * Progress of a long permutation run on stderr: a bar redrawn in place when
- * stderr is a terminal, otherwise a plain line at every tenth, and nothing
- * when quiet.
- */
-export interface Progress {
-  /** `unit` names what is counted (default "relabelings"). */
-  start(label: string, total: number, unit?: string): void;
-  /** `restored` counts work taken from a checkpoint: it moves the bar but not the rate. */
-  advance(count: number, restored?: boolean): void;
-  finish(): void;
-}
-
-export const silentProgress: Progress = { start() {}, advance() {}, finish() {} };
 
 function formatDuration(seconds: number): string {
   if (!Number.isFinite(seconds)) return "?";

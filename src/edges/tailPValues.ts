@@ -1,5 +1,5 @@
 import { studentTUpperTail } from "../distributions/studentT.js";
-import type { Tail } from "../io/designFile.js";
+import type { Tail } from "../common/inferenceOptions.js";
 
 /**
  * Uncorrected p-values for the tail tested: upper P(T > t), lower P(T < t),

@@ -1,4 +1,4 @@
-import type { Tail } from "../io/designFile.js";
+import type { Tail } from "../common/inferenceOptions.js";
 import { labelComponents, type ComponentSummary } from "./components.js";
 
 /** The signs a tail looks at: upper → +, lower → −, both → each separately. */

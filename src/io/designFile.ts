@@ -4,13 +4,8 @@ import { InputError } from "../errors.js";
 import { nearestName } from "./nearestName.js";
 import { DEFAULT_MISSING_VALUES } from "./participants.js";
 import { DESIGN_FILE_LIMIT_BYTES, readTextInput } from "./readInputFile.js";
+import type { BlockPermutation, FdrVariant, InferenceMethod, InferenceSpec, Scheme, SizeMeasure, Tail } from "../common/inferenceOptions.js";
 
-export type InferenceMethod = "components" | "fdr" | "max-t" | "threshold-free";
-export type SizeMeasure = "extent" | "mass";
-export type Tail = "upper" | "lower" | "both";
-export type FdrVariant = "bh" | "by";
-export type Scheme = "auto" | "permute" | "sign-flip";
-export type BlockPermutation = "within" | "whole";
 
 export interface ContrastSpec {
   name: string;
@@ -22,31 +17,6 @@ export interface ContrastSpec {
   /** Design key, e.g. `contrasts.patient_gt_control`, and its line, for errors. */
   key: string;
   line?: number;
-}
-
-/** Threshold-free enhancement parameters (see src/inference/thresholdFree.ts). */
-export interface EnhancementSpec {
-  extentExponent: number;
-  heightExponent: number;
-  step: number;
-}
-
-export interface InferenceSpec {
-  method: InferenceMethod;
-  /** The primary threshold (the first of `thresholds`). */
-  threshold: number;
-  /** Every primary threshold of a sweep (`threshold: [2.5, 3, 3.5]`); one entry otherwise. */
-  thresholds: number[];
-  enhancement: EnhancementSpec;
-  size: SizeMeasure;
-  permutations: number;
-  seed: number;
-  alpha: number;
-  blocks?: string;
-  blockPermutation: BlockPermutation;
-  tail: Tail;
-  fdr: FdrVariant;
-  scheme: Scheme;
 }
 
 /** A design file read and checked for shape; columns and files are checked later against the data. */

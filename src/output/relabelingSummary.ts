@@ -1,4 +1,4 @@
-import type { BlockPermutation } from "../io/designFile.js";
+import type { BlockPermutation } from "../common/inferenceOptions.js";
 import type { NullSetup } from "../permute/nullContext.js";
 
 /** How a null distribution was drawn, as summary.json states it (runs and strength analyses alike). */

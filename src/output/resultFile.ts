@@ -3,7 +3,7 @@ import path from "node:path";
 import { InputError } from "../errors.js";
 import { VERSION } from "../version.js";
 import { refuseInputOverlap, type GuardedInputs } from "./inputOverlap.js";
-import { sha256Text } from "./provenance.js";
+import { sha256Text } from "../common/sha256.js";
 
 /**
  * A single result file (`plexus extract --out FILE`), written to a temporary

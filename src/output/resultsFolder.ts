@@ -4,7 +4,7 @@ import { InputError, isInputError } from "../errors.js";
 import { refuseInputOverlap, type GuardedInputs } from "./inputOverlap.js";
 import { onInterrupt } from "./interruptCleanup.js";
 import { OutputLock, processAlive } from "./outputLock.js";
-import { sha256Text } from "./provenance.js";
+import { sha256Text } from "../common/sha256.js";
 import { describeForeign, foreignContents, readRecord, recordText, WRITTEN_RECORD } from "./writtenRecord.js";
 
 export interface OpenOptions {

@@ -4,7 +4,7 @@ import { InputError } from "../errors.js";
 import { systemReason } from "../io/readInputFile.js";
 import { onInterrupt } from "./interruptCleanup.js";
 import { OutputLock } from "./outputLock.js";
-import { sha256Text } from "./provenance.js";
+import { sha256Text } from "../common/sha256.js";
 import { readRecord, recordText, REPORT_STAGING_PREFIX, WRITTEN_RECORD } from "./writtenRecord.js";
 
 /**

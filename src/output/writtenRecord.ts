@@ -1,4 +1,4 @@
-import { sha256Text } from "./provenance.js";
+import { sha256Text } from "../common/sha256.js";
 import { existsSync, lstatSync, readdirSync, readFileSync } from "node:fs";
 import path from "node:path";
 import { VERSION } from "../version.js";

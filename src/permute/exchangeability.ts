@@ -1,5 +1,5 @@
 import { InputError, type InputLocation } from "../errors.js";
-import type { InferenceSpec } from "../io/designFile.js";
+import type { InferenceSpec } from "../common/inferenceOptions.js";
 import type { Contrast } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { partitionEffect, partitionEffectRows, type EffectPartition } from "./effectPartition.js";

@@ -1,5 +1,6 @@
 import type { InputLocation } from "../errors.js";
-import { thresholdsOf, type InferenceSpec } from "../io/designFile.js";
+import { thresholdsOf } from "../io/designFile.js";
+import { type InferenceSpec } from "../common/inferenceOptions.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { partitionEffect, partitionEffectRows, reducedResiduals, type EffectPartition } from "./effectPartition.js";

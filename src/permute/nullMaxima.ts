@@ -1,4 +1,4 @@
-import type { Tail } from "../io/designFile.js";
+import type { Tail } from "../common/inferenceOptions.js";
 import { UnionFind } from "../inference/components.js";
 import { signsOfTail } from "../inference/observedComponents.js";
 import { ThresholdFreeEnhancer, type EnhancementParameters } from "../inference/thresholdFree.js";

@@ -1,4 +1,4 @@
-import type { Tail } from "../io/designFile.js";
+import type { Tail } from "../common/inferenceOptions.js";
 import { NullMaxima, type NullMeasureOptions } from "./nullMaxima.js";
 import type { EnhancementParameters } from "../inference/thresholdFree.js";
 import type { KernelData } from "./permutedStatistics.js";

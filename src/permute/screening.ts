@@ -1,5 +1,5 @@
 import { studentTUpperTail } from "../distributions/studentT.js";
-import type { Tail } from "../io/designFile.js";
+import type { Tail } from "../common/inferenceOptions.js";
 import type { KernelData } from "./permutedStatistics.js";
 import type { TwoLevelEffect } from "./kernels/groupSums.js";
 

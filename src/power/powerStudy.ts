@@ -1,5 +1,6 @@
 import seedrandom from "seedrandom";
-import { DEFAULT_INFERENCE, type InferenceSpec } from "../io/designFile.js";
+import { DEFAULT_INFERENCE } from "../io/designFile.js";
+import { type InferenceSpec } from "../common/inferenceOptions.js";
 import { edgePairs } from "../edges/edgeIndex.js";
 import { fitEdges } from "../edges/fitEdges.js";
 import { clopperPearson } from "../inference/familywiseP.js";

@@ -7,7 +7,7 @@ import { adjustFdr } from "../inference/fdr.js";
 import { observedComponents } from "../inference/observedComponents.js";
 import type { Contrast } from "../model/contrast.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
-import type { InferenceSpec } from "../io/designFile.js";
+import type { InferenceSpec } from "../common/inferenceOptions.js";
 import type { PreparedAnalysis } from "./prepareAnalysis.js";
 
 /** What a contrast yields before any permutation: edge statistics, FDR and the observed components. */

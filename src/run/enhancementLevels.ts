@@ -1,5 +1,5 @@
 import { InputError, type InputLocation } from "../errors.js";
-import type { InferenceSpec } from "../io/designFile.js";
+import type { InferenceSpec } from "../common/inferenceOptions.js";
 
 /**
  * The most levels threshold-free enhancement may sum over (the largest

@@ -1,4 +1,4 @@
-import type { Progress } from "../cli/progress.js";
+import type { Progress } from "../common/progress.js";
 import { criticalValue, familywiseP, type FamilywiseP } from "../inference/familywiseP.js";
 import { Checkpoint } from "../permute/checkpoint.js";
 import { buildNullContext, type NullSetup } from "../permute/nullContext.js";
@@ -13,7 +13,8 @@ import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { ComponentSummary } from "../inference/components.js";
 import { observedComponents, signsOfTail } from "../inference/observedComponents.js";
 import { ThresholdFreeEnhancer } from "../inference/thresholdFree.js";
-import { thresholdsOf, type InferenceSpec } from "../io/designFile.js";
+import { thresholdsOf } from "../io/designFile.js";
+import { type InferenceSpec } from "../common/inferenceOptions.js";
 import type { PreparedAnalysis } from "./prepareAnalysis.js";
 
 /** A contrast's null distribution (full, or one shard's share) with how it was drawn. */

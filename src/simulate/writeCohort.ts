@@ -2,7 +2,7 @@ import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, renameSy
 import { basename, dirname, join, relative, resolve, sep } from "node:path";
 import { InputError } from "../errors.js";
 import { encodeNpy } from "../io/npy.js";
-import { sha256File } from "../output/provenance.js";
+import { sha256File } from "../common/sha256.js";
 import type { SimulatedCohort } from "./simulateCohort.js";
 
 export interface WriteCohortOptions {

@@ -1,7 +1,7 @@
-import type { Progress } from "../cli/progress.js";
+import type { Progress } from "../common/progress.js";
 import type { InputLocation } from "../errors.js";
 import { criticalValue, familywiseP } from "../inference/familywiseP.js";
-import type { InferenceSpec, Tail } from "../io/designFile.js";
+import type { InferenceSpec, Tail } from "../common/inferenceOptions.js";
 import type { Contrast } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { buildNullContext, type NullSetup } from "../permute/nullContext.js";

@@ -2,7 +2,7 @@ import { contrastStatistics, type EdgeStatistics } from "../edges/contrastStatis
 import { fitEdges } from "../edges/fitEdges.js";
 import { tailPValues } from "../edges/tailPValues.js";
 import { adjustFdr } from "../inference/fdr.js";
-import type { InferenceSpec } from "../io/designFile.js";
+import type { InferenceSpec } from "../common/inferenceOptions.js";
 import type { Contrast } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 

@@ -1,6 +1,6 @@
 import { existsSync } from "node:fs";
 import path from "node:path";
-import { silentProgress, type Progress } from "../cli/progress.js";
+import { silentProgress, type Progress } from "../common/progress.js";
 import { InputError } from "../errors.js";
 import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs } from "../output/provenance.js";

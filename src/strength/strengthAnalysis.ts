@@ -1,4 +1,4 @@
-import { silentProgress, type Progress } from "../cli/progress.js";
+import { silentProgress, type Progress } from "../common/progress.js";
 import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
 import type { EdgeSet } from "./edgeSets.js";
 import { measureFamilywise, type MeasureFamilywise } from "./measureFamilywise.js";

@@ -5,7 +5,8 @@ import { runAnalysis } from "../../run/runAnalysis.js";
 import { mergeShards } from "../../run/mergeShards.js";
 import { InputError } from "../../errors.js";
 import { printable } from "../../io/printable.js";
-import { silentProgress, stderrProgress } from "../progress.js";
+import { silentProgress } from "../../common/progress.js";
+import { stderrProgress } from "../progress.js";
 import type { OutputSink } from "../main.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */

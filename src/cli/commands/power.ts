@@ -2,7 +2,8 @@ import type { Command } from "commander";
 import { InputError } from "../../errors.js";
 import { runPower } from "../../power/runPower.js";
 import type { OutputSink } from "../main.js";
-import { silentProgress, stderrProgress } from "../progress.js";
+import { silentProgress } from "../../common/progress.js";
+import { stderrProgress } from "../progress.js";
 import { parseThreads } from "./analysisCommands.js";
 
 function positiveInteger(text: string, option: string, minimum = 1): number {

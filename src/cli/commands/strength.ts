@@ -4,7 +4,8 @@ import { runExtract } from "../../strength/runExtract.js";
 import { runStrength } from "../../strength/runStrength.js";
 import { MEASURE_KINDS, OPTION, type EdgeSelection, type MeasureKind } from "../../strength/strengthOptions.js";
 import type { OutputSink } from "../main.js";
-import { silentProgress, stderrProgress } from "../progress.js";
+import { silentProgress } from "../../common/progress.js";
+import { stderrProgress } from "../progress.js";
 import { parseThreads } from "./analysisCommands.js";
 import { printable } from "../../io/printable.js";
 

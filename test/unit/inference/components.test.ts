@@ -11,7 +11,7 @@
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
 import { edgeIndexOf, edgePairs, type EdgePairs } from "../../../src/edges/edgeIndex.js";
-import type { Tail } from "../../../src/io/designFile.js";
+import type { Tail } from "../../../src/common/inferenceOptions.js";
 import {
   isSupraThreshold,
   labelComponents,

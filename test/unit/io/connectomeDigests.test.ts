@@ -12,7 +12,8 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
 import { loadConnectomes, type ConnectomeOptions, type ConnectomeSubject } from "../../../src/io/connectomes.js";
 import { encodeNpy } from "../../../src/io/npy.js";
 import { parallelLoading } from "../../../src/io/matrixBlocks.js";
-import { hashInputs, sha256File } from "../../../src/output/provenance.js";
+import { hashInputs } from "../../../src/output/provenance.js";
+import { sha256File } from "../../../src/common/sha256.js";
 import { prepareAnalysis } from "../../../src/run/prepareAnalysis.js";
 
 const OPTIONS: ConnectomeOptions = { symmetrize: false, asymmetryTolerance: 1e-9, transform: "none" };

@@ -2,7 +2,7 @@
 // the way src/permute/nullContext.ts builds one, from invented data.
 import seedrandom from "seedrandom";
 import { edgePairs } from "../../../src/edges/edgeIndex.js";
-import type { Tail } from "../../../src/io/designFile.js";
+import type { Tail } from "../../../src/common/inferenceOptions.js";
 import { partitionEffect, reducedResiduals } from "../../../src/permute/effectPartition.js";
 import type { NullContext } from "../../../src/permute/nullRange.js";
 import { permutedStatistics, type KernelData } from "../../../src/permute/permutedStatistics.js";

@@ -1,0 +1,35 @@
+// The resolved inference options: what every layer from the permutation engine up needs to know about
+// the test, with every default applied. The design reader (io/designFile.ts) makes them; nothing here reads files.
+
+export type InferenceMethod = "components" | "fdr" | "max-t" | "threshold-free";
+export type SizeMeasure = "extent" | "mass";
+export type Tail = "upper" | "lower" | "both";
+export type FdrVariant = "bh" | "by";
+export type Scheme = "auto" | "permute" | "sign-flip";
+export type BlockPermutation = "within" | "whole";
+
+/** Threshold-free enhancement parameters (see src/inference/thresholdFree.ts). */
+export interface EnhancementSpec {
+  extentExponent: number;
+  heightExponent: number;
+  step: number;
+}
+
+export interface InferenceSpec {
+  method: InferenceMethod;
+  /** The primary threshold (the first of `thresholds`). */
+  threshold: number;
+  /** Every primary threshold of a sweep (`threshold: [2.5, 3, 3.5]`); one entry otherwise. */
+  thresholds: number[];
+  enhancement: EnhancementSpec;
+  size: SizeMeasure;
+  permutations: number;
+  seed: number;
+  alpha: number;
+  blocks?: string;
+  blockPermutation: BlockPermutation;
+  tail: Tail;
+  fdr: FdrVariant;
+  scheme: Scheme;
+}
+
