@@ -65,7 +65,7 @@ export function syntheticNull(options: { subjects: number; regions: number; cova
     regionA: pairs.regionA,
     regionB: pairs.regionB,
     regionCount: regions,
-    threshold: 3,
+    thresholds: [3],
     tail: "upper",
     observed,
   };

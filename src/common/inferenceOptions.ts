@@ -17,10 +17,11 @@ export interface EnhancementSpec {
 
 export interface InferenceSpec {
   method: InferenceMethod;
-  /** The primary threshold (the first of `thresholds`). */
-  threshold: number;
-  /** Every primary threshold of a sweep (`threshold: [2.5, 3, 3.5]`); one entry otherwise. */
-  thresholds: number[];
+  /**
+   * The primary thresholds, the primary one first: one entry, or every
+   * threshold of a sweep (`threshold: [2.5, 3, 3.5]`), resolved once when the design is read.
+   */
+  thresholds: readonly number[];
   enhancement: EnhancementSpec;
   size: SizeMeasure;
   permutations: number;

@@ -84,7 +84,6 @@ export const LEVELS_LIMIT = 10_000;
 
 export const DEFAULT_INFERENCE: InferenceSpec = {
   method: "components",
-  threshold: 3,
   thresholds: [3],
   enhancement: { extentExponent: 0.5, heightExponent: 2, step: 0.1 },
   size: "extent",
@@ -97,14 +96,6 @@ export const DEFAULT_INFERENCE: InferenceSpec = {
   scheme: "auto",
 };
 
-/**
- * The thresholds in force: the sweep when its first entry is the primary
- * threshold, else the primary threshold alone (a spec whose `threshold` was
- * changed without its `thresholds` means that one threshold).
- */
-export function thresholdsOf(inference: Pick<InferenceSpec, "threshold" | "thresholds">): number[] {
-  return inference.thresholds.length > 0 && inference.thresholds[0] === inference.threshold ? inference.thresholds : [inference.threshold];
-}
 
 /** Reads a design file from disk; see `parseDesign`. */
 export function readDesign(file: string): DesignSpec {
@@ -367,12 +358,10 @@ export function parseDesign(text: string, file: string): DesignSpec {
         );
       }
       inference.thresholds = thresholdValue as number[];
-      inference.threshold = inference.thresholds[0];
     } else {
-      inference.threshold =
-        number("threshold", (v) => v > 0, "a positive number (the primary threshold on the statistic), or a list of them") ??
-        inference.threshold;
-      inference.thresholds = [inference.threshold];
+      inference.thresholds = [
+        number("threshold", (v) => v > 0, "a positive number (the primary threshold on the statistic), or a list of them") ?? inference.thresholds[0],
+      ];
     }
     const enhancementNode = opts.get("enhancement");
     if (enhancementNode !== undefined && enhancementNode !== null) {

@@ -1,5 +1,4 @@
 import type { InputLocation } from "../errors.js";
-import { thresholdsOf } from "../io/designFile.js";
 import { type InferenceSpec } from "../common/inferenceOptions.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
@@ -90,8 +89,7 @@ export function buildNullContext(options: {
       regionA: pairs.regionA,
       regionB: pairs.regionB,
       regionCount: pairs.regionCount,
-      threshold: inference.threshold,
-      thresholds: thresholdsOf(inference),
+      thresholds: inference.thresholds,
       enhancement: inference.method === "threshold-free" ? inference.enhancement : undefined,
       tail: multi ? "upper" : inference.tail,
       observed,

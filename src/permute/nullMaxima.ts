@@ -17,7 +17,7 @@ import { ThresholdFreeEnhancer, type EnhancementParameters } from "../inference/
  */
 export interface NullMeasureOptions {
   /** Primary threshold first, then the rest of a sweep. */
-  thresholds: number[];
+  thresholds: readonly number[];
   tail: Tail;
   /** When set, the largest enhanced value is recorded as `max_enhanced`. */
   enhancement?: EnhancementParameters;

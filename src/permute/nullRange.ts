@@ -17,9 +17,8 @@ export interface NullContext {
   regionA: Uint32Array;
   regionB: Uint32Array;
   regionCount: number;
-  threshold: number;
-  /** Every primary threshold of a sweep, the primary (`threshold`) first; absent means [threshold]. */
-  thresholds?: number[];
+  /** The primary thresholds, the primary one first (several for a sweep). */
+  thresholds: readonly number[];
   /** Threshold-free enhancement parameters, when the method needs the enhanced null. */
   enhancement?: EnhancementParameters;
   tail: Tail;
@@ -41,7 +40,7 @@ export interface NullChunk {
 
 /** The null-measure options of a context. */
 export function measureOptions(context: NullContext): NullMeasureOptions {
-  return { thresholds: context.thresholds ?? [context.threshold], tail: context.tail, enhancement: context.enhancement };
+  return { thresholds: context.thresholds, tail: context.tail, enhancement: context.enhancement };
 }
 
 export interface NullRangeOptions {

@@ -118,7 +118,7 @@ export function prepareScreen(
 ): PreparedScreen | undefined {
   const { kernel, vectors } = context;
   if (context.enhancement || (kernel.effectVectors ?? 1) !== 1 || kernel.edges === 0) return undefined;
-  const thresholds = context.thresholds ?? [context.threshold];
+  const { thresholds } = context;
   const lowest = Math.min(...thresholds);
   if (!screeningApplies(lowest, kernel.df)) return undefined;
   const norms = vectorScales(vectors);

@@ -69,7 +69,7 @@ export function analysePowerCohort(plan: PowerPlan, perGroup: number, k: number)
   const inference: InferenceSpec = {
     ...DEFAULT_INFERENCE,
     method: "max-t",
-    threshold: plan.threshold,
+    thresholds: [plan.threshold],
     size: plan.size,
     alpha: plan.alpha,
     permutations: plan.permutations,

@@ -58,7 +58,7 @@ export function observeContrastOn(fit: EdgeFit, contrast: Contrast, pairs: EdgeP
     pairs.regionA,
     pairs.regionB,
     pairs.regionCount,
-    inference.threshold,
+    inference.thresholds[0],
     tail,
     inference.size,
   );

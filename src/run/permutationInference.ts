@@ -13,7 +13,6 @@ import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { ComponentSummary } from "../inference/components.js";
 import { observedComponents, signsOfTail } from "../inference/observedComponents.js";
 import { ThresholdFreeEnhancer } from "../inference/thresholdFree.js";
-import { thresholdsOf } from "../io/designFile.js";
 import { type InferenceSpec } from "../common/inferenceOptions.js";
 import type { PreparedAnalysis } from "./prepareAnalysis.js";
 
@@ -183,7 +182,7 @@ export function sweepInference(
   pairs: EdgePairs,
   tail: InferenceSpec["tail"],
 ): SweepLevel[] {
-  return thresholdsOf(inference).map((threshold, i) => {
+  return inference.thresholds.map((threshold, i) => {
     const { labels, components } = observedComponents(
       observed.statistics.statistic,
       pairs.regionA,

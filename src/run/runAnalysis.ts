@@ -29,7 +29,6 @@ import {
   type FamilywiseResult,
 } from "./permutationInference.js";
 import { prepareAnalysis, type PreparedAnalysis } from "./prepareAnalysis.js";
-import { thresholdsOf } from "../io/designFile.js";
 import { writeReport } from "../report/writeReport.js";
 import type { KnownResults } from "../report/loadResults.js";
 
@@ -87,8 +86,8 @@ export function runFingerprint(prepared: PreparedAnalysis, inputs: InputRecord[]
     transform: prepared.design.transform,
     symmetrize: prepared.design.symmetrize,
     inference: {
-      threshold: inference.threshold,
-      thresholds: thresholdsOf(inference),
+      threshold: inference.thresholds[0],
+      thresholds: inference.thresholds,
       enhancement: inference.method === "threshold-free" ? inference.enhancement : null,
       tail: inference.tail,
       permutations: inference.permutations,
@@ -203,8 +202,8 @@ function refuseUnfinishedCheckpoint(out: string): void {
 function resultLines(prepared: PreparedAnalysis, contrasts: ObservedContrast[], nulls: (ContrastNull | undefined)[]): string[] {
   const { inference } = prepared.design;
   return contrasts.map((observed, i) => {
-    const rule =
-      inference.tail === "both" ? `|t| > ${inference.threshold}` : inference.tail === "lower" ? `t < -${inference.threshold}` : `t > ${inference.threshold}`;
+    const threshold = inference.thresholds[0];
+    const rule = inference.tail === "both" ? `|t| > ${threshold}` : inference.tail === "lower" ? `t < -${threshold}` : `t > ${threshold}`;
     const head = `${observed.contrast.name}: ${observed.components.length} supra-threshold component(s) at ${rule}`;
     const rows = nulls[i]?.rows;
     if (!rows) {
@@ -250,7 +249,7 @@ export function writeResults(
         ? thresholdFreeInference(inference, observed, contrastNull.rows, exact, prepared.pairs, tail)
         : undefined;
     const sweep =
-      contrastNull && thresholdsOf(inference).length > 1 ? sweepInference(inference, observed, contrastNull.rows, exact, prepared.pairs, tail) : undefined;
+      contrastNull && inference.thresholds.length > 1 ? sweepInference(inference, observed, contrastNull.rows, exact, prepared.pairs, tail) : undefined;
     extras.push({ free, sweep });
     const { statistics } = observed;
     const extra: ExtraEdgeColumn[] = [];
@@ -453,8 +452,8 @@ export function buildSummary(
       asymmetry_tolerance: design.asymmetryTolerance,
       inference: {
         method: inference.method,
-        threshold: inference.threshold,
-        thresholds: thresholdsOf(inference),
+        threshold: inference.thresholds[0],
+        thresholds: inference.thresholds,
         ...(inference.method === "threshold-free"
           ? {
               enhancement: {

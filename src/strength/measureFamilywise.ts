@@ -55,7 +55,7 @@ export async function measureFamilywise(options: {
     edges: measures,
     pairs: { regionCount: 0, edgeCount: measures, regionA: new Uint32Array(0), regionB: new Uint32Array(0) },
     observed: options.observed,
-    inference: { ...inference, threshold: Infinity },
+    inference: { ...inference, thresholds: [Infinity] },
     blocks: options.blocks,
     where: options.where,
   });

@@ -26,7 +26,7 @@ describe("error control by simulation (reduced form)", () => {
       name: "ci-null-blocks",
       simulation: { ...base, effect: null },
       design,
-      inference: { threshold: 2.5, size: "mass", tail: "both" },
+      inference: { thresholds: [2.5], size: "mass", tail: "both" },
       blocks: true,
     };
     const cohorts = 1000;
@@ -52,7 +52,7 @@ describe("error control by simulation (reduced form)", () => {
       name: "ci-fdr",
       simulation: { ...base, effect: { regions: 4, size: 1.2 } },
       design,
-      inference: { threshold: 2.5 },
+      inference: { thresholds: [2.5] },
     };
     const outcomes = runCondition(condition, 200, 19);
     const fdp = outcomes.map((o) => (o.fdr.declared === 0 ? 0 : (o.fdr.declared - o.fdr.truePositive) / o.fdr.declared));

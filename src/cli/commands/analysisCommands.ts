@@ -32,7 +32,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
         ...prepared.contrasts.map(
           (c) => `contrast    ${c.name}: ${c.expression}  ->  ${formatContrastRows(c.kind === "F" ? c.rows : [c.vector], c.kind)}`,
         ),
-        `inference   ${design.inference.method}, threshold ${design.inference.threshold}, size ${design.inference.size}, tail ${design.inference.tail}, alpha ${design.inference.alpha}`,
+        `inference   ${design.inference.method}, threshold ${design.inference.thresholds.join(", ")}, size ${design.inference.size}, tail ${design.inference.tail}, alpha ${design.inference.alpha}`,
       ];
       for (const warning of prepared.warnings) log.warn(warning);
       sink.out(`${printable(lines.join("\n"))}\nok: the design and its inputs are valid\n`);

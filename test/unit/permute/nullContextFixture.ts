@@ -74,8 +74,7 @@ export function nullContext(options: NullContextOptions): NullContext {
     regionA: pairs.regionA,
     regionB: pairs.regionB,
     regionCount: regions,
-    threshold: options.thresholds?.[0] ?? 1.5,
-    thresholds: options.thresholds,
+    thresholds: options.thresholds ?? [1.5],
     tail: options.tail ?? "both",
     observed,
   };
