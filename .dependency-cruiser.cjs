@@ -33,7 +33,7 @@ module.exports = {
       name: "numerics-never-import-the-pipeline",
       severity: "error",
       from: { path: NUMERICS },
-      to: { path: "^src/(run|strength|power|validation|simulate)/" },
+      to: { path: "^src/(run|strength|power|errorRateStudy|simulate)/" },
     },
     {
       name: "numerics-never-import-outputs",

@@ -5,7 +5,7 @@
 import { writeFileSync } from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import { rateOf, runCondition } from "../dist/validation/errorRateStudy.js";
+import { rateOf, runCondition } from "../dist/errorRateStudy/errorRateStudy.js";
 import { VERSION } from "../dist/version.js";
 
 const here = path.dirname(fileURLToPath(import.meta.url));

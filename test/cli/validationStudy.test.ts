@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { clopperPearson } from "../../src/inference/familywiseP.js";
-import { runCondition, type StudyCondition } from "../../src/validation/errorRateStudy.js";
+import { runCondition, type StudyCondition } from "../../src/errorRateStudy/errorRateStudy.js";
 
 // The reduced, CI-sized form of the validation study (`npm run validate` runs the
 // full one). Criterion: under the null the share of cohorts with a family-wise
