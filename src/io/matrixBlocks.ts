@@ -1,6 +1,7 @@
 import { MessageChannel, Worker, receiveMessageOnPort, type MessagePort } from "node:worker_threads";
 import { InputError, inputErrors, isInputError, type InputLocation } from "../errors.js";
 import { availableThreads, workerScript } from "../parallel/workerPool.js";
+import type { BlockLoader } from "./blockLoader.js";
 import { SUBJECT_BLOCK_SIZE } from "./connectomeEdges.js";
 import { npyBlockLoader, type NpyBlockJob } from "./npyMatrixBlocks.js";
 import { blockCount } from "./subjectBlocks.js";
@@ -20,17 +21,6 @@ import { textBlockLoader, type TextBlockJob } from "./textMatrixBlocks.js";
  * thread loaded which block.
  */
 export type BlockJob = TextBlockJob | NpyBlockJob;
-
-/** Loads blocks of one job on one thread (holding its reader and buffers between blocks). */
-export interface BlockLoader {
-  /**
-   * Reads and writes the subjects of `block`, in order, and returns the problem
-   * with each bad matrix (in subject order); throws a problem that stops the
-   * whole block (e.g. a stack that cannot be opened) or a bug.
-   */
-  load(block: number): InputError[];
-  close(): void;
-}
 
 /** The worker's report of a block it could not load: the problems with its matrices, or a bug. */
 export interface BlockFailure {

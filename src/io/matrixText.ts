@@ -558,22 +558,10 @@ function scanDecimal(text: string, start: number, stop: number): number {
   let exponent = 0;
   let sawDigit = false;
 
-  for (; p < stop; p++) {
-    c = text.charCodeAt(p);
-    if (c < ZERO || c > NINE) break;
-    sawDigit = true;
-    if (significantDigits !== 0 || c !== ZERO) {
-      if (significantDigits < HIGH_DIGITS) {
-        high = high * 10 + (c - ZERO);
-      } else if (significantDigits < MAX_SIGNIFICANT_DIGITS) {
-        low = low * 10 + (c - ZERO);
-        lowDigits++;
-      }
-      significantDigits++;
-    }
-  }
-  if (p < stop && text.charCodeAt(p) === DOT) {
-    for (p++; p < stop; p++) {
+  // One digit loop reads the integer part, then (after a dot) the fraction, whose length is the exponent.
+  let fractionStart = -1;
+  for (;;) {
+    for (; p < stop; p++) {
       c = text.charCodeAt(p);
       if (c < ZERO || c > NINE) break;
       sawDigit = true;
@@ -586,8 +574,13 @@ function scanDecimal(text: string, start: number, stop: number): number {
         }
         significantDigits++;
       }
-      exponent--;
     }
+    if (fractionStart >= 0) {
+      exponent = fractionStart - p;
+      break;
+    }
+    if (p >= stop || text.charCodeAt(p) !== DOT) break;
+    fractionStart = ++p;
   }
   if (!sawDigit) {
     scanEnd = start;

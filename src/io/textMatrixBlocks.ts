@@ -4,7 +4,7 @@ import { InputError } from "../errors.js";
 import { loadSubject } from "./matrixProblems.js";
 import { edgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, SUBJECT_BLOCK_SIZE, type EdgeExtractionOptions } from "./connectomeEdges.js";
-import type { BlockLoader } from "./matrixBlocks.js";
+import type { BlockLoader } from "./blockLoader.js";
 import { blockSubjects } from "./subjectBlocks.js";
 import { parseMatrixBytes, type ParsedMatrixText } from "./matrixText.js";
 import { TextFileReader } from "./readInputFile.js";

@@ -1,0 +1,39 @@
+import type { InferenceSpec } from "../../common/inferenceOptions.js";
+
+export interface ContrastSpec {
+  name: string;
+  /**
+   * An expression such as `group[patient] - group[control]`, a numeric vector
+   * over the design columns, or a list of rows (expressions or vectors) for an F contrast.
+   */
+  expression: string | number[] | (string | number[])[];
+  /** Design key, e.g. `contrasts.patient_gt_control`, and its line, for errors. */
+  key: string;
+  line?: number;
+}
+
+/** A design file read and checked for shape; columns and files are checked later against the data. */
+export interface DesignSpec {
+  file: string;
+  baseDir: string;
+  subjects: string;
+  connectomes: string;
+  regions?: string;
+  model: string;
+  /** Cell texts of the participants table read as missing (`missing_values`). */
+  missingValues: string[];
+  levels: Record<string, string[]>;
+  center: string[];
+  contrasts: ContrastSpec[];
+  transform: "none" | "fisher-z";
+  symmetrize: boolean;
+  asymmetryTolerance: number;
+  inference: InferenceSpec;
+  /** 1-based line of each key path (`inference.threshold`), for located errors later. */
+  lines: Map<string, number>;
+}
+
+/** The location of a design key, for errors raised after parsing. */
+export function designKeyLocation(design: DesignSpec, key: string) {
+  return { file: design.file, key, line: design.lines.get(key) };
+}
