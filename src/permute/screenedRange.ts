@@ -1,4 +1,4 @@
-import { studentTUpperTail } from "../distributions/studentT.js";
+import { studentTUpperTail } from "../statistics/studentT.js";
 import { statisticsAtEdges, type KernelData } from "./permutedStatistics.js";
 import { groupStatisticsAtEdges, residualSums, type TwoLevelEffect } from "./kernels/groupSums.js";
 import { screeningInstance, type KernelChoice } from "./kernels/selectKernel.js";

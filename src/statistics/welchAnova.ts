@@ -1,4 +1,4 @@
-import { fisherFUpperTail } from "../../distributions/fisherF.js";
+import { fisherFUpperTail } from "./fisherF.js";
 import { mean, variance } from "./describe.js";
 
 /**
