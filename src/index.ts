@@ -34,7 +34,8 @@ export { studentTUpperTail, studentTCdf, studentTQuantile, studentTDensity } fro
 export { partitionEffect, reducedResiduals, type EffectPartition } from "./permute/effectPartition.js";
 export { permutedStatistics, type KernelData } from "./permute/permutedStatistics.js";
 export { planRelabelings, Relabeler, designRowTypes, type RelabelingPlan } from "./permute/relabelings.js";
-export { computeNullRange, type NullChunk, type NullContext } from "./permute/nullRange.js";
+export { computeNullRange } from "./permute/nullRange.js";
+export type { NullChunk, NullContext } from "./permute/nullRangeTypes.js";
 export { runNullEngine } from "./permute/nullEngine.js";
 
 // 5. Inference

@@ -5,7 +5,7 @@ import { screeningInstance, type KernelChoice } from "./kernels/selectKernel.js"
 import type { GroupSumBounds } from "./kernels/wasmKernel.js";
 import type { Tail } from "../common/inferenceOptions.js";
 import type { NullMaxima } from "./nullMaxima.js";
-import type { NullContext, NullRecorder, ScreenTally } from "./nullRange.js";
+import type { NullContext, NullRecorder, ScreenTally } from "./nullRangeTypes.js";
 import { relabelingWriter } from "./relabelingWriter.js";
 import {
   groupSumBounds,
