@@ -2,7 +2,7 @@ import { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, w
 import path from "node:path";
 import { createHash } from "node:crypto";
 import { InputError } from "../errors.js";
-import type { NullChunk } from "./nullRangeTypes.js";
+import type { NullChunk } from "../permute/nullRangeTypes.js";
 
 /**
  * The null distribution saved chunk by chunk beside the results folder, so
