@@ -4,7 +4,7 @@ import path from "node:path";
 import type { Progress } from "../src/common/progress.js";
 import { selectKernel } from "../src/permute/kernels/selectKernel.js";
 import { runNullEngine } from "../src/permute/nullEngine.js";
-import type { NullChunk } from "../src/permute/nullRange.js";
+import type { NullChunk } from "../src/permute/nullRangeTypes.js";
 import { prepareAnalysis } from "../src/run/prepareAnalysis.js";
 import { runAnalysis } from "../src/run/runAnalysis.js";
 import { CACHE } from "./cohorts.js";

@@ -1,7 +1,7 @@
 import { edgePairs } from "../src/edges/edgeIndex.js";
 import { partitionEffect, reducedResiduals } from "../src/permute/effectPartition.js";
 import { sharedFloat64 } from "../src/permute/nullContext.js";
-import type { NullContext } from "../src/permute/nullRange.js";
+import type { NullContext } from "../src/permute/nullRangeTypes.js";
 import { permutedStatistics } from "../src/permute/permutedStatistics.js";
 import { designRowTypes, planRelabelings } from "../src/permute/relabelings.js";
 import { uniformSource } from "./uniformSource.js";

@@ -28,13 +28,14 @@ export { edgePairs, edgeIndexOf, edgeCountFor, type EdgePairs } from "./edges/ed
 export { fitEdges, unscaledCovariance, contrastVarianceFactor, type EdgeFit } from "./edges/fitEdges.js";
 export { contrastStatistics, type EdgeStatistics } from "./edges/contrastStatistics.js";
 export { tailPValues } from "./edges/tailPValues.js";
-export { studentTUpperTail, studentTCdf, studentTQuantile, studentTDensity } from "./distributions/studentT.js";
+export { studentTUpperTail, studentTCdf, studentTQuantile, studentTDensity } from "./statistics/studentT.js";
 
 // 4. Permutation engine
 export { partitionEffect, reducedResiduals, type EffectPartition } from "./permute/effectPartition.js";
 export { permutedStatistics, type KernelData } from "./permute/permutedStatistics.js";
 export { planRelabelings, Relabeler, designRowTypes, type RelabelingPlan } from "./permute/relabelings.js";
-export { computeNullRange, type NullChunk, type NullContext } from "./permute/nullRange.js";
+export { computeNullRange } from "./permute/nullRange.js";
+export type { NullChunk, NullContext } from "./permute/nullRangeTypes.js";
 export { runNullEngine } from "./permute/nullEngine.js";
 
 // 5. Inference
@@ -50,7 +51,7 @@ export { mergeShards } from "./run/mergeShards.js";
 export { runPower, type PowerOptions } from "./power/runPower.js";
 export { analysePowerCohort, type PowerPlan } from "./power/powerStudy.js";
 export { contrastFStatistics } from "./edges/fStatistics.js";
-export { fisherFUpperTail } from "./distributions/fisherF.js";
+export { fisherFUpperTail } from "./statistics/fisherF.js";
 export { simulateCohort, type SimulationOptions, type SimulatedCohort } from "./simulate/simulateCohort.js";
 export { writeCohort } from "./simulate/writeCohort.js";
 export { main } from "./cli/main.js";

@@ -1,4 +1,4 @@
-import { studentTUpperTail } from "../distributions/studentT.js";
+import { studentTUpperTail } from "../statistics/studentT.js";
 import { contrastVarianceFactor, type EdgeFit } from "./fitEdges.js";
 
 /**

@@ -1,5 +1,5 @@
 import { Matrix, inverse } from "ml-matrix";
-import { fisherFUpperTail } from "../distributions/fisherF.js";
+import { fisherFUpperTail } from "../statistics/fisherF.js";
 import { isDegenerate } from "./contrastStatistics.js";
 import { unscaledCovariance, type EdgeFit } from "./fitEdges.js";
 

@@ -1,4 +1,4 @@
-import { studentTUpperTail } from "../distributions/studentT.js";
+import { studentTUpperTail } from "../statistics/studentT.js";
 import type { Tail } from "../common/inferenceOptions.js";
 
 /**

@@ -1,5 +1,5 @@
 import { InputError } from "../errors.js";
-import type { NullChunk } from "../permute/nullRange.js";
+import type { NullChunk } from "../permute/nullRangeTypes.js";
 import { parseTsv } from "../io/tsv.js";
 import { formatTsv, type Cell } from "./tsvWriter.js";
 

@@ -3,7 +3,7 @@ import { type InferenceSpec } from "../common/inferenceOptions.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { partitionEffect, partitionEffectRows, reducedResiduals, type EffectPartition } from "./effectPartition.js";
-import type { NullContext } from "./nullRange.js";
+import type { NullContext } from "./nullRangeTypes.js";
 import { checkWholeBlockSizes, chooseScheme } from "./exchangeability.js";
 import { designRowTypes, planRelabelings, type SchemeKind } from "./relabelings.js";
 

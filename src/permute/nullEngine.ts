@@ -1,5 +1,6 @@
 import { availableThreads, runOnWorkers, workerScript } from "../parallel/workerPool.js";
-import { computeNullRange, type NullChunk, type NullContext } from "./nullRange.js";
+import { computeNullRange } from "./nullRange.js";
+import type { NullChunk, NullContext } from "./nullRangeTypes.js";
 
 /**
  * Runs relabelings from..to−1 in chunks, on the calling thread or on worker

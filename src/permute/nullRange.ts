@@ -1,42 +1,9 @@
-import type { Tail } from "../common/inferenceOptions.js";
 import { NullMaxima, type NullMeasureOptions } from "./nullMaxima.js";
-import type { EnhancementParameters } from "../inference/thresholdFree.js";
-import type { KernelData } from "./permutedStatistics.js";
+import type { NullChunk, NullContext, NullRecorder, ScreenTally } from "./nullRangeTypes.js";
 import { twoLevelEffect, type TwoLevelEffect } from "./kernels/groupSums.js";
 import { selectKernel, type KernelChoice } from "./kernels/selectKernel.js";
 import { prepareScreen, screenedRows } from "./screenedRange.js";
 import { relabelingWriter, type RelabelingWriter } from "./relabelingWriter.js";
-import type { RelabelingPlan } from "./relabelings.js";
-
-/** Everything needed to compute null rows for one contrast (plain data; shareable with workers). */
-export interface NullContext {
-  kernel: KernelData;
-  /** x̃ then the nuisance basis vectors the relabeling must carry (see permutedStatistics). */
-  vectors: Float64Array[];
-  plan: RelabelingPlan;
-  regionA: Uint32Array;
-  regionB: Uint32Array;
-  regionCount: number;
-  /** The primary thresholds, the primary one first (several for a sweep). */
-  thresholds: readonly number[];
-  /** Threshold-free enhancement parameters, when the method needs the enhanced null. */
-  enhancement?: EnhancementParameters;
-  tail: Tail;
-  /** The observed statistic, used as is for the identity (relabeling 1 in exact mode). */
-  observed: Float64Array;
-}
-
-/** Null rows for relabelings from..to−1 (1-based k), in order. */
-export interface NullChunk {
-  from: number;
-  to: number;
-  maxExtent: Float64Array;
-  maxMass: Float64Array;
-  maxStatistic: Float64Array;
-  /** Extra null columns (threshold sweep, enhanced maximum), named in `extraNames`. */
-  extraNames: string[];
-  extra: Float64Array[];
-}
 
 /** The null-measure options of a context. */
 export function measureOptions(context: NullContext): NullMeasureOptions {
@@ -79,18 +46,6 @@ function screenFromEnvironment(): boolean {
 
 /** Relabelings per full computation behind the screen, which sends back few. */
 const FALLBACK_BATCH = 8;
-
-export interface ScreenTally {
-  screened: number;
-  full: number;
-  /** Of the screened: settled from the near lists of their first run (no edge above the threshold, no second run). */
-  near?: number;
-  /** Of the screened: below the near threshold too, and computed edge by edge with the per-pair recomputation. */
-  direct?: number;
-}
-
-/** One relabeling's null row, recorded into the chunk. */
-export type NullRecorder = (k: number, measured: { maxExtent: number; maxMass: number; maxStatistic: number }, extra: Float64Array) => void;
 
 export function computeNullRange(context: NullContext, from: number, to: number, options: NullRangeOptions = {}): NullChunk {
   const count = to - from;

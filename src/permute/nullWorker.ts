@@ -1,5 +1,6 @@
 import { parentPort, workerData } from "node:worker_threads";
-import { computeNullRange, type NullContext } from "./nullRange.js";
+import { computeNullRange } from "./nullRange.js";
+import type { NullContext } from "./nullRangeTypes.js";
 
 /** A worker thread: receives ranges of relabelings, returns their null rows. */
 const context = workerData as NullContext;

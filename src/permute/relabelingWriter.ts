@@ -1,5 +1,5 @@
 import type { TwoLevelEffect } from "./kernels/groupSums.js";
-import type { NullContext } from "./nullRange.js";
+import type { NullContext } from "./nullRangeTypes.js";
 import { Relabeler } from "./relabelings.js";
 
 /** Fills the relabeled vectors (or the summed group) of relabeling k into slot b of a batch. */

@@ -1,11 +1,11 @@
-import { studentTUpperTail } from "../distributions/studentT.js";
+import { studentTUpperTail } from "../statistics/studentT.js";
 import { statisticsAtEdges, type KernelData } from "./permutedStatistics.js";
 import { groupStatisticsAtEdges, residualSums, type TwoLevelEffect } from "./kernels/groupSums.js";
 import { screeningInstance, type KernelChoice } from "./kernels/selectKernel.js";
 import type { GroupSumBounds } from "./kernels/wasmKernel.js";
 import type { Tail } from "../common/inferenceOptions.js";
 import type { NullMaxima } from "./nullMaxima.js";
-import type { NullContext, NullRecorder, ScreenTally } from "./nullRange.js";
+import type { NullContext, NullRecorder, ScreenTally } from "./nullRangeTypes.js";
 import { relabelingWriter } from "./relabelingWriter.js";
 import {
   groupSumBounds,

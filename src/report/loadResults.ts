@@ -6,7 +6,7 @@ import type { Region } from "../io/regions.js";
 import { readTextFile } from "../io/readInputFile.js";
 import { parseTsv, type LocatedTsvTable } from "../io/tsv.js";
 import { parseNullTable } from "../output/nullTable.js";
-import type { NullChunk } from "../permute/nullRange.js";
+import type { NullChunk } from "../permute/nullRangeTypes.js";
 import { tsvCellText } from "./tsvCellText.js";
 
 /**

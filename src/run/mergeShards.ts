@@ -2,7 +2,7 @@ import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
 import { InputError, inputErrors } from "../errors.js";
 import { concatenateChunks } from "../permute/nullEngine.js";
-import type { NullChunk } from "../permute/nullRange.js";
+import type { NullChunk } from "../permute/nullRangeTypes.js";
 import { parseNullTable } from "../output/nullTable.js";
 import { hashInputs } from "../output/provenance.js";
 import { sha256Text } from "../common/sha256.js";

@@ -1,9 +1,9 @@
 import type { Progress } from "../common/progress.js";
 import { criticalValue, familywiseP, type FamilywiseP } from "../inference/familywiseP.js";
-import { Checkpoint } from "../permute/checkpoint.js";
+import { Checkpoint } from "../output/checkpoint.js";
 import { buildNullContext, type NullSetup } from "../permute/nullContext.js";
 import { runNullEngine } from "../permute/nullEngine.js";
-import type { NullChunk } from "../permute/nullRange.js";
+import type { NullChunk } from "../permute/nullRangeTypes.js";
 import type { ObservedContrast } from "./analyzeContrasts.js";
 import type { InputLocation } from "../errors.js";
 import type { Contrast } from "../model/contrast.js";

@@ -4,7 +4,7 @@ import path from "node:path";
 import { InputError } from "../errors.js";
 import { VERSION } from "../version.js";
 import { silentProgress, type Progress } from "../common/progress.js";
-import { Checkpoint } from "../permute/checkpoint.js";
+import { Checkpoint } from "../output/checkpoint.js";
 import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs, type InputRecord } from "../output/provenance.js";
 import { sha256Text } from "../common/sha256.js";

@@ -9,7 +9,7 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { OutputLock } from "../../src/output/outputLock.js";
-import { Checkpoint } from "../../src/permute/checkpoint.js";
+import { Checkpoint } from "../../src/output/checkpoint.js";
 import { writeSimulatedCohort } from "../unit/strength/strengthTestFiles.js";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..", "..");

@@ -11,7 +11,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { OutputLock } from "../../src/output/outputLock.js";
 import { RESERVED_TOP_LEVEL_NAMES } from "../../src/output/reservedNames.js";
 import { WRITTEN_RECORD } from "../../src/output/writtenRecord.js";
-import { Checkpoint } from "../../src/permute/checkpoint.js";
+import { Checkpoint } from "../../src/output/checkpoint.js";
 import { runCli, writeSimulatedCohort } from "../unit/strength/strengthTestFiles.js";
 
 let root = "";

@@ -1,6 +1,7 @@
 import type { KernelData } from "../permutedStatistics.js";
 import { residualSums, type TwoLevelEffect } from "./groupSums.js";
 import { PERMUTE_KERNEL_BASE64, PERMUTE_KERNEL_TILE } from "./generated/permuteKernelBytes.js";
+import type { KernelExports } from "./generated/kernelSignatures.js";
 
 /**
  * The WebAssembly SIMD permutation kernel (source: build/permuteKernelWat.mjs).
@@ -13,94 +14,9 @@ import { PERMUTE_KERNEL_BASE64, PERMUTE_KERNEL_TILE } from "./generated/permuteK
  * edge-major); the copy costs O(S) per edge and batch against O(S · rows)
  * arithmetic. The statistics are written in place into a batch × E array in
  * WebAssembly memory that the caller reads. Each thread has its own instance.
+ * The exports are declared (KernelExports) from the description the generators
+ * write them from (build/kernelExports.mjs).
  */
-interface KernelExports {
-  memory: { readonly buffer: ArrayBuffer; grow(pages: number): number };
-  statisticsBlock(
-    panel: number,
-    rowTiles: number,
-    S: number,
-    residuals: number,
-    width: number,
-    products: number,
-    batch: number,
-    vectors: number,
-    sumSquares: number,
-    validMask: number,
-    effectNorm2: number,
-    df: number,
-    out: number,
-    outStride: number,
-  ): void;
-  tileProducts(panel: number, rowTiles: number, S: number, residuals: number, products: number): void;
-  tileProducts32(panel: number, rowTiles: number, S: number, residuals: number, products: number): void;
-  demoteBlock(source: number, target: number, count: number): void;
-  interleaveBlock(source: number, target: number, S: number, tiles: number): void;
-  screenBlock(
-    panel: number,
-    rowTiles: number,
-    S: number,
-    residuals: number,
-    width: number,
-    products: number,
-    batch: number,
-    vectors: number,
-    sumSquares: number,
-    scale: number,
-    validMask: number,
-    norms: number,
-    inverseNorm: number,
-    df: number,
-    rhs: number,
-    upper: number,
-    lower: number,
-    first: number,
-    lists: number,
-    counts: number,
-    capacity: number,
-  ): void;
-  transposeDemoteBlock(src: number, dst: number, S: number, W: number): void;
-  groupTableScreenBlock(
-    blockT: number,
-    W: number,
-    width: number,
-    S: number,
-    chunkSize: number,
-    offsets: number,
-    chunks: number,
-    batch: number,
-    tables: number,
-    sLo: number,
-    sHi: number,
-    first: number,
-    lists: number,
-    counts: number,
-    capacity: number,
-    nLo: number,
-    nHi: number,
-    nearLists: number,
-    nearCounts: number,
-    nearCapacity: number,
-  ): void;
-  transposeBlock(source: number, target: number, S: number, W: number): void;
-  groupStatisticsBlock(
-    blockT: number,
-    W: number,
-    width: number,
-    offsets: number,
-    groupSize: number,
-    batch: number,
-    rowSums: number,
-    sumSquares: number,
-    validMask: number,
-    difference: number,
-    other: number,
-    effectNorm2: number,
-    df: number,
-    out: number,
-    outStride: number,
-  ): void;
-}
 
 /**
  * The part of the WebAssembly JavaScript API used here, typed locally: the

@@ -4,7 +4,7 @@ import anova1 from "@stdlib/stats-anova1";
 import { expectClose } from "../../helpers/close.js";
 import { fitEdges } from "../../../src/edges/fitEdges.js";
 import { contrastFStatistics } from "../../../src/edges/fStatistics.js";
-import { fisherFUpperTail } from "../../../src/distributions/fisherF.js";
+import { fisherFUpperTail } from "../../../src/statistics/fisherF.js";
 import { parseContrast } from "../../../src/model/contrast.js";
 import { buildDesignMatrix } from "../../../src/model/designMatrix.js";
 import { parseFormula } from "../../../src/model/formula.js";
@@ -73,7 +73,7 @@ describe("F contrasts: one-way ANOVA of the iris data", () => {
   });
 });
 
-import { studentTUpperTail } from "../../../src/distributions/studentT.js";
+import { studentTUpperTail } from "../../../src/statistics/studentT.js";
 function jStatTwoSided(t: number, df: number): number {
   return 2 * studentTUpperTail(Math.abs(t), df);
 }

@@ -8,7 +8,8 @@
 import seedrandom from "seedrandom";
 import { Matrix } from "ml-matrix";
 import { afterEach, describe, expect, it, vi } from "vitest";
-import { computeNullRange, type NullChunk } from "../../../src/permute/nullRange.js";
+import { computeNullRange } from "../../../src/permute/nullRange.js";
+import type { NullChunk } from "../../../src/permute/nullRangeTypes.js";
 import { nullContext } from "./nullContextFixture.js";
 import { permutedStatistics, weightedSums, type KernelData } from "../../../src/permute/permutedStatistics.js";
 import { groupSumStatistics, twoLevelEffect } from "../../../src/permute/kernels/groupSums.js";

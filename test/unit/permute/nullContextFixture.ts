@@ -4,7 +4,7 @@ import seedrandom from "seedrandom";
 import { edgePairs } from "../../../src/edges/edgeIndex.js";
 import type { Tail } from "../../../src/common/inferenceOptions.js";
 import { partitionEffect, reducedResiduals } from "../../../src/permute/effectPartition.js";
-import type { NullContext } from "../../../src/permute/nullRange.js";
+import type { NullContext } from "../../../src/permute/nullRangeTypes.js";
 import { permutedStatistics, type KernelData } from "../../../src/permute/permutedStatistics.js";
 import { designRowTypes, planRelabelings, type SchemeKind } from "../../../src/permute/relabelings.js";
 

@@ -8,7 +8,8 @@
 import seedrandom from "seedrandom";
 import { Matrix } from "ml-matrix";
 import { describe, expect, it } from "vitest";
-import { computeNullRange, type NullChunk, type NullContext, type ScreenTally } from "../../../src/permute/nullRange.js";
+import { computeNullRange } from "../../../src/permute/nullRange.js";
+import type { NullChunk, NullContext, ScreenTally } from "../../../src/permute/nullRangeTypes.js";
 import { permutedStatistics, statisticAt, statisticsAtEdges } from "../../../src/permute/permutedStatistics.js";
 import { groupStatisticsAtEdges, groupSumStatistics, residualSums, twoLevelEffect } from "../../../src/permute/kernels/groupSums.js";
 import { relabelingWriter } from "../../../src/permute/relabelingWriter.js";

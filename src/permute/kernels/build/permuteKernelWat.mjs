@@ -29,6 +29,7 @@
 // in ascending order (f64x2 lanes = two edges; additions only), then forms
 //   a = (g − o)·sum + o·ΣR   and t as above with one vector.
 
+import { emitExportedFunction } from "./kernelExports.mjs";
 import { screenKernelFields } from "./screenKernelWat.mjs";
 
 /** Rows per f64x2 accumulator. */
@@ -174,10 +175,7 @@ export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs, rowQuads,
   emit(1, ")");
 
   // ---- a block of edges: tiles of P edges, products then statistics ----
-  emit(1, '(func (export "statisticsBlock")');
-  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $width i32)");
-  emit(2, "(param $prod i32) (param $batch i32) (param $vectors i32) (param $ss i32) (param $mask i32)");
-  emit(2, "(param $effectNorm2 f64) (param $df f64) (param $out i32) (param $outStride i32)");
+  emitExportedFunction(emit, 1, "statisticsBlock");
   emit(2, "(local $i i32) (local $count i32)");
   emit(2, "(block $done");
   emit(3, "(loop $tiles");
@@ -199,7 +197,7 @@ export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs, rowQuads,
 
   // ---- the two-level path (src/permute/kernels/groupSums.ts): block transpose and group sums ----
   emit(1, ";; dst[s·W + i] = src[i·S + s] for edges i < W (W even) and subjects s < S: 2 × 2 transposes");
-  emit(1, '(func (export "transposeBlock") (param $src i32) (param $dst i32) (param $S i32) (param $W i32)');
+  emitExportedFunction(emit, 1, "transposeBlock");
   emit(2, "(local $i i32) (local $a i32) (local $b i32) (local $d i32) (local $aEnd i32) (local $rowBytes i32) (local $x v128) (local $y v128)");
   emit(2, "(local.set $rowBytes (i32.shl (local.get $W) (i32.const 3)))");
   emit(2, "(block $edgesDone");
@@ -234,10 +232,7 @@ export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs, rowQuads,
   const G = groupPairs;
   const GE = 2 * G;
   emit(1, `;; t for a block of edges from group sums over each relabeling's group (offsets[b·groupSize + m] = s·W·8): ${GE} edges per tile`);
-  emit(1, '(func (export "groupStatisticsBlock")');
-  emit(2, "(param $blockT i32) (param $W i32) (param $width i32) (param $offsets i32) (param $groupSize i32) (param $batch i32)");
-  emit(2, "(param $rowSum i32) (param $ss i32) (param $mask i32) (param $difference f64) (param $other f64) (param $effectNorm2 f64) (param $df f64)");
-  emit(2, "(param $out i32) (param $outStride i32)");
+  emitExportedFunction(emit, 1, "groupStatisticsBlock");
   emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $col i32) (local $o i32) (local $row i32) (local $rowBytes i32) (local $at i32)");
   emit(2, "(local $d v128) (local $other2 v128) (local $norm v128) (local $dof v128) (local $a v128) (local $sse v128) (local $t v128)");
   for (const p of range(G)) emit(2, `(local $acc${p} v128)`);
@@ -295,8 +290,7 @@ export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs, rowQuads,
   emit(1, ")");
 
   // ---- products only (for tests): products[j·P + p] for one tile of edges ----
-  emit(1, '(func (export "tileProducts")');
-  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32)");
+  emitExportedFunction(emit, 1, "tileProducts");
   emit(2, "(call $tileProducts (local.get $panel) (local.get $rowTiles) (local.get $S) (local.get $res) (local.get $prod))");
   emit(1, ")");
   lines.push(...screenKernelFields({ rowQuads, groupQuads }));

@@ -18,6 +18,8 @@
 //   sLo, sHi  the two-level path's per-edge bounds on the group sum (f32)
 //   tables    the two-level path's subset sums of one tile (groupTableScreenBlock)
 
+import { emitExportedFunction } from "./kernelExports.mjs";
+
 /** Edges per tile of the screened products: one f32x4 holds four rows of one edge; the stores transpose 4 × 4. */
 const SCREEN_EDGES = 4;
 
@@ -42,7 +44,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(1, `(global (export "screenGroupEdgesPerTile") i32 (i32.const ${4 * groupQuads}))`);
 
   // ---- f64 → f32, round to nearest (f32x4.demote_f64x2_zero rounds as f32.demote_f64 does) ----
-  emit(1, '(func $demote (export "demoteBlock") (param $src i32) (param $dst i32) (param $n i32)');
+  emitExportedFunction(emit, 1, "demoteBlock", "demote");
   emit(2, "(local $end i32)");
   emit(2, "(local.set $end (i32.add (local.get $src) (i32.shl (i32.and (local.get $n) (i32.const -4)) (i32.const 3))))");
   emit(2, "(block $quadsDone");
@@ -77,7 +79,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
 
   // ---- f64 edge-major block → f32 subject-major, round to nearest: dst[s·W + i] = src[i·S + s] for edges i < W
   // (W a multiple of 4), subjects s < S; 4 edges × 2 subjects at a time ----
-  emit(1, '(func (export "transposeDemoteBlock") (param $src i32) (param $dst i32) (param $S i32) (param $W i32)');
+  emitExportedFunction(emit, 1, "transposeDemoteBlock");
   emit(2, "(local $i i32) (local $a i32) (local $d i32) (local $aEnd i32) (local $stride i32) (local $rowBytes i32)");
   emit(2, "(local $x0 v128) (local $x1 v128) (local $x2 v128) (local $x3 v128) (local $lo v128) (local $hi v128)");
   emit(2, "(local.set $stride (i32.shl (local.get $S) (i32.const 3)))");
@@ -116,7 +118,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(1, ")");
 
   // ---- f64 edge-major block → f32 interleaved by tiles of 4 edges: dst[(t·S + s)·4 + p] = src[(4t + p)·S + s] ----
-  emit(1, '(func (export "interleaveBlock") (param $src i32) (param $dst i32) (param $S i32) (param $tiles i32)');
+  emitExportedFunction(emit, 1, "interleaveBlock");
   emit(2, "(local $t i32) (local $s i32) (local $a i32) (local $stride i32)");
   emit(2, "(local.set $stride (i32.shl (local.get $S) (i32.const 3)))");
   emit(2, "(block $tilesDone");
@@ -275,11 +277,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(1, ")");
 
   // ---- a block of edges: tiles of 4 edges, single-precision products then the screen ----
-  emit(1, '(func (export "screenBlock")');
-  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $width i32) (param $prod i32)");
-  emit(2, "(param $batch i32) (param $vectors i32) (param $ss i32) (param $l1 i32) (param $mask i32) (param $norms i32)");
-  emit(2, "(param $invNorm f64) (param $df f64) (param $rhs f64) (param $upper i32) (param $lower i32)");
-  emit(2, "(param $first i32) (param $lists i32) (param $counts i32) (param $capacity i32)");
+  emitExportedFunction(emit, 1, "screenBlock");
   emit(2, "(local $i i32) (local $count i32) (local $up v128) (local $down v128)");
   emit(2, "(local.set $up (i64x2.splat (i64.sub (i64.const 0) (i64.extend_i32_u (local.get $upper)))))");
   emit(2, "(local.set $down (i64x2.splat (i64.sub (i64.const 0) (i64.extend_i32_u (local.get $lower)))))");
@@ -335,11 +333,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   // highest bit + that subject's row); a relabeling's group sum is then one entry per chunk, added up:
   // offsets[b·chunks + c] = (c·2^chunkSize + mask of its group within chunk c)·(GE·4) into the tables ----
   const ENTRY = GE * 4;
-  emit(1, '(func (export "groupTableScreenBlock")');
-  emit(2, "(param $blockT i32) (param $W i32) (param $width i32) (param $S i32) (param $chunkSize i32)");
-  emit(2, "(param $offsets i32) (param $chunks i32) (param $batch i32) (param $tables i32)");
-  emit(2, "(param $sLo i32) (param $sHi i32) (param $first i32) (param $lists i32) (param $counts i32) (param $capacity i32)");
-  emit(2, "(param $nLo i32) (param $nHi i32) (param $nearLists i32) (param $nearCounts i32) (param $nearCapacity i32)");
+  emitExportedFunction(emit, 1, "groupTableScreenBlock");
   emit(2, "(local $i i32) (local $count i32) (local $b i32) (local $m i32) (local $mEnd i32) (local $row i32) (local $at i32) (local $c v128) (local $d v128) (local $appendAt i32) (local $appendN i32)");
   emit(2, "(local $chunk i32) (local $s0 i32) (local $kc i32) (local $j i32) (local $stop i32) (local $entry i32) (local $source i32) (local $target i32) (local $previous i32) (local $rowBytes i32) (local $chunkBytes i32)");
   for (const p of range(GQ)) emit(2, `(local $r${p} v128)`);
@@ -419,8 +413,7 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(1, ")");
 
   // ---- single-precision products only (for tests): prod[j·4 + p] for one tile of 4 edges ----
-  emit(1, '(func (export "tileProducts32")');
-  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32)");
+  emitExportedFunction(emit, 1, "tileProducts32");
   emit(2, "(call $tileProducts32 (local.get $panel) (local.get $rowTiles) (local.get $S) (local.get $res) (local.get $prod))");
   emit(1, ")");
   return lines;

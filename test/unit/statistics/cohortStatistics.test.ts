@@ -1,12 +1,11 @@
 import ttest2 from "@stdlib/stats-ttest2";
 import { describe as group, expect, it } from "vitest";
-import { categoricalTest, numericTest } from "../../../src/report/cohortTable.js";
-import { chiSquareIndependence } from "../../../src/report/statistics/chiSquareIndependence.js";
-import { describe } from "../../../src/report/statistics/describe.js";
-import { fisherExact2x2 } from "../../../src/report/statistics/fisherExact2x2.js";
-import { upperIncompleteGamma } from "../../../src/report/statistics/upperIncompleteGamma.js";
-import { welchAnova } from "../../../src/report/statistics/welchAnova.js";
-import { welchTTest } from "../../../src/report/statistics/welchTTest.js";
+import { chiSquareIndependence } from "../../../src/statistics/chiSquareIndependence.js";
+import { describe } from "../../../src/statistics/describe.js";
+import { fisherExact2x2 } from "../../../src/statistics/fisherExact2x2.js";
+import { upperIncompleteGamma } from "../../../src/statistics/upperIncompleteGamma.js";
+import { welchAnova } from "../../../src/statistics/welchAnova.js";
+import { welchTTest } from "../../../src/statistics/welchTTest.js";
 import { EPS, expectClose } from "../../helpers/close.js";
 import { loadFixture } from "../../helpers/fixtures.js";
 
@@ -111,37 +110,5 @@ group("cohort-table statistics vs other references", () => {
     expect(Number.isNaN(welchAnova([[1, 2], [3, 3], [4, 6]]).pValue)).toBe(true);
     expect(Number.isNaN(chiSquareIndependence([[3, 4], [0, 0]]).pValue)).toBe(true);
     expect(Number.isNaN(fisherExact2x2([[0, 0], [0, 0]]))).toBe(true);
-  });
-});
-
-group("choosing the cohort-table test", () => {
-  it("a 2 × 2 table with an expected count below 5 gets Fisher's exact test (R fisher.test p)", () => {
-    const c = fixture.fisher.find((f) => f.name === "small_group")!;
-    const test = categoricalTest(c.counts);
-    expect(test.test).toBe("fisher-exact");
-    expectClose(test.pValue, c.p_value, { rel: 1e-12, label: "small_group via categoricalTest vs R fisher.test" });
-  });
-
-  it("a larger table with small expected counts keeps chi-square and is flagged (R chisq.test p)", () => {
-    const c = fixture.chi_square.find((f) => f.name === "small_expected")!;
-    const test = categoricalTest(c.counts);
-    expect(test.test).toBe("chi-square");
-    expect(test.smallExpected).toBe(true);
-    expectClose(test.pValue, c.p_value, { rel: TAIL, label: "small_expected via categoricalTest vs R chisq.test" });
-  });
-
-  it("an empty level row is dropped before testing: same p as R on the table without it", () => {
-    const c = fixture.chi_square.find((f) => f.name === "site_by_group")!;
-    const withEmpty = [...c.counts.slice(0, 1), [0, 0], ...c.counts.slice(1)];
-    expectClose(categoricalTest(withEmpty).pValue, c.p_value, { rel: TAIL, label: "empty row dropped vs R chisq.test" });
-  });
-
-  it("two groups of numbers get Welch's t-test, three or more Welch's ANOVA (R t.test, oneway.test)", () => {
-    const t = fixture.welch_t[0];
-    expect(numericTest([t.x, t.y]).test).toBe("welch-t");
-    expectClose(numericTest([t.x, t.y]).pValue, t.p_value, { rel: TAIL, label: "numericTest two groups vs R t.test" });
-    const f = fixture.welch_anova[0];
-    expect(numericTest(f.groups).test).toBe("welch-anova");
-    expectClose(numericTest(f.groups).pValue, f.p_value, { rel: TAIL, label: "numericTest three groups vs R oneway.test" });
   });
 });

@@ -1,4 +1,4 @@
-import { logGamma } from "../../distributions/logGamma.js";
+import { logGamma } from "./logGamma.js";
 
 /**
  * Fisher's exact test for a 2 × 2 table (Fisher 1935, Journal of the Royal

@@ -1,4 +1,4 @@
-// log Γ, log B and the regularized incomplete beta function (src/distributions/logGamma.ts,
+// log Γ, log B and the regularized incomplete beta function (src/statistics/logGamma.ts,
 // incompleteBeta.ts), the pieces under the Student t tails, against closed forms that need no
 // numerical library (Abramowitz & Stegun 1964, Handbook of Mathematical Functions: Γ(n) =
 // (n − 1)!, Γ(n + ½) = (2n)! √π / (4ⁿ n!), B(a, b) = Γ(a)Γ(b)/Γ(a + b), and from the
@@ -12,8 +12,8 @@
 //   logBeta(a, 1) = −ln a:         relative 1e-14 for a from 2 to 1e12 [2.4e-15]
 //   incomplete beta closed forms:  relative 1e-13                    [3.1e-14, I_x(7.5, 1) at x = 1e-10]
 import { describe, expect, it } from "vitest";
-import { regularizedIncompleteBeta } from "../../../src/distributions/incompleteBeta.js";
-import { logBeta, logGamma } from "../../../src/distributions/logGamma.js";
+import { regularizedIncompleteBeta } from "../../../src/statistics/incompleteBeta.js";
+import { logBeta, logGamma } from "../../../src/statistics/logGamma.js";
 import { expectClose } from "../../helpers/close.js";
 
 function factorial(n: number): bigint {

@@ -1,4 +1,4 @@
-import { logGamma } from "../../distributions/logGamma.js";
+import { logGamma } from "./logGamma.js";
 
 /**
  * Regularized upper incomplete gamma function Q(a, x) = Γ(a, x)/Γ(a), for

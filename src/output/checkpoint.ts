@@ -1,8 +1,8 @@
 import { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import path from "node:path";
-import { createHash } from "node:crypto";
+import { sha256Text } from "../common/sha256.js";
 import { InputError } from "../errors.js";
-import type { NullChunk } from "./nullRange.js";
+import type { NullChunk } from "../permute/nullRangeTypes.js";
 
 /**
  * The null distribution saved chunk by chunk beside the results folder, so
@@ -95,7 +95,7 @@ export class Checkpoint {
       extra: chunk.extra.map((values) => Array.from(values, (v) => (Number.isNaN(v) ? "NaN" : v))),
     };
     const body = JSON.stringify(rows);
-    const record = { sha256: sha256(body), rows: body };
+    const record = { sha256: sha256Text(body), rows: body };
     writeAtomically(this.chunkPath(contrast, chunk.from, chunk.to), JSON.stringify(record));
   }
 
@@ -109,7 +109,7 @@ export class Checkpoint {
       let chunk: NullChunk;
       try {
         const record = JSON.parse(readFileSync(file, "utf8")) as { sha256: string; rows: string };
-        if (sha256(record.rows) !== record.sha256) throw new Error("checksum mismatch");
+        if (sha256Text(record.rows) !== record.sha256) throw new Error("checksum mismatch");
         const rows = JSON.parse(record.rows) as {
           from: number;
           to: number;
@@ -152,10 +152,6 @@ const START_OVER = "run without --resume and with --force to start over (the che
 /** `<contrast>.<from>-<to>.json`, as `save` names a chunk. */
 function isChunkFile(name: string): boolean {
   return /\.\d+-\d+\.json$/.test(name);
-}
-
-function sha256(text: string): string {
-  return createHash("sha256").update(text).digest("hex");
 }
 
 function writeAtomically(file: string, content: string): void {

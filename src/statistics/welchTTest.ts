@@ -1,4 +1,4 @@
-import { studentTUpperTail } from "../../distributions/studentT.js";
+import { studentTUpperTail } from "./studentT.js";
 import { mean, variance } from "./describe.js";
 
 /**

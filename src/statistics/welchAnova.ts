@@ -1,4 +1,4 @@
-import { fUpperTail } from "./fUpperTail.js";
+import { fisherFUpperTail } from "./fisherF.js";
 import { mean, variance } from "./describe.js";
 
 /**
@@ -40,5 +40,5 @@ export function welchAnova(groups: ArrayLike<number>[]): WelchAnova {
   const statistic = between / (k - 1) / (1 + (2 * (k - 2) * lambda) / (k * k - 1));
   const df1 = k - 1;
   const df2 = (k * k - 1) / (3 * lambda);
-  return { statistic, df1, df2, pValue: fUpperTail(statistic, df1, df2) };
+  return { statistic, df1, df2, pValue: fisherFUpperTail(statistic, df1, df2) };
 }

@@ -1,4 +1,4 @@
-// Student's t distribution (src/distributions/studentT.ts) against three outside references:
+// Student's t distribution (src/statistics/studentT.ts) against three outside references:
 //   1. R's pt / qt (test/fixtures/r/t_tails.json, made by test/fixtures/r/runner.R, R 4.2.2);
 //   2. the NIST/SEMATECH e-Handbook table of t critical values, section 1.3.6.7.2
 //      (test/fixtures/published/t_critical_values.json);
@@ -19,7 +19,7 @@ import seedrandom from "seedrandom";
 import tCdf from "@stdlib/stats-base-dists-t-cdf";
 import tQuantile from "@stdlib/stats-base-dists-t-quantile";
 import { describe, expect, it } from "vitest";
-import { studentTCdf, studentTDensity, studentTQuantile, studentTUpperTail } from "../../../src/distributions/studentT.js";
+import { studentTCdf, studentTDensity, studentTQuantile, studentTUpperTail } from "../../../src/statistics/studentT.js";
 import { EPS, expectClose } from "../../helpers/close.js";
 import { loadFixture, toNumber, type TCriticalValuesFixture, type TTailsFixture } from "../../helpers/fixtures.js";
 
