@@ -1,7 +1,8 @@
-import { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from "node:fs";
 import path from "node:path";
 import { createHash } from "node:crypto";
 import { InputError } from "../errors.js";
+import { writeAtomically } from "../common/writeAtomically.js";
 import type { NullChunk } from "./nullRange.js";
 
 /**
@@ -156,10 +157,4 @@ function isChunkFile(name: string): boolean {
 
 function sha256(text: string): string {
   return createHash("sha256").update(text).digest("hex");
-}
-
-function writeAtomically(file: string, content: string): void {
-  const temporary = `${file}.tmp-${process.pid}`;
-  writeFileSync(temporary, content);
-  renameSync(temporary, file);
 }

@@ -3,6 +3,7 @@ import { createHash } from "node:crypto";
 import path from "node:path";
 import { InputError } from "../errors.js";
 import { VERSION } from "../version.js";
+import { finiteOrNull } from "../common/finiteOrNull.js";
 import { silentProgress, type Progress } from "../common/progress.js";
 import { Checkpoint } from "../permute/checkpoint.js";
 import { defaultThreads } from "../permute/nullEngine.js";
@@ -358,10 +359,6 @@ function writeShard(
   };
   folder.write(SHARD_MANIFEST, `${JSON.stringify(manifest, null, 2)}\n`);
   for (const table of tables) folder.write(table.path, table.text);
-}
-
-function finiteOrNull(value: number): number | null {
-  return Number.isFinite(value) ? value : null;
 }
 
 export function buildSummary(

@@ -4,13 +4,10 @@ import path from "node:path";
 import type { InputRecord } from "../output/provenance.js";
 import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
 import { VERSION } from "../version.js";
+import { finiteOrNull } from "../common/finiteOrNull.js";
 import type { SampleOverlap } from "./sampleOverlap.js";
 import type { StrengthAnalysis } from "./strengthAnalysis.js";
 import type { SubnetworkSource } from "./subnetworksFromResults.js";
-
-function finiteOrNull(value: number): number | null {
-  return Number.isFinite(value) ? value : null;
-}
 
 /** summary.json of `plexus strength`: inputs with their SHA-256, the measure and its options, and per contrast how p_fwe was drawn. */
 export function strengthSummary(
