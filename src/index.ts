@@ -44,7 +44,8 @@ export { observedComponents } from "./inference/observedComponents.js";
 export { familywiseP, criticalValue, clopperPearson } from "./inference/familywiseP.js";
 
 // 6. Running and outputs
-export { prepareAnalysis, type PreparedAnalysis } from "./run/prepareAnalysis.js";
+export { prepareAnalysis } from "./run/prepareAnalysis.js";
+export type { PreparedAnalysis } from "./output/preparedAnalysis.js";
 export { runAnalysis, type RunOptions, type RunResult } from "./run/runAnalysis.js";
 export { mergeShards } from "./run/mergeShards.js";
 export { runPower, type PowerOptions } from "./power/runPower.js";

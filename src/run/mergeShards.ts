@@ -9,10 +9,13 @@ import { sha256Text } from "../common/sha256.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
 import { SHARD_MANIFEST, type ShardFile, type ShardManifest } from "../output/shardManifest.js";
 import { fitAll, observeContrast } from "./analyzeContrasts.js";
-import { setupNull, type ContrastNull } from "./permutationInference.js";
+import type { ContrastNull } from "../output/contrastResults.js";
+import { writeResults } from "../output/writeResults.js";
+import { contrastInference, setupNull } from "./permutationInference.js";
 import { prepareAnalysis } from "./prepareAnalysis.js";
 import { writeReport } from "../report/writeReport.js";
-import { runFingerprint, writeResults, type RunLog } from "./runAnalysis.js";
+import type { RunLog } from "./runAnalysis.js";
+import { runFingerprint } from "./runFingerprint.js";
 
 function readManifest(folder: string): ShardManifest {
   const file = path.join(folder, SHARD_MANIFEST);
@@ -179,7 +182,8 @@ export function mergeShards(
       }
       return { setup, rows: concatenateChunks(chunks, 1, total + 1) };
     });
-    writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
+    const inferred = contrasts.map((observed, i) => contrastInference(prepared.design.inference, observed, nulls[i], prepared.pairs));
+    writeResults(folder, prepared, contrasts, nulls, inferred, inputs, options.commandLine ?? null);
     folder.readingBack(() => writeReport(folder.staging, (relative, content) => folder.write(relative, content)));
     folder.commit();
     if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);

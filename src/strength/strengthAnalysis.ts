@@ -1,5 +1,5 @@
 import { silentProgress, type Progress } from "../common/progress.js";
-import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
+import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import type { EdgeSet } from "./edgeSets.js";
 import { measureFamilywise, type MeasureFamilywise } from "./measureFamilywise.js";
 import { measureStatistics, type MeasureStatistics } from "./measureStatistics.js";
