@@ -54,7 +54,6 @@ export { contrastFStatistics } from "./edges/fStatistics.js";
 export { fisherFUpperTail } from "./distributions/fisherF.js";
 export { simulateCohort, type SimulationOptions, type SimulatedCohort } from "./simulate/simulateCohort.js";
 export { writeCohort } from "./simulate/writeCohort.js";
-export { main } from "./cli/main.js";
 
 // Network strength
 export { nodalStrength, globalStrength, edgeSetMean } from "./strength/measures.js";

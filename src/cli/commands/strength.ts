@@ -3,10 +3,10 @@ import { InputError } from "../../errors.js";
 import { runExtract } from "../../strength/runExtract.js";
 import { runStrength } from "../../strength/runStrength.js";
 import { MEASURE_KINDS, OPTION, type EdgeSelection, type MeasureKind } from "../../strength/strengthOptions.js";
-import type { OutputSink } from "../main.js";
+import type { OutputSink } from "../outputSink.js";
 import { silentProgress } from "../../common/progress.js";
 import { stderrProgress } from "../progress.js";
-import { parseThreads } from "./analysisCommands.js";
+import { parseThreads } from "../options.js";
 import { printable } from "../../io/printable.js";
 
 /** The flags as commander hands them over: text, or booleans for switches. */
