@@ -1,9 +1,7 @@
 import { finiteOrNull } from "../common/finiteOrNull.js";
 import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
-import type { ContrastInference, ContrastNull, ObservedContrast } from "./contrastResults.js";
-import type { PreparedAnalysis } from "./preparedAnalysis.js";
-import type { InputRecord } from "./provenance.js";
+import type { AnalysisResults } from "./analysisResults.js";
 import { relabelingSummary, smallestPossibleP } from "./relabelingSummary.js";
 import { inferenceSummary, inputsSummary, subjectsSummary } from "./summaryParts.js";
 
@@ -12,14 +10,8 @@ import { inferenceSummary, inputsSummary, subjectsSummary } from "./summaryParts
  * their SHA-256, the subjects, the design, per contrast its statistics and
  * how its null was drawn, and every option of the run.
  */
-export function resultsSummary(
-  prepared: PreparedAnalysis,
-  contrasts: ObservedContrast[],
-  nulls: (ContrastNull | undefined)[],
-  inferred: ContrastInference[],
-  inputs: InputRecord[],
-  commandLine: string[] | null,
-): Record<string, unknown> {
+export function resultsSummary(results: AnalysisResults): Record<string, unknown> {
+  const { prepared, contrasts, nulls, inferred, inputs, commandLine } = results;
   const { design, matrix, connectomes } = prepared;
   const centers: Record<string, number> = {};
   const levels: Record<string, string[]> = {};

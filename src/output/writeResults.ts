@@ -1,8 +1,6 @@
-import type { ContrastInference, ContrastNull, ObservedContrast } from "./contrastResults.js";
+import type { AnalysisResults } from "./analysisResults.js";
 import type { EdgeColumns } from "./edgeColumns.js";
 import { nullTable } from "./nullTable.js";
-import type { PreparedAnalysis } from "./preparedAnalysis.js";
-import type { InputRecord } from "./provenance.js";
 import { componentsTable, edgeColumnsReadBack, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "./resultTables.js";
 import type { ResultsFolder } from "./resultsFolder.js";
 import { resultsSummary } from "./resultsSummary.js";
@@ -24,15 +22,8 @@ export interface KnownResults {
  * report needs of them (their texts, and each contrast's edge columns as they
  * read back), so that writeReport need not read them from disk.
  */
-export function writeResults(
-  folder: ResultsFolder,
-  prepared: PreparedAnalysis,
-  contrasts: ObservedContrast[],
-  nulls: (ContrastNull | undefined)[],
-  inferred: ContrastInference[],
-  inputs: InputRecord[],
-  commandLine: string[] | null,
-): KnownResults {
+export function writeResults(folder: ResultsFolder, results: AnalysisResults): KnownResults {
+  const { prepared, contrasts, nulls, inferred } = results;
   const known: KnownResults = { texts: new Map(), edges: new Map() };
   const write = (relative: string, text: string): void => {
     folder.write(relative, text);
@@ -90,7 +81,7 @@ export function writeResults(
   });
   write("subjects.tsv", subjectsTable(prepared));
   write("regions.tsv", regionsTable(prepared.regions));
-  const summary = resultsSummary(prepared, contrasts, nulls, inferred, inputs, commandLine);
+  const summary = resultsSummary(results);
   write("summary.json", `${JSON.stringify(summary, null, 2)}\n`);
   return known;
 }

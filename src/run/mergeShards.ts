@@ -117,7 +117,7 @@ export function mergeShards(
       return { setup, rows: concatenateChunks(chunks, 1, total + 1) };
     });
     const inferred = contrasts.map((observed, i) => contrastInference(prepared.design.inference, observed, nulls[i], prepared.pairs));
-    writeResults(folder, prepared, contrasts, nulls, inferred, inputs, options.commandLine ?? null);
+    writeResults(folder, { prepared, contrasts, nulls, inferred, inputs, commandLine: options.commandLine ?? null });
     folder.readingBack(() => writeReport(folder.staging, (relative, content) => folder.write(relative, content)));
     folder.commit();
     if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);

@@ -115,7 +115,7 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
       writeShard(output, prepared, contrasts, nulls, inputs, fingerprint, options.shard);
     } else {
       inferred = contrasts.map((observed, i) => contrastInference(prepared.design.inference, observed, nulls[i], prepared.pairs));
-      const written = writeResults(output, prepared, contrasts, nulls, inferred, inputs, options.commandLine ?? null);
+      const written = writeResults(output, { prepared, contrasts, nulls, inferred, inputs, commandLine: options.commandLine ?? null });
       output.readingBack(() => writeReport(output.staging, (relative, content) => output.write(relative, content), {}, written));
     }
     output.commit();
