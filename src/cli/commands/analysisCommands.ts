@@ -9,13 +9,11 @@ import { silentProgress } from "../../common/progress.js";
 import { stderrProgress } from "../progress.js";
 import type { OutputSink } from "../outputSink.js";
 import { parseShard, parseThreads } from "../options.js";
+import { terminalLog } from "../terminalLog.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */
 export function registerAnalysisCommands(program: Command, sink: OutputSink, argv: () => string[]): void {
-  const log = {
-    info: (text: string) => sink.err(`${printable(text)}\n`),
-    warn: (text: string) => sink.err(`plexus: warning: ${printable(text)}\n`),
-  };
+  const log = terminalLog(sink);
   program
     .command("check")
     .description("validate a design file and every input it names, and print the model that would be fitted")
