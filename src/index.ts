@@ -45,7 +45,8 @@ export { observedComponents } from "./inference/observedComponents.js";
 export { familywiseP, criticalValue, clopperPearson } from "./inference/familywiseP.js";
 
 // 6. Running and outputs
-export { prepareAnalysis, type PreparedAnalysis } from "./run/prepareAnalysis.js";
+export { prepareAnalysis } from "./run/prepareAnalysis.js";
+export type { PreparedAnalysis } from "./output/preparedAnalysis.js";
 export { runAnalysis, type RunOptions, type RunResult } from "./run/runAnalysis.js";
 export { mergeShards } from "./run/mergeShards.js";
 export { runPower, type PowerOptions } from "./power/runPower.js";
@@ -54,7 +55,6 @@ export { contrastFStatistics } from "./edges/fStatistics.js";
 export { fisherFUpperTail } from "./statistics/fisherF.js";
 export { simulateCohort, type SimulationOptions, type SimulatedCohort } from "./simulate/simulateCohort.js";
 export { writeCohort } from "./simulate/writeCohort.js";
-export { main } from "./cli/main.js";
 
 // Network strength
 export { nodalStrength, globalStrength, edgeSetMean } from "./strength/measures.js";

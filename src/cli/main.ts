@@ -3,20 +3,7 @@ import { isInputError } from "../errors.js";
 import { printable } from "../io/printable.js";
 import { VERSION } from "../version.js";
 import { registerCommands } from "./commands/index.js";
-
-/** Where the CLI writes; tests pass their own to capture output without touching stdout. */
-export interface OutputSink {
-  out(text: string): void;
-  err(text: string): void;
-  /** True when stderr is a terminal (progress bars), false for plain lines. */
-  errIsTerminal: boolean;
-}
-
-export const processSink: OutputSink = {
-  out: (text) => process.stdout.write(text),
-  err: (text) => process.stderr.write(text),
-  errIsTerminal: Boolean(process.stderr.isTTY),
-};
+import { processSink, type OutputSink } from "./outputSink.js";
 
 /** Runs the CLI and returns the exit code: 0 ok, 2 user error (message only), 1 bug (with stack). */
 export async function main(argv: string[], sink: OutputSink = processSink): Promise<number> {

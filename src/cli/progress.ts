@@ -1,6 +1,5 @@
 import type { Progress } from "../common/progress.js";
-import type { OutputSink } from "./main.js";
-
+import type { OutputSink } from "./outputSink.js";
 
 function formatDuration(seconds: number): string {
   if (!Number.isFinite(seconds)) return "?";

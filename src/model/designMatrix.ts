@@ -28,6 +28,11 @@ export interface DesignMatrix {
   formula: Formula;
 }
 
+/** Residual degrees of freedom n − p of the model (X has full column rank: buildDesignMatrix checks it). */
+export function residualDf(matrix: Pick<DesignMatrix, "rows" | "cols">): number {
+  return matrix.rows - matrix.cols;
+}
+
 export function columnName(parts: ColumnPart[]): string {
   return parts.map((p) => (p.level === undefined ? p.variable : `${p.variable}[${p.level}]`)).join(":");
 }

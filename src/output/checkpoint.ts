@@ -1,7 +1,8 @@
-import { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from "node:fs";
 import path from "node:path";
 import { sha256Text } from "../common/sha256.js";
 import { InputError } from "../errors.js";
+import { writeAtomically } from "../common/writeAtomically.js";
 import type { NullChunk } from "../permute/nullRangeTypes.js";
 
 /**
@@ -152,10 +153,4 @@ const START_OVER = "run without --resume and with --force to start over (the che
 /** `<contrast>.<from>-<to>.json`, as `save` names a chunk. */
 function isChunkFile(name: string): boolean {
   return /\.\d+-\d+\.json$/.test(name);
-}
-
-function writeAtomically(file: string, content: string): void {
-  const temporary = `${file}.tmp-${process.pid}`;
-  writeFileSync(temporary, content);
-  renameSync(temporary, file);
 }

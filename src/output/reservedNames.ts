@@ -3,7 +3,7 @@ import { WRITTEN_RECORD } from "./writtenRecord.js";
 
 /**
  * Every name plexus writes at the top level of a folder beside the contrast
- * folders: `run` and `merge` (writeResults in run/runAnalysis.ts), the report
+ * folders: `run` and `merge` (output/writeResults.ts), the report
  * (report/writeReport.ts), a shard (shard.json) and `strength`
  * (strength/runStrength.ts), plus the record of written files. A contrast
  * named like one of these would mix its folder with them, so the design is

@@ -1,9 +1,10 @@
-import { existsSync, readFileSync, renameSync, rmSync, statSync, writeFileSync } from "node:fs";
+import { existsSync, readFileSync, statSync } from "node:fs";
 import path from "node:path";
 import { InputError } from "../errors.js";
 import { VERSION } from "../version.js";
 import { refuseInputOverlap, type GuardedInputs } from "./inputOverlap.js";
 import { sha256Text } from "../common/sha256.js";
+import { writeFilesAtomically } from "../common/writeAtomically.js";
 
 /**
  * A single result file (`plexus extract --out FILE`), written to a temporary
@@ -55,15 +56,13 @@ export function checkResultFile(out: string, options: { force: boolean; inputs: 
 /** Writes `content` to a temporary sibling of `target`, renames it into place, then records it. */
 export function writeResultFile(target: string, content: string): void {
   const temporary = path.join(path.dirname(target), `.${path.basename(target)}.plexus-tmp-${process.pid}-${Date.now().toString(36)}`);
-  const recordTemporary = `${temporary}.record`;
+  const record = `${JSON.stringify({ tool: { name: "plexus", version: VERSION }, sha256: sha256Text(content) }, null, 2)}\n`;
   try {
-    writeFileSync(temporary, content);
-    writeFileSync(recordTemporary, `${JSON.stringify({ tool: { name: "plexus", version: VERSION }, sha256: sha256Text(content) }, null, 2)}\n`);
-    renameSync(temporary, target);
-    renameSync(recordTemporary, fileRecordFor(target));
+    writeFilesAtomically([
+      { file: target, content, temporary },
+      { file: fileRecordFor(target), content: record, temporary: `${temporary}.record` },
+    ]);
   } catch (error) {
-    rmSync(temporary, { force: true });
-    rmSync(recordTemporary, { force: true });
     const code = (error as NodeJS.ErrnoException).code;
     throw new InputError(
       `cannot write the values (${code ?? (error as Error).message})${code === "ENOSPC" ? ": the disk is full" : ""}`,

@@ -5,11 +5,11 @@ import { VERSION } from "../version.js";
 import type { Progress } from "../common/progress.js";
 import { silentProgress } from "../common/progress.js";
 import { readRegions, type Region } from "../io/regions.js";
-import { fitEdges } from "../edges/fitEdges.js";
 import { runOnWorkers, workerScript, availableThreads } from "../parallel/workerPool.js";
 import type { GuardedInputs } from "../output/inputOverlap.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
 import { formatTsv } from "../output/tsvWriter.js";
+import { fitAll } from "../run/analyzeContrasts.js";
 import { prepareAnalysis } from "../run/prepareAnalysis.js";
 import { plantedEdges } from "./powerCohort.js";
 import { analysePowerCohort, POWER_METHODS, sampleSizeFor, summarizePower, type CohortDetections, type PowerEstimate, type PowerPlan } from "./powerStudy.js";
@@ -51,7 +51,7 @@ export function planPower(
     const { matrix, connectomes } = prepared;
     const S = matrix.rows;
     const E = connectomes.edgeCount;
-    const fit = fitEdges(matrix.values, S, matrix.cols, connectomes.data, E);
+    const fit = fitAll(prepared);
     // Residual vectors of the pilot's own model, each edge scaled to unit variance.
     const residuals = new Float64Array(new SharedArrayBuffer(S * E * 8));
     const q = fit.qr.q;

@@ -5,7 +5,9 @@ import { edgePairs } from "../edges/edgeIndex.js";
 import type { Region } from "../io/regions.js";
 import { readTextFile } from "../io/readInputFile.js";
 import { parseTsv, type LocatedTsvTable } from "../io/tsv.js";
+import type { EdgeColumns } from "../output/edgeColumns.js";
 import { parseNullTable } from "../output/nullTable.js";
+import type { KnownResults } from "../output/writeResults.js";
 import type { NullChunk } from "../permute/nullRangeTypes.js";
 import { tsvCellText } from "./tsvCellText.js";
 
@@ -115,24 +117,6 @@ export interface SubjectRow {
   reason: string;
 }
 
-/** One contrast's edge table as columns in the fixed edge order (i < j, row-major). */
-export interface EdgeColumns {
-  regionA: Uint32Array;
-  regionB: Uint32Array;
-  statistic: Float64Array;
-  estimate: Float64Array;
-  pUncorrected: Float64Array;
-  qFdr: Float64Array;
-  /** Component id, 0 when the edge is below the threshold. */
-  component: Int32Array;
-  /** Edge-level family-wise p (max-statistic method only). */
-  pFwe?: Float64Array;
-  /** t contrasts: partial correlation and standard error of the estimate (NaN for F contrasts). */
-  partialR: Float64Array;
-  standardError: Float64Array;
-  /** F contrasts: partial η² (NaN for t contrasts). */
-  partialEtaSquared: Float64Array;
-}
 
 export interface ComponentRow {
   id: number;
@@ -159,17 +143,6 @@ export interface ContrastResults {
 export interface RobustnessTable {
   thresholds: number[];
   rows: { regionA: string; regionB: string; statistic: number; significant: boolean[] }[];
-}
-
-/**
- * What the writer of a results folder still holds of it, so that a report made
- * right after the run reads nothing back from disk: the text of each file it
- * wrote (by absolute path) and each contrast's edge columns as they read back
- * from edges.tsv (src/output/resultTables.ts edgeColumnsReadBack), by name.
- */
-export interface KnownResults {
-  texts: Map<string, string>;
-  edges: Map<string, EdgeColumns>;
 }
 
 /** A surrogate code unit outside a pair (the `u` flag reads a pair as one code point). */

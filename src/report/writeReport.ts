@@ -1,6 +1,7 @@
 import { formatTsv } from "../output/tsvWriter.js";
 import type { CohortOptions } from "./cohortTable.js";
-import { loadResults, type KnownResults, type LoadedResults } from "./loadResults.js";
+import type { KnownResults } from "../output/writeResults.js";
+import { loadResults, type LoadedResults } from "./loadResults.js";
 import { methodsMarkdown } from "./methodsText.js";
 import { reportContent } from "./reportContent.js";
 import { reportHtml } from "./reportHtml.js";

@@ -2,24 +2,14 @@ import { contrastStatistics, type EdgeStatistics } from "../edges/contrastStatis
 import { contrastFStatistics } from "../edges/fStatistics.js";
 import { fitEdges, type EdgeFit } from "../edges/fitEdges.js";
 import { tailPValues } from "../edges/tailPValues.js";
-import type { ComponentSummary } from "../inference/components.js";
 import { adjustFdr } from "../inference/fdr.js";
 import { observedComponents } from "../inference/observedComponents.js";
 import type { Contrast } from "../model/contrast.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { InferenceSpec } from "../common/inferenceOptions.js";
-import type { PreparedAnalysis } from "./prepareAnalysis.js";
+import type { ObservedContrast } from "../output/contrastResults.js";
+import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 
-/** What a contrast yields before any permutation: edge statistics, FDR and the observed components. */
-export interface ObservedContrast {
-  contrast: Contrast;
-  statistics: EdgeStatistics;
-  /** Uncorrected p for the tail tested. */
-  pUncorrected: Float64Array;
-  qFdr: Float64Array;
-  labels: Int32Array;
-  components: ComponentSummary[];
-}
 
 export function fitAll(prepared: PreparedAnalysis): EdgeFit {
   const { matrix, connectomes } = prepared;

@@ -1,83 +1,20 @@
-import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
-import { InputError, inputErrors } from "../errors.js";
+import { InputError } from "../errors.js";
 import { concatenateChunks } from "../permute/nullEngine.js";
 import type { NullChunk } from "../permute/nullRangeTypes.js";
 import { parseNullTable } from "../output/nullTable.js";
 import { hashInputs } from "../output/provenance.js";
-import { sha256Text } from "../common/sha256.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
-import { SHARD_MANIFEST, type ShardFile, type ShardManifest } from "../output/shardManifest.js";
+import { readShardManifest, verifyShardFiles } from "../output/shardFiles.js";
+import { SHARD_MANIFEST, type ShardManifest } from "../output/shardManifest.js";
 import { fitAll, observeContrast } from "./analyzeContrasts.js";
-import { setupNull, type ContrastNull } from "./permutationInference.js";
+import type { ContrastNull } from "../output/contrastResults.js";
+import { writeResults } from "../output/writeResults.js";
+import { contrastInference, setupNull } from "./permutationInference.js";
 import { prepareAnalysis } from "./prepareAnalysis.js";
 import { writeReport } from "../report/writeReport.js";
-import { runFingerprint, writeResults, type RunLog } from "./runAnalysis.js";
-
-function readManifest(folder: string): ShardManifest {
-  const file = path.join(folder, SHARD_MANIFEST);
-  if (!existsSync(file)) {
-    throw new InputError(`not a shard folder (no ${SHARD_MANIFEST})`, { file: folder }, "pass the folders written by `plexus run --shard K/N`");
-  }
-  try {
-    return JSON.parse(readFileSync(file, "utf8")) as ShardManifest;
-  } catch (error) {
-    throw new InputError(`the shard manifest is not valid JSON: ${(error as Error).message}`, { file });
-  }
-}
-
-/** A `files` entry of shard.json: a relative `/`-separated path that stays inside the folder, and a hex SHA-256. */
-function isShardFile(entry: unknown): entry is ShardFile {
-  if (typeof entry !== "object" || entry === null) return false;
-  const { path: relative, sha256 } = entry as Record<string, unknown>;
-  return (
-    typeof relative === "string" &&
-    typeof sha256 === "string" &&
-    /^[0-9a-f]{64}$/.test(sha256) &&
-    relative.split("/").every((part) => part !== "" && part !== "." && part !== ".." && !part.includes("\\"))
-  );
-}
-
-/**
- * Reads every file a shard's manifest lists and checks its SHA-256 against
- * the manifest, so a truncated or damaged file is blamed on its own shard
- * before anything is read from it. Returns the verified texts by full path;
- * every mismatch of every shard is reported in one error.
- */
-function verifyShardFiles(shards: { folder: string; manifest: ShardManifest }[], count: number): Map<string, string> {
-  const texts = new Map<string, string>();
-  const problems: InputError[] = [];
-  for (const { folder, manifest } of shards) {
-    const which = `shard ${manifest.shard.index}/${count}`;
-    if (!Array.isArray(manifest.files)) {
-      problems.push(
-        new InputError(`${SHARD_MANIFEST} of ${which} lists no SHA-256 of its files (an older plexus wrote it)`, { file: path.join(folder, SHARD_MANIFEST) }, "run this shard again"),
-      );
-      continue;
-    }
-    for (const [k, listed] of (manifest.files as unknown[]).entries()) {
-      if (!isShardFile(listed)) {
-        problems.push(new InputError(`${SHARD_MANIFEST} of ${which}: files[${k}] is not a file inside the shard folder with its SHA-256`, { file: path.join(folder, SHARD_MANIFEST) }));
-        continue;
-      }
-      const file = path.join(folder, ...listed.path.split("/"));
-      const name = path.basename(listed.path);
-      if (!existsSync(file)) {
-        problems.push(new InputError(`${name} of ${which} is missing (it is listed in ${SHARD_MANIFEST})`, { file }));
-        continue;
-      }
-      const bytes = readFileSync(file);
-      if (sha256Text(bytes) !== listed.sha256) {
-        problems.push(new InputError(`${name} of ${which} is damaged or truncated: its SHA-256 differs from ${SHARD_MANIFEST}`, { file }, "run this shard again"));
-        continue;
-      }
-      texts.set(file, bytes.toString("utf8"));
-    }
-  }
-  const error = inputErrors(problems);
-  if (error) throw error;
-  return texts;
-}
+import type { RunLog } from "./runAnalysis.js";
+import { runFingerprint } from "./runFingerprint.js";
 
 /**
  * Merges shard folders into the results of an unsharded run: checks that
@@ -91,7 +28,7 @@ export function mergeShards(
   log: RunLog,
 ): string {
   if (shardFolders.length === 0) throw new InputError("name the shard folders to merge");
-  const manifests = shardFolders.map((folder) => ({ folder, manifest: readManifest(folder) }));
+  const manifests = shardFolders.map((folder) => ({ folder, manifest: readShardManifest(folder) }));
   const first = manifests[0].manifest;
   for (const { folder, manifest } of manifests.slice(1)) {
     if (manifest.fingerprint !== first.fingerprint) {
@@ -179,7 +116,8 @@ export function mergeShards(
       }
       return { setup, rows: concatenateChunks(chunks, 1, total + 1) };
     });
-    writeResults(folder, prepared, contrasts, nulls, inputs, options.commandLine ?? null);
+    const inferred = contrasts.map((observed, i) => contrastInference(prepared.design.inference, observed, nulls[i], prepared.pairs));
+    writeResults(folder, { prepared, contrasts, nulls, inferred, inputs, commandLine: options.commandLine ?? null });
     folder.readingBack(() => writeReport(folder.staging, (relative, content) => folder.write(relative, content)));
     folder.commit();
     if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);

@@ -1,26 +1,27 @@
 import type { Progress } from "../common/progress.js";
-import { criticalValue, familywiseP, type FamilywiseP } from "../inference/familywiseP.js";
+import { criticalValue, familywiseP } from "../inference/familywiseP.js";
 import { Checkpoint } from "../output/checkpoint.js";
 import { buildNullContext, type NullSetup } from "../permute/nullContext.js";
 import { runNullEngine } from "../permute/nullEngine.js";
 import type { NullChunk } from "../permute/nullRangeTypes.js";
-import type { ObservedContrast } from "./analyzeContrasts.js";
 import type { InputLocation } from "../errors.js";
 import type { Contrast } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { computeNullRange } from "../permute/nullRange.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
-import type { ComponentSummary } from "../inference/components.js";
 import { observedComponents, signsOfTail } from "../inference/observedComponents.js";
 import { ThresholdFreeEnhancer } from "../inference/thresholdFree.js";
 import { type InferenceSpec } from "../common/inferenceOptions.js";
-import type { PreparedAnalysis } from "./prepareAnalysis.js";
+import type {
+  ContrastInference,
+  ContrastNull,
+  FamilywiseResult,
+  ObservedContrast,
+  SweepLevel,
+  ThresholdFreeResult,
+} from "../output/contrastResults.js";
+import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 
-/** A contrast's null distribution (full, or one shard's share) with how it was drawn. */
-export interface ContrastNull {
-  setup: NullSetup;
-  rows: NullChunk;
-}
 
 export interface NullRunOptions {
   threads: number;
@@ -84,15 +85,6 @@ export async function computeNull(setup: NullSetup, contrastName: string, option
   return { setup, rows };
 }
 
-/** Component and edge p-values from a complete null. */
-export interface FamilywiseResult {
-  exact: boolean;
-  count: number;
-  componentP: FamilywiseP[];
-  edgeP?: Float64Array;
-  criticalSize: number;
-  criticalStatistic: number;
-}
 
 export function familywiseInference(
   inference: InferenceSpec,
@@ -121,15 +113,6 @@ export function familywiseInference(
   };
 }
 
-/** Threshold-free inference: the observed enhanced statistic, per-edge p_fwe, and the components of the significant edges. */
-export interface ThresholdFreeResult {
-  enhanced: Float64Array;
-  edgeP: Float64Array;
-  labels: Int32Array;
-  components: ComponentSummary[];
-  componentP: number[];
-  criticalEnhanced: number;
-}
 
 /**
  * p_fwe per edge from the null of the largest enhanced value (Smith & Nichols
@@ -165,14 +148,6 @@ export function thresholdFreeInference(
   return { enhanced, edgeP, labels, components, componentP, criticalEnhanced: criticalValue(nullEnhanced, inference.alpha, exact) };
 }
 
-/** One threshold of a sweep: its observed components and their p_fwe from that threshold's null columns. */
-export interface SweepLevel {
-  threshold: number;
-  labels: Int32Array;
-  components: ComponentSummary[];
-  componentP: FamilywiseP[];
-  criticalSize: number;
-}
 
 export function sweepInference(
   inference: InferenceSpec,
@@ -208,6 +183,23 @@ export function sweepInference(
       criticalSize: criticalValue(sizeNull, inference.alpha, exact),
     };
   });
+}
+
+/** Every permutation-based result the design asks for of a contrast with a null; none without one. */
+export function contrastInference(
+  inference: InferenceSpec,
+  observed: ObservedContrast,
+  contrastNull: ContrastNull | undefined,
+  pairs: EdgePairs,
+): ContrastInference {
+  if (!contrastNull) return {};
+  const exact = contrastNull.setup.context.plan.exact;
+  const tail = observed.contrast.kind === "F" ? "upper" : inference.tail;
+  return {
+    fwe: familywiseInference(inference, observed, contrastNull.rows, exact),
+    free: inference.method === "threshold-free" ? thresholdFreeInference(inference, observed, contrastNull.rows, exact, pairs, tail) : undefined,
+    sweep: inference.thresholds.length > 1 ? sweepInference(inference, observed, contrastNull.rows, exact, pairs, tail) : undefined,
+  };
 }
 
 /**

@@ -1,6 +1,6 @@
 import path from "node:path";
 import { InputError, inputErrors } from "../errors.js";
-import { loadConnectomes, resolveTemplate, type ConnectomeSource, type ConnectomeSubject, type LoadedConnectomes } from "../io/connectomes.js";
+import { loadConnectomes, resolveTemplate, type ConnectomeSource, type ConnectomeSubject } from "../io/connectomes.js";
 import { designKeyLocation, readDesign, type DesignSpec } from "../io/designFile.js";
 import { nearestName } from "../io/nearestName.js";
 import { factorCellProblems } from "../io/factorCells.js";
@@ -8,55 +8,22 @@ import { missingCodeLevelWarnings } from "../io/missingCodeLevels.js";
 import { modelColumnProblems } from "../io/numericCells.js";
 import { printable } from "../io/printable.js";
 import { templateValueProblem } from "../io/templateValues.js";
-import { PARTICIPANT_ID, readParticipantsCollecting, type ParticipantsTable } from "../io/participants.js";
-import { defaultRegions, readRegions, type Region } from "../io/regions.js";
+import { PARTICIPANT_ID, readParticipantsCollecting } from "../io/participants.js";
+import { defaultRegions, readRegions } from "../io/regions.js";
 import { contrastStatistics } from "../edges/contrastStatistics.js";
-import { edgePairs, type EdgePairs } from "../edges/edgeIndex.js";
+import { edgePairs } from "../edges/edgeIndex.js";
 import { fitEdges } from "../edges/fitEdges.js";
 import { contrastFStatistics } from "../edges/fStatistics.js";
-import { parseContrast, type Contrast } from "../model/contrast.js";
-import { buildDesignMatrix, type DesignMatrix } from "../model/designMatrix.js";
-import { formulaVariables, parseFormula, type Formula } from "../model/formula.js";
+import { parseContrast } from "../model/contrast.js";
+import { buildDesignMatrix } from "../model/designMatrix.js";
+import { formulaVariables, parseFormula } from "../model/formula.js";
 import { codeVariable, type Variable } from "../model/variables.js";
 import type { GuardedInputs } from "../output/inputOverlap.js";
 import { contrastFolderProblem } from "../output/reservedNames.js";
 import { checkRelabelings } from "../permute/exchangeability.js";
+import type { ExcludedSubject, KeptSubject, PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { checkEnhancementLevels } from "./enhancementLevels.js";
 
-export interface ExcludedSubject {
-  id: string;
-  /** 1-based line in the participants table. */
-  line: number;
-  reason: string;
-}
-
-export interface KeptSubject {
-  id: string;
-  /** 0-based row of the participants table. */
-  tableRow: number;
-}
-
-/** Everything a run needs, validated: the `check` command stops here. */
-export interface PreparedAnalysis {
-  design: DesignSpec;
-  formula: Formula;
-  participants: ParticipantsTable;
-  kept: KeptSubject[];
-  excluded: ExcludedSubject[];
-  matrix: DesignMatrix;
-  contrasts: Contrast[];
-  regions: Region[];
-  pairs: EdgePairs;
-  connectomes: LoadedConnectomes;
-  /** Exchangeability block of each kept subject (0-based codes), when `inference.blocks` is set. */
-  blocks?: { column: string; codes: Int32Array; labels: string[] };
-  /**
-   * Input files with their roles, for provenance; `sha256` is set where it is
-   * known from loading (text matrices), the writer hashes the rest.
-   */
-  inputs: { role: string; path: string; sha256?: string }[];
-  warnings: string[];
-}
 
 export function connectomeSource(design: DesignSpec): ConnectomeSource {
   const spec = design.connectomes;

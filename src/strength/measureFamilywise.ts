@@ -5,7 +5,7 @@ import type { InferenceSpec, Tail } from "../common/inferenceOptions.js";
 import type { Contrast } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { buildNullContext, type NullSetup } from "../permute/nullContext.js";
-import { runNullEngine } from "../permute/nullEngine.js";
+import { computeNull } from "../run/permutationInference.js";
 
 /**
  * Family-wise error control across measures (e.g. every region's strength)
@@ -15,6 +15,7 @@ import { runNullEngine } from "../permute/nullEngine.js";
  * seed, exchangeability blocks and exact enumeration), each relabeling
  * records its largest statistic, and a measure's p_fwe is the share of
  * relabelings whose maximum reaches its statistic (src/inference/familywiseP.ts).
+ * The null is drawn as `plexus run` draws it (src/run/permutationInference.ts computeNull).
  * Measures are not edges of a graph, so no component is ever formed: the
  * primary threshold is set to +∞ and only the maximum statistic is used.
  */
@@ -60,15 +61,11 @@ export async function measureFamilywise(options: {
     where: options.where,
   });
   const { plan } = setup.context;
-  options.progress.start(options.contrast.name, plan.count);
-  const rows = await runNullEngine(setup.context, {
+  const { rows } = await computeNull(setup, options.contrast.name, {
     threads: options.threads,
-    from: 1,
-    to: plan.count + 1,
     chunkSize: options.chunkSize,
-    onChunk: (chunk) => options.progress.advance(chunk.to - chunk.from),
+    progress: options.progress,
   });
-  options.progress.finish();
   const pFwe = Float64Array.from(familywiseP(rows.maxStatistic, tailScaled(options.observed, inference.tail), plan.exact), (r) => r.p);
   return {
     setup,

@@ -1,5 +1,6 @@
 import { silentProgress, type Progress } from "../common/progress.js";
-import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
+import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
+import { needsPermutations } from "../run/permutationInference.js";
 import type { EdgeSet } from "./edgeSets.js";
 import { measureFamilywise, type MeasureFamilywise } from "./measureFamilywise.js";
 import { measureStatistics, type MeasureStatistics } from "./measureStatistics.js";
@@ -74,10 +75,6 @@ export function strengthValues(prepared: PreparedAnalysis, choice: StrengthChoic
   };
 }
 
-export function drawsPermutations(prepared: PreparedAnalysis): boolean {
-  return prepared.design.inference.method !== "fdr";
-}
-
 export async function analyzeStrength(prepared: PreparedAnalysis, choice: StrengthChoice, engine: EngineOptions): Promise<StrengthAnalysis> {
   const measured = strengthValues(prepared, choice);
   const { inference } = prepared.design;
@@ -85,7 +82,7 @@ export async function analyzeStrength(prepared: PreparedAnalysis, choice: Streng
   const observed = measureStatistics(prepared.matrix, prepared.contrasts, measured.values, M, inference);
   const contrasts: StrengthContrast[] = [];
   for (const result of observed) {
-    if (!drawsPermutations(prepared)) {
+    if (!needsPermutations(prepared)) {
       contrasts.push(result);
       continue;
     }

@@ -3,7 +3,7 @@ import { escapeMarkdown } from "../report/escapeMarkdown.js";
 import { fixed, MISSING, pValue, significant } from "../report/printNumbers.js";
 import type { ReportTable } from "../report/reportTable.js";
 import { markdownTable } from "../report/tables/markdownTable.js";
-import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
+import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import type { StrengthAnalysis, StrengthContrast } from "./strengthAnalysis.js";
 
 /**

@@ -1,16 +1,14 @@
-import { inputsSummary, subjectsSummary } from "../output/summaryParts.js";
+import { inferenceSummary, inputsSummary, subjectsSummary } from "../output/summaryParts.js";
 import { relabelingSummary, smallestPossibleP } from "../output/relabelingSummary.js";
 import path from "node:path";
 import type { InputRecord } from "../output/provenance.js";
-import type { PreparedAnalysis } from "../run/prepareAnalysis.js";
+import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
+import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
+import { finiteOrNull } from "../common/finiteOrNull.js";
 import type { SampleOverlap } from "./sampleOverlap.js";
 import type { StrengthAnalysis } from "./strengthAnalysis.js";
 import type { SubnetworkSource } from "./subnetworksFromResults.js";
-
-function finiteOrNull(value: number): number | null {
-  return Number.isFinite(value) ? value : null;
-}
 
 /** summary.json of `plexus strength`: inputs with their SHA-256, the measure and its options, and per contrast how p_fwe was drawn. */
 export function strengthSummary(
@@ -55,7 +53,7 @@ export function strengthSummary(
       columns: matrix.columns.map((c) => c.name),
       rank: matrix.cols,
     },
-    df: matrix.rows - matrix.cols,
+    df: residualDf(matrix),
     contrasts: analysis.contrasts.map((result) => {
       const fw = result.familywise;
       const plan = fw?.setup.context.plan;
@@ -79,17 +77,7 @@ export function strengthSummary(
     options: {
       transform: design.transform,
       symmetrize: design.symmetrize,
-      inference: {
-        method: inference.method,
-        tail: inference.tail,
-        fdr: inference.fdr,
-        alpha: inference.alpha,
-        permutations: inference.permutations,
-        seed: inference.seed,
-        scheme: inference.scheme,
-        blocks: inference.blocks ?? null,
-        block_permutation: inference.blockPermutation,
-      },
+      inference: inferenceSummary(inference, { thresholds: false }),
     },
     warnings,
   };

@@ -1,20 +1,19 @@
 import type { Command } from "commander";
+import { residualDf } from "../../model/designMatrix.js";
 import { formatFormula } from "../../model/formula.js";
 import { prepareAnalysis } from "../../run/prepareAnalysis.js";
 import { runAnalysis } from "../../run/runAnalysis.js";
 import { mergeShards } from "../../run/mergeShards.js";
-import { InputError } from "../../errors.js";
 import { printable } from "../../io/printable.js";
 import { silentProgress } from "../../common/progress.js";
 import { stderrProgress } from "../progress.js";
-import type { OutputSink } from "../main.js";
+import type { OutputSink } from "../outputSink.js";
+import { parseShard, parseThreads } from "../options.js";
+import { terminalLog } from "../terminalLog.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */
 export function registerAnalysisCommands(program: Command, sink: OutputSink, argv: () => string[]): void {
-  const log = {
-    info: (text: string) => sink.err(`${printable(text)}\n`),
-    warn: (text: string) => sink.err(`plexus: warning: ${printable(text)}\n`),
-  };
+  const log = terminalLog(sink);
   program
     .command("check")
     .description("validate a design file and every input it names, and print the model that would be fitted")
@@ -28,7 +27,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
         `connectomes ${connectomes.regionCount} regions, ${connectomes.edgeCount} edges${design.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`,
         `model       ${formatFormula(prepared.formula)}`,
         `columns     ${matrix.columns.map((c) => c.name).join(", ")}`,
-        `df          ${matrix.rows - matrix.cols}`,
+        `df          ${residualDf(matrix)}`,
         ...prepared.contrasts.map(
           (c) => `contrast    ${c.name}: ${c.expression}  ->  ${formatContrastRows(c.kind === "F" ? c.rows : [c.vector], c.kind)}`,
         ),
@@ -90,22 +89,4 @@ interface RunFlags {
   threads?: string;
   shard?: string;
   resume: boolean;
-}
-
-export function parseThreads(text: string): number {
-  const value = Number(text);
-  if (!Number.isInteger(value) || value < 1 || value > 256) {
-    throw new InputError(`--threads takes a whole number from 1 to 256, found '${text}'`, { key: "--threads" });
-  }
-  return value;
-}
-
-export function parseShard(text: string): { index: number; count: number } {
-  const match = /^(\d+)\/(\d+)$/.exec(text.trim());
-  const index = match ? Number(match[1]) : NaN;
-  const count = match ? Number(match[2]) : NaN;
-  if (!match || count < 1 || index < 1 || index > count || count > 100_000) {
-    throw new InputError(`--shard takes k/n with 1 ≤ k ≤ n (e.g. 3/10), found '${text}'`, { key: "--shard" });
-  }
-  return { index, count };
 }

@@ -1,5 +1,5 @@
 import type { Command } from "commander";
-import type { OutputSink } from "../main.js";
+import type { OutputSink } from "../outputSink.js";
 import { registerAnalysisCommands } from "./analysisCommands.js";
 import { registerReport } from "./report.js";
 import { registerSimulate } from "./simulate.js";

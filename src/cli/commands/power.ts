@@ -1,10 +1,10 @@
 import type { Command } from "commander";
 import { InputError } from "../../errors.js";
 import { runPower } from "../../power/runPower.js";
-import type { OutputSink } from "../main.js";
+import type { OutputSink } from "../outputSink.js";
 import { silentProgress } from "../../common/progress.js";
 import { stderrProgress } from "../progress.js";
-import { parseThreads } from "./analysisCommands.js";
+import { parseThreads } from "../options.js";
 
 function positiveInteger(text: string, option: string, minimum = 1): number {
   const value = Number(text);

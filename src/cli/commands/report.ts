@@ -2,7 +2,7 @@ import type { Command } from "commander";
 import { rewriteResultsFolder } from "../../output/rewriteResultsFolder.js";
 import { loadResults } from "../../report/loadResults.js";
 import { reportFiles } from "../../report/writeReport.js";
-import type { OutputSink } from "../main.js";
+import type { OutputSink } from "../outputSink.js";
 
 /**
  * `plexus report DIR`: rewrites the tables, methods, figures and report.html

@@ -2,7 +2,7 @@ import type { Command } from "commander";
 import { InputError } from "../../errors.js";
 import type { SimulationRun } from "../../simulate/runSimulation.js";
 import { runSimulation } from "../../simulate/runSimulation.js";
-import type { OutputSink } from "../main.js";
+import type { OutputSink } from "../outputSink.js";
 
 /** The flags as commander hands them over: text, or booleans for switches. */
 interface SimulateFlags {

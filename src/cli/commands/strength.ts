@@ -3,11 +3,11 @@ import { InputError } from "../../errors.js";
 import { runExtract } from "../../strength/runExtract.js";
 import { runStrength } from "../../strength/runStrength.js";
 import { MEASURE_KINDS, OPTION, type EdgeSelection, type MeasureKind } from "../../strength/strengthOptions.js";
-import type { OutputSink } from "../main.js";
+import type { OutputSink } from "../outputSink.js";
 import { silentProgress } from "../../common/progress.js";
 import { stderrProgress } from "../progress.js";
-import { parseThreads } from "./analysisCommands.js";
-import { printable } from "../../io/printable.js";
+import { parseThreads } from "../options.js";
+import { terminalLog } from "../terminalLog.js";
 
 /** The flags as commander hands them over: text, or booleans for switches. */
 interface SelectionFlags {
@@ -82,10 +82,7 @@ function parseMeasure(text: string | undefined): MeasureKind | undefined {
 
 /** `plexus strength DESIGN --out DIR` and `plexus extract DESIGN --from … --out FILE`. */
 export function registerStrength(program: Command, sink: OutputSink, argv: () => string[]): void {
-  const log = {
-    info: (text: string) => sink.err(`${printable(text)}\n`),
-    warn: (text: string) => sink.err(`plexus: warning: ${printable(text)}\n`),
-  };
+  const log = terminalLog(sink);
   program
     .command("strength")
     .description("regress nodal, global or subnetwork strength on the design, with FWER and FDR across regions")

@@ -11,7 +11,8 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { edgePairs } from "../../../src/edges/edgeIndex.js";
 import { componentsTable, edgeColumnsReadBack, edgesTable, regionsTable, type ExtraEdgeColumn } from "../../../src/output/resultTables.js";
 import { formatTsv } from "../../../src/output/tsvWriter.js";
-import { loadResults, type EdgeColumns } from "../../../src/report/loadResults.js";
+import type { EdgeColumns } from "../../../src/output/edgeColumns.js";
+import { loadResults } from "../../../src/report/loadResults.js";
 
 let dir: string;
 beforeAll(() => {

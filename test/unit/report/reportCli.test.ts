@@ -4,7 +4,7 @@
 import { existsSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import type { OutputSink } from "../../../src/cli/main.js";
+import type { OutputSink } from "../../../src/cli/outputSink.js";
 import { main } from "../../../src/cli/main.js";
 import { loadResults } from "../../../src/report/loadResults.js";
 import { reportFiles } from "../../../src/report/writeReport.js";

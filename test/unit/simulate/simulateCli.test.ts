@@ -2,7 +2,7 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from "node
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterEach, describe, expect, it } from "vitest";
-import type { OutputSink } from "../../../src/cli/main.js";
+import type { OutputSink } from "../../../src/cli/outputSink.js";
 import { main } from "../../../src/cli/main.js";
 
 interface Captured extends OutputSink {

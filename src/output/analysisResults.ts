@@ -1,0 +1,17 @@
+import type { ContrastInference, ContrastNull, ObservedContrast } from "./contrastResults.js";
+import type { PreparedAnalysis } from "./preparedAnalysis.js";
+import type { InputRecord } from "./provenance.js";
+
+/**
+ * What a results folder is written from: the prepared analysis, each
+ * contrast's observed statistics, null (when permutations were drawn) and
+ * permutation results, the inputs with their SHA-256, and the command line.
+ */
+export interface AnalysisResults {
+  prepared: PreparedAnalysis;
+  contrasts: ObservedContrast[];
+  nulls: (ContrastNull | undefined)[];
+  inferred: ContrastInference[];
+  inputs: InputRecord[];
+  commandLine: string[] | null;
+}

@@ -1,0 +1,47 @@
+import type { LoadedConnectomes } from "../io/connectomes.js";
+import type { DesignSpec } from "../io/designFile.js";
+import type { ParticipantsTable } from "../io/participants.js";
+import type { Region } from "../io/regions.js";
+import type { EdgePairs } from "../edges/edgeIndex.js";
+import type { Contrast } from "../model/contrast.js";
+import type { DesignMatrix } from "../model/designMatrix.js";
+import type { Formula } from "../model/formula.js";
+
+// The validated inputs of an analysis, as run/prepareAnalysis.ts makes them and the writers of
+// the results (subjects, regions, summary.json) read them. The type lives with its readers so
+// that output/ never imports the pipeline.
+
+export interface ExcludedSubject {
+  id: string;
+  /** 1-based line in the participants table. */
+  line: number;
+  reason: string;
+}
+
+export interface KeptSubject {
+  id: string;
+  /** 0-based row of the participants table. */
+  tableRow: number;
+}
+
+/** Everything a run needs, validated: the `check` command stops here. */
+export interface PreparedAnalysis {
+  design: DesignSpec;
+  formula: Formula;
+  participants: ParticipantsTable;
+  kept: KeptSubject[];
+  excluded: ExcludedSubject[];
+  matrix: DesignMatrix;
+  contrasts: Contrast[];
+  regions: Region[];
+  pairs: EdgePairs;
+  connectomes: LoadedConnectomes;
+  /** Exchangeability block of each kept subject (0-based codes), when `inference.blocks` is set. */
+  blocks?: { column: string; codes: Int32Array; labels: string[] };
+  /**
+   * Input files with their roles, for provenance; `sha256` is set where it is
+   * known from loading (text matrices), the writer hashes the rest.
+   */
+  inputs: { role: string; path: string; sha256?: string }[];
+  warnings: string[];
+}

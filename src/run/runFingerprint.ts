@@ -1,0 +1,32 @@
+import { createHash } from "node:crypto";
+import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
+import type { InputRecord } from "../output/provenance.js";
+import { VERSION } from "../version.js";
+
+/**
+ * The fingerprint that ties a checkpoint or a shard to its run: the tool
+ * version, the inputs' hashes and every option that changes the null.
+ */
+export function runFingerprint(prepared: PreparedAnalysis, inputs: InputRecord[]): string {
+  const { inference } = prepared.design;
+  const payload = {
+    version: VERSION,
+    inputs: inputs.map((i) => [i.role, i.sha256]),
+    model: prepared.matrix.columns.map((c) => c.name),
+    contrasts: prepared.contrasts.map((c) => [c.name, c.rows.map((r) => [...r])]),
+    transform: prepared.design.transform,
+    symmetrize: prepared.design.symmetrize,
+    inference: {
+      threshold: inference.thresholds[0],
+      thresholds: inference.thresholds,
+      enhancement: inference.method === "threshold-free" ? inference.enhancement : null,
+      tail: inference.tail,
+      permutations: inference.permutations,
+      seed: inference.seed,
+      scheme: inference.scheme,
+      blocks: inference.blocks ?? null,
+      blockPermutation: inference.blockPermutation,
+    },
+  };
+  return createHash("sha256").update(JSON.stringify(payload)).digest("hex");
+}
