@@ -67,7 +67,7 @@ function readBack(value: number): number {
 }
 
 /**
- * The columns that src/report/loadResults.ts reads from the text edgesTable
+ * The columns that src/output/report/loadResults.ts reads from the text edgesTable
  * writes for the same arguments, computed without writing or parsing it, so a
  * report made right after the run need not read edges.tsv back. Number::toString
  * gives the shortest text that reads back as the same double (ECMA-262,

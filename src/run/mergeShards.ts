@@ -12,7 +12,7 @@ import type { ContrastNull } from "../output/contrastResults.js";
 import { writeResults } from "../output/writeResults.js";
 import { contrastInference, setupNull } from "./permutationInference.js";
 import { prepareAnalysis } from "./prepareAnalysis.js";
-import { writeReport } from "../report/writeReport.js";
+import { writeReport } from "../output/report/writeReport.js";
 import type { RunLog } from "./runAnalysis.js";
 import { runFingerprint } from "./runFingerprint.js";
 

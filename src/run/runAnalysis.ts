@@ -9,7 +9,7 @@ import { hashInputs, type InputRecord } from "../output/provenance.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
 import { writeResults } from "../output/writeResults.js";
 import { writeShard } from "../output/writeShard.js";
-import { writeReport } from "../report/writeReport.js";
+import { writeReport } from "../output/report/writeReport.js";
 import { fitAll, observeContrast } from "./analyzeContrasts.js";
 import { computeNull, contrastInference, needsPermutations, setupNull } from "./permutationInference.js";
 import { prepareAnalysis } from "./prepareAnalysis.js";

@@ -6,7 +6,7 @@ import { defaultThreads } from "../permute/nullEngine.js";
 import { hashInputs } from "../output/provenance.js";
 import type { GuardedInputs } from "../output/inputOverlap.js";
 import { ResultsFolder } from "../output/resultsFolder.js";
-import { pValue } from "../report/printNumbers.js";
+import { pValue } from "../output/report/printNumbers.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { prepareAnalysis } from "../run/prepareAnalysis.js";
 import { circularityWarning, sampleOverlap, type SampleOverlap } from "./sampleOverlap.js";

@@ -1,5 +1,5 @@
 import type { InputRecord } from "../output/provenance.js";
-import type { ResultsSummary } from "../report/loadResults.js";
+import type { ResultsSummary } from "../output/report/loadResults.js";
 
 /**
  * Whether a subnetwork is about to be tested on the data it was found in.

@@ -1,8 +1,8 @@
 import { formatFormula } from "../model/formula.js";
-import { escapeMarkdown } from "../report/escapeMarkdown.js";
-import { fixed, MISSING, pValue, significant } from "../report/printNumbers.js";
-import type { ReportTable } from "../report/reportTable.js";
-import { markdownTable } from "../report/tables/markdownTable.js";
+import { escapeMarkdown } from "../output/report/escapeMarkdown.js";
+import { fixed, MISSING, pValue, significant } from "../output/report/printNumbers.js";
+import type { ReportTable } from "../output/report/reportTable.js";
+import { markdownTable } from "../output/report/tables/markdownTable.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import type { StrengthAnalysis, StrengthContrast } from "./strengthAnalysis.js";
 
@@ -10,7 +10,7 @@ import type { StrengthAnalysis, StrengthContrast } from "./strengthAnalysis.js";
  * results.md: a table for the results section per contrast — β (the
  * contrast's estimate c'β̂), SE, t, df, p and partial r per measure, with
  * p_FWE (and q_FDR for regions) — in the house style of printed numbers
- * (src/report/printNumbers.ts: p to three decimals, "< 0.001" below).
+ * (src/output/report/printNumbers.ts: p to three decimals, "< 0.001" below).
  */
 const TAIL_TEXT = {
   upper: "one-sided, upper tail (P(T > t))",

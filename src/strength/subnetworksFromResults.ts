@@ -3,7 +3,7 @@ import path from "node:path";
 import { InputError } from "../errors.js";
 import { edgeIndexOf } from "../edges/edgeIndex.js";
 import type { Region } from "../io/regions.js";
-import { loadResults, type ComponentRow, type LoadedResults } from "../report/loadResults.js";
+import { loadResults, type ComponentRow, type LoadedResults } from "../output/report/loadResults.js";
 import type { EdgeSet } from "./edgeSets.js";
 
 /**

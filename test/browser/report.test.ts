@@ -10,10 +10,10 @@ import { dirname, join } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import { chromium, type BrowserContext, type Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { loadResults } from "../../src/report/loadResults.js";
-import { reportContent } from "../../src/report/reportContent.js";
-import { RESEARCH_NOTICE } from "../../src/report/reportHtml.js";
-import { writeReport } from "../../src/report/writeReport.js";
+import { loadResults } from "../../src/output/report/loadResults.js";
+import { reportContent } from "../../src/output/report/reportContent.js";
+import { RESEARCH_NOTICE } from "../../src/output/report/reportHtml.js";
+import { writeReport } from "../../src/output/report/writeReport.js";
 import { analysedCohort, GOLDEN_DESIGN, HTML_LABEL, type AnalysedCohort } from "../unit/report/reportCohort.js";
 
 const CHROMIUM = "/usr/bin/chromium";

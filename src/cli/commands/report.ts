@@ -1,7 +1,7 @@
 import type { Command } from "commander";
 import { rewriteResultsFolder } from "../../output/rewriteResultsFolder.js";
-import { loadResults } from "../../report/loadResults.js";
-import { reportFiles } from "../../report/writeReport.js";
+import { loadResults } from "../../output/report/loadResults.js";
+import { reportFiles } from "../../output/report/writeReport.js";
 import type { OutputSink } from "../outputSink.js";
 
 /**

@@ -1,7 +1,7 @@
 // A report made right after a run takes each contrast's edge columns from memory
 // (src/output/resultTables.ts edgeColumnsReadBack) instead of parsing the edges.tsv just
 // written. The reference is the report's own reader of a results folder on disk
-// (src/report/loadResults.ts): for the same columns, written by edgesTable and read back,
+// (src/output/report/loadResults.ts): for the same columns, written by edgesTable and read back,
 // the values must be the same bit for bit (tolerance: none; -0 and 0 count as different).
 import fc from "fast-check";
 import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from "node:fs";
@@ -12,7 +12,7 @@ import { edgePairs } from "../../../src/edges/edgeIndex.js";
 import { componentsTable, edgeColumnsReadBack, edgesTable, regionsTable, type ExtraEdgeColumn } from "../../../src/output/resultTables.js";
 import { formatTsv } from "../../../src/output/tsvWriter.js";
 import type { EdgeColumns } from "../../../src/output/edgeColumns.js";
-import { loadResults } from "../../../src/report/loadResults.js";
+import { loadResults } from "../../../src/output/report/loadResults.js";
 
 let dir: string;
 beforeAll(() => {

@@ -1,5 +1,5 @@
 import { describe as group, expect, it } from "vitest";
-import { categoricalTest, numericTest } from "../../../src/report/cohortTable.js";
+import { categoricalTest, numericTest } from "../../../src/output/report/cohortTable.js";
 import { expectClose } from "../../helpers/close.js";
 import { loadFixture } from "../../helpers/fixtures.js";
 

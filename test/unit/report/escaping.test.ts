@@ -1,11 +1,11 @@
 import { describe, expect, it } from "vitest";
 import { parseTsv } from "../../../src/io/tsv.js";
 import { formatTsv } from "../../../src/output/tsvWriter.js";
-import { escapeHtml } from "../../../src/report/escapeHtml.js";
-import { escapeLatex } from "../../../src/report/escapeLatex.js";
-import { escapeMarkdown } from "../../../src/report/escapeMarkdown.js";
-import { markdownTable } from "../../../src/report/tables/markdownTable.js";
-import { tsvCellText } from "../../../src/report/tsvCellText.js";
+import { escapeHtml } from "../../../src/output/report/escapeHtml.js";
+import { escapeLatex } from "../../../src/output/report/escapeLatex.js";
+import { escapeMarkdown } from "../../../src/output/report/escapeMarkdown.js";
+import { markdownTable } from "../../../src/output/report/tables/markdownTable.js";
+import { tsvCellText } from "../../../src/output/report/tsvCellText.js";
 
 // Expected strings follow the HTML Living Standard's character references, CommonMark's
 // backslash escapes and LaTeX's ten special characters (Lamport 1994, LaTeX: A Document

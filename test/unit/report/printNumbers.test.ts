@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { count, decimalsFor, fixed, percent, pValue, significant } from "../../../src/report/printNumbers.js";
+import { count, decimalsFor, fixed, percent, pValue, significant } from "../../../src/output/report/printNumbers.js";
 
 // Print conventions are common practice (p to three decimals with "< 0.001", as in APA style);
 // no single published source fixes them, so these tests pin this project's choices.

@@ -6,8 +6,8 @@ import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { OutputSink } from "../../../src/cli/outputSink.js";
 import { main } from "../../../src/cli/main.js";
-import { loadResults } from "../../../src/report/loadResults.js";
-import { reportFiles } from "../../../src/report/writeReport.js";
+import { loadResults } from "../../../src/output/report/loadResults.js";
+import { reportFiles } from "../../../src/output/report/writeReport.js";
 import { analysedCohort, GOLDEN_DESIGN, HTML_LABEL, type AnalysedCohort } from "./reportCohort.js";
 
 interface Captured extends OutputSink {

@@ -12,7 +12,7 @@ import { dirname, join, relative } from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { parseTsv } from "../../../src/io/tsv.js";
-import { writeReport } from "../../../src/report/writeReport.js";
+import { writeReport } from "../../../src/output/report/writeReport.js";
 import { expectClose } from "../../helpers/close.js";
 import { analysedCohort, FORMULA_ID, FORMULA_SITE, GOLDEN_DESIGN, HTML_LABEL, type AnalysedCohort } from "./reportCohort.js";
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { robustnessFigure } from "../../../src/report/figures/robustnessFigure.js";
-import type { ContrastResults } from "../../../src/report/loadResults.js";
+import { robustnessFigure } from "../../../src/output/report/figures/robustnessFigure.js";
+import type { ContrastResults } from "../../../src/output/report/loadResults.js";
 
 // The figure is checked against its definition (a filled cell where the edge is significant
 // at that threshold, most robust rows first) on a table written out by hand.

@@ -1,14 +1,14 @@
 // runAnalysis writes the report from what writeResults still holds (the texts it wrote and
 // each contrast's edge columns), not from the results folder read back. The reference is the
 // report made the old way, from the folder on disk: `reportFiles(loadResults(folder))`
-// (src/report/loadResults.ts, the reader `plexus report` uses). Every report file the run
+// (src/output/report/loadResults.ts, the reader `plexus report` uses). Every report file the run
 // wrote must equal it byte for byte (tolerance: none), over the inference methods, an F
 // contrast, a threshold sweep, and the hostile labels and ids of the report test cohort.
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
-import { loadResults } from "../../../src/report/loadResults.js";
-import { reportFiles } from "../../../src/report/writeReport.js";
+import { loadResults } from "../../../src/output/report/loadResults.js";
+import { reportFiles } from "../../../src/output/report/writeReport.js";
 import { analysedCohort, GOLDEN_DESIGN, type AnalysedCohort } from "../report/reportCohort.js";
 
 const design = (contrasts: string[], inference: string[]): string =>

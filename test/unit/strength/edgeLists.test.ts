@@ -7,7 +7,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { InputError } from "../../../src/errors.js";
-import type { ResultsSummary } from "../../../src/report/loadResults.js";
+import type { ResultsSummary } from "../../../src/output/report/loadResults.js";
 import { readPairsFile } from "../../../src/strength/readPairsFile.js";
 import { circularityWarning, sampleOverlap } from "../../../src/strength/sampleOverlap.js";
 

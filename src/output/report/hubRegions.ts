@@ -1,4 +1,4 @@
-import type { EdgeColumns } from "../output/edgeColumns.js";
+import type { EdgeColumns } from "../edgeColumns.js";
 
 /**
  * Hub regions of a set of edges: each region's degree (number of the edges it

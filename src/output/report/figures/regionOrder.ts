@@ -1,4 +1,4 @@
-import type { Region } from "../../io/regions.js";
+import type { Region } from "../../../io/regions.js";
 
 /**
  * The order regions are drawn in: grouped by hemisphere, then by system

@@ -1,4 +1,4 @@
-import type { Region } from "../../io/regions.js";
+import type { Region } from "../../../io/regions.js";
 import { hubRegions } from "../hubRegions.js";
 import type { ContrastResults } from "../loadResults.js";
 import { plain } from "../printNumbers.js";

@@ -1,6 +1,6 @@
-import { formatTsv } from "../output/tsvWriter.js";
+import { formatTsv } from "../tsvWriter.js";
 import type { CohortOptions } from "./cohortTable.js";
-import type { KnownResults } from "../output/writeResults.js";
+import type { KnownResults } from "../writeResults.js";
 import { loadResults, type LoadedResults } from "./loadResults.js";
 import { methodsMarkdown } from "./methodsText.js";
 import { reportContent } from "./reportContent.js";

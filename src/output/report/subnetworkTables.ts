@@ -1,4 +1,4 @@
-import type { Cell } from "../output/tsvWriter.js";
+import type { Cell } from "../tsvWriter.js";
 import { hubRegions } from "./hubRegions.js";
 import type { ContrastResults, LoadedResults } from "./loadResults.js";
 import { fixed, MISSING, plain, pValue, significant } from "./printNumbers.js";

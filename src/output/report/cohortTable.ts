@@ -1,13 +1,13 @@
-import type { Cell } from "../output/tsvWriter.js";
+import type { Cell } from "../tsvWriter.js";
 import { cohortVariables, type CohortVariable, type CohortVariables } from "./cohortVariables.js";
 import type { LoadedResults } from "./loadResults.js";
 import { decimalsFor, fixed, MISSING, percent, pValue } from "./printNumbers.js";
 import type { ReportTable, TableRow, TsvTable } from "./reportTable.js";
-import { chiSquareIndependence } from "../statistics/chiSquareIndependence.js";
-import { describe } from "../statistics/describe.js";
-import { fisherExact2x2 } from "../statistics/fisherExact2x2.js";
-import { welchAnova } from "../statistics/welchAnova.js";
-import { welchTTest } from "../statistics/welchTTest.js";
+import { chiSquareIndependence } from "../../statistics/chiSquareIndependence.js";
+import { describe } from "../../statistics/describe.js";
+import { fisherExact2x2 } from "../../statistics/fisherExact2x2.js";
+import { welchAnova } from "../../statistics/welchAnova.js";
+import { welchTTest } from "../../statistics/welchTTest.js";
 
 /**
  * The cohort table (participant characteristics by group): n; mean ± SD (and

@@ -1,4 +1,4 @@
-import type { Cell } from "../output/tsvWriter.js";
+import type { Cell } from "../tsvWriter.js";
 
 /**
  * A table for print, independent of the output format: text cells already

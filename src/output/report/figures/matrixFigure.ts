@@ -1,5 +1,5 @@
 import { Buffer } from "node:buffer";
-import type { Region } from "../../io/regions.js";
+import type { Region } from "../../../io/regions.js";
 import type { ContrastResults } from "../loadResults.js";
 import type { SignificantEdges } from "../significantEdges.js";
 import { colourBar } from "./colourBar.js";

@@ -1,14 +1,14 @@
 import { existsSync, statSync } from "node:fs";
 import path from "node:path";
-import { InputError } from "../errors.js";
-import { edgePairs } from "../edges/edgeIndex.js";
-import type { Region } from "../io/regions.js";
-import { readTextFile } from "../io/readInputFile.js";
-import { parseTsv, type LocatedTsvTable } from "../io/tsv.js";
-import type { EdgeColumns } from "../output/edgeColumns.js";
-import { parseNullTable } from "../output/nullTable.js";
-import type { KnownResults } from "../output/writeResults.js";
-import type { NullChunk } from "../permute/nullRangeTypes.js";
+import { InputError } from "../../errors.js";
+import { edgePairs } from "../../edges/edgeIndex.js";
+import type { Region } from "../../io/regions.js";
+import { readTextFile } from "../../io/readInputFile.js";
+import { parseTsv, type LocatedTsvTable } from "../../io/tsv.js";
+import type { EdgeColumns } from "../edgeColumns.js";
+import { parseNullTable } from "../nullTable.js";
+import type { KnownResults } from "../writeResults.js";
+import type { NullChunk } from "../../permute/nullRangeTypes.js";
 import { tsvCellText } from "./tsvCellText.js";
 
 /**
