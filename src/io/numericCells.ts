@@ -1,4 +1,4 @@
-import { InputError, inputErrors } from "../errors.js";
+import { InputError } from "../errors.js";
 import { listCells, type LocatedCell } from "./cellList.js";
 import type { ParticipantsTable } from "./participants.js";
 import { printable } from "./printable.js";
@@ -82,12 +82,6 @@ export function modelColumnProblems(table: ParticipantsTable, columns: string[],
     );
   }
   return problems;
-}
-
-/** Raises the problems of `modelColumnProblems` as one error. */
-export function checkModelColumns(table: ParticipantsTable, columns: string[], factorsByChoice: Set<string>): void {
-  const error = inputErrors(modelColumnProblems(table, columns, factorsByChoice));
-  if (error) throw error;
 }
 
 function cellsError(file: string, cells: ColumnCell[], what: string, hint: string): InputError {

@@ -23,15 +23,9 @@ export function templateColumns(template: string): string[] {
 
 /**
  * Checks every cell a path template will take from the given rows before any
- * file is opened; every unsafe cell is reported in one error (up to
- * 10 listed), naming the participants file, line and column.
+ * file is opened: every unsafe cell in one error (up to 10 listed), naming the
+ * participants file, line and column; null when every value is safe.
  */
-export function checkTemplateValues(template: string, table: ParticipantsTable, rows: number[], key: string): void {
-  const problem = templateValueProblem(template, table, rows, key);
-  if (problem) throw problem;
-}
-
-/** The error `checkTemplateValues` raises, returned instead (null when every value is safe). */
 export function templateValueProblem(template: string, table: ParticipantsTable, rows: number[], key: string): InputError | null {
   const problems: LocatedCell[] = [];
   for (const name of new Set(templateColumns(template))) {

@@ -3,6 +3,7 @@ import type { DesignSpec } from "../io/designFile.js";
 import type { ParticipantsTable } from "../io/participants.js";
 import type { Region } from "../io/regions.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
+import type { EdgeFit } from "../edges/fitEdges.js";
 import type { Contrast } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import type { Formula } from "../model/formula.js";
@@ -44,4 +45,6 @@ export interface PreparedAnalysis {
    */
   inputs: { role: string; path: string; sha256?: string }[];
   warnings: string[];
+  /** The fit of every edge, when preparation needed it (threshold-free: the step's bound); the run reuses it. */
+  fit?: EdgeFit;
 }

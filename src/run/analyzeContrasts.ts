@@ -13,6 +13,7 @@ import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 
 export function fitAll(prepared: PreparedAnalysis): EdgeFit {
   const { matrix, connectomes } = prepared;
+  if (prepared.fit) return prepared.fit;
   return fitEdges(matrix.values, matrix.rows, matrix.cols, connectomes.data, connectomes.edgeCount);
 }
 

@@ -12,7 +12,7 @@ import { PARTICIPANT_ID, readParticipantsCollecting } from "../io/participants.j
 import { defaultRegions, readRegions } from "../io/regions.js";
 import { contrastStatistics } from "../edges/contrastStatistics.js";
 import { edgePairs } from "../edges/edgeIndex.js";
-import { fitEdges } from "../edges/fitEdges.js";
+import { fitEdges, type EdgeFit } from "../edges/fitEdges.js";
 import { contrastFStatistics } from "../edges/fStatistics.js";
 import { parseContrast } from "../model/contrast.js";
 import { buildDesignMatrix } from "../model/designMatrix.js";
@@ -235,10 +235,11 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   if (connectomes.regionCount < 2) {
     throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
   }
+  let fit: EdgeFit | undefined;
   if (inference.method === "threshold-free") {
-    // The enhancement's work grows with the largest statistic ÷ step: fit once here, so that `check` and a run
-    // refuse a step that is too fine before any checkpoint or relabeling.
-    const fit = fitEdges(matrix.values, matrix.rows, matrix.cols, connectomes.data, connectomes.edgeCount);
+    // The enhancement's work grows with the largest statistic ÷ step: fit here (the run reuses this fit), so that
+    // `check` and a run refuse a step that is too fine before any checkpoint or relabeling.
+    fit = fitEdges(matrix.values, matrix.rows, matrix.cols, connectomes.data, connectomes.edgeCount);
     for (const contrast of contrasts) {
       const statistic = contrast.kind === "F" ? contrastFStatistics(fit, contrast.rows).statistic : contrastStatistics(fit, contrast.vector).statistic;
       checkEnhancementLevels(statistic, inference, where("inference.enhancement.step"));
@@ -266,6 +267,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     blocks,
     inputs,
     warnings,
+    ...(fit ? { fit } : {}),
   };
 }
 
