@@ -1,10 +1,10 @@
 // The one-way layers of plexus as rules (dependency-cruiser; `npm run layers`, part of `npm test`).
-// Data flow down one way: inputs (io/) → model/ → edge statistics (edges/) → permutation engine
-// (permute/) → inference/ → outputs (output/, the report in output/report/), with run/ (the pipeline), the command line
+// Data flow down one way: inputs (io/) → model/ → edge statistics (edges/) → network measures
+// (network/: components, enhancement) → permutation engine (permute/) → inference/ → outputs (output/, the report in output/report/), with run/ (the pipeline), the command line
 // (cli/) and the public API (index.ts) on top. common/ holds what several layers share and imports
 // nothing of theirs. Each "never" of the layering is one named rule, so a future import that breaks
 // a layer fails the test command with the rule's name.
-const NUMERICS = "^src/(model|edges|permute|inference|distributions|parallel)/";
+const NUMERICS = "^src/(model|edges|network|permute|inference|statistics|parallel)/";
 
 /** @type {import('dependency-cruiser').IConfiguration} */
 module.exports = {
@@ -40,6 +40,32 @@ module.exports = {
       severity: "error",
       from: { path: NUMERICS },
       to: { path: "^src/output/" },
+    },
+    {
+      name: "model-never-imports-later-numerics",
+      comment: "Inside the numerics, too, data flow one way: model → edges → network → permute → inference.",
+      severity: "error",
+      from: { path: "^src/model/" },
+      to: { path: "^src/(edges|network|permute|inference)/" },
+    },
+    {
+      name: "edge-statistics-never-import-later-numerics",
+      severity: "error",
+      from: { path: "^src/edges/" },
+      to: { path: "^src/(network|permute|inference)/" },
+    },
+    {
+      name: "network-measures-never-import-the-permutation-engine-or-inference",
+      severity: "error",
+      from: { path: "^src/network/" },
+      to: { path: "^src/(permute|inference)/" },
+    },
+    {
+      name: "permutation-engine-never-imports-inference",
+      comment: "The engine draws null rows; p-values from them are inference's. Components and enhancement, which both use, live in network/.",
+      severity: "error",
+      from: { path: "^src/permute/" },
+      to: { path: "^src/inference/" },
     },
     {
       name: "outputs-never-import-the-pipeline",

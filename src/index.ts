@@ -40,8 +40,8 @@ export { runNullEngine } from "./permute/nullEngine.js";
 
 // 5. Inference
 export { adjustFdr } from "./inference/fdr.js";
-export { labelComponents, largestComponent, type ComponentSummary } from "./inference/components.js";
-export { observedComponents } from "./inference/observedComponents.js";
+export { labelComponents, largestComponent, type ComponentSummary } from "./network/components.js";
+export { observedComponents } from "./network/components.js";
 export { familywiseP, criticalValue, clopperPearson } from "./inference/familywiseP.js";
 
 // 6. Running and outputs

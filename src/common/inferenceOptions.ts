@@ -8,7 +8,7 @@ export type FdrVariant = "bh" | "by";
 export type Scheme = "auto" | "permute" | "sign-flip";
 export type BlockPermutation = "within" | "whole";
 
-/** Threshold-free enhancement parameters (see src/inference/thresholdFree.ts). */
+/** Threshold-free enhancement parameters (see src/network/thresholdFree.ts). */
 export interface EnhancementSpec {
   extentExponent: number;
   heightExponent: number;

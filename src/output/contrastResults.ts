@@ -1,9 +1,12 @@
 import type { EdgeStatistics } from "../edges/contrastStatistics.js";
-import type { ComponentSummary } from "../inference/components.js";
+import type { ComponentSummary } from "../network/components.js";
 import type { FamilywiseP } from "../inference/familywiseP.js";
 import type { Contrast } from "../model/contrast.js";
 import type { NullSetup } from "../permute/nullContext.js";
 import type { NullChunk } from "../permute/nullRangeTypes.js";
+import type { SweepLevel } from "../inference/thresholdSweep.js";
+
+export type { SweepLevel };
 
 // What the pipeline finds for each contrast (run/analyzeContrasts.ts, run/permutationInference.ts),
 // as the writers of edges.tsv, components.tsv and summary.json take it.
@@ -43,15 +46,6 @@ export interface ThresholdFreeResult {
   components: ComponentSummary[];
   componentP: number[];
   criticalEnhanced: number;
-}
-
-/** One threshold of a sweep: its observed components and their p_fwe from that threshold's null columns. */
-export interface SweepLevel {
-  threshold: number;
-  labels: Int32Array;
-  components: ComponentSummary[];
-  componentP: FamilywiseP[];
-  criticalSize: number;
 }
 
 /**

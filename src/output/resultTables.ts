@@ -2,7 +2,7 @@ import type { Region } from "../io/regions.js";
 import { formulaVariables } from "../model/formula.js";
 import type { PreparedAnalysis } from "./preparedAnalysis.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
-import type { ComponentSummary } from "../inference/components.js";
+import type { ComponentSummary } from "../network/components.js";
 import type { EdgeColumns } from "./edgeColumns.js";
 import { formatCell, formatNumber, formatTsv, NumberTexts, TsvBytes, utf8Field, type Cell } from "./tsvWriter.js";
 

@@ -1,4 +1,5 @@
 import { finiteOrNull } from "../common/finiteOrNull.js";
+import { thresholdSweepSummary } from "./thresholdSweepFiles.js";
 import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
 import type { AnalysisResults } from "./analysisResults.js";
@@ -75,12 +76,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
           : {}),
         ...(sweep
           ? {
-              threshold_sweep: sweep.map((level) => ({
-                threshold: level.threshold,
-                supra_threshold_components: level.components.length,
-                significant_components: level.componentP.filter((r) => r.p <= inference.alpha).length,
-                critical_size: finiteOrNull(level.criticalSize),
-              })),
+              threshold_sweep: thresholdSweepSummary(sweep, inference.alpha),
             }
           : {}),
       };
@@ -89,7 +85,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
       transform: design.transform,
       symmetrize: design.symmetrize,
       asymmetry_tolerance: design.asymmetryTolerance,
-      inference: inferenceSummary(inference, { thresholds: true }),
+      inference: inferenceSummary(inference, { components: true }),
     },
     warnings: prepared.warnings,
   };

@@ -25,13 +25,13 @@ export function subjectsSummary(prepared: PreparedAnalysis): Record<string, unkn
 
 /**
  * summary.json's `options.inference`: the resolved inference options, in the
- * same keys for every command; `thresholds` adds the primary threshold, its
+ * same keys for every command; `components` adds the primary threshold, its
  * sweep, the enhancement and the size measure (analyses that form components).
  */
-export function inferenceSummary(inference: InferenceSpec, include: { thresholds: boolean }): Record<string, unknown> {
+export function inferenceSummary(inference: InferenceSpec, include: { components: boolean }): Record<string, unknown> {
   return {
     method: inference.method,
-    ...(include.thresholds
+    ...(include.components
       ? {
           threshold: inference.thresholds[0],
           thresholds: inference.thresholds,
@@ -56,4 +56,36 @@ export function inferenceSummary(inference: InferenceSpec, include: { thresholds
     blocks: inference.blocks ?? null,
     block_permutation: inference.blockPermutation,
   };
+}
+
+/** The options that change a contrast's null (for the fingerprint that ties a checkpoint or shard to its run). */
+export function nullOptions(inference: InferenceSpec): Record<string, unknown> {
+  return {
+    threshold: inference.thresholds[0],
+    thresholds: inference.thresholds,
+    enhancement: inference.method === "threshold-free" ? inference.enhancement : null,
+    tail: inference.tail,
+    permutations: inference.permutations,
+    seed: inference.seed,
+    scheme: inference.scheme,
+    blocks: inference.blocks ?? null,
+    blockPermutation: inference.blockPermutation,
+  };
+}
+
+/** The primary threshold as a rule on the statistic, e.g. "t > 3", "t < -3", "|t| > 3". */
+export function thresholdRule(tail: string, threshold: number): string {
+  if (tail === "both") return `|t| > ${threshold}`;
+  if (tail === "lower") return `t < -${threshold}`;
+  return `t > ${threshold}`;
+}
+
+/** The design's primary threshold as a rule on the statistic of its tail. */
+export function primaryRule(inference: InferenceSpec): string {
+  return thresholdRule(inference.tail, inference.thresholds[0]);
+}
+
+/** One line of the resolved inference options, e.g. "components, threshold 3, size extent, tail both, alpha 0.05". */
+export function inferenceLine(inference: InferenceSpec): string {
+  return `${inference.method}, threshold ${inference.thresholds.join(", ")}, size ${inference.size}, tail ${inference.tail}, alpha ${inference.alpha}`;
 }

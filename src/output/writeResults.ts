@@ -4,7 +4,7 @@ import { nullTable } from "./nullTable.js";
 import { componentsTable, edgeColumnsReadBack, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "./resultTables.js";
 import type { ResultsFolder } from "./resultsFolder.js";
 import { resultsSummary } from "./resultsSummary.js";
-import { robustnessTable } from "./robustnessTable.js";
+import { thresholdSweepFiles } from "./thresholdSweepFiles.js";
 
 /**
  * What the writer of a results folder still holds of it, so that a report made
@@ -65,18 +65,7 @@ export function writeResults(folder: ResultsFolder, results: AnalysisResults): K
               : {},
           ),
     );
-    if (sweep) {
-      for (const level of sweep) {
-        write(
-          `${name}/threshold-${level.threshold}/components.tsv`,
-          componentsTable(level.components, {
-            pFwe: level.componentP.map((r) => r.p),
-            ...(exact ? {} : { pFweLow: level.componentP.map((r) => r.low), pFweHigh: level.componentP.map((r) => r.high) }),
-          }),
-        );
-      }
-      write(`${name}/threshold_robustness.tsv`, robustnessTable(prepared, observed, sweep, inference.alpha));
-    }
+    if (sweep) for (const [file, text] of thresholdSweepFiles(name, prepared, observed, sweep, { alpha: inference.alpha, exact })) write(file, text);
     if (contrastNull) write(`${name}/null.tsv`, nullTable(contrastNull.rows));
   });
   write("subjects.tsv", subjectsTable(prepared));

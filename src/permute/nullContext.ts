@@ -3,6 +3,7 @@ import { type InferenceSpec } from "../common/inferenceOptions.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { partitionEffect, partitionEffectRows, reducedResiduals, type EffectPartition } from "./effectPartition.js";
+import { nullMeasureOptions } from "./nullMaxima.js";
 import type { NullContext } from "./nullRangeTypes.js";
 import { checkWholeBlockSizes, chooseScheme } from "./exchangeability.js";
 import { designRowTypes, planRelabelings, type SchemeKind } from "./relabelings.js";
@@ -36,6 +37,8 @@ export function buildNullContext(options: {
   where: InputLocation;
   /** Overwrite `data` with the residuals (when no later step needs the data; must be shared memory). */
   inPlace?: boolean;
+  /** Record only the largest statistic per relabeling (no component forms): the maximum-statistic null of measures. */
+  largestStatisticOnly?: boolean;
 }): NullSetup {
   const { matrix, contrast, data, edges, pairs, observed, inference } = options;
   const S = matrix.rows;
@@ -89,9 +92,7 @@ export function buildNullContext(options: {
       regionA: pairs.regionA,
       regionB: pairs.regionB,
       regionCount: pairs.regionCount,
-      thresholds: inference.thresholds,
-      enhancement: inference.method === "threshold-free" ? inference.enhancement : undefined,
-      tail: multi ? "upper" : inference.tail,
+      ...nullMeasureOptions(inference, multi ? "upper" : inference.tail, options.largestStatisticOnly),
       observed,
     },
   };

@@ -1,7 +1,6 @@
-import type { Tail } from "../common/inferenceOptions.js";
-import { UnionFind } from "../inference/components.js";
-import { signsOfTail } from "../inference/observedComponents.js";
-import { ThresholdFreeEnhancer, type EnhancementParameters } from "../inference/thresholdFree.js";
+import type { InferenceSpec, Tail } from "../common/inferenceOptions.js";
+import { signsOfTail, UnionFind } from "../network/components.js";
+import { ThresholdFreeEnhancer, type EnhancementParameters } from "../network/thresholdFree.js";
 
 /**
  * What one relabeling contributes to the null distributions: the largest
@@ -21,6 +20,19 @@ export interface NullMeasureOptions {
   tail: Tail;
   /** When set, the largest enhanced value is recorded as `max_enhanced`. */
   enhancement?: EnhancementParameters;
+}
+
+/**
+ * The null measures a design asks for: its thresholds, primary first (none is
+ * ever reached when only the largest statistic is wanted), the tail tested
+ * and the enhancement of threshold-free inference.
+ */
+export function nullMeasureOptions(inference: InferenceSpec, tail: Tail, largestStatisticOnly = false): NullMeasureOptions {
+  return {
+    thresholds: largestStatisticOnly ? [Infinity] : inference.thresholds,
+    enhancement: inference.method === "threshold-free" ? inference.enhancement : undefined,
+    tail,
+  };
 }
 
 /** Names of the extra null columns for these options, in order. */

@@ -1,14 +1,10 @@
-import { NullMaxima, type NullMeasureOptions } from "./nullMaxima.js";
+import { NullMaxima } from "./nullMaxima.js";
 import type { NullChunk, NullContext, NullRecorder, ScreenTally } from "./nullRangeTypes.js";
 import { twoLevelEffect, type TwoLevelEffect } from "./kernels/groupSums.js";
 import { selectKernel, type KernelChoice } from "./kernels/selectKernel.js";
 import { prepareScreen, screenedRows } from "./screenedRange.js";
 import { relabelingWriter, type RelabelingWriter } from "./relabelingWriter.js";
 
-/** The null-measure options of a context. */
-export function measureOptions(context: NullContext): NullMeasureOptions {
-  return { thresholds: context.thresholds, tail: context.tail, enhancement: context.enhancement };
-}
 
 export interface NullRangeOptions {
   /** The kernel (default "auto": WebAssembly SIMD where available; PLEXUS_KERNEL overrides). Results are identical. */
@@ -49,7 +45,7 @@ const FALLBACK_BATCH = 8;
 
 export function computeNullRange(context: NullContext, from: number, to: number, options: NullRangeOptions = {}): NullChunk {
   const count = to - from;
-  const maxima = new NullMaxima(context.regionA, context.regionB, context.regionCount, measureOptions(context));
+  const maxima = new NullMaxima(context.regionA, context.regionB, context.regionCount, context);
   const chunk: NullChunk = {
     from,
     to,

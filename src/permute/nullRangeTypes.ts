@@ -1,13 +1,15 @@
-import type { Tail } from "../common/inferenceOptions.js";
-import type { EnhancementParameters } from "../inference/thresholdFree.js";
+import type { NullMeasureOptions } from "./nullMaxima.js";
 import type { KernelData } from "./permutedStatistics.js";
 import type { RelabelingPlan } from "./relabelings.js";
 
 // What a range of null rows is computed from and what it gives back: the types that
 // nullRange.ts (the chunk), screenedRange.ts (the screen) and relabelingWriter.ts share.
 
-/** Everything needed to compute null rows for one contrast (plain data; shareable with workers). */
-export interface NullContext {
+/**
+ * Everything needed to compute null rows for one contrast (plain data;
+ * shareable with workers), with the measures each relabeling records.
+ */
+export interface NullContext extends NullMeasureOptions {
   kernel: KernelData;
   /** x̃ then the nuisance basis vectors the relabeling must carry (see permutedStatistics). */
   vectors: Float64Array[];
@@ -15,11 +17,6 @@ export interface NullContext {
   regionA: Uint32Array;
   regionB: Uint32Array;
   regionCount: number;
-  /** The primary thresholds, the primary one first (several for a sweep). */
-  thresholds: readonly number[];
-  /** Threshold-free enhancement parameters, when the method needs the enhanced null. */
-  enhancement?: EnhancementParameters;
-  tail: Tail;
   /** The observed statistic, used as is for the identity (relabeling 1 in exact mode). */
   observed: Float64Array;
 }

@@ -3,7 +3,7 @@ import { contrastFStatistics } from "../edges/fStatistics.js";
 import { fitEdges, type EdgeFit } from "../edges/fitEdges.js";
 import { tailPValues } from "../edges/tailPValues.js";
 import { adjustFdr } from "../inference/fdr.js";
-import { observedComponents } from "../inference/observedComponents.js";
+import { primaryComponents } from "../network/components.js";
 import type { Contrast } from "../model/contrast.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { InferenceSpec } from "../common/inferenceOptions.js";
@@ -44,14 +44,6 @@ export function observeContrastOn(fit: EdgeFit, contrast: Contrast, pairs: EdgeP
   }
   const qFdr = adjustFdr(pUncorrected, inference.fdr);
   const tail = contrast.kind === "F" ? "upper" : inference.tail;
-  const { labels, components } = observedComponents(
-    statistics.statistic,
-    pairs.regionA,
-    pairs.regionB,
-    pairs.regionCount,
-    inference.thresholds[0],
-    tail,
-    inference.size,
-  );
+  const { labels, components } = primaryComponents(statistics.statistic, pairs, inference, tail);
   return { contrast, statistics, pUncorrected, qFdr, labels, components };
 }

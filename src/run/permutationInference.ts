@@ -9,15 +9,15 @@ import type { Contrast } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { computeNullRange } from "../permute/nullRange.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
-import { observedComponents, signsOfTail } from "../inference/observedComponents.js";
-import { ThresholdFreeEnhancer } from "../inference/thresholdFree.js";
+import { observedComponents, signsOfTail } from "../network/components.js";
+import { ThresholdFreeEnhancer } from "../network/thresholdFree.js";
+import { thresholdSweep } from "../inference/thresholdSweep.js";
 import { type InferenceSpec } from "../common/inferenceOptions.js";
 import type {
   ContrastInference,
   ContrastNull,
   FamilywiseResult,
   ObservedContrast,
-  SweepLevel,
   ThresholdFreeResult,
 } from "../output/contrastResults.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
@@ -149,42 +149,6 @@ export function thresholdFreeInference(
 }
 
 
-export function sweepInference(
-  inference: InferenceSpec,
-  observed: ObservedContrast,
-  nullRows: NullChunk,
-  exact: boolean,
-  pairs: EdgePairs,
-  tail: InferenceSpec["tail"],
-): SweepLevel[] {
-  return inference.thresholds.map((threshold, i) => {
-    const { labels, components } = observedComponents(
-      observed.statistics.statistic,
-      pairs.regionA,
-      pairs.regionB,
-      pairs.regionCount,
-      threshold,
-      tail,
-      inference.size,
-    );
-    const measure = inference.size === "mass" ? "mass" : "extent";
-    const sizeNull =
-      i === 0
-        ? measure === "mass"
-          ? nullRows.maxMass
-          : nullRows.maxExtent
-        : nullRows.extra[nullRows.extraNames.indexOf(`max_${measure}_t${threshold}`)];
-    const sizes = components.map((c) => (measure === "mass" ? c.mass : c.extent));
-    return {
-      threshold,
-      labels,
-      components,
-      componentP: familywiseP(sizeNull, sizes, exact),
-      criticalSize: criticalValue(sizeNull, inference.alpha, exact),
-    };
-  });
-}
-
 /** Every permutation-based result the design asks for of a contrast with a null; none without one. */
 export function contrastInference(
   inference: InferenceSpec,
@@ -198,7 +162,7 @@ export function contrastInference(
   return {
     fwe: familywiseInference(inference, observed, contrastNull.rows, exact),
     free: inference.method === "threshold-free" ? thresholdFreeInference(inference, observed, contrastNull.rows, exact, pairs, tail) : undefined,
-    sweep: inference.thresholds.length > 1 ? sweepInference(inference, observed, contrastNull.rows, exact, pairs, tail) : undefined,
+    sweep: thresholdSweep(inference, observed.statistics.statistic, contrastNull.rows, exact, pairs, tail),
   };
 }
 

@@ -1,13 +1,12 @@
 import type { ContrastInference, ObservedContrast } from "../output/contrastResults.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
+import { primaryRule } from "../output/summaryParts.js";
 
 /** One line per contrast for the terminal: its components and how many are significant. */
 export function resultLines(prepared: PreparedAnalysis, contrasts: ObservedContrast[], inferred: ContrastInference[]): string[] {
   const { inference } = prepared.design;
   return contrasts.map((observed, i) => {
-    const threshold = inference.thresholds[0];
-    const rule = inference.tail === "both" ? `|t| > ${threshold}` : inference.tail === "lower" ? `t < -${threshold}` : `t > ${threshold}`;
-    const head = `${observed.contrast.name}: ${observed.components.length} supra-threshold component(s) at ${rule}`;
+    const head = `${observed.contrast.name}: ${observed.components.length} supra-threshold component(s) at ${primaryRule(inference)}`;
     const { fwe } = inferred[i];
     if (!fwe) {
       const significant = observed.qFdr.filter((q) => q <= inference.alpha).length;

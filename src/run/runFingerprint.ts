@@ -1,6 +1,7 @@
 import { createHash } from "node:crypto";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import type { InputRecord } from "../output/provenance.js";
+import { nullOptions } from "../output/summaryParts.js";
 import { VERSION } from "../version.js";
 
 /**
@@ -16,17 +17,7 @@ export function runFingerprint(prepared: PreparedAnalysis, inputs: InputRecord[]
     contrasts: prepared.contrasts.map((c) => [c.name, c.rows.map((r) => [...r])]),
     transform: prepared.design.transform,
     symmetrize: prepared.design.symmetrize,
-    inference: {
-      threshold: inference.thresholds[0],
-      thresholds: inference.thresholds,
-      enhancement: inference.method === "threshold-free" ? inference.enhancement : null,
-      tail: inference.tail,
-      permutations: inference.permutations,
-      seed: inference.seed,
-      scheme: inference.scheme,
-      blocks: inference.blocks ?? null,
-      blockPermutation: inference.blockPermutation,
-    },
+    inference: nullOptions(inference),
   };
   return createHash("sha256").update(JSON.stringify(payload)).digest("hex");
 }

@@ -16,8 +16,8 @@ import { computeNull } from "../run/permutationInference.js";
  * records its largest statistic, and a measure's p_fwe is the share of
  * relabelings whose maximum reaches its statistic (src/inference/familywiseP.ts).
  * The null is drawn as `plexus run` draws it (src/run/permutationInference.ts computeNull).
- * Measures are not edges of a graph, so no component is ever formed: the
- * primary threshold is set to +∞ and only the maximum statistic is used.
+ * Measures are not edges of a graph, so no component is ever formed
+ * (`largestStatisticOnly`): only the maximum statistic is used.
  */
 export interface MeasureFamilywise {
   setup: NullSetup;
@@ -56,7 +56,8 @@ export async function measureFamilywise(options: {
     edges: measures,
     pairs: { regionCount: 0, edgeCount: measures, regionA: new Uint32Array(0), regionB: new Uint32Array(0) },
     observed: options.observed,
-    inference: { ...inference, thresholds: [Infinity] },
+    inference,
+    largestStatisticOnly: true,
     blocks: options.blocks,
     where: options.where,
   });

@@ -77,7 +77,7 @@ export function strengthSummary(
     options: {
       transform: design.transform,
       symmetrize: design.symmetrize,
-      inference: inferenceSummary(inference, { thresholds: false }),
+      inference: inferenceSummary(inference, { components: false }),
     },
     warnings,
   };

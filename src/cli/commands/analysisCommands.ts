@@ -10,6 +10,7 @@ import { stderrProgress } from "../progress.js";
 import type { OutputSink } from "../outputSink.js";
 import { parseShard, parseThreads } from "../options.js";
 import { terminalLog } from "../terminalLog.js";
+import { inferenceLine } from "../../output/summaryParts.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */
 export function registerAnalysisCommands(program: Command, sink: OutputSink, argv: () => string[]): void {
@@ -31,7 +32,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
         ...prepared.contrasts.map(
           (c) => `contrast    ${c.name}: ${c.expression}  ->  ${formatContrastRows(c.kind === "F" ? c.rows : [c.vector], c.kind)}`,
         ),
-        `inference   ${design.inference.method}, threshold ${design.inference.thresholds.join(", ")}, size ${design.inference.size}, tail ${design.inference.tail}, alpha ${design.inference.alpha}`,
+        `inference   ${inferenceLine(design.inference)}`,
       ];
       for (const warning of prepared.warnings) log.warn(warning);
       sink.out(`${printable(lines.join("\n"))}\nok: the design and its inputs are valid\n`);

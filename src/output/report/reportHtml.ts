@@ -6,7 +6,7 @@ import { methodsHtml } from "./methodsText.js";
 import { plain } from "./printNumbers.js";
 import type { ReportContent } from "./reportContent.js";
 import { REPORT_STYLE } from "./reportStyle.js";
-import { thresholdRule } from "./subnetworkTables.js";
+import { thresholdRule } from "../summaryParts.js";
 import { htmlTable } from "./tables/htmlTable.js";
 
 /**

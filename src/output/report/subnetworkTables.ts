@@ -1,3 +1,4 @@
+import { thresholdRule } from "../summaryParts.js";
 import type { Cell } from "../tsvWriter.js";
 import { hubRegions } from "./hubRegions.js";
 import type { ContrastResults, LoadedResults } from "./loadResults.js";
@@ -17,12 +18,6 @@ export interface SubnetworkTables {
   tsv: TsvTable[];
 }
 
-/** The primary threshold as a rule on the statistic, e.g. "t > 3", "t < -3", "|t| > 3". */
-export function thresholdRule(tail: string, threshold: number): string {
-  if (tail === "both") return `|t| > ${plain(threshold)}`;
-  if (tail === "lower") return `t < -${plain(threshold)}`;
-  return `t > ${plain(threshold)}`;
-}
 
 /** p_FWE for print: with its 95% Clopper–Pearson interval (Monte Carlo) or marked exact. */
 export function familywiseText(p: number, low: number, high: number, exact: boolean): string {

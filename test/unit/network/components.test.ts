@@ -1,5 +1,5 @@
-// Connected components of supra-threshold edges (src/inference/components.ts and
-// observedComponents.ts): the component step of the network-based statistic (Zalesky,
+// Connected components of supra-threshold edges (src/network/components.ts:
+// labelComponents and observedComponents): the component step of the network-based statistic (Zalesky,
 // Fornito & Bullmore 2010, NeuroImage 53:1197) — extent = edges, mass = Σ(statistic −
 // threshold), nodes = regions touched. Checked against
 //   1. small graphs drawn by hand below (expected components worked out by hand), and
@@ -19,8 +19,9 @@ import {
   UnionFind,
   type ComponentLabels,
   type ComponentSummary,
-} from "../../../src/inference/components.js";
-import { observedComponents, signsOfTail } from "../../../src/inference/observedComponents.js";
+  observedComponents,
+  signsOfTail,
+} from "../../../src/network/components.js";
 
 type Size = "extent" | "mass";
 

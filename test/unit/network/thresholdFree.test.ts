@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import seedrandom from "seedrandom";
 import { expectAllClose } from "../../helpers/close.js";
 import { edgePairs } from "../../../src/edges/edgeIndex.js";
-import { ThresholdFreeEnhancer } from "../../../src/inference/thresholdFree.js";
+import { ThresholdFreeEnhancer } from "../../../src/network/thresholdFree.js";
 
 // References: the definition of threshold-free enhancement (Smith & Nichols
 // 2009, NeuroImage 44:83, eq. 1; on graph components as in Baggio et al. 2018,
