@@ -11,6 +11,9 @@ import { npyDataOffset, npyValueReader, parseNpyHeader, type NpyHeader } from ".
 import { PARTICIPANT_ID } from "./participants.js";
 import { printable } from "./printable.js";
 import { InputFile, TextFileReader } from "./readInputFile.js";
+import type { ArrayChoice, SubjectsAxis } from "./arrays/chooseArray.js";
+import { loadContainerFiles, loadContainerStack, type MatrixReading } from "./arrays/containerConnectomes.js";
+import { probeFormat } from "./arrays/probeFormat.js";
 import { unsafePathValue } from "./templateValues.js";
 
 /**
@@ -18,7 +21,9 @@ import { unsafePathValue } from "./templateValues.js";
  * upper-triangle edge values (edge order of src/edges/edgeIndex.ts), from one
  * text file per subject or from one .npy stack read a matrix at a time.
  */
-export type ConnectomeSource = { kind: "template"; template: string; baseDir: string } | { kind: "npy"; path: string };
+export type ConnectomeSource =
+  | { kind: "template"; template: string; baseDir: string; choice?: ArrayChoice }
+  | { kind: "file"; path: string; choice?: ArrayChoice };
 
 export interface ConnectomeOptions extends EdgeExtractionOptions {
   /**
@@ -27,6 +32,8 @@ export interface ConnectomeOptions extends EdgeExtractionOptions {
    * must at least reach every subject's `tableRow`.
    */
   participantRowCount?: number;
+  /** The regions table's labels and path, when the design gives one: labels a file carries are matched to them. */
+  regionTable?: { labels: readonly string[]; file: string };
 }
 
 export interface ConnectomeSubject {
@@ -54,6 +61,10 @@ export interface LoadedConnectomes {
    * read in parts.
    */
   sha256?: string[];
+  /** Region labels the files carry (a labelled text header, CIFTI-2 parcels), when no regions table is given. */
+  labels?: string[];
+  /** Which reader was used, the array's shape and axes, and where the labels came from. */
+  reading: MatrixReading;
 }
 
 export const CONNECTOMES_KEY = "connectomes";
@@ -120,9 +131,64 @@ export function loadConnectomes(
   subjects: ConnectomeSubject[],
   options: ConnectomeOptions,
 ): LoadedConnectomes {
-  return source.kind === "npy"
-    ? loadFromStack(resolve(source.path), subjects, options)
-    : loadFromTemplate(source.template, source.baseDir, subjects, options);
+  const choice = source.choice ?? {};
+  if (source.kind === "file") {
+    const file = resolve(source.path);
+    const format = probeFormat(file, STACK_HINT);
+    // A file named .npy that is no NumPy array gets the .npy reader's own message about its header.
+    const npyByName = format === "text" && file.toLowerCase().endsWith(".npy");
+    if ((format === "npy" || npyByName) && stackAxis(file, choice) === "first") {
+      const loaded = loadFromStack(file, subjects, options);
+      return { ...loaded, reading: { reader: "NumPy .npy", shape: loaded.stackShape, subjectsAxis: "first", labels: numberedOrTable(options) } };
+    }
+    if (format === "text") {
+      throw new InputError(
+        "this file is text; a text file for every participant at once (a participants × edges table) is not read yet",
+        { file, key: CONNECTOMES_KEY },
+        "give one matrix per participant with a path template, e.g. connectomes: matrices/{participant_id}.csv",
+      );
+    }
+    return loadContainerStack(file, subjects, { ...options, ...choice });
+  }
+  const files = resolveAll(source.template, subjects, source.baseDir);
+  const first = files.find((file) => file !== "");
+  if (first !== undefined && probeFirst(first) !== "text") return loadContainerFiles(files, subjects, { ...options, ...choice });
+  const loaded = loadFromTemplate(source.template, source.baseDir, subjects, options);
+  return { ...loaded, reading: { reader: "text", shape: [loaded.regionCount, loaded.regionCount], labels: numberedOrTable(options) } };
+}
+
+/**
+ * The participants' axis of a .npy stack, from its header alone: `subjects_axis`
+ * when given, N × N × S when the shape says so, else S × N × N (streamed a
+ * matrix at a time).
+ */
+function stackAxis(file: string, choice: ArrayChoice): SubjectsAxis {
+  const input = InputFile.open(file, STACK_HINT);
+  let header: NpyHeader;
+  try {
+    header = readStackHeader(input);
+  } finally {
+    input.close();
+  }
+  const { shape } = header;
+  if (choice.subjectsAxis) return choice.subjectsAxis;
+  if (shape.length !== 3) return "first"; // the streaming reader names the shape it expected
+  // S × N × N is the .npy stack's documented order: it stands when the shape cannot tell (S = N).
+  return shape[0] === shape[1] && shape[1] !== shape[2] ? "last" : "first";
+}
+
+function numberedOrTable(options: ConnectomeOptions): MatrixReading["labels"] {
+  return options.regionTable ? "regions table" : "numbered 1 … N";
+}
+
+/** The format of the first participant's file; a file that cannot be opened is left to the loader to report. */
+function probeFirst(file: string): string {
+  try {
+    return probeFormat(file);
+  } catch (error) {
+    if (!isInputError(error)) throw error;
+    return "text";
+  }
 }
 
 function loadFromTemplate(
@@ -130,7 +196,7 @@ function loadFromTemplate(
   baseDir: string,
   subjects: ConnectomeSubject[],
   options: ConnectomeOptions,
-): LoadedConnectomes {
+): Omit<LoadedConnectomes, "reading"> {
   if (subjects.length === 0) {
     throw new InputError("no participants to load connectivity matrices for", { key: CONNECTOMES_KEY });
   }
@@ -214,7 +280,7 @@ const FORTRAN_ORDER_LIMIT_BYTES = 2 ** 30;
  * offset, so memory holds the edge array and one matrix, whatever the file's
  * size (a Fortran-order stack of up to 1 GiB is the exception: read whole).
  */
-function loadFromStack(file: string, subjects: ConnectomeSubject[], options: ConnectomeOptions): LoadedConnectomes {
+function loadFromStack(file: string, subjects: ConnectomeSubject[], options: ConnectomeOptions): Omit<LoadedConnectomes, "reading"> & { stackShape: number[] } {
   const input = InputFile.open(file, STACK_HINT);
   try {
     const header = readStackHeader(input);
@@ -268,7 +334,7 @@ function loadFromStack(file: string, subjects: ConnectomeSubject[], options: Con
       const error = inputErrors(problems);
       if (error) throw error;
     }
-    return { regionCount: n, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data, files: [file] };
+    return { regionCount: n, edgeCount: pairs.edgeCount, subjectCount: subjects.length, data, files: [file], stackShape: [...shape] };
   } finally {
     input.close();
   }

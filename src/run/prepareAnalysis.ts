@@ -25,14 +25,19 @@ import type { ExcludedSubject, KeptSubject, PreparedAnalysis } from "../output/p
 import { checkEnhancementLevels } from "./enhancementLevels.js";
 
 
+/**
+ * Where the matrices come from: a path with `{column}` placeholders is a
+ * template (one file per participant), any other path one file for every
+ * participant; what a file holds is told by its bytes when it is read.
+ */
 export function connectomeSource(design: DesignSpec): ConnectomeSource {
   const spec = design.connectomes;
-  if (spec.includes("{")) return { kind: "template", template: spec, baseDir: design.baseDir };
-  if (spec.toLowerCase().endsWith(".npy")) return { kind: "npy", path: path.resolve(design.baseDir, spec) };
-  throw new InputError(
-    `'connectomes' must be a path template with {participant_id} (one text matrix per subject) or a .npy stack; found '${spec}'`,
-    designKeyLocation(design, "connectomes"),
-  );
+  const choice = {
+    ...(design.connectomeVariable !== undefined ? { variable: design.connectomeVariable } : {}),
+    ...(design.subjectsAxis !== undefined ? { subjectsAxis: design.subjectsAxis } : {}),
+  };
+  if (spec.includes("{")) return { kind: "template", template: spec, baseDir: design.baseDir, choice };
+  return { kind: "file", path: path.resolve(design.baseDir, spec), choice };
 }
 
 export interface PrepareHooks {
@@ -222,6 +227,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   });
   const regionsPath = design.regions ? path.resolve(design.baseDir, design.regions) : undefined;
   hooks.beforeMatrices?.(design, plannedInputs(design, source, participantsPath, regionsPath, participants.ids.map((_, row) => subjectOfRow(row))));
+  const regionTable = regionsPath ? readRegions(regionsPath) : undefined;
   const connectomes = loadConnectomes(
     source,
     kept.map((k) => subjectOfRow(k.tableRow)),
@@ -230,8 +236,12 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
       asymmetryTolerance: design.asymmetryTolerance,
       transform: design.transform,
       participantRowCount: participants.ids.length,
+      ...(regionTable ? { regionTable: { labels: regionTable.map((r) => r.label), file: regionsPath! } } : {}),
     },
   );
+  if (connectomes.reading.reordered) {
+    warnings.push("the matrices name their regions in another order than the regions table; their rows and columns were reordered to the table's order");
+  }
   if (connectomes.regionCount < 2) {
     throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
   }
@@ -245,7 +255,13 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
       checkEnhancementLevels(statistic, inference, where("inference.enhancement.step"));
     }
   }
-  const regions = regionsPath ? readRegions(regionsPath, connectomes.regionCount) : defaultRegions(connectomes.regionCount);
+  const regions = regionsPath
+    ? regionTable!.length === connectomes.regionCount
+      ? regionTable!
+      : readRegions(regionsPath, connectomes.regionCount)
+    : connectomes.labels
+      ? connectomes.labels.map((label) => ({ label }))
+      : defaultRegions(connectomes.regionCount);
 
   const inputs = [
     { role: "design", path: path.resolve(design.file) },
@@ -286,7 +302,7 @@ function plannedInputs(
 ): GuardedInputs {
   const files = [path.resolve(design.file), participantsPath, ...(regionsPath ? [regionsPath] : [])];
   const folders = new Set<string>();
-  if (source.kind === "npy") {
+  if (source.kind === "file") {
     files.push(source.path);
   } else {
     for (const subject of subjects) {

@@ -5,6 +5,7 @@ import { prepareAnalysis } from "../../run/prepareAnalysis.js";
 import { runAnalysis } from "../../run/runAnalysis.js";
 import { mergeShards } from "../../run/mergeShards.js";
 import { printable } from "../../io/printable.js";
+import { describeReading } from "../../io/arrays/describeReading.js";
 import { silentProgress } from "../../common/progress.js";
 import { stderrProgress } from "../progress.js";
 import type { OutputSink } from "../outputSink.js";
@@ -26,6 +27,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
         `design      ${designFile}`,
         `subjects    ${prepared.kept.length} used of ${prepared.participants.ids.length}${prepared.excluded.length ? ` (${prepared.excluded.length} left out for missing values)` : ""}`,
         `connectomes ${connectomes.regionCount} regions, ${connectomes.edgeCount} edges${design.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`,
+        `read        ${describeReading(connectomes.reading)}`,
         `model       ${formatFormula(prepared.formula)}`,
         `columns     ${matrix.columns.map((c) => c.name).join(", ")}`,
         `df          ${residualDf(matrix)}`,

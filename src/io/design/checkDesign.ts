@@ -2,7 +2,7 @@ import { isMap, isScalar, isSeq } from "yaml";
 import type { BlockPermutation, EnhancementSpec, FdrVariant, InferenceMethod, Scheme, SizeMeasure, Tail } from "../../common/inferenceOptions.js";
 import { InputError } from "../../errors.js";
 import { checkContrasts } from "./checkContrasts.js";
-import { DESIGN_KEYS, ENHANCEMENT_KEYS, INFERENCE_KEYS } from "./designKeys.js";
+import { CONNECTOMES_KEYS, DESIGN_KEYS, ENHANCEMENT_KEYS, INFERENCE_KEYS } from "./designKeys.js";
 import { DesignSection } from "./designSection.js";
 import type { ContrastSpec } from "./designSpec.js";
 import type { DesignYaml } from "./designYaml.js";
@@ -35,6 +35,8 @@ export interface CheckedDesign {
   inference?: CheckedInference;
   subjects: string;
   connectomes: string;
+  connectomeVariable?: string;
+  subjectsAxis?: "first" | "last";
   regions?: string;
   model: string;
 }
@@ -57,10 +59,21 @@ export function checkDesign(yaml: DesignYaml): CheckedDesign {
   const asymmetryTolerance = checkNumber(top, "asymmetry_tolerance", DESIGN_KEYS.asymmetry_tolerance);
   const inference = checkInference(top);
   const subjects = checkText(top, "subjects");
-  const connectomes = checkText(top, "connectomes");
+  const { path: connectomes, variable: connectomeVariable, subjectsAxis } = checkConnectomes(top);
   const regions = top.value("regions") === undefined ? undefined : checkText(top, "regions");
   const model = checkModel(top);
-  return { contrasts, missingValues, levels, center, transform, symmetrize, asymmetryTolerance, inference, subjects, connectomes, regions, model };
+  return { contrasts, missingValues, levels, center, transform, symmetrize, asymmetryTolerance, inference, subjects, connectomes, connectomeVariable, subjectsAxis, regions, model };
+}
+
+/** connectomes: a path or template, or { path, variable, subjects_axis }. */
+function checkConnectomes(top: DesignSection): { path: string; variable?: string; subjectsAxis?: "first" | "last" } {
+  const node = top.node("connectomes");
+  if (node === undefined || !isMap(node)) return { path: checkText(top, "connectomes") };
+  const section = new DesignSection(top.yaml, node, CONNECTOMES_KEYS, "connectomes");
+  const path = checkText(section, "path");
+  const variable = section.value("variable") === undefined ? undefined : checkText(section, "variable");
+  const subjectsAxis = checkChoice(section, "subjects_axis", CONNECTOMES_KEYS.subjects_axis);
+  return { path, ...(variable !== undefined ? { variable } : {}), ...(subjectsAxis !== undefined ? { subjectsAxis } : {}) };
 }
 
 /** A number key: a finite number passing the table's test. */
@@ -87,12 +100,12 @@ function checkChoice<T extends string>(section: DesignSection, name: string, key
   return value as T;
 }
 
-/** subjects, connectomes, regions: a text that is not blank (trimmed). */
+/** subjects, connectomes, regions, connectomes.path, connectomes.variable: a text that is not blank (trimmed). */
 function checkText(top: DesignSection, name: string): string {
   const value = top.value(name);
-  if (value === undefined) throw new InputError(`the design needs '${name}'`, { file: top.yaml.file, key: name });
+  if (value === undefined) throw new InputError(`the design needs '${top.path(name)}'`, { file: top.yaml.file, key: top.path(name) });
   if (typeof value !== "string" || value.trim() === "") {
-    throw new InputError(`'${name}' must be a text value`, top.where(name));
+    throw new InputError(`'${top.path(name)}' must be a text value`, top.where(name));
   }
   return value.trim();
 }

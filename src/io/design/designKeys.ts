@@ -82,10 +82,19 @@ export const INFERENCE_KEYS = {
   enhancement: { kind: "section", keys: ENHANCEMENT_KEYS },
 } as const;
 
+/** `connectomes` as a mapping: the file or template, the array in it, and its participants' axis. */
+export const CONNECTOMES_KEYS = {
+  path: { kind: "text", required: true },
+  /** A variable name (.mat, .npz) or an HDF5 path (/group/conn). */
+  variable: { kind: "text" },
+  subjects_axis: { kind: "choice", allowed: ["first", "last"] as const },
+} as const;
+
 /** The top level of a design file. */
 export const DESIGN_KEYS = {
   subjects: { kind: "text", required: true },
-  connectomes: { kind: "text", required: true },
+  /** A path or template (text), or a mapping of CONNECTOMES_KEYS. */
+  connectomes: { kind: "text or section", keys: CONNECTOMES_KEYS, required: true },
   regions: { kind: "text" },
   /** A formula (text; the number 1 is read as the text "1"). */
   model: { kind: "formula", required: true },

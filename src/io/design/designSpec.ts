@@ -18,6 +18,10 @@ export interface DesignSpec {
   baseDir: string;
   subjects: string;
   connectomes: string;
+  /** `connectomes.variable`: the array to read in a container (a variable name or an HDF5 path). */
+  connectomeVariable?: string;
+  /** `connectomes.subjects_axis`: which axis of a stack runs over participants. */
+  subjectsAxis?: "first" | "last";
   regions?: string;
   model: string;
   /** Cell texts of the participants table read as missing (`missing_values`). */

@@ -38,6 +38,8 @@ export function resolveDesign(checked: CheckedDesign, file: string, lines: Map<s
     baseDir: path.dirname(path.resolve(file)),
     subjects: checked.subjects,
     connectomes: checked.connectomes,
+    ...(checked.connectomeVariable !== undefined ? { connectomeVariable: checked.connectomeVariable } : {}),
+    ...(checked.subjectsAxis !== undefined ? { subjectsAxis: checked.subjectsAxis } : {}),
     regions: checked.regions,
     missingValues: checked.missingValues ?? [...DESIGN_KEYS.missing_values.default],
     model: checked.model,

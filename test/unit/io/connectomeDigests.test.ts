@@ -81,7 +81,7 @@ describe("digests of text matrices taken while loading", () => {
     const file = join(dir, "stack.npy");
     writeFileSync(file, encodeNpy([2, 3, 3], Float64Array.from([1, 0.1, 0.2, 0.1, 1, 0.3, 0.2, 0.3, 1, 1, 0.4, 0.5, 0.4, 1, 0.6, 0.5, 0.6, 1])));
     const two = subjects.slice(0, 2);
-    const loaded = loadConnectomes({ kind: "npy", path: file }, two, OPTIONS);
+    const loaded = loadConnectomes({ kind: "file", path: file }, two, OPTIONS);
     expect(loaded.sha256).toBeUndefined();
     expect(hashInputs([{ role: "connectome", path: file }])[0].sha256).toBe(coreutilsSha256([file])[0]);
   });

@@ -62,7 +62,7 @@ function expectIdentical(actual: Float64Array, expected: Float64Array, input: st
  * The stack loader as it was before streaming: parseNpy on the whole file, the
  * same shape checks and messages, then one stride-S store per edge.
  */
-function wholeFileLoad(file: string, subjects: ConnectomeSubject[], options: ConnectomeOptions): LoadedConnectomes {
+function wholeFileLoad(file: string, subjects: ConnectomeSubject[], options: ConnectomeOptions): Omit<LoadedConnectomes, "reading"> {
   const stack = parseNpy(new Uint8Array(readFileSync(file)), file);
   const { shape } = stack;
   const rows = options.participantRowCount;
@@ -105,7 +105,7 @@ function wholeFileLoad(file: string, subjects: ConnectomeSubject[], options: Con
 
 type Outcome = { data: Float64Array; regionCount: number } | { error: { message: string; location: object; hint?: string } };
 
-function outcome(action: () => LoadedConnectomes): Outcome {
+function outcome(action: () => Omit<LoadedConnectomes, "reading">): Outcome {
   try {
     const loaded = action();
     return { data: loaded.data, regionCount: loaded.regionCount };
@@ -118,7 +118,7 @@ function outcome(action: () => LoadedConnectomes): Outcome {
 /** The streaming loader and the whole-file loader give identical data, or the same InputError (message, location, hint). */
 function expectSameAsWholeFile(path: string, subjects: ConnectomeSubject[], options: ConnectomeOptions, input: string): Outcome {
   const reference = outcome(() => wholeFileLoad(resolve(path), subjects, options));
-  const streamed = outcome(() => loadConnectomes({ kind: "npy", path }, subjects, options));
+  const streamed = outcome(() => loadConnectomes({ kind: "file", path }, subjects, options));
   if ("error" in reference) {
     expect(streamed, input).toEqual(reference);
   } else {
@@ -317,12 +317,12 @@ describe("reading .npy stacks one matrix at a time", () => {
   it("a truncated stack is an InputError naming the file", () => {
     const full = encodeNpy([3, 3, 3], Float64Array.from(integerStack(3, 3)));
     const path = writeFile(full.subarray(0, full.length - 20));
-    expectInputError(() => loadConnectomes({ kind: "npy", path }, [subject("a", 0)], PLAIN), {
+    expectInputError(() => loadConnectomes({ kind: "file", path }, [subject("a", 0)], PLAIN), {
       file: resolve(path),
       message: ["not a readable .npy file", "truncated data", "216 bytes", "196 follow the header"],
     });
     const headerOnly = writeFile(full.subarray(0, 40));
-    expectInputError(() => loadConnectomes({ kind: "npy", path: headerOnly }, [subject("a", 0)], PLAIN), {
+    expectInputError(() => loadConnectomes({ kind: "file", path: headerOnly }, [subject("a", 0)], PLAIN), {
       file: resolve(headerOnly),
       message: ["not a readable .npy file", "header claims"],
     });
@@ -345,7 +345,7 @@ describe("reading .npy stacks one matrix at a time", () => {
     } finally {
       closeSync(fd);
     }
-    const loaded = loadConnectomes({ kind: "npy", path }, [subject("last", count - 1), subject("first", 0)], {
+    const loaded = loadConnectomes({ kind: "file", path }, [subject("last", count - 1), subject("first", 0)], {
       ...PLAIN,
       participantRowCount: count,
     });
@@ -369,7 +369,7 @@ describe("reading .npy stacks one matrix at a time", () => {
     } finally {
       closeSync(fd);
     }
-    expectInputError(() => loadConnectomes({ kind: "npy", path }, [subject("a", 0)], PLAIN), {
+    expectInputError(() => loadConnectomes({ kind: "file", path }, [subject("a", 0)], PLAIN), {
       file: resolve(path),
       message: ["Fortran order", "1 GiB", "1120000000 bytes"],
       hint: /C order/,

@@ -251,14 +251,14 @@ describe("loadConnectomes from an .npy stack", () => {
 
   it("selects the subjects' matrices by their participants-table row", () => {
     const path = writeStack("stack.npy", [3, 3, 3], stackValues);
-    const loaded = loadConnectomes({ kind: "npy", path }, [subject("c", 2), subject("a", 0)], { ...PLAIN, participantRowCount: 3 });
+    const loaded = loadConnectomes({ kind: "file", path }, [subject("c", 2), subject("a", 0)], { ...PLAIN, participantRowCount: 3 });
     expect(loaded).toMatchObject({ regionCount: 3, edgeCount: 3, subjectCount: 2, files: [resolve(path)] });
     expect(Array.from(loaded.data)).toEqual([212, 12, 213, 13, 223, 23]); // edge-major
   });
 
   it("a stack whose length differs from the participants table is an error naming file and shapes", () => {
     const path = writeStack("short.npy", [3, 3, 3], stackValues);
-    expectInputError(() => loadConnectomes({ kind: "npy", path }, [subject("a", 0)], { ...PLAIN, participantRowCount: 4 }), {
+    expectInputError(() => loadConnectomes({ kind: "file", path }, [subject("a", 0)], { ...PLAIN, participantRowCount: 4 }), {
       file: resolve(path),
       message: ["(3, 3, 3)", "4 rows", "(4, N, N)"],
     });
@@ -266,7 +266,7 @@ describe("loadConnectomes from an .npy stack", () => {
 
   it("without the table's row count, every subject's row must be in the stack", () => {
     const path = writeStack("three.npy", [3, 3, 3], stackValues);
-    expectInputError(() => loadConnectomes({ kind: "npy", path }, [subject("d", 3)], PLAIN), {
+    expectInputError(() => loadConnectomes({ kind: "file", path }, [subject("d", 3)], PLAIN), {
       file: resolve(path),
       message: ["'d'", "row 4", "(3, 3, 3)"],
     });
@@ -274,12 +274,12 @@ describe("loadConnectomes from an .npy stack", () => {
 
   it("an array that is not (R, N, N) is an error naming its shape", () => {
     const path = writeStack("flat.npy", [3, 9], stackValues.slice(0, 27));
-    expectInputError(() => loadConnectomes({ kind: "npy", path }, [subject("a", 0)], PLAIN), {
+    expectInputError(() => loadConnectomes({ kind: "file", path }, [subject("a", 0)], PLAIN), {
       file: resolve(path),
       message: ["(3, 9)"],
     });
     const notSquare = writeStack("rect.npy", [1, 2, 3], [0, 1, 2, 3, 4, 5]);
-    expectInputError(() => loadConnectomes({ kind: "npy", path: notSquare }, [subject("a", 0)], PLAIN), {
+    expectInputError(() => loadConnectomes({ kind: "file", path: notSquare }, [subject("a", 0)], PLAIN), {
       file: resolve(notSquare),
       message: ["(1, 2, 3)"],
     });
@@ -289,7 +289,7 @@ describe("loadConnectomes from an .npy stack", () => {
     const values = stackValues.slice();
     values[9 + 2 * 3 + 1] = 999; // matrix 2, row 3, column 2
     const path = writeStack("asym.npy", [3, 3, 3], values);
-    expectInputError(() => loadConnectomes({ kind: "npy", path }, [subject("a", 0), subject("b", 1)], PLAIN), {
+    expectInputError(() => loadConnectomes({ kind: "file", path }, [subject("a", 0), subject("b", 1)], PLAIN), {
       file: resolve(path),
       message: ["matrix 2 of the stack", "participant 'b'", "row 2, column 3 is 123", "row 3, column 2 is 999"],
       hint: /symmetrize: true/,
@@ -301,10 +301,10 @@ describe("loadConnectomes from an .npy stack", () => {
     values[0] = NaN;
     values[4] = Infinity;
     const okPath = writeStack("diag.npy", [3, 3, 3], values);
-    expect(Array.from(loadConnectomes({ kind: "npy", path: okPath }, [subject("a", 0)], PLAIN).data)).toEqual([12, 13, 23]);
+    expect(Array.from(loadConnectomes({ kind: "file", path: okPath }, [subject("a", 0)], PLAIN).data)).toEqual([12, 13, 23]);
     values[3] = NaN; // row 2, column 1
     const badPath = writeStack("offdiag.npy", [3, 3, 3], values);
-    expectInputError(() => loadConnectomes({ kind: "npy", path: badPath }, [subject("a", 0)], PLAIN), {
+    expectInputError(() => loadConnectomes({ kind: "file", path: badPath }, [subject("a", 0)], PLAIN), {
       file: resolve(badPath),
       message: ["row 2, column 1", "NaN", "finite"],
     });
@@ -312,7 +312,7 @@ describe("loadConnectomes from an .npy stack", () => {
 
   it("a missing stack file is an InputError naming it", () => {
     const path = join(dir, "nowhere.npy");
-    expectInputError(() => loadConnectomes({ kind: "npy", path }, [subject("a", 0)], PLAIN), {
+    expectInputError(() => loadConnectomes({ kind: "file", path }, [subject("a", 0)], PLAIN), {
       file: path,
       message: ["cannot read"],
     });

@@ -163,7 +163,7 @@ describe("two-thread .npy stack loading", () => {
   function loadStack(file: string, subjects: ConnectomeSubject[], threads: "one" | "two" | "worker") {
     parallelLoading.minimumBytes = threads === "one" ? Infinity : 0;
     parallelLoading.callingThreadLoads = threads !== "worker";
-    return loadConnectomes({ kind: "npy", path: file }, subjects, FISHER);
+    return loadConnectomes({ kind: "file", path: file }, subjects, FISHER);
   }
 
   it("gives the one-thread loader's values bit for bit", () => {
