@@ -1,4 +1,5 @@
-import { closeSync, existsSync, mkdirSync, openSync, rmSync, writeFileSync, writeSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { closeSync, existsSync, mkdirSync, openSync, readFileSync, rmSync, writeFileSync, writeSync } from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { encodeNpy } from "../src/io/npy.js";
@@ -10,7 +11,8 @@ import { uniformSource } from "./uniformSource.js";
  * (gitignored) and reused: a file `.complete` marks a finished cohort.
  *   cohort-400      400 regions, 100 patients + 100 controls with age and sex, one text matrix each
  *                   (plexus's simulator, seed 4242, a planted 8-region subnetwork);
- *   cohort-400-npy  the same cohort as one .npy stack;
+ *   cohort-400-npy  the same cohort as one .npy stack, and (bench/containerStacks.py) as one MATLAB .mat
+ *                   file (N × N × S) and one HDF5 file (S × N × N);
  *   cohort-1000     1,000 regions, 500 subjects, one .npy stack of 500 × 1000 × 1000 (4 GB) of
  *                   uniform noise, written one matrix at a time so it is never held whole.
  */
@@ -124,6 +126,27 @@ export interface DesignOptions {
 }
 
 /** Writes a design file into the cohort folder and returns its path. */
+/**
+ * The .npy cohort's stack again as connectomes.mat and connectomes.h5 (bench/containerStacks.py,
+ * with SciPy and h5py); the writers' versions, or undefined (with a note) when no Python has them.
+ */
+export function ensureContainerStacks(npyFolder: string, log: (line: string) => void): Record<string, string> | undefined {
+  const marker = path.join(npyFolder, ".containers-complete");
+  if (existsSync(marker)) return JSON.parse(readFileSync(marker, "utf8")) as Record<string, string>;
+  const script = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../../containerStacks.py");
+  log(`making ${npyFolder}/connectomes.mat and connectomes.h5 from its .npy stack (once)`);
+  for (const python of ["/usr/bin/python3", "python3"]) {
+    const result = spawnSync(python, [script, npyFolder], { encoding: "utf8" });
+    if (!result.error && result.status === 0) {
+      const versions = result.stdout.trim().split("\n").pop()!;
+      writeFileSync(marker, versions);
+      return JSON.parse(versions) as Record<string, string>;
+    }
+  }
+  log("no .mat or HDF5 reading rows (a python3 with numpy, scipy and h5py is needed: Debian's python3-scipy, python3-h5py)");
+  return undefined;
+}
+
 export function writeBenchDesign(folder: string, name: string, options: DesignOptions): string {
   const file = path.join(folder, `${name}.yaml`);
   const lines = [

@@ -3,7 +3,7 @@ import { mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import { CACHE, ensureLargeCohort, ensureSimulatedCohort, writeBenchDesign } from "./cohorts.js";
+import { CACHE, ensureContainerStacks, ensureLargeCohort, ensureSimulatedCohort, writeBenchDesign } from "./cohorts.js";
 import type { Measurement, Request } from "./scenario.js";
 
 /**
@@ -139,6 +139,7 @@ async function main(): Promise<void> {
   const designB = writeBenchDesign(text, `scenario-b-${kA}`, { model: "group", permutations: kA, connectomes: "connectomes/{participant_id}.tsv", transform: "fisher-z" });
   const designBNpy = writeBenchDesign(npy, `scenario-b-npy-${kA}`, { model: "group", permutations: kA, connectomes: "connectomes.npy", transform: "fisher-z" });
   const designNpy = writeBenchDesign(npy, "read-npy", { model: "group", permutations: 100, connectomes: "connectomes.npy", transform: "fisher-z" });
+  const containerWriters = ensureContainerStacks(npy, log);
 
   // Scenarios A and B: end to end (inputs read), the SIMD kernel and the TypeScript kernel, and the BLAS floor.
   const rows: ScenarioRow[] = [];
@@ -199,6 +200,17 @@ async function main(): Promise<void> {
   const textRead = child({ kind: "read", design: designA });
   const npyRead = child({ kind: "read", design: designNpy });
   const oneMatrix = child({ kind: "matrixText" });
+  const containerRows: string[] = [];
+  if (containerWriters) {
+    for (const [what, file] of [
+      [".mat stack 400 × 400 × 200, MATLAB level 5, participants on the last axis (scipy.io.savemat)", "connectomes.mat"],
+      ["HDF5 stack 200 × 400 × 400 at /conn (h5py)", "connectomes.h5"],
+    ] as const) {
+      const design = writeBenchDesign(npy, `read-${path.extname(file).slice(1)}`, { model: "group", permutations: 100, connectomes: file, transform: "fisher-z" });
+      const read = child({ kind: "read", design });
+      containerRows.push(`| ${what} (design read, participants, stack, checks) | ${fixed(read.megabytes, 0)} | ${fixed(read.seconds, 2)} | ${fixed(read.megabytesPerSecond, 0)} |`);
+    }
+  }
   report.push(
     "## Input reading",
     "",
@@ -207,7 +219,9 @@ async function main(): Promise<void> {
     `| 200 text matrices 400 × 400 (design read, participants, matrices, checks) | ${fixed(textRead.megabytes, 0)} | ${fixed(textRead.seconds, 2)} | ${fixed(textRead.megabytesPerSecond, 0)} |`,
     `| one 400 × 400 text matrix of full-precision values, parse only (bench/readMatrixText.ts) | ${fixed(oneMatrix.megabytes, 1)} | ${fixed(oneMatrix.seconds, 3)} | ${fixed(oneMatrix.megabytesPerSecond, 0)} |`,
     `| .npy stack 200 × 400 × 400 (design read, participants, stack, checks) | ${fixed(npyRead.megabytes, 0)} | ${fixed(npyRead.seconds, 2)} | ${fixed(npyRead.megabytesPerSecond, 0)} |`,
+    ...containerRows,
     "",
+    ...(containerWriters ? [`The .mat and HDF5 stacks hold the .npy stack's values, written by ${Object.entries(containerWriters).map(([k, v]) => `${k} ${v}`).join(", ")}.`, ""] : []),
   );
 
   // The two-level screen's kernel alone, by subjects per subset-table chunk.
