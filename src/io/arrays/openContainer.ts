@@ -1,6 +1,7 @@
 import { InputError } from "../../errors.js";
 import type { ArrayContainer } from "./arrayContainer.js";
 import { FORMAT_NAMES, type FileFormat } from "./fileFormat.js";
+import { mat5Container } from "./mat5Container.js";
 import { npyContainer } from "./npyContainer.js";
 
 type ContainerReader = (bytes: Uint8Array, file: string) => ArrayContainer;
@@ -8,6 +9,7 @@ type ContainerReader = (bytes: Uint8Array, file: string) => ArrayContainer;
 /** The reader of each binary format; a format without one is refused by name. */
 const READERS: Partial<Record<FileFormat, ContainerReader>> = {
   npy: npyContainer,
+  mat5: mat5Container,
 };
 
 /** Opens a binary input whose bytes say it is `format`. */
