@@ -2,12 +2,14 @@ import { InputError } from "../../errors.js";
 import type { ArrayContainer } from "./arrayContainer.js";
 import { FORMAT_NAMES, type FileFormat } from "./fileFormat.js";
 import { npyContainer } from "./npyContainer.js";
+import { npzContainer } from "./npzContainer.js";
 
 type ContainerReader = (bytes: Uint8Array, file: string) => ArrayContainer;
 
 /** The reader of each binary format; a format without one is refused by name. */
 const READERS: Partial<Record<FileFormat, ContainerReader>> = {
   npy: npyContainer,
+  zip: npzContainer,
 };
 
 /** Opens a binary input whose bytes say it is `format`. */
