@@ -1,5 +1,6 @@
 import { InputError } from "../../errors.js";
 import type { ArrayContainer } from "./arrayContainer.js";
+import { ciftiContainer, niftiOneRefused } from "./ciftiContainer.js";
 import { FORMAT_NAMES, type FileFormat } from "./fileFormat.js";
 import { npyContainer } from "./npyContainer.js";
 import { npzContainer } from "./npzContainer.js";
@@ -10,6 +11,8 @@ type ContainerReader = (bytes: Uint8Array, file: string) => ArrayContainer;
 const READERS: Partial<Record<FileFormat, ContainerReader>> = {
   npy: npyContainer,
   zip: npzContainer,
+  nifti2: ciftiContainer,
+  nifti1: niftiOneRefused,
 };
 
 /** Opens a binary input whose bytes say it is `format`. */
