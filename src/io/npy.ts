@@ -187,7 +187,8 @@ export function encodeNpy(shape: number[], data: Float64Array): Uint8Array {
   return out;
 }
 
-function parseDType(descr: string): NpyDType | undefined {
+/** The element type a 'descr' names, when the reader supports it (undefined otherwise). */
+export function parseDType(descr: string): NpyDType | undefined {
   const match = /^([<>=|])([fiub])(\d)$/.exec(descr);
   if (match === null) return undefined;
   const [, order, kindText, sizeText] = match;

@@ -10,6 +10,7 @@ export interface ArrayChoice {
   subjectsAxis?: SubjectsAxis;
 }
 
+const ONE_MATRIX_HINT = "a file holding one participant's matrix is named for each participant with a path template, e.g. connectomes: conn/{participant_id}.pconn.nii (or .npz, .mat, …)";
 const MAPPING_HINT = "use the mapping form, e.g. connectomes: { path: conn.mat, variable: conn, subjects_axis: last }";
 
 /** "conn (90 × 90 × 40 float64)" */
@@ -40,7 +41,8 @@ function onlySuitable(container: ArrayContainer, file: string, suitable: (entry:
   const candidates = container.entries.filter((e) => e.numeric && suitable(e));
   if (candidates.length === 1) return candidates[0];
   if (candidates.length === 0) {
-    throw new InputError(`${container.format} file holds no ${what}; ${listEntries(container)}`, { file, key: "connectomes" });
+    const oneMatrix = what.startsWith("stack") && container.entries.some((e) => e.numeric && isSquare(e));
+    throw new InputError(`${container.format} file holds no ${what}; ${listEntries(container)}`, { file, key: "connectomes" }, oneMatrix ? ONE_MATRIX_HINT : undefined);
   }
   throw new InputError(
     `${container.format} file holds ${candidates.length} arrays that could be ${what}: ${candidates.map(describeEntry).join(", ")}`,

@@ -1,8 +1,10 @@
 import { InputError } from "../../errors.js";
 import type { ArrayContainer } from "./arrayContainer.js";
+import { ciftiContainer, niftiOneRefused } from "./ciftiContainer.js";
 import { FORMAT_NAMES, type FileFormat } from "./fileFormat.js";
 import { mat5Container } from "./mat5Container.js";
 import { npyContainer } from "./npyContainer.js";
+import { npzContainer } from "./npzContainer.js";
 
 type ContainerReader = (bytes: Uint8Array, file: string) => ArrayContainer;
 
@@ -10,6 +12,9 @@ type ContainerReader = (bytes: Uint8Array, file: string) => ArrayContainer;
 const READERS: Partial<Record<FileFormat, ContainerReader>> = {
   npy: npyContainer,
   mat5: mat5Container,
+  zip: npzContainer,
+  nifti2: ciftiContainer,
+  nifti1: niftiOneRefused,
 };
 
 /** Opens a binary input whose bytes say it is `format`. */
