@@ -2,7 +2,9 @@ import { isAbsolute, resolve } from "node:path";
 import { InputError, inputErrors, isInputError, type InputLocation } from "../errors.js";
 import { edgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
-import { parseMatrixBytes } from "./matrixText.js";
+import type { MatrixLabels } from "./matrixTextLabels.js";
+import { textLabelPlan } from "./textLabelPlan.js";
+import { parseMatrixFile } from "./textMatrixFile.js";
 import { loadBlocksInOrder, loadBlocksInParallel, worthTwoThreads } from "./matrixBlocks.js";
 import { loadSubject } from "./matrixProblems.js";
 import { cOrderMatrices, readExactly, stackMatrixLabel } from "./npyMatrixBlocks.js";
@@ -19,7 +21,8 @@ import { unsafePathValue } from "./templateValues.js";
 /**
  * Loading every subject's connectivity matrix into one edge-major array of
  * upper-triangle edge values (edge order of src/edges/edgeIndex.ts), from one
- * text file per subject or from one .npy stack read a matrix at a time.
+ * text file per subject (labelled or not), one .npy stack read a matrix at a
+ * time, or binary containers.
  */
 export type ConnectomeSource =
   | { kind: "template"; template: string; baseDir: string; choice?: ArrayChoice }
@@ -153,8 +156,7 @@ export function loadConnectomes(
   const files = resolveAll(source.template, subjects, source.baseDir);
   const first = files.find((file) => file !== "");
   if (first !== undefined && probeFirst(first) !== "text") return loadContainerFiles(files, subjects, { ...options, ...choice });
-  const loaded = loadFromTemplate(source.template, source.baseDir, subjects, options);
-  return { ...loaded, reading: { reader: "text", shape: [loaded.regionCount, loaded.regionCount], labels: numberedOrTable(options) } };
+  return loadFromTemplate(source.template, source.baseDir, subjects, options);
 }
 
 /**
@@ -191,18 +193,15 @@ function probeFirst(file: string): string {
   }
 }
 
-function loadFromTemplate(
-  template: string,
-  baseDir: string,
-  subjects: ConnectomeSubject[],
-  options: ConnectomeOptions,
-): Omit<LoadedConnectomes, "reading"> {
+function loadFromTemplate(template: string, baseDir: string, subjects: ConnectomeSubject[], options: ConnectomeOptions): LoadedConnectomes {
   if (subjects.length === 0) {
     throw new InputError("no participants to load connectivity matrices for", { key: CONNECTOMES_KEY });
   }
   const hints = subjects.map((subject) => `connectivity matrix of participant '${subject.id}' (from the template '${template}')`);
   const files = resolveAll(template, subjects, baseDir);
   const reference = referenceMatrix(files, hints);
+  // Labels in the first file: every file must repeat them; a regions table may reorder them.
+  const plan = textLabelPlan(reference.labels, reference.file, options.regionTable);
   const pairs = edgePairs(reference.size);
   const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
   const digests = sharedDigests(subjects.length);
@@ -216,6 +215,8 @@ function loadFromTemplate(
     data,
     options,
     digests,
+    ...(reference.labels ? { firstLabels: reference.labels.names } : {}),
+    ...(plan.order ? { order: plan.order, orderedLabels: plan.names } : {}),
   };
   // Many files: two threads read blocks of subjects (matrixBlocks.ts), with the same values and errors.
   if (worthTwoThreads(subjects.length, reference.bytes)) loadBlocksInParallel(job);
@@ -227,6 +228,13 @@ function loadFromTemplate(
     data,
     files,
     sha256: files.map((_, s) => digestHex(digests, s)),
+    ...(plan.labels === "file" ? { labels: plan.names } : {}),
+    reading: {
+      reader: reference.labels ? `text (${reference.labels.layout})` : "text",
+      shape: [pairs.regionCount, pairs.regionCount],
+      labels: plan.labels,
+      ...(plan.order ? { reordered: true } : {}),
+    },
   };
 }
 
@@ -252,15 +260,15 @@ function resolveAll(template: string, subjects: ConnectomeSubject[], baseDir: st
  * that reads as a matrix of at least 2 regions. When none does, every file's
  * problem is raised at once.
  */
-function referenceMatrix(files: string[], hints: string[]): { file: string; size: number; bytes: number } {
+function referenceMatrix(files: string[], hints: string[]): { file: string; size: number; bytes: number; labels?: MatrixLabels } {
   const reader = new TextFileReader();
   const problems: InputError[] = [];
   for (let s = 0; s < files.length; s++) {
     try {
       const bytes = reader.readBytes(files[s], hints[s]);
-      const matrix = parseMatrixBytes(bytes, files[s], { allowNonFiniteDiagonal: true });
+      const matrix = parseMatrixFile(bytes, files[s], { allowNonFiniteDiagonal: true });
       requireTwoRegions(matrix.size, { file: files[s], line: matrix.rowLines[0] });
-      return { file: files[s], size: matrix.size, bytes: bytes.length };
+      return { file: files[s], size: matrix.size, bytes: bytes.length, ...(matrix.labels ? { labels: matrix.labels } : {}) };
     } catch (error) {
       if (!isInputError(error)) throw error;
       problems.push(error);
