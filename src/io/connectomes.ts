@@ -2,6 +2,7 @@ import { isAbsolute, resolve } from "node:path";
 import { InputError, inputErrors, isInputError, type InputLocation } from "../errors.js";
 import { edgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
+import { loadEdgeTable } from "./edgeTable.js";
 import type { MatrixLabels } from "./matrixTextLabels.js";
 import { textLabelPlan } from "./textLabelPlan.js";
 import { parseMatrixFile } from "./textMatrixFile.js";
@@ -21,8 +22,8 @@ import { unsafePathValue } from "./templateValues.js";
 /**
  * Loading every subject's connectivity matrix into one edge-major array of
  * upper-triangle edge values (edge order of src/edges/edgeIndex.ts), from one
- * text file per subject (labelled or not), one .npy stack read a matrix at a
- * time, or binary containers.
+ * text file per subject (labelled or not), one participants × edges text
+ * table, one .npy stack read a matrix at a time, or binary containers.
  */
 export type ConnectomeSource =
   | { kind: "template"; template: string; baseDir: string; choice?: ArrayChoice }
@@ -145,11 +146,14 @@ export function loadConnectomes(
       return { ...loaded, reading: { reader: "NumPy .npy", shape: loaded.stackShape, subjectsAxis: "first", labels: numberedOrTable(options) } };
     }
     if (format === "text") {
-      throw new InputError(
-        "this file is text; a text file for every participant at once (a participants × edges table) is not read yet",
-        { file, key: CONNECTOMES_KEY },
-        "give one matrix per participant with a path template, e.g. connectomes: matrices/{participant_id}.csv",
-      );
+      if (choice.variable !== undefined || choice.subjectsAxis !== undefined) {
+        throw new InputError(
+          `this file is text, read as a participants × edges table, which has no ${choice.variable !== undefined ? "variables" : "subjects axis"}`,
+          { file, key: choice.variable !== undefined ? "connectomes.variable" : "connectomes.subjects_axis" },
+          "leave out variable and subjects_axis for a text table",
+        );
+      }
+      return loadEdgeTable(file, subjects, options);
     }
     return loadContainerStack(file, subjects, { ...options, ...choice });
   }

@@ -1,0 +1,206 @@
+import { Buffer, isAscii } from "node:buffer";
+import { sha256Text } from "../common/sha256.js";
+import { InputError, inputErrors, LISTED_PROBLEMS } from "../errors.js";
+import type { ContainerConnectomes } from "./arrays/containerConnectomes.js";
+import type { EdgeExtractionOptions } from "./connectomeEdges.js";
+import { hasControlCharacter } from "./controlCharacters.js";
+import { splitCells, type CellSeparator, type TextCell } from "./delimitedCells.js";
+import { edgeColumns, type EdgeColumns } from "./edgeColumnNames.js";
+import { parseDecimalSpan } from "./matrixText.js";
+import { shortCell } from "./matrixTextLayout.js";
+import { readBinaryFile } from "./readInputFile.js";
+import { notTextProblem } from "./textMatrixFile.js";
+
+/**
+ * A participants × edges table: every participant's edge values in one text
+ * file (what many pipelines write after vectorising the upper triangle).
+ * - The first non-blank line is the header. Cells are separated by tabs when
+ *   it has a tab, else by commas; spaces around cells are trimmed and a cell
+ *   may be in double quotes (delimitedCells.ts).
+ * - The first column holds participant IDs, whatever its name; every other
+ *   column is one edge, named as edgeColumnNames.ts says.
+ * - Rows are matched to the participants analysed by ID (exactly, after
+ *   trimming). Each of them needs exactly one row; rows of anyone else
+ *   (participants left out for missing values, or not in the participants
+ *   table) are ignored beyond their ID, which must still be unique.
+ * - In a row that is read, every edge cell is a finite number in decimal
+ *   syntax: an empty cell, a missing-value code or text is an error naming
+ *   file:line:column and the edge. `transform: fisher-z` maps each value r to
+ *   atanh(r) (Fisher 1915, Biometrika 10(4):507-521) and needs |r| < 1.
+ * The values go into the edge-major array data[e·S + s].
+ */
+export interface EdgeTableOptions extends EdgeExtractionOptions {
+  regionTable?: { labels: readonly string[]; file: string };
+}
+
+const HINT = "a participants × edges table is text: a header row (the participant ID column, then one column per edge) and one row per participant";
+
+export function loadEdgeTable(file: string, subjects: readonly { id: string }[], options: EdgeTableOptions): ContainerConnectomes {
+  const bytes = readBinaryFile(file, "the participants × edges table");
+  const notText = notTextProblem(bytes, file, HINT);
+  if (notText) throw notText;
+  const ascii = isAscii(bytes);
+  const lines = new LineReader(bytes, ascii);
+
+  const header = lines.next();
+  if (!header) throw new InputError("the participants × edges table is empty: expected a header row", { file, line: 1 }, HINT);
+  const separator: CellSeparator = header.text.includes("\t") ? "tab" : "comma";
+  const headerCells = splitCells(header.text, 0, header.text.length, separator, file, header.line);
+  if (headerCells.length < 2) {
+    throw new InputError("the header has one column: expected the participant ID column, then one column per edge, separated by tabs or commas", { file, line: header.line }, HINT);
+  }
+  checkColumnNames(headerCells, file, header.line);
+  const columns = edgeColumns(
+    headerCells.slice(1).map((cell) => cell.text),
+    { file, line: header.line },
+    options.regionTable,
+  );
+
+  const S = subjects.length;
+  const E = (columns.regionCount * (columns.regionCount - 1)) / 2;
+  const data = new Float64Array(new SharedArrayBuffer(E * S * Float64Array.BYTES_PER_ELEMENT));
+  const subjectOf = new Map(subjects.map((subject, s) => [subject.id, s]));
+  const rowOfSubject = new Int32Array(S).fill(0);
+  const lineOfId = new Map<string, number>();
+  const problems = new ProblemList();
+  let rows = 0;
+  for (let row = lines.next(); row; row = lines.next()) {
+    rows++;
+    const cells = splitCells(row.text, 0, row.text.length, separator, file, row.line);
+    const id = cells[0].text;
+    const where = { file, line: row.line };
+    if (id === "") {
+      problems.add(new InputError("the participant ID (first cell) is empty", { ...where, column: 1 }));
+      continue;
+    }
+    const earlier = lineOfId.get(id);
+    if (earlier !== undefined) {
+      problems.add(new InputError(`participant '${shortCell(id)}' has a second row here (the first is on line ${earlier}); each participant has one row`, { ...where, column: 1 }));
+      continue;
+    }
+    lineOfId.set(id, row.line);
+    const s = subjectOf.get(id);
+    if (s === undefined) continue;
+    rowOfSubject[s] = row.line;
+    if (cells.length !== headerCells.length) {
+      problems.add(new InputError(`expected ${headerCells.length} cells (as in the header on line ${header.line}) but found ${cells.length}`, where));
+      continue;
+    }
+    readEdgeValues(cells, headerCells, columns, data, s, S, options, where, problems);
+  }
+  subjects.forEach((subject, s) => {
+    if (rowOfSubject[s] === 0) problems.add(new InputError(`participant '${shortCell(subject.id)}' has no row in the participants × edges table`, { file }));
+  });
+  problems.throwIfAny();
+  return {
+    regionCount: columns.regionCount,
+    edgeCount: E,
+    subjectCount: S,
+    data,
+    files: [file],
+    sha256: [sha256Text(bytes)],
+    ...(columns.labels ? { labels: columns.labels } : {}),
+    reading: {
+      reader: `text table, participants × edges (${separator === "tab" ? "tab" : "comma"}-separated)`,
+      shape: [rows, headerCells.length - 1],
+      labels: options.regionTable ? "regions table, matched to the file's labels" : "file",
+    },
+  };
+}
+
+/** One row's edge cells into participant s's column of the edge-major data. */
+function readEdgeValues(
+  cells: readonly TextCell[],
+  headerCells: readonly TextCell[],
+  columns: EdgeColumns,
+  data: Float64Array,
+  s: number,
+  S: number,
+  options: EdgeTableOptions,
+  where: { file: string; line: number },
+  problems: ProblemList,
+): void {
+  const fisher = options.transform === "fisher-z";
+  for (let c = 1; c < cells.length; c++) {
+    const text = cells[c].text;
+    const value = parseDecimalSpan(text, 0, text.length);
+    let problem: string | undefined;
+    if (text === "") problem = "is empty";
+    else if (value !== value) problem = "is not a number";
+    else if (!Number.isFinite(value)) problem = "is not finite";
+    else if (fisher && !(Math.abs(value) < 1)) problem = "is not strictly between -1 and 1, as fisher-z needs";
+    if (problem !== undefined) {
+      problems.add(new InputError(`the cell '${shortCell(text)}' of edge '${shortCell(headerCells[c].text)}' ${problem}`, { ...where, column: c + 1 }));
+      continue;
+    }
+    data[columns.edgeOfColumn[c - 1] * S + s] = fisher ? Math.atanh(value) : value;
+  }
+}
+
+function checkColumnNames(cells: readonly TextCell[], file: string, line: number): void {
+  const problems: InputError[] = [];
+  const seen = new Map<string, number>();
+  for (const cell of cells) {
+    const where = { file, line, column: cell.column };
+    if (cell.text === "") problems.push(new InputError(`column ${cell.column} of the header has no name`, where));
+    else if (hasControlCharacter(cell.text)) problems.push(new InputError(`the column name '${shortCell(cell.text)}' has a control character`, where));
+    else if (seen.has(cell.text)) problems.push(new InputError(`the column name '${shortCell(cell.text)}' appears twice (also column ${seen.get(cell.text)})`, where));
+    else seen.set(cell.text, cell.column);
+  }
+  const error = inputErrors(problems);
+  if (error) throw error;
+}
+
+/** Problems in file order: the first LISTED_PROBLEMS kept, the rest counted (a table of garbage makes no million errors). */
+class ProblemList {
+  private readonly kept: InputError[] = [];
+  private more = 0;
+
+  add(problem: InputError): void {
+    if (this.kept.length < LISTED_PROBLEMS) this.kept.push(problem);
+    else this.more++;
+  }
+
+  throwIfAny(): void {
+    const error = inputErrors(this.kept);
+    if (!error) return;
+    throw this.more === 0 ? error : new InputError(error.message, error.location, error.hint, error.also, error.unlisted + this.more);
+  }
+}
+
+/** The non-blank lines of a file's bytes, each decoded on its own (a table may be larger than a string can be). */
+class LineReader {
+  private pos: number;
+  private line = 0;
+
+  constructor(
+    private readonly bytes: Buffer | Uint8Array,
+    private readonly ascii: boolean,
+  ) {
+    this.pos = bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
+  }
+
+  next(): { text: string; line: number } | undefined {
+    const bytes = this.bytes;
+    while (this.pos < bytes.length) {
+      this.line++;
+      let end = bytes.indexOf(10, this.pos);
+      if (end < 0) end = bytes.length;
+      let stop = end;
+      if (stop > this.pos && bytes[stop - 1] === 13) stop--;
+      const start = this.pos;
+      this.pos = end + 1;
+      let blank = true;
+      for (let p = start; p < stop; p++) {
+        if (bytes[p] !== 32 && bytes[p] !== 9) {
+          blank = false;
+          break;
+        }
+      }
+      if (blank) continue;
+      const text = Buffer.from(bytes.buffer, bytes.byteOffset + start, stop - start).toString(this.ascii ? "latin1" : "utf8");
+      return { text, line: this.line };
+    }
+    return undefined;
+  }
+}
