@@ -4,8 +4,8 @@ import { InputError, inputErrors, LISTED_PROBLEMS } from "../errors.js";
 import type { ContainerConnectomes } from "./arrays/containerConnectomes.js";
 import type { EdgeExtractionOptions } from "./connectomeEdges.js";
 import { hasControlCharacter } from "./controlCharacters.js";
-import { splitCells, type CellSeparator, type TextCell } from "./delimitedCells.js";
-import { edgeColumns, type EdgeColumns } from "./edgeColumnNames.js";
+import { splitCells, trimCell, type CellSeparator, type TextCell } from "./delimitedCells.js";
+import { edgeColumns } from "./edgeColumnNames.js";
 import { parseDecimalSpan } from "./matrixText.js";
 import { shortCell } from "./matrixTextLayout.js";
 import { readBinaryFile } from "./readInputFile.js";
@@ -64,10 +64,14 @@ export function loadEdgeTable(file: string, subjects: readonly { id: string }[],
   const lineOfId = new Map<string, number>();
   const problems = new ProblemList();
   let rows = 0;
+  const separatorChar = separator === "tab" ? "\t" : ",";
   for (let row = lines.next(); row; row = lines.next()) {
     rows++;
-    const cells = splitCells(row.text, 0, row.text.length, separator, file, row.line);
-    const id = cells[0].text;
+    const text = row.text;
+    // Lines without quotes (the usual ones) are read in place; others through the quote-aware splitter.
+    const cells = text.includes('"') ? splitCells(text, 0, text.length, separator, file, row.line) : undefined;
+    const firstEnd = cells ? -1 : text.indexOf(separatorChar);
+    const id = cells ? cells[0].text : trimCell(firstEnd < 0 ? text : text.slice(0, firstEnd));
     const where = { file, line: row.line };
     if (id === "") {
       problems.add(new InputError("the participant ID (first cell) is empty", { ...where, column: 1 }));
@@ -82,11 +86,31 @@ export function loadEdgeTable(file: string, subjects: readonly { id: string }[],
     const s = subjectOf.get(id);
     if (s === undefined) continue;
     rowOfSubject[s] = row.line;
-    if (cells.length !== headerCells.length) {
-      problems.add(new InputError(`expected ${headerCells.length} cells (as in the header on line ${header.line}) but found ${cells.length}`, where));
+    const cellCount = cells ? cells.length : countCells(text, separatorChar);
+    if (cellCount !== headerCells.length) {
+      problems.add(new InputError(`expected ${headerCells.length} cells (as in the header on line ${header.line}) but found ${cellCount}`, where));
       continue;
     }
-    readEdgeValues(cells, headerCells, columns, data, s, S, options, where, problems);
+    const target = { data, s, S, fisher: options.transform === "fisher-z", edgeOfColumn: columns.edgeOfColumn };
+    if (cells) {
+      for (let c = 1; c < cells.length; c++) {
+        const problem = storeEdgeValue(cells[c].text, 0, cells[c].text.length, c, target);
+        if (problem) problems.add(cellProblem(cells[c].text, headerCells[c].text, problem, where, c));
+      }
+    } else {
+      let start = firstEnd + 1;
+      for (let c = 1; c < cellCount; c++) {
+        let end = text.indexOf(separatorChar, start);
+        if (end < 0) end = text.length;
+        let a = start;
+        let b = end;
+        while (a < b && isPadding(text.charCodeAt(a))) a++;
+        while (b > a && isPadding(text.charCodeAt(b - 1))) b--;
+        const problem = storeEdgeValue(text, a, b, c, target);
+        if (problem) problems.add(cellProblem(text.slice(a, b), headerCells[c].text, problem, where, c));
+        start = end + 1;
+      }
+    }
   }
   subjects.forEach((subject, s) => {
     if (rowOfSubject[s] === 0) problems.add(new InputError(`participant '${shortCell(subject.id)}' has no row in the participants × edges table`, { file }));
@@ -108,33 +132,39 @@ export function loadEdgeTable(file: string, subjects: readonly { id: string }[],
   };
 }
 
-/** One row's edge cells into participant s's column of the edge-major data. */
-function readEdgeValues(
-  cells: readonly TextCell[],
-  headerCells: readonly TextCell[],
-  columns: EdgeColumns,
-  data: Float64Array,
-  s: number,
-  S: number,
-  options: EdgeTableOptions,
-  where: { file: string; line: number },
-  problems: ProblemList,
-): void {
-  const fisher = options.transform === "fisher-z";
-  for (let c = 1; c < cells.length; c++) {
-    const text = cells[c].text;
-    const value = parseDecimalSpan(text, 0, text.length);
-    let problem: string | undefined;
-    if (text === "") problem = "is empty";
-    else if (value !== value) problem = "is not a number";
-    else if (!Number.isFinite(value)) problem = "is not finite";
-    else if (fisher && !(Math.abs(value) < 1)) problem = "is not strictly between -1 and 1, as fisher-z needs";
-    if (problem !== undefined) {
-      problems.add(new InputError(`the cell '${shortCell(text)}' of edge '${shortCell(headerCells[c].text)}' ${problem}`, { ...where, column: c + 1 }));
-      continue;
-    }
-    data[columns.edgeOfColumn[c - 1] * S + s] = fisher ? Math.atanh(value) : value;
-  }
+/** Where one row's values go: participant s's column of the edge-major data. */
+interface EdgeTarget {
+  data: Float64Array;
+  s: number;
+  S: number;
+  fisher: boolean;
+  edgeOfColumn: Int32Array;
+}
+
+/** Stores the value in text[a, b) of edge column c (1-based after the ID), or says what is wrong with it. */
+function storeEdgeValue(text: string, a: number, b: number, c: number, target: EdgeTarget): string | undefined {
+  if (a === b) return "is empty";
+  const value = parseDecimalSpan(text, a, b);
+  if (value !== value) return "is not a number";
+  if (!Number.isFinite(value)) return "is not finite";
+  if (target.fisher && !(Math.abs(value) < 1)) return "is not strictly between -1 and 1, as fisher-z needs";
+  target.data[target.edgeOfColumn[c - 1] * target.S + target.s] = target.fisher ? Math.atanh(value) : value;
+  return undefined;
+}
+
+function cellProblem(cell: string, edge: string, problem: string, where: { file: string; line: number }, c: number): InputError {
+  return new InputError(`the cell '${shortCell(cell)}' of edge '${shortCell(edge)}' ${problem}`, { ...where, column: c + 1 });
+}
+
+/** Spaces and tabs around a cell (a tab never reaches here inside a tab-separated row). */
+function isPadding(c: number): boolean {
+  return c === 32 || c === 9;
+}
+
+function countCells(text: string, separator: string): number {
+  let count = 1;
+  for (let p = text.indexOf(separator); p >= 0; p = text.indexOf(separator, p + 1)) count++;
+  return count;
 }
 
 function checkColumnNames(cells: readonly TextCell[], file: string, line: number): void {
