@@ -8,7 +8,7 @@ import { splitCells, trimCell, type CellSeparator, type TextCell } from "./delim
 import { edgeColumns } from "./edgeColumnNames.js";
 import { parseDecimalSpan } from "./matrixText.js";
 import { shortCell } from "./matrixTextLayout.js";
-import { readBinaryFile } from "./readInputFile.js";
+import { readBinaryFile, systemReason } from "./readInputFile.js";
 import { notTextProblem } from "./textMatrixFile.js";
 
 /**
@@ -40,7 +40,7 @@ export function loadEdgeTable(file: string, subjects: readonly { id: string }[],
   const notText = notTextProblem(bytes, file, HINT);
   if (notText) throw notText;
   const ascii = isAscii(bytes);
-  const lines = new LineReader(bytes, ascii);
+  const lines = new LineReader(bytes, ascii, file);
 
   const header = lines.next();
   if (!header) throw new InputError("the participants × edges table is empty: expected a header row", { file, line: 1 }, HINT);
@@ -206,6 +206,7 @@ class LineReader {
   constructor(
     private readonly bytes: Buffer | Uint8Array,
     private readonly ascii: boolean,
+    private readonly file: string,
   ) {
     this.pos = bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
   }
@@ -228,7 +229,12 @@ class LineReader {
         }
       }
       if (blank) continue;
-      const text = Buffer.from(bytes.buffer, bytes.byteOffset + start, stop - start).toString(this.ascii ? "latin1" : "utf8");
+      let text: string;
+      try {
+        text = Buffer.from(bytes.buffer, bytes.byteOffset + start, stop - start).toString(this.ascii ? "latin1" : "utf8");
+      } catch (error) {
+        throw new InputError(`cannot read line ${this.line}: ${systemReason(error)}`, { file: this.file, line: this.line });
+      }
       return { text, line: this.line };
     }
     return undefined;

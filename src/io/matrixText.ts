@@ -134,11 +134,11 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
     let column = 0;
     for (;;) {
       if (size >= 0 && column >= size) {
-        throw new InputError(`matrix is not square: row ${row + 1} has more than ${size} values${columnShift ? " after its label" : ""}`, {
-          file,
-          line,
-          column: column + 1 + columnShift,
-        });
+        throw new InputError(
+          `matrix is not square: row ${row + 1} has more than ${size} values${columnShift ? " after its label" : ""}`,
+          { file, line, column: column + 1 + columnShift },
+          row === 1 && !layout.header && !layout.labelColumn ? NUMBER_LABELS_HINT : undefined,
+        );
       }
       const start = p;
       let value = scanDecimal(text, start, stop);
@@ -222,6 +222,11 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
   }
   return labelledMatrix({ size, values, rowLines }, layout, rowLabels, file);
 }
+
+/** For a second row longer than the first: labels that are numbers are read as numbers unless the rule can tell. */
+const NUMBER_LABELS_HINT =
+  "if the first line and the first column are region labels that are numbers, put them in double quotes, " +
+  "or, in a comma-separated file, leave the first line's first cell empty (a corner cell above the label column)";
 
 /**
  * Reads the label that begins a row of a file with a label column and returns
@@ -347,7 +352,13 @@ function asciiLayout(bytes: Uint8Array, begin: number, file: string): MatrixText
   if (plain) return { commaSeparated: comma, labelSeparator: comma ? "comma" : "whitespace", labelColumn: false, emptyCorner: false, bodyStart: begin, linesBefore: 0 };
   const second = contentLineInBytes(bytes, first.next);
   const prefixEnd = second === undefined ? bytes.length : Math.min(second.next, bytes.length);
-  const layout = detectMatrixLayout(latin1(bytes, begin, prefixEnd), 0, file);
+  let prefix: string;
+  try {
+    prefix = latin1(bytes, begin, prefixEnd);
+  } catch (error) {
+    throw new InputError(`cannot read ${file}: ${systemReason(error)}`, { file }); // a first line longer than a string can be
+  }
+  const layout = detectMatrixLayout(prefix, 0, file);
   return { ...layout, bodyStart: layout.bodyStart + begin };
 }
 

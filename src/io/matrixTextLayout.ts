@@ -10,8 +10,9 @@ import { printable } from "./printable.js";
  *   line has a tab, the header's cells and each row's label end at a tab (so
  *   labels may hold spaces); numbers are separated by spaces or tabs either way.
  * - Header row: the first line is one when a cell after its first is text
- *   (quoted, or not a number), or, with commas, when its first cell is empty.
- *   Its cells must then all be text, except after an empty first cell.
+ *   (quoted, or not a number), or, with commas, when its first cell is empty
+ *   ("" counts as empty). Its cells must then all be text, except after an
+ *   empty first cell.
  * - Label column: there is one when the header's first cell is empty (a corner
  *   cell, as pandas writes it; labels may then be numbers), or when the first
  *   row of numbers begins with text.
@@ -79,7 +80,7 @@ export function detectMatrixLayout(text: string, begin: number, file: string): M
   const labelSeparator: CellSeparator = commaSeparated ? "comma" : text.slice(first.start, first.stop).includes("\t") ? "tab" : "whitespace";
   const cells = splitCells(text, first.start, first.stop, numberSeparator, file, first.line);
   const isHeader =
-    cells.length >= 2 && (cells.slice(1).some(isTextCell) || (commaSeparated && cells[0].text === "" && !cells[0].quoted));
+    cells.length >= 2 && (cells.slice(1).some(isTextCell) || (commaSeparated && cells[0].text === ""));
   const bodyBeforeFirst = { commaSeparated, labelSeparator, emptyCorner: false, bodyStart: first.start, linesBefore: first.line - 1 };
   if (!isHeader) {
     const labelled = cells.length > 0 && isTextCell(cells[0]);
@@ -91,7 +92,7 @@ export function detectMatrixLayout(text: string, begin: number, file: string): M
   }
 
   const headerCells = labelSeparator === numberSeparator ? cells : splitCells(text, first.start, first.stop, labelSeparator, file, first.line);
-  const emptyCorner = headerCells[0].text === "" && !headerCells[0].quoted;
+  const emptyCorner = headerCells[0].text === "";
   if (!emptyCorner) {
     const number = headerCells.find(isNumberCell);
     if (number) {

@@ -109,6 +109,7 @@ describe("the header row and label column rule (byte reader checked against the 
     ["quoted labels holding the separator and a quote", '"x, y","say ""hi"""\n1,0.5\n0.5,1\n', ["x, y", 'say "hi"'], [2, 3]],
     ["quoted labels in a whitespace-separated file", '"left lobe" "right lobe"\n"left lobe" 1 0.5\n"right lobe" 0.5 1\n', ["left lobe", "right lobe"], [2, 3]],
     ["labels that are numbers, under an empty corner", ",7,8\n7,1,0.5\n8,0.5,1\n", ["7", "8"], [2, 3]],
+    ["every label quoted under a quoted empty corner (R's write.csv)", '"","a","b"\n"a",1,0.5\n"b",0.5,1\n', ["a", "b"], [2, 3]],
     ["a quoted label that is a number", '"7" 1 0.5\n"8" 0.5 1\n', ["7", "8"], [1, 2]],
     ["labels trimmed, blank lines, CRLF and a byte-order mark", "\uFEFF\r\n ,  a ,b \r\n\r\n a ,1,0.5\r\nb,0.5,1\r\n", ["a", "b"], [4, 5]],
   ])("%s", (_name, text, labels, rowLines) => {
@@ -247,6 +248,16 @@ describe("a file that breaks the rule is an InputError that explains it", () => 
   it("a labelled matrix that is not square says so below its header", () => {
     expectInputError(() => bothReaders("a,b,c\n1,0.5,0\n0.5,1,0\n"), { file: "m.csv", line: 3, message: ["2 rows of 3 values", "below the header row on line 1"] });
     expectInputError(() => bothReaders(",a,b\na,1,0.5\nb,0.5\n"), { file: "m.csv", line: 3, column: 3, message: ["1 values after its label, expected 2"] });
+  });
+
+  it("labels that are numbers the rule cannot see (tab-separated, unquoted) get a hint", () => {
+    expectInputError(() => bothReaders("\t1\t2\n1\t1\t0.5\n2\t0.5\t1\n"), {
+      file: "m.csv",
+      line: 2,
+      column: 3,
+      message: ["row 2 has more than 2 values"],
+      hint: /labels that are numbers, put them in double quotes/,
+    });
   });
 
   it("a bad number in a labelled row is located at its file column", () => {
