@@ -1,5 +1,6 @@
 import { InputError, type InputLocation } from "../errors.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
+import { printable } from "./printable.js";
 
 /** How one subject's N × N matrix becomes its edge values. */
 export interface EdgeExtractionOptions {
@@ -17,6 +18,10 @@ export interface MatrixOrigin {
   rowLines?: number[];
   /** Prefix for messages about a matrix inside a stack, e.g. "matrix 3 (participant 'sub-03')". */
   label?: string;
+  /** 1-based file column of each matrix column, where it is not the column's number (a label column; reordered rows and columns). */
+  columns?: ArrayLike<number>;
+  /** Each region's label, named in messages beside its row and column number (reordered rows and columns). */
+  regionLabels?: readonly string[];
 }
 
 export const SYMMETRIZE_HINT = "set `symmetrize: true` in the design to average the two triangles";
@@ -59,7 +64,7 @@ export function writeMatrixEdges(
       } else {
         if (!(Math.abs(upper - lower) <= tolerance * Math.max(1, Math.abs(upper), Math.abs(lower)))) {
           throw new InputError(
-            `${prefix(origin)}matrix is not symmetric: row ${i + 1}, column ${j + 1} is ${upper} but row ${j + 1}, column ${i + 1} is ${lower} ` +
+            `${prefix(origin)}matrix is not symmetric: ${cellName(origin, i, j)} is ${upper} but ${cellName(origin, j, i)} is ${lower} ` +
               `(tolerance ${tolerance} × max(1, |a_ij|, |a_ji|))`,
             cellLocation(origin, i, j),
             SYMMETRIZE_HINT,
@@ -84,11 +89,18 @@ function prefix(origin: MatrixOrigin): string {
 function cellLocation(origin: MatrixOrigin, row: number, column: number): InputLocation {
   return origin.rowLines === undefined
     ? { file: origin.file }
-    : { file: origin.file, line: origin.rowLines[row], column: column + 1 };
+    : { file: origin.file, line: origin.rowLines[row], column: origin.columns ? origin.columns[column] : column + 1 };
+}
+
+/** "row 2, column 5", with the regions' labels when the origin has them: "row 2 ('a'), column 5 ('b')". */
+function cellName(origin: MatrixOrigin, row: number, column: number): string {
+  const labels = origin.regionLabels;
+  if (!labels) return `row ${row + 1}, column ${column + 1}`;
+  return `row ${row + 1} ('${printable(labels[row])}'), column ${column + 1} ('${printable(labels[column])}')`;
 }
 
 function cellError(origin: MatrixOrigin, row: number, column: number, what: string): InputError {
-  return new InputError(`${prefix(origin)}cell at row ${row + 1}, column ${column + 1} ${what}`, cellLocation(origin, row, column));
+  return new InputError(`${prefix(origin)}cell at ${cellName(origin, row, column)} ${what}`, cellLocation(origin, row, column));
 }
 
 function fisherError(origin: MatrixOrigin, row: number, column: number, value: number): InputError {

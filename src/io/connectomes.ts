@@ -2,7 +2,10 @@ import { isAbsolute, resolve } from "node:path";
 import { InputError, inputErrors, isInputError, type InputLocation } from "../errors.js";
 import { edgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
-import { parseMatrixBytes } from "./matrixText.js";
+import { loadEdgeTable } from "./edgeTable.js";
+import type { MatrixLabels } from "./matrixTextLabels.js";
+import { textLabelPlan } from "./textLabelPlan.js";
+import { parseMatrixFile } from "./textMatrixFile.js";
 import { loadBlocksInOrder, loadBlocksInParallel, worthTwoThreads } from "./matrixBlocks.js";
 import { loadSubject } from "./matrixProblems.js";
 import { cOrderMatrices, readExactly, stackMatrixLabel } from "./npyMatrixBlocks.js";
@@ -19,7 +22,8 @@ import { unsafePathValue } from "./templateValues.js";
 /**
  * Loading every subject's connectivity matrix into one edge-major array of
  * upper-triangle edge values (edge order of src/edges/edgeIndex.ts), from one
- * text file per subject or from one .npy stack read a matrix at a time.
+ * text file per subject (labelled or not), one participants × edges text
+ * table, one .npy stack read a matrix at a time, or binary containers.
  */
 export type ConnectomeSource =
   | { kind: "template"; template: string; baseDir: string; choice?: ArrayChoice }
@@ -142,19 +146,21 @@ export function loadConnectomes(
       return { ...loaded, reading: { reader: "NumPy .npy", shape: loaded.stackShape, subjectsAxis: "first", labels: numberedOrTable(options) } };
     }
     if (format === "text") {
-      throw new InputError(
-        "this file is text; a text file for every participant at once (a participants × edges table) is not read yet",
-        { file, key: CONNECTOMES_KEY },
-        "give one matrix per participant with a path template, e.g. connectomes: matrices/{participant_id}.csv",
-      );
+      if (choice.variable !== undefined || choice.subjectsAxis !== undefined) {
+        throw new InputError(
+          `this file is text, read as a participants × edges table, which has no ${choice.variable !== undefined ? "variables" : "subjects axis"}`,
+          { file, key: choice.variable !== undefined ? "connectomes.variable" : "connectomes.subjects_axis" },
+          "leave out variable and subjects_axis for a text table",
+        );
+      }
+      return loadEdgeTable(file, subjects, options);
     }
     return loadContainerStack(file, subjects, { ...options, ...choice });
   }
   const files = resolveAll(source.template, subjects, source.baseDir);
   const first = files.find((file) => file !== "");
   if (first !== undefined && probeFirst(first) !== "text") return loadContainerFiles(files, subjects, { ...options, ...choice });
-  const loaded = loadFromTemplate(source.template, source.baseDir, subjects, options);
-  return { ...loaded, reading: { reader: "text", shape: [loaded.regionCount, loaded.regionCount], labels: numberedOrTable(options) } };
+  return loadFromTemplate(source.template, source.baseDir, subjects, options);
 }
 
 /**
@@ -191,18 +197,15 @@ function probeFirst(file: string): string {
   }
 }
 
-function loadFromTemplate(
-  template: string,
-  baseDir: string,
-  subjects: ConnectomeSubject[],
-  options: ConnectomeOptions,
-): Omit<LoadedConnectomes, "reading"> {
+function loadFromTemplate(template: string, baseDir: string, subjects: ConnectomeSubject[], options: ConnectomeOptions): LoadedConnectomes {
   if (subjects.length === 0) {
     throw new InputError("no participants to load connectivity matrices for", { key: CONNECTOMES_KEY });
   }
   const hints = subjects.map((subject) => `connectivity matrix of participant '${subject.id}' (from the template '${template}')`);
   const files = resolveAll(template, subjects, baseDir);
   const reference = referenceMatrix(files, hints);
+  // Labels in the first file: every file must repeat them; a regions table may reorder them.
+  const plan = textLabelPlan(reference.labels, reference.file, options.regionTable);
   const pairs = edgePairs(reference.size);
   const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
   const digests = sharedDigests(subjects.length);
@@ -216,6 +219,8 @@ function loadFromTemplate(
     data,
     options,
     digests,
+    ...(reference.labels ? { firstLabels: reference.labels.names } : {}),
+    ...(plan.order ? { order: plan.order, orderedLabels: plan.names } : {}),
   };
   // Many files: two threads read blocks of subjects (matrixBlocks.ts), with the same values and errors.
   if (worthTwoThreads(subjects.length, reference.bytes)) loadBlocksInParallel(job);
@@ -227,6 +232,13 @@ function loadFromTemplate(
     data,
     files,
     sha256: files.map((_, s) => digestHex(digests, s)),
+    ...(plan.labels === "file" ? { labels: plan.names } : {}),
+    reading: {
+      reader: reference.labels ? `text (${reference.labels.layout})` : "text",
+      shape: [pairs.regionCount, pairs.regionCount],
+      labels: plan.labels,
+      ...(plan.order ? { reordered: true } : {}),
+    },
   };
 }
 
@@ -252,15 +264,15 @@ function resolveAll(template: string, subjects: ConnectomeSubject[], baseDir: st
  * that reads as a matrix of at least 2 regions. When none does, every file's
  * problem is raised at once.
  */
-function referenceMatrix(files: string[], hints: string[]): { file: string; size: number; bytes: number } {
+function referenceMatrix(files: string[], hints: string[]): { file: string; size: number; bytes: number; labels?: MatrixLabels } {
   const reader = new TextFileReader();
   const problems: InputError[] = [];
   for (let s = 0; s < files.length; s++) {
     try {
       const bytes = reader.readBytes(files[s], hints[s]);
-      const matrix = parseMatrixBytes(bytes, files[s], { allowNonFiniteDiagonal: true });
+      const matrix = parseMatrixFile(bytes, files[s], { allowNonFiniteDiagonal: true });
       requireTwoRegions(matrix.size, { file: files[s], line: matrix.rowLines[0] });
-      return { file: files[s], size: matrix.size, bytes: bytes.length };
+      return { file: files[s], size: matrix.size, bytes: bytes.length, ...(matrix.labels ? { labels: matrix.labels } : {}) };
     } catch (error) {
       if (!isInputError(error)) throw error;
       problems.push(error);

@@ -1,12 +1,19 @@
 import { Buffer, isAscii } from "node:buffer";
 import { InputError } from "../errors.js";
+import { cellKind } from "./numericCells.js";
+import { isNumberCell, readCell } from "./delimitedCells.js";
+import { labelledMatrix, type MatrixLabels } from "./matrixTextLabels.js";
+import { detectMatrixLayout, headerCountError, headerFits, shortCell, type MatrixTextLayout } from "./matrixTextLayout.js";
 import { systemReason } from "./readInputFile.js";
 
 /**
  * One square matrix as text: N lines of N numbers, separated by a tab, a comma
  * (spaces around it allowed) or runs of spaces and tabs. The delimiter is
- * chosen per file: commas if the first non-blank line has one, else whitespace.
- * No header. A UTF-8 byte-order mark, CRLF line ends and blank lines are tolerated.
+ * chosen per file: commas if the first non-blank line has one (outside double
+ * quotes), else whitespace. A header row of region labels and a first column of
+ * labels are recognised by the rule of matrixTextLayout.ts; the labels are
+ * checked by matrixTextLabels.ts. A UTF-8 byte-order mark, CRLF line ends and
+ * blank lines are tolerated.
  *
  * Two readers share these rules. `parseMatrixText` walks a string with
  * charCodeAt and never splits it; it is the reference, and every error about
@@ -46,6 +53,8 @@ export interface ParsedMatrixText {
   values: Float64Array;
   /** 1-based file line of each matrix row, for locating later checks. */
   rowLines: number[];
+  /** The region labels of a file with a header row or a label column (absent for a plain matrix). */
+  labels?: MatrixLabels;
 }
 
 const TAB = 9;
@@ -58,6 +67,7 @@ const MINUS = 45;
 const DOT = 46;
 const ZERO = 48;
 const NINE = 57;
+const QUOTE = 34;
 const UPPER_E = 69;
 const LOWER_E = 101;
 /** A byte OR this is the lower-case letter for an ASCII letter (and changes no digit, sign, dot or separator into e). */
@@ -87,10 +97,15 @@ const FIRST_ROW_CAPACITY = 64;
 export function parseMatrixText(text: string, file: string, options: MatrixTextOptions = {}): ParsedMatrixText {
   const allowNonFiniteDiagonal = options.allowNonFiniteDiagonal === true;
   const end = text.length;
-  let pos = text.charCodeAt(0) === 0xfeff ? 1 : 0;
-  const commaSeparated = firstContentLineHasComma(text, pos);
+  const layout = detectMatrixLayout(text, text.charCodeAt(0) === 0xfeff ? 1 : 0, file);
+  const commaSeparated = layout.commaSeparated;
+  // File column of matrix column 0, less one: the label column comes first.
+  const columnShift = layout.labelColumn ? 1 : 0;
+  const belowHeader = layout.header ? ` (below the header row on line ${layout.header.line})` : "";
+  const rowLabels: string[] = [];
 
-  let line = 0;
+  let pos = layout.bodyStart;
+  let line = layout.linesBefore;
   let size = -1;
   let row = 0;
   let values = new Float64Array(0);
@@ -110,19 +125,20 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
     }
     if (size >= 0 && row >= size) {
       throw new InputError(
-        `matrix is not square: it has ${size} columns but more than ${size} rows (row ${row + 1} is on this line)`,
+        `matrix is not square: it has ${size} columns but more than ${size} rows (row ${row + 1} is on this line)${belowHeader}`,
         { file, line },
       );
     }
+    if (layout.labelColumn) p = readRowLabel(text, p, stop, layout, row, rowLabels, { file, line });
 
     let column = 0;
     for (;;) {
       if (size >= 0 && column >= size) {
-        throw new InputError(`matrix is not square: row ${row + 1} has more than ${size} values`, {
-          file,
-          line,
-          column: column + 1,
-        });
+        throw new InputError(
+          `matrix is not square: row ${row + 1} has more than ${size} values${columnShift ? " after its label" : ""}`,
+          { file, line, column: column + 1 + columnShift },
+          row === 1 && !layout.header && !layout.labelColumn ? NUMBER_LABELS_HINT : undefined,
+        );
       }
       const start = p;
       let value = scanDecimal(text, start, stop);
@@ -134,13 +150,14 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
       if (value !== value) {
         p = tokenEnd(text, start, stop, commaSeparated);
         if (p === start) {
-          throw new InputError(`empty cell in column ${column + 1}`, { file, line, column: column + 1 });
+          throw new InputError(`empty cell in column ${column + 1}`, { file, line, column: column + 1 + columnShift });
         }
         const word = nonFiniteWord(text, start, p);
         if (word === "") {
           throw new InputError(
-            `cell '${text.slice(start, p)}' at row ${row + 1}, column ${column + 1} is not a number`,
-            { file, line, column: column + 1 },
+            `cell '${shortCell(text.slice(start, p))}' at row ${row + 1}, column ${column + 1} is not a number` +
+              (column === 0 && !layout.labelColumn ? noLabelColumn(layout) : ""),
+            { file, line, column: column + 1 + columnShift },
           );
         }
         value = Number(word);
@@ -148,9 +165,9 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
       // While the first row is read `row` is 0, so the diagonal test holds before N is known.
       if (!Number.isFinite(value) && !(allowNonFiniteDiagonal && column === row)) {
         throw new InputError(
-          `cell '${text.slice(start, p)}' at row ${row + 1}, column ${column + 1} is not finite` +
+          `cell '${shortCell(text.slice(start, p))}' at row ${row + 1}, column ${column + 1} is not finite` +
             (allowNonFiniteDiagonal ? " (only the diagonal may be NaN or infinite)" : ""),
-          { file, line, column: column + 1 },
+          { file, line, column: column + 1 + columnShift },
         );
       }
       if (size < 0) firstRow.push(value);
@@ -161,14 +178,14 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
       if (p === stop) break;
       if (commaSeparated) {
         if (text.charCodeAt(p) !== COMMA) {
-          throw new InputError(`expected a comma after column ${column}`, { file, line, column: column + 1 });
+          throw new InputError(`expected a comma after column ${column}`, { file, line, column: column + 1 + columnShift });
         }
         p = skipWhitespace(text, p + 1, stop);
         if (p === stop) {
           throw new InputError(`empty cell in column ${column + 1} (comma at the end of the line)`, {
             file,
             line,
-            column: column + 1,
+            column: column + 1 + columnShift,
           });
         }
       }
@@ -176,13 +193,14 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
 
     if (size < 0) {
       size = column;
+      if (layout.header && !headerFits(layout, size)) throw headerCountError(layout, size, file);
       values = new Float64Array(size * size);
       values.set(firstRow);
     } else if (column !== size) {
-      throw new InputError(`matrix is not square: row ${row + 1} has ${column} values, expected ${size}`, {
+      throw new InputError(`matrix is not square: row ${row + 1} has ${column} values${columnShift ? " after its label" : ""}, expected ${size}`, {
         file,
         line,
-        column: column + 1,
+        column: column + 1 + columnShift,
       });
     }
     rowLines.push(line);
@@ -191,15 +209,78 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
   }
 
   if (size < 0) {
+    if (layout.header) {
+      throw new InputError(`the header row is followed by no rows of numbers: expected N rows of N numbers below it`, { file, line: layout.header.line });
+    }
     throw new InputError("empty matrix file: expected N lines of N numbers", { file, line: 1 });
   }
   if (row !== size) {
-    throw new InputError(`matrix is not square: ${row} rows of ${size} values`, {
+    throw new InputError(`matrix is not square: ${row} rows of ${size} values${belowHeader}`, {
       file,
       line: rowLines[rowLines.length - 1],
     });
   }
-  return { size, values, rowLines };
+  return labelledMatrix({ size, values, rowLines }, layout, rowLabels, file);
+}
+
+/** For a second row longer than the first: labels that are numbers are read as numbers unless the rule can tell. */
+const NUMBER_LABELS_HINT =
+  "if the first line and the first column are region labels that are numbers, put them in double quotes, " +
+  "or, in a comma-separated file, leave the first line's first cell empty (a corner cell above the label column)";
+
+/**
+ * Reads the label that begins a row of a file with a label column and returns
+ * where its numbers begin. An empty label, a number where the rule expects a
+ * label (see matrixTextLayout.ts) and a label with no numbers after it are
+ * InputErrors that say why a label was expected.
+ */
+function readRowLabel(
+  text: string,
+  p: number,
+  stop: number,
+  layout: MatrixTextLayout,
+  row: number,
+  labels: string[],
+  where: { file: string; line: number },
+): number {
+  const cell = readCell(text, p, stop, layout.labelSeparator, { ...where, column: 1 });
+  if (!cell.quoted && cell.text === "") {
+    throw new InputError(`row ${row + 1} has an empty first cell where its label is expected${whyLabels(layout)}`, { ...where, column: 1 });
+  }
+  if (!layout.emptyCorner && isNumberCell(cell)) {
+    throw new InputError(
+      `row ${row + 1} begins with '${shortCell(cell.text)}', a number, where its label is expected${whyLabels(layout)}`,
+      { ...where, column: 1 },
+      "begin every row with its label (in double quotes if it is a number), or give no label column at all",
+    );
+  }
+  labels.push(cell.text);
+  let q = cell.end;
+  if (layout.labelSeparator !== "whitespace" && q < stop) q++;
+  q = skipWhitespace(text, q, stop);
+  if (q === stop) {
+    throw new InputError(
+      `row ${row + 1} has its label '${shortCell(cell.text)}' but no numbers after it` +
+        (layout.labelSeparator === "tab" ? " (in this file a label ends at a tab, since the first line has one)" : ""),
+      { ...where, column: 2 },
+    );
+  }
+  return q;
+}
+
+/** Why the first column holds labels, for messages. */
+function whyLabels(layout: MatrixTextLayout): string {
+  const reason = layout.labelColumnReason;
+  if (reason) return `: the first column holds region labels because line ${reason.line} begins with '${shortCell(reason.label)}', which is not a number`;
+  return `: the first column holds region labels because the header row's first cell (line ${layout.header!.line}) is empty`;
+}
+
+/** Why a text cell in the first column is no label, for messages. */
+function noLabelColumn(layout: MatrixTextLayout): string {
+  const line = layout.plainFirstRowLine;
+  return line === undefined
+    ? ""
+    : `; the first row (line ${line}) begins with a number, so the file has no label column: to label the rows, begin every row with its label, the first included`;
 }
 
 /**
@@ -220,35 +301,139 @@ export function parseMatrixBytes(
 ): ParsedMatrixText {
   const start = bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
   const ascii = isAscii(start === 0 ? bytes : bytes.subarray(start));
-  const matrix = ascii ? scanAsciiMatrix(bytes, start, options.allowNonFiniteDiagonal === true, reuse) : undefined;
-  return matrix ?? parseMatrixText(decodeUtf8(bytes, file), file, options);
+  if (ascii) {
+    const layout = asciiLayout(bytes, start, file);
+    const labels = layout.labelColumn ? asciiLabelling(layout) : undefined;
+    const matrix = scanAsciiMatrix(bytes, layout, labels, options.allowNonFiniteDiagonal === true, reuse);
+    if (matrix) return labelledMatrix(matrix, layout, labels?.names ?? [], file);
+  }
+  return parseMatrixText(decodeUtf8(bytes, file), file, options);
+}
+
+/** How the byte reader takes each row's label: the byte that ends it (SPACE: a space or a tab), whether numbers may be labels, and the labels read. */
+interface AsciiLabelling {
+  separator: number;
+  numbersAllowed: boolean;
+  names: string[];
+}
+
+function asciiLabelling(layout: MatrixTextLayout): AsciiLabelling {
+  const separator = layout.labelSeparator === "comma" ? COMMA : layout.labelSeparator === "tab" ? TAB : SPACE;
+  return { separator, numbersAllowed: layout.emptyCorner, names: [] };
 }
 
 /**
- * The byte reader's work: the matrix in the ASCII bytes from `begin` on, or
- * undefined where `parseMatrixText` might raise an error (it is then left to
- * that function). Each cell is scanned inline, without a call, into the parts
- * of m that scanDecimal makes (the values are its values). The digit loops test
- * no bound: the byte at `stop` is CR or LF, or lies past the end, where reading
- * gives undefined, which the NaN-safe digit test rejects.
+ * The layout of ASCII bytes (from `begin`), as detectMatrixLayout gives it for
+ * their text. A first line of nothing but digits, signs, dots, exponent
+ * letters, spaces, tabs and commas (and no comma first) is taken as plain
+ * without decoding it: if its cells are all numbers that is what the rule
+ * says, and if one is not the byte reader stops there and parseMatrixText
+ * applies the rule. Any other first line is decoded with the next one and
+ * given to detectMatrixLayout.
+ */
+function asciiLayout(bytes: Uint8Array, begin: number, file: string): MatrixTextLayout {
+  const first = contentLineInBytes(bytes, begin);
+  if (first === undefined) return { commaSeparated: false, labelSeparator: "whitespace", labelColumn: false, emptyCorner: false, bodyStart: begin, linesBefore: 0 };
+  let plain = true;
+  let comma = false;
+  let leading = true;
+  for (let p = first.start; p < first.stop; p++) {
+    const c = bytes[p];
+    if (c === SPACE || c === TAB) continue;
+    if (c === COMMA) {
+      if (leading) plain = false;
+      comma = true;
+    } else if (!((c >= ZERO && c <= NINE) || c === PLUS || c === MINUS || c === DOT || c === LOWER_E || c === UPPER_E)) {
+      plain = false;
+    }
+    leading = false;
+    if (!plain) break;
+  }
+  if (plain) return { commaSeparated: comma, labelSeparator: comma ? "comma" : "whitespace", labelColumn: false, emptyCorner: false, bodyStart: begin, linesBefore: 0 };
+  const second = contentLineInBytes(bytes, first.next);
+  const prefixEnd = second === undefined ? bytes.length : Math.min(second.next, bytes.length);
+  let prefix: string;
+  try {
+    prefix = latin1(bytes, begin, prefixEnd);
+  } catch (error) {
+    throw new InputError(`cannot read ${file}: ${systemReason(error)}`, { file }); // a first line longer than a string can be
+  }
+  const layout = detectMatrixLayout(prefix, 0, file);
+  return { ...layout, bodyStart: layout.bodyStart + begin };
+}
+
+/** The first line from `pos` on with a byte other than a space or a tab (before a final CR): [start, stop), and `next` past its line feed. */
+function contentLineInBytes(bytes: Uint8Array, pos: number): { start: number; stop: number; next: number } | undefined {
+  const end = bytes.length;
+  while (pos < end) {
+    let lineEnd = bytes.indexOf(LINE_FEED, pos);
+    if (lineEnd < 0) lineEnd = end;
+    let stop = lineEnd;
+    if (stop > pos && bytes[stop - 1] === CR) stop--;
+    for (let p = pos; p < stop; p++) {
+      const c = bytes[p];
+      if (c !== SPACE && c !== TAB) return { start: pos, stop, next: lineEnd + 1 };
+    }
+    pos = lineEnd + 1;
+  }
+  return undefined;
+}
+
+/**
+ * The label that begins a row, read by the byte reader into `labels.names`;
+ * returns where the row's numbers begin, or −1 where readRowLabel might raise
+ * an error or read the label otherwise (a quoted label, an empty one, a number
+ * where a label must be text, no numbers after it): the file is then left to
+ * parseMatrixText.
+ */
+function scanAsciiLabel(bytes: Uint8Array, p: number, stop: number, labels: AsciiLabelling): number {
+  if (bytes[p] === QUOTE) return -1;
+  const separator = labels.separator;
+  let q = p;
+  let c = 0;
+  if (separator === SPACE) while (q < stop && (c = bytes[q]) !== SPACE && c !== TAB) q++;
+  else while (q < stop && bytes[q] !== separator) q++;
+  let labelEnd = q;
+  while (labelEnd > p && ((c = bytes[labelEnd - 1]) === SPACE || c === TAB)) labelEnd--;
+  if (labelEnd === p) return -1;
+  const label = latin1(bytes, p, labelEnd);
+  if (!labels.numbersAllowed && cellKind(label) !== "text") return -1;
+  labels.names.push(label);
+  if (separator !== SPACE) {
+    if (q === stop) return -1;
+    q++;
+  }
+  while (q < stop && ((c = bytes[q]) === SPACE || c === TAB)) q++;
+  return q === stop ? -1 : q;
+}
+
+/**
+ * The byte reader's work: the matrix in the ASCII bytes laid out as `layout`
+ * says, or undefined where `parseMatrixText` might raise an error (it is then
+ * left to that function). Each cell is scanned inline, without a call, into
+ * the parts of m that scanDecimal makes (the values are its values). The digit
+ * loops test no bound: the byte at `stop` is CR or LF, or lies past the end,
+ * where reading gives undefined, which the NaN-safe digit test rejects.
  */
 function scanAsciiMatrix(
   bytes: Uint8Array,
-  begin: number,
+  layout: MatrixTextLayout,
+  labels: AsciiLabelling | undefined,
   allowNonFiniteDiagonal: boolean,
   reuse: ParsedMatrixText | undefined,
 ): ParsedMatrixText | undefined {
   const end = bytes.length;
-  const commaSeparated = firstContentLineHasCommaInBytes(bytes, begin);
+  const commaSeparated = layout.commaSeparated;
+  const headerCells = layout.header ? layout.header.cells.length : -1;
   // The first row goes into `values` from 0 on before N is known; it is then in place.
   let values = reuse !== undefined && reuse.values.length > 0 ? reuse.values : new Float64Array(FIRST_ROW_CAPACITY);
   const rowLines = reuse !== undefined ? reuse.rowLines : [];
 
-  let line = 0;
+  let line = layout.linesBefore;
   let size = -1;
   let row = 0;
   let rowStart = 0;
-  let pos = begin;
+  let pos = layout.bodyStart;
   let c = 0;
   while (pos < end) {
     line++;
@@ -261,6 +446,7 @@ function scanAsciiMatrix(
     pos = lineEnd + 1;
     if (p === stop) continue;
     if (row === size) return undefined; // more rows than columns
+    if (labels !== undefined && (p = scanAsciiLabel(bytes, p, stop, labels)) < 0) return undefined;
 
     let column = 0;
     for (;;) {
@@ -372,6 +558,7 @@ function scanAsciiMatrix(
 
     if (size < 0) {
       size = column;
+      if (headerCells >= 0 && !(headerCells === size || (labels !== undefined && headerCells === size + 1))) return undefined;
       if (values.length !== size * size) {
         const sized = new Float64Array(size * size);
         sized.set(values.subarray(0, size));
@@ -505,22 +692,6 @@ function decodeUtf8(bytes: Uint8Array, file: string): string {
   }
 }
 
-function firstContentLineHasCommaInBytes(bytes: Uint8Array, pos: number): boolean {
-  const end = bytes.length;
-  while (pos < end) {
-    let lineEnd = bytes.indexOf(LINE_FEED, pos);
-    if (lineEnd < 0) lineEnd = end;
-    let blank = true;
-    for (let p = pos; p < lineEnd; p++) {
-      const c = bytes[p];
-      if (c === COMMA) return true;
-      if (c !== SPACE && c !== TAB && c !== CR) blank = false;
-    }
-    if (!blank) return false;
-    pos = lineEnd + 1;
-  }
-  return false;
-}
 
 /**
  * Value of text[start, end) if it is in decimal syntax, else NaN. Equal to
@@ -664,19 +835,3 @@ function skipWhitespace(text: string, p: number, stop: number): number {
   return p;
 }
 
-function firstContentLineHasComma(text: string, pos: number): boolean {
-  const end = text.length;
-  while (pos < end) {
-    let lineEnd = text.indexOf("\n", pos);
-    if (lineEnd < 0) lineEnd = end;
-    let blank = true;
-    for (let p = pos; p < lineEnd; p++) {
-      const c = text.charCodeAt(p);
-      if (c === COMMA) return true;
-      if (c !== SPACE && c !== TAB && c !== CR) blank = false;
-    }
-    if (!blank) return false;
-    pos = lineEnd + 1;
-  }
-  return false;
-}

@@ -6,7 +6,10 @@ import { edgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, SUBJECT_BLOCK_SIZE, type EdgeExtractionOptions } from "./connectomeEdges.js";
 import type { BlockLoader } from "./blockLoader.js";
 import { blockSubjects } from "./subjectBlocks.js";
-import { parseMatrixBytes, type ParsedMatrixText } from "./matrixText.js";
+import type { ParsedMatrixText } from "./matrixText.js";
+import { reorderMatrix } from "./arrays/regionLabels.js";
+import { labelMismatch } from "./textLabelPlan.js";
+import { parseMatrixFile } from "./textMatrixFile.js";
 import { TextFileReader } from "./readInputFile.js";
 
 /**
@@ -28,6 +31,12 @@ export interface TextBlockJob {
   options: EdgeExtractionOptions;
   /** When given (see sharedDigests): each file's SHA-256, 32 bytes at 32 × subject, in a SharedArrayBuffer. */
   digests?: Uint8Array;
+  /** The first file's region labels (a header row or a label column), which every file must repeat; absent when it names none. */
+  firstLabels?: string[];
+  /** With a regions table in another order: order[k] is the files' index of the table's k-th region (textLabelPlan.ts). */
+  order?: Int32Array;
+  /** The regions table's labels, for messages about reordered matrices. */
+  orderedLabels?: string[];
 }
 
 /** Room for one SHA-256 digest (32 bytes) per subject, shared with the worker thread. */
@@ -54,6 +63,7 @@ export function textBlockLoader(job: TextBlockJob): BlockLoader {
   const reader = new TextFileReader();
   let reuse: ParsedMatrixText | undefined;
   const pairs = edgePairs(job.regionCount);
+  const reordered = job.order ? new Float64Array(job.regionCount * job.regionCount) : undefined;
   return {
     load(block) {
       const S = job.subjectCount;
@@ -65,10 +75,25 @@ export function textBlockLoader(job: TextBlockJob): BlockLoader {
           const file = job.files[s];
           const bytes = reader.readBytes(file, job.hints[s]);
           if (job.digests) job.digests.set(createHash("sha256").update(bytes).digest(), DIGEST_BYTES * s);
-          const matrix = parseMatrixBytes(bytes, file, { allowNonFiniteDiagonal: true }, reuse);
+          const matrix = parseMatrixFile(bytes, file, { allowNonFiniteDiagonal: true }, reuse);
           reuse = matrix;
           if (matrix.size !== job.regionCount) throw sizeMismatch(file, matrix.size, job.firstFile, job.regionCount, matrix.rowLines[0]);
-          writer.add(matrix.values, 0, job.options, { file, rowLines: matrix.rowLines });
+          const mismatch = labelMismatch(matrix.labels, job.firstLabels, job.firstFile, file);
+          if (mismatch) throw mismatch;
+          const shift = matrix.labels?.labelColumn ? 1 : 0;
+          if (job.order && reordered) {
+            const order = job.order;
+            reorderMatrix(matrix.values, job.regionCount, order, reordered);
+            writer.add(reordered, 0, job.options, {
+              file,
+              rowLines: Array.from(order, (k) => matrix.rowLines[k]),
+              columns: Array.from(order, (k) => k + 1 + shift),
+              ...(job.orderedLabels ? { regionLabels: job.orderedLabels } : {}),
+            });
+          } else {
+            const columns = shift ? Array.from({ length: job.regionCount }, (_, j) => j + 2) : undefined;
+            writer.add(matrix.values, 0, job.options, { file, rowLines: matrix.rowLines, ...(columns ? { columns } : {}) });
+          }
         });
       }
       return problems;

@@ -122,7 +122,9 @@ type Mutation =
   | { kind: "matrixRow"; subject: number; drop: boolean }
   | { kind: "matrixMissing"; subject: number }
   | { kind: "matrixBytes"; subject: number; at: number; bytes: Uint8Array }
-  | { kind: "regionsCell"; row: number; value: string };
+  | { kind: "regionsCell"; row: number; value: string }
+  | { kind: "matrixLabels"; subject: number; all: boolean; header: boolean; column: boolean; label: string }
+  | { kind: "edgeTable"; byLabel: boolean; row: number; column: number; value: string };
 
 const mutationArbitrary: fc.Arbitrary<Mutation> = fc.oneof(
   fc.record({ kind: fc.constant("set" as const), key: fc.constantFrom(...DESIGN_KEYS), value: fc.constantFrom(...WEIRD_VALUES) }),
@@ -148,6 +150,21 @@ const mutationArbitrary: fc.Arbitrary<Mutation> = fc.oneof(
     bytes: fc.uint8Array({ minLength: 1, maxLength: 4 }),
   }),
   fc.record({ kind: fc.constant("regionsCell" as const), row: fc.nat(REGIONS), value: fc.constantFrom(...CELL_VALUES) }),
+  fc.record({
+    kind: fc.constant("matrixLabels" as const),
+    subject: fc.nat(SUBJECTS - 1),
+    all: fc.boolean(),
+    header: fc.boolean(),
+    column: fc.boolean(),
+    label: fc.constantFrom("node_1", "node_2", ...CELL_VALUES, '"q', "a,b"),
+  }),
+  fc.record({
+    kind: fc.constant("edgeTable" as const),
+    byLabel: fc.boolean(),
+    row: fc.nat(SUBJECTS + 1),
+    column: fc.nat(REGIONS * 2),
+    value: fc.constantFrom(...MATRIX_VALUES, "node_1~node_2", "sub-01"),
+  }),
 );
 
 const caseArbitrary = fc.record({
@@ -207,6 +224,27 @@ function writeStudy(mutations: Mutation[]): string {
     } else if (m.kind === "matrixMissing") missing.add(m.subject);
     else if (m.kind === "regionsCell") regions[Math.min(m.row, regions.length - 1)][0] = m.value;
   }
+  // Labelled matrices: a header row and/or a label column naming the regions, one label changed.
+  for (const m of mutations) {
+    if (m.kind !== "matrixLabels") continue;
+    const labels = Array.from({ length: REGIONS }, (_, r) => (r === m.subject % REGIONS ? m.label : `node_${r + 1}`));
+    for (const s of m.all ? IDS.keys() : [m.subject]) {
+      if (m.column) matrices[s] = matrices[s].map((row, i) => [labels[i] ?? "extra", ...row]);
+      if (m.header) matrices[s].unshift(m.column ? ["", ...labels] : labels);
+    }
+  }
+  // A participants × edges table in place of the matrices: columns in edge order, or by label in reverse order.
+  const edgeTable = mutations.find((m): m is Extract<Mutation, { kind: "edgeTable" }> => m.kind === "edgeTable");
+  if (edgeTable) {
+    const pairs: [number, number][] = [];
+    for (let i = 0; i < REGIONS; i++) for (let j = i + 1; j < REGIONS; j++) pairs.push([i, j]);
+    if (edgeTable.byLabel) pairs.reverse();
+    const rows = [["participant_id", ...pairs.map(([i, j]) => `node_${i + 1}~node_${j + 1}`)]];
+    IDS.forEach((id, s) => rows.push([id, ...pairs.map(([i, j]) => String(baseMatrix(s)[i][j]))]));
+    rows[Math.min(edgeTable.row, rows.length - 1)][edgeTable.column % rows[0].length] = edgeTable.value;
+    writeFileSync(path.join(study, "edges.tsv"), tsv(rows));
+    design.connectomes = "edges.tsv";
+  }
   let designBytes: Uint8Array = Buffer.from(`${JSON.stringify(design, null, 2)}\n`); // JSON is YAML 1.2
   let participantsBytes: Uint8Array = Buffer.from(tsv(participants));
   const matrixBytes = matrices.map((m) => Buffer.from(tsv(m)) as Uint8Array);
@@ -245,7 +283,7 @@ function snapshot(dir: string, skip: (relative: string) => boolean = () => false
   return files;
 }
 
-const LOCATED = /(design\.yaml|participants\.tsv|regions\.tsv|sub-\d+\.tsv|connectomes|results|precious|fresh|study|key ')/;
+const LOCATED = /(design\.yaml|participants\.tsv|regions\.tsv|edges\.tsv|sub-\d+\.tsv|connectomes|results|precious|fresh|study|key ')/;
 
 describe("malformed inputs never lose data and never fail with an internal error (fast-check)", () => {
   it(`over ${RUNS} cases of mutated designs, tables, matrices and output folders`, async () => {
