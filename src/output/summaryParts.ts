@@ -1,5 +1,6 @@
 import path from "node:path";
 import type { InferenceSpec } from "../common/inferenceOptions.js";
+import type { MatrixReading } from "../io/arrays/containerConnectomes.js";
 import type { PreparedAnalysis } from "./preparedAnalysis.js";
 import type { InputRecord } from "./provenance.js";
 
@@ -11,6 +12,18 @@ export function inputsSummary(inputs: InputRecord[], designFile: string): { role
     path: path.relative(designDir, input.path) || path.basename(input.path),
     sha256: input.sha256,
   }));
+}
+
+/** summary.json's `matrices_read`: the reader, the variable, the array's shape and axis, and where the region labels came from. */
+export function readingSummary(reading: MatrixReading): Record<string, unknown> {
+  return {
+    reader: reading.reader,
+    variable: reading.variable ?? null,
+    shape: reading.shape,
+    subjects_axis: reading.subjectsAxis ?? null,
+    labels: reading.labels,
+    reordered: reading.reordered ?? false,
+  };
 }
 
 /** summary.json's `subjects`: those in the table, those used, and those left out with line and reason. */
