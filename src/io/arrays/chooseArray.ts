@@ -1,3 +1,4 @@
+import { basename } from "node:path";
 import { InputError, type InputLocation } from "../../errors.js";
 import { printable } from "../printable.js";
 import type { ArrayContainer, ArrayEntry } from "./arrayContainer.js";
@@ -11,7 +12,10 @@ export interface ArrayChoice {
 }
 
 const ONE_MATRIX_HINT = "a file holding one participant's matrix is named for each participant with a path template, e.g. connectomes: conn/{participant_id}.pconn.nii (or .npz, .mat, …)";
-const MAPPING_HINT = "use the mapping form, e.g. connectomes: { path: conn.mat, variable: conn, subjects_axis: last }";
+/** An example of the mapping form for this file (its own name and, where known, the variable). */
+function mappingExample(file: string, keys: string): string {
+  return `connectomes: { path: ${printable(basename(file))}, ${keys} }`;
+}
 
 /** "conn (90 × 90 × 40 float64)" */
 export function describeEntry(entry: ArrayEntry): string {
@@ -29,7 +33,7 @@ function listEntries(container: ArrayContainer): string {
 function named(container: ArrayContainer, file: string, variable: string): ArrayEntry {
   const entry = container.entries.find((e) => e.name === variable);
   if (!entry) {
-    throw new InputError(`${container.format} file has no variable '${printable(variable)}'; ${listEntries(container)}`, { file, key: "connectomes.variable" });
+    throw new InputError(`this ${container.format} file has no variable '${printable(variable)}'; ${listEntries(container)}`, { file, key: "connectomes.variable" });
   }
   if (!entry.numeric) {
     throw new InputError(`variable ${describeEntry(entry)} is not a numeric array`, { file, key: "connectomes.variable" });
@@ -42,12 +46,12 @@ function onlySuitable(container: ArrayContainer, file: string, suitable: (entry:
   if (candidates.length === 1) return candidates[0];
   if (candidates.length === 0) {
     const oneMatrix = what.startsWith("stack") && container.entries.some((e) => e.numeric && isSquare(e));
-    throw new InputError(`${container.format} file holds no ${what}; ${listEntries(container)}`, { file, key: "connectomes" }, oneMatrix ? ONE_MATRIX_HINT : undefined);
+    throw new InputError(`this ${container.format} file holds no ${what}; ${listEntries(container)}`, { file, key: "connectomes" }, oneMatrix ? ONE_MATRIX_HINT : undefined);
   }
   throw new InputError(
-    `${container.format} file holds ${candidates.length} arrays that could be ${what}: ${candidates.map(describeEntry).join(", ")}`,
+    `this ${container.format} file holds ${candidates.length} arrays that could be the ${what}: ${candidates.map(describeEntry).join(", ")}`,
     { file, key: "connectomes" },
-    `name one: ${MAPPING_HINT}`,
+    `name one with variable, e.g. ${mappingExample(file, `variable: ${printable(candidates[0].name)}`)}`,
   );
 }
 
@@ -88,7 +92,7 @@ export function chooseStack(container: ArrayContainer, file: string, choice: Arr
     throw new InputError(
       `${describeEntry(entry)} has as many participants as regions, so the shape cannot tell which axis runs over participants`,
       where,
-      MAPPING_HINT.replace("e.g.", "say which:"),
+      `say which with subjects_axis: first (S × N × N) or last (N × N × S), e.g. ${mappingExample(file, `${entry.name !== "" ? `variable: ${printable(entry.name)}, ` : ""}subjects_axis: last`)}`,
     );
   }
   if (!first && !last) {
