@@ -28,6 +28,8 @@ export interface ResultsSummary {
   tool: { name: string; version: string };
   command: string[] | null;
   inputs: { role: string; path: string; sha256: string }[];
+  /** How the matrices were read (absent in results written before it was recorded). */
+  matrices_read?: { reader: string; variable: string | null; shape: number[]; subjects_axis: string | null; labels: string; reordered: boolean };
   subjects: {
     in_table: number;
     used: number;

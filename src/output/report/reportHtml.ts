@@ -1,6 +1,6 @@
 import { escapeHtml } from "./escapeHtml.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
-import type { LoadedResults } from "./loadResults.js";
+import type { LoadedResults, ResultsSummary } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
 import { methodsHtml } from "./methodsText.js";
 import { plain } from "./printNumbers.js";
@@ -173,6 +173,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     `<dt>Software</dt><dd>${h(summary.tool.name)} ${h(summary.tool.version)}</dd>`,
     `<dt>Command line</dt><dd>${summary.command ? code(summary.command.join(" ")) : "not recorded (run through the library)"}</dd>`,
     `<dt>Seed</dt><dd>${seeds.length > 0 ? seeds.map((s) => h(String(s))).join(", ") : `${h(String(inference.seed))} (no relabelings drawn)`}</dd>`,
+    ...(summary.matrices_read ? [`<dt>Matrices read</dt><dd>${h(matricesRead(summary.matrices_read))}</dd>`] : []),
     "</dl>",
     inputTable(mainInputs),
     connectomeInputs.length > 0
@@ -186,4 +187,15 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     "</html>",
     "",
   ].join("\n");
+}
+
+/** How the matrices were read, e.g. "MATLAB 5 .mat, variable conn, 90 × 90 × 85, participants on the last axis; region labels from the regions table". */
+function matricesRead(read: NonNullable<ResultsSummary["matrices_read"]>): string {
+  const parts = [
+    read.reader,
+    ...(read.variable !== null ? [`variable ${read.variable}`] : []),
+    read.shape.join(" × "),
+    ...(read.subjects_axis !== null ? [`participants on the ${read.subjects_axis} axis`] : []),
+  ];
+  return `${parts.join(", ")}; region labels: ${read.labels}${read.reordered ? " (rows and columns reordered to the regions table's order)" : ""}`;
 }
