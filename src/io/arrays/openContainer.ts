@@ -1,6 +1,7 @@
 import { InputError } from "../../errors.js";
 import type { ArrayContainer } from "./arrayContainer.js";
 import { FORMAT_NAMES, type FileFormat } from "./fileFormat.js";
+import { hdf5Container, matlab73Container } from "./hdf5Container.js";
 import { npyContainer } from "./npyContainer.js";
 
 type ContainerReader = (bytes: Uint8Array, file: string) => ArrayContainer;
@@ -8,6 +9,8 @@ type ContainerReader = (bytes: Uint8Array, file: string) => ArrayContainer;
 /** The reader of each binary format; a format without one is refused by name. */
 const READERS: Partial<Record<FileFormat, ContainerReader>> = {
   npy: npyContainer,
+  hdf5: hdf5Container,
+  mat73: matlab73Container,
 };
 
 /** Opens a binary input whose bytes say it is `format`. */
