@@ -69,13 +69,21 @@ export function decodeUtf8(bytes: Uint8Array, file: string): string {
   }
 }
 
-/** The bytes of a user's input file; failures as for `readTextFile`. */
+/**
+ * The bytes of a user's input file, up to 2 GiB, in shared memory (a
+ * SharedArrayBuffer), so that a reader's worker thread (HDF5's) takes them
+ * without a copy; failures as for `readTextFile`.
+ */
 export function readBinaryFile(path: string, hint?: string): Uint8Array {
-  requireRegularFile(path, hint);
+  const input = InputFile.open(path, hint);
   try {
-    return readFileSync(path);
-  } catch (error) {
-    throw cannotRead(path, error, hint);
+    if (input.size > MAX_WHOLE_FILE_BYTES) {
+      throw new InputError(`cannot read ${path}: it holds ${input.size} bytes, more than the 2 GiB plexus reads whole`, { file: path }, hint);
+    }
+    const bytes = new Uint8Array(new SharedArrayBuffer(input.size));
+    return bytes.subarray(0, input.readAt(bytes, 0));
+  } finally {
+    input.close();
   }
 }
 

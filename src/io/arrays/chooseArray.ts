@@ -17,10 +17,10 @@ function mappingExample(file: string, keys: string): string {
   return `connectomes: { path: ${printable(basename(file))}, ${keys} }`;
 }
 
-/** "conn (90 × 90 × 40 float64)" */
+/** "conn (90 × 90 × 40 float64)"; "/group (group)" for an entry without a shape. */
 export function describeEntry(entry: ArrayEntry): string {
   const name = entry.name === "" ? "the array" : printable(entry.name);
-  return `${name} (${entry.shape.join(" × ")} ${entry.type})`;
+  return `${name} (${entry.shape.length > 0 ? `${entry.shape.join(" × ")} ` : ""}${entry.type})`;
 }
 
 function listEntries(container: ArrayContainer): string {
@@ -30,8 +30,13 @@ function listEntries(container: ArrayContainer): string {
   return `it holds ${shown}${more}`;
 }
 
+/** HDF5 paths are from the root: `conn` and `/conn` name the same entry. */
+const withoutRootSlash = (name: string): string => name.replace(/^\//, "");
+
 function named(container: ArrayContainer, file: string, variable: string): ArrayEntry {
-  const entry = container.entries.find((e) => e.name === variable);
+  const entry =
+    container.entries.find((e) => e.name === variable) ??
+    (variable === "" ? undefined : container.entries.find((e) => e.name !== "" && withoutRootSlash(e.name) === withoutRootSlash(variable)));
   if (!entry) {
     throw new InputError(`this ${container.format} file has no variable '${printable(variable)}'; ${listEntries(container)}`, { file, key: "connectomes.variable" });
   }

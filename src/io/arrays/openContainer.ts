@@ -3,6 +3,7 @@ import type { ArrayContainer } from "./arrayContainer.js";
 import { ciftiContainer, niftiOneRefused } from "./ciftiContainer.js";
 import { FORMAT_NAMES, type FileFormat } from "./fileFormat.js";
 import { mat5Container } from "./mat5Container.js";
+import { hdf5Container, matlab73Container } from "./hdf5Container.js";
 import { npyContainer } from "./npyContainer.js";
 import { npzContainer } from "./npzContainer.js";
 
@@ -15,6 +16,8 @@ const READERS: Partial<Record<FileFormat, ContainerReader>> = {
   zip: npzContainer,
   nifti2: ciftiContainer,
   nifti1: niftiOneRefused,
+  hdf5: hdf5Container,
+  mat73: matlab73Container,
 };
 
 /** Opens a binary input whose bytes say it is `format`. */
