@@ -1,5 +1,5 @@
 import type { NumericArray } from "./arrayContainer.js";
-import { columnMajorToC } from "./columnMajorToC.js";
+import { columnMajorToC } from "./columnMajor.js";
 import { mat5Error, readTag, storedName, storedNumbers, type Mat5Place, type Segment } from "./mat5Elements.js";
 import {
   CLASS_NAMES,

@@ -1,6 +1,6 @@
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
-import { columnMajorToC } from "../../../src/io/arrays/columnMajorToC.js";
+import { columnMajorToC } from "../../../src/io/arrays/columnMajor.js";
 
 /** Element by element from the definition: C-order index Σ i_t·(d_{t+1}⋯d_k) takes column-major index Σ i_t·(d_0⋯d_{t−1}). */
 function byDefinition(source: Float64Array, dims: number[]): Float64Array {

@@ -185,7 +185,7 @@ describe("HDF5 reading errors name the file and the dataset", () => {
     expectInputError(() => loadConnectomes({ kind: "file", path: fixture("plain_groups.h5") }, subjects(), PLAIN), {
       file: fixture("plain_groups.h5"),
       key: "connectomes",
-      message: [/HDF5 file holds 2 arrays that could be stack/, "/conn (3 × 4 × 4 float64)", "/group/conn (3 × 4 × 4 float64)"],
+      message: [/HDF5 file holds 2 arrays that could be the stack/, "/conn (3 × 4 × 4 float64)", "/group/conn (3 × 4 × 4 float64)"],
       hint: /variable/,
     });
     const matlab = open("matlab73_stack.mat");
