@@ -21,7 +21,7 @@ describe("NumPy .npy per participant and N × N × S (numpy np.save)", () => {
     expect(loaded.reading).toMatchObject({ reader: "NumPy .npy", shape: [5, 5] });
   });
   it("an N × N × S stack is read with participants on the last axis, from its shape alone", () => {
-    const loaded = loadConnectomes({ kind: "file", path: join(FIXTURES, "npy/cohort_last.npy") }, subjects, { ...PLAIN, participantRowCount: 6 });
+    const loaded = loadConnectomes({ kind: "file", path: join(FIXTURES, "npy/stack/cohort_last.npy") }, subjects, { ...PLAIN, participantRowCount: 6 });
     expect(Array.from(loaded.data)).toEqual(Array.from(text.data));
     expect(loaded.reading).toMatchObject({ reader: "NumPy .npy", shape: [5, 5, 6], subjectsAxis: "last" });
   });
