@@ -2,6 +2,7 @@ import { readFileSync } from "node:fs";
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
 import fc from "fast-check";
+import { mutateBytes } from "../../helpers/mutateBytes.js";
 import { describe, expect, it } from "vitest";
 import { ciftiContainer } from "../../../src/io/arrays/ciftiContainer.js";
 import { detectFormat } from "../../../src/io/arrays/fileFormat.js";
@@ -183,19 +184,7 @@ describe("CIFTI-2: damaged files are InputErrors naming the file", () => {
     });
     fc.assert(
       fc.property(mutation, ({ source, edits }) => {
-        let bytes = sources[source].slice();
-        for (const [kind, at, value] of edits) {
-          const k = at % (bytes.length + 1);
-          if (kind === "set" && k < bytes.length) bytes[k] = value;
-          else if (kind === "cut") bytes = bytes.slice(0, k);
-          else {
-            const grown = new Uint8Array(bytes.length + 1);
-            grown.set(bytes.subarray(0, k));
-            grown[k] = value;
-            grown.set(bytes.subarray(k), k + 1);
-            bytes = grown;
-          }
-        }
+        const bytes = mutateBytes(sources[source], edits);
         return parsesOrInputError(() => ciftiContainer(bytes, "m.pconn.nii").read(""));
       }),
       { numRuns: 3000 },

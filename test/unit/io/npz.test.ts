@@ -3,6 +3,7 @@ import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
 import fc from "fast-check";
 import { zipSync } from "fflate";
+import { mutateBytes } from "../../helpers/mutateBytes.js";
 import { describe, expect, it } from "vitest";
 import { chooseMatrix, chooseStack } from "../../../src/io/arrays/chooseArray.js";
 import { npzContainer } from "../../../src/io/arrays/npzContainer.js";
@@ -237,19 +238,7 @@ describe("NumPy .npz: errors name the file and what it holds", () => {
     });
     fc.assert(
       fc.property(mutation, ({ source, edits }) => {
-        let bytes = sources[source].slice();
-        for (const [kind, at, value] of edits) {
-          const k = at % (bytes.length + 1);
-          if (kind === "set" && k < bytes.length) bytes[k] = value;
-          else if (kind === "cut") bytes = bytes.slice(0, k);
-          else {
-            const grown = new Uint8Array(bytes.length + 1);
-            grown.set(bytes.subarray(0, k));
-            grown[k] = value;
-            grown.set(bytes.subarray(k), k + 1);
-            bytes = grown;
-          }
-        }
+        const bytes = mutateBytes(sources[source], edits);
         return parsesOrInputError(() => {
           const container = npzContainer(bytes, "m.npz");
           for (const entry of container.entries) container.read(entry.name);
