@@ -18,6 +18,7 @@ import { encodeNpy, parseNpy } from "../../../src/io/npy.js";
 import { parseMatrixText } from "../../../src/io/matrixText.js";
 import { readTextFile } from "../../../src/io/readInputFile.js";
 import { expectInputError } from "./inputErrorAssertions.js";
+import { mutateBytes, type ByteEdit } from "../../helpers/mutateBytes.js";
 
 /**
  * The streaming .npy reader (one matrix at a time at its offset) and the block
@@ -292,19 +293,7 @@ describe("the streaming .npy reader equals the whole-file reader", () => {
     });
     fc.assert(
       fc.property(mutation, ({ source, edits, rowCount }) => {
-        let bytes = sources[source].slice();
-        for (const [kind, at, value] of edits) {
-          const k = at % (bytes.length + 1);
-          if (kind === "set" && k < bytes.length) bytes[k] = value;
-          else if (kind === "cut") bytes = bytes.slice(0, k);
-          else {
-            const grown = new Uint8Array(bytes.length + 1);
-            grown.set(bytes.subarray(0, k));
-            grown[k] = value;
-            grown.set(bytes.subarray(k), k + 1);
-            bytes = grown;
-          }
-        }
+        const bytes = mutateBytes(sources[source], edits as ByteEdit[]);
         const path = writeFile(bytes, "mutated.npy");
         expectSameAsWholeFile(path, [subject("b", 1), subject("a", 0)], { ...SYMMETRIZE, participantRowCount: rowCount }, `edits ${JSON.stringify(edits)}`);
       }),

@@ -7,6 +7,7 @@ import fc from "fast-check";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { encodeNpy, parseNpy } from "../../../src/io/npy.js";
 import { expectInputError, parsesOrInputError } from "./inputErrorAssertions.js";
+import { mutateBytes, type ByteEdit } from "../../helpers/mutateBytes.js";
 
 const FIXTURES = join(dirname(fileURLToPath(import.meta.url)), "../../fixtures/npy");
 
@@ -209,19 +210,7 @@ describe("parseNpy: malformed files are InputErrors naming the file and the prob
     });
     fc.assert(
       fc.property(mutation, ({ source, edits }) => {
-        let bytes = sources[source].slice();
-        for (const [kind, at, value] of edits) {
-          const k = at % (bytes.length + 1);
-          if (kind === "set" && k < bytes.length) bytes[k] = value;
-          else if (kind === "cut") bytes = bytes.slice(0, k);
-          else {
-            const grown = new Uint8Array(bytes.length + 1);
-            grown.set(bytes.subarray(0, k));
-            grown[k] = value;
-            grown.set(bytes.subarray(k), k + 1);
-            bytes = grown;
-          }
-        }
+        const bytes = mutateBytes(sources[source], edits as ByteEdit[]);
         return parsesOrInputError(() => parseNpy(bytes, "m.npy"));
       }),
       { numRuns: 5000 },
