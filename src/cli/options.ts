@@ -1,4 +1,6 @@
 import { InputError } from "../errors.js";
+import type { InferenceOverrides } from "../common/inferenceOverrides.js";
+import { INFERENCE_KEYS } from "../io/design/designKeys.js";
 
 // Values of the options several commands share, checked where the command line is read.
 
@@ -19,3 +21,33 @@ export function parseShard(text: string): { index: number; count: number } {
   }
   return { index, count };
 }
+
+/** `--permutations N`: the design key's own rule (a whole number from 1 to the limit). */
+export function parsePermutations(text: string): number {
+  const value = /^\s*\d+\s*$/.test(text) ? Number(text) : NaN;
+  if (!INFERENCE_KEYS.permutations.test(value)) {
+    throw new InputError(`--permutations takes ${INFERENCE_KEYS.permutations.rule}, found '${text}'`, { key: "--permutations" });
+  }
+  return value;
+}
+
+/** `--seed N`: the design key's own rule (a whole number ≥ 0). */
+export function parseSeed(text: string): number {
+  const value = /^\s*\d+\s*$/.test(text) ? Number(text) : NaN;
+  if (!INFERENCE_KEYS.seed.test(value)) {
+    throw new InputError(`--seed takes ${INFERENCE_KEYS.seed.rule} (at most ${Number.MAX_SAFE_INTEGER}), found '${text}'`, { key: "--seed" });
+  }
+  return value;
+}
+
+/** The `--permutations`/`--seed` flags as overrides of the design's inference (undefined when neither is given). */
+export function parseOverrides(flags: { permutations?: string; seed?: string }): InferenceOverrides | undefined {
+  if (flags.permutations === undefined && flags.seed === undefined) return undefined;
+  return {
+    ...(flags.permutations !== undefined ? { permutations: parsePermutations(flags.permutations) } : {}),
+    ...(flags.seed !== undefined ? { seed: parseSeed(flags.seed) } : {}),
+  };
+}
+
+export const PERMUTATIONS_FLAG = ["--permutations <n>", "relabelings to draw, instead of the design's inference.permutations (a trial run; recorded in the results)"] as const;
+export const SEED_FLAG = ["--seed <n>", "seed of the relabelings, instead of the design's inference.seed (recorded in the results)"] as const;

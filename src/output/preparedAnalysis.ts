@@ -7,6 +7,8 @@ import type { EdgeFit } from "../edges/fitEdges.js";
 import type { Contrast } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import type { Formula } from "../model/formula.js";
+import type { AppliedOverrides } from "../common/inferenceOverrides.js";
+import type { ContrastRelabelings } from "../permute/exchangeability.js";
 
 // The validated inputs of an analysis, as run/prepareAnalysis.ts makes them and the writers of
 // the results (subjects, regions, summary.json) read them. The type lives with its readers so
@@ -47,4 +49,8 @@ export interface PreparedAnalysis {
   warnings: string[];
   /** The fit of every edge, when preparation needed it (threshold-free: the step's bound); the run reuses it. */
   fit?: EdgeFit;
+  /** `--permutations`/`--seed` that replaced the design's values (already applied to `design.inference`). */
+  overrides?: AppliedOverrides;
+  /** Each contrast's relabelings as the run will draw them (absent for `method: fdr`), for `plexus check`. */
+  relabelings?: ContrastRelabelings[];
 }

@@ -4,7 +4,7 @@ import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
 import type { AnalysisResults } from "./analysisResults.js";
 import { relabelingSummary, smallestPossibleP } from "./relabelingSummary.js";
-import { inferenceSummary, inputsSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
+import { inferenceSummary, inputsSummary, overridesSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
 
 /**
  * summary.json of a results folder: the tool and command, the inputs with
@@ -86,7 +86,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
       transform: design.transform,
       symmetrize: design.symmetrize,
       asymmetry_tolerance: design.asymmetryTolerance,
-      inference: inferenceSummary(inference, { components: true }),
+      inference: { ...inferenceSummary(inference, { components: true }), command_line_overrides: overridesSummary(prepared.overrides) },
     },
     warnings: prepared.warnings,
   };

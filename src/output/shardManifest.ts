@@ -9,6 +9,11 @@ export interface ShardManifest {
   design: string;
   fingerprint: string;
   seed: number;
+  /**
+   * `--permutations`/`--seed` the shard ran with in place of the design's (absent when none):
+   * merge applies them again, and shards with different ones have different fingerprints.
+   */
+  command_line_overrides?: { permutations?: number; seed?: number };
   shard: { index: number; count: number };
   /** 1-based, inclusive range of relabelings computed. */
   range: { from: number; to: number };

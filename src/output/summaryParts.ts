@@ -1,5 +1,6 @@
 import path from "node:path";
 import type { InferenceSpec } from "../common/inferenceOptions.js";
+import type { AppliedOverrides } from "../common/inferenceOverrides.js";
 import type { MatrixReading } from "../io/arrays/containerConnectomes.js";
 import type { PreparedAnalysis } from "./preparedAnalysis.js";
 import type { InputRecord } from "./provenance.js";
@@ -101,4 +102,18 @@ export function primaryRule(inference: InferenceSpec): string {
 /** One line of the resolved inference options, e.g. "components, threshold 3, size extent, tail both, alpha 0.05". */
 export function inferenceLine(inference: InferenceSpec): string {
   return `${inference.method}, threshold ${inference.thresholds.join(", ")}, size ${inference.size}, tail ${inference.tail}, alpha ${inference.alpha}`;
+}
+
+/**
+ * summary.json's `options.inference.command_line_overrides`: the `--permutations`/`--seed` values
+ * that replaced the design's (`permutations`, `seed`; only those given and different), with the
+ * design's own under `design`; null when the run used the design as written.
+ */
+export function overridesSummary(overrides: AppliedOverrides | undefined): Record<string, unknown> | null {
+  if (!overrides) return null;
+  return {
+    ...(overrides.permutations !== undefined ? { permutations: overrides.permutations } : {}),
+    ...(overrides.seed !== undefined ? { seed: overrides.seed } : {}),
+    design: { ...overrides.design },
+  };
 }

@@ -25,6 +25,14 @@ export function writeShard(
     design: path.resolve(prepared.design.file),
     fingerprint,
     seed: prepared.design.inference.seed,
+    ...(prepared.overrides
+      ? {
+          command_line_overrides: {
+            ...(prepared.overrides.permutations !== undefined ? { permutations: prepared.overrides.permutations } : {}),
+            ...(prepared.overrides.seed !== undefined ? { seed: prepared.overrides.seed } : {}),
+          },
+        }
+      : {}),
     shard,
     range: { from: first.rows.from, to: first.rows.to - 1 },
     total: first.setup.context.plan.count,

@@ -3,7 +3,14 @@ import type { InferenceSpec } from "../common/inferenceOptions.js";
 import type { Contrast } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
 import { partitionEffect, partitionEffectRows, type EffectPartition } from "./effectPartition.js";
-import { countDistinct, designRowTypes, type SchemeKind } from "./relabelings.js";
+import { designRowTypes, planRelabelings, type RelabelingPlan, type SchemeKind } from "./relabelings.js";
+
+/** The relabelings a contrast's null will use: the scheme, why, and the plan (exact or Monte Carlo, count, seed, blocks). */
+export interface ContrastRelabelings {
+  scheme: SchemeKind;
+  reason: string;
+  plan: RelabelingPlan;
+}
 
 /**
  * Chooses the scheme (Winkler et al. 2014): a contrast on the constant term
@@ -65,6 +72,8 @@ export function contrastPartition(matrix: DesignMatrix, contrast: Contrast): Pic
  * the scheme each contrast can use, equal block sizes for whole-block
  * permutation, and at least one relabeling besides the identity (blocks of
  * one subject each, such as `blocks: participant_id`, allow no permutation).
+ * Returns each contrast's plan, the one `nullContext.ts` makes from the same
+ * inputs (so `plexus check` prints what a run would do).
  */
 export function checkRelabelings(options: {
   matrix: DesignMatrix;
@@ -73,15 +82,16 @@ export function checkRelabelings(options: {
   inference: InferenceSpec;
   blocks?: Int32Array;
   where: (key: string) => InputLocation;
-}): void {
+}): ContrastRelabelings[] {
   const { matrix, inference, blocks } = options;
   const whole = inference.blockPermutation === "whole" && blocks !== undefined;
   if (blocks && whole) checkWholeBlockSizes(blocks, options.where("inference.block_permutation"));
   const rowTypes = designRowTypes(matrix.values, matrix.rows, matrix.cols);
-  const blockList = blocks ? [...blocks] : new Array<number>(matrix.rows).fill(0);
-  options.contrasts.forEach((contrast, k) => {
-    const { scheme } = chooseScheme(contrastPartition(matrix, contrast), inference.scheme, options.contrastWhere[k]);
-    if (countDistinct(scheme, rowTypes, blockList, whole) < 2) {
+  const blockList = blocks ? [...blocks] : undefined;
+  return options.contrasts.map((contrast, k) => {
+    const { scheme, reason } = chooseScheme(contrastPartition(matrix, contrast), inference.scheme, options.contrastWhere[k]);
+    const plan = planRelabelings({ kind: scheme, rowTypes, blocks: blockList, wholeBlocks: whole, seed: inference.seed, requested: inference.permutations });
+    if (plan.distinct < 2) {
       const key = blocks ? "inference.blocks" : "inference.scheme";
       throw new InputError(
         blocks
@@ -98,6 +108,7 @@ export function checkRelabelings(options: {
         "block on a column that groups subjects of both kinds (e.g. family or site), use `block_permutation: whole` to exchange whole blocks, or remove `blocks:`",
       );
     }
+    return { scheme, reason, plan };
   });
 }
 

@@ -15,6 +15,8 @@ import { prepareAnalysis } from "./prepareAnalysis.js";
 import { writeReport } from "../output/report/writeReport.js";
 import type { RunLog } from "./runAnalysis.js";
 import { runFingerprint } from "./runFingerprint.js";
+import { overrideFlags, type InferenceOverrides } from "../common/inferenceOverrides.js";
+import { PERMUTATIONS_LIMIT } from "../io/design/designKeys.js";
 
 /**
  * Merges shard folders into the results of an unsharded run: checks that
@@ -30,7 +32,16 @@ export function mergeShards(
   if (shardFolders.length === 0) throw new InputError("name the shard folders to merge");
   const manifests = shardFolders.map((folder) => ({ folder, manifest: readShardManifest(folder) }));
   const first = manifests[0].manifest;
+  const overrides = manifestOverrides(manifests[0].folder, first);
   for (const { folder, manifest } of manifests.slice(1)) {
+    const flags = overrideFlags(manifestOverrides(folder, manifest));
+    if (flags !== overrideFlags(overrides)) {
+      throw new InputError(
+        `this shard ran with ${flags || "no --permutations or --seed"} on the command line, the first shard with ${overrideFlags(overrides) || "none"}: their relabelings differ`,
+        { file: path.join(folder, SHARD_MANIFEST) },
+        `first shard: ${manifests[0].folder}; run every shard with the same options`,
+      );
+    }
     if (manifest.fingerprint !== first.fingerprint) {
       throw new InputError(
         "this shard belongs to a different design, inputs, seed or options than the first shard",
@@ -71,6 +82,7 @@ export function mergeShards(
   try {
     // The output is checked (inputs and shards, lock, --force rule) before any matrix is read.
     const prepared = prepareAnalysis(first.design, {
+      ...(overrides ? { overrides } : {}),
       beforeMatrices: (_design, inputs) => {
         opened.folder = ResultsFolder.open(options.out, {
           force: options.force ?? false,
@@ -126,4 +138,22 @@ export function mergeShards(
     opened.folder?.abandon();
     throw error;
   }
+}
+
+/** The `--permutations`/`--seed` a shard ran with (shard.json `command_line_overrides`), checked as the command line checks them. */
+function manifestOverrides(folder: string, manifest: ShardManifest): InferenceOverrides | undefined {
+  const recorded: unknown = manifest.command_line_overrides;
+  if (recorded === undefined) return undefined;
+  const file = path.join(folder, SHARD_MANIFEST);
+  if (typeof recorded !== "object" || recorded === null) throw new InputError("command_line_overrides is not an object", { file });
+  const { permutations, seed } = recorded as Record<string, unknown>;
+  const whole = (value: unknown, low: number, high: number) => typeof value === "number" && Number.isInteger(value) && value >= low && value <= high;
+  if (permutations !== undefined && !whole(permutations, 1, PERMUTATIONS_LIMIT)) {
+    throw new InputError(`command_line_overrides.permutations is not a whole number from 1 to ${PERMUTATIONS_LIMIT}`, { file });
+  }
+  if (seed !== undefined && !whole(seed, 0, Number.MAX_SAFE_INTEGER)) throw new InputError("command_line_overrides.seed is not a whole number ≥ 0", { file });
+  return {
+    ...(permutations !== undefined ? { permutations: permutations as number } : {}),
+    ...(seed !== undefined ? { seed: seed as number } : {}),
+  };
 }

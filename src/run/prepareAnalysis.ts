@@ -23,6 +23,7 @@ import { contrastFolderProblem } from "../output/reservedNames.js";
 import { checkRelabelings } from "../permute/exchangeability.js";
 import type { ExcludedSubject, KeptSubject, PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { checkEnhancementLevels } from "./enhancementLevels.js";
+import { applyInferenceOverrides, overrideWarning, type InferenceOverrides } from "../common/inferenceOverrides.js";
 
 
 /**
@@ -47,6 +48,8 @@ export interface PrepareHooks {
    * is checked against them here, so that a wrong --out fails at once).
    */
   beforeMatrices?: (design: DesignSpec, inputs: GuardedInputs) => void;
+  /** `--permutations`/`--seed` given on the command line, replacing the design's values. */
+  overrides?: InferenceOverrides;
 }
 
 /** Reads and validates every input of a design file, in the order a user would fix them. */
@@ -55,8 +58,14 @@ export function prepareAnalysis(designFile: string, hooks: PrepareHooks = {}): P
   return prepareFromDesign(design, hooks);
 }
 
-export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}): PreparedAnalysis {
-  const where = (key: string) => designKeyLocation(design, key);
+export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHooks = {}): PreparedAnalysis {
+  const { inference: overridden, applied: overrides } = applyInferenceOverrides(designAsWritten.inference, hooks.overrides);
+  const design: DesignSpec = overrides ? { ...designAsWritten, inference: overridden } : designAsWritten;
+  // A value given on the command line is located at its flag, not at the design key it replaced.
+  const where = (key: string) =>
+    (key === "inference.permutations" && overrides?.permutations !== undefined) || (key === "inference.seed" && overrides?.seed !== undefined)
+      ? { key: `--${key.slice("inference.".length)}` }
+      : designKeyLocation(design, key);
   for (const spec of design.contrasts) {
     const problem = contrastFolderProblem(spec.name);
     if (problem) {
@@ -148,6 +157,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     );
   }
   const warnings: string[] = [];
+  if (overrides) warnings.push(overrideWarning(overrides, design.file));
   if (excluded.length > 0) {
     warnings.push(
       `${excluded.length} subject${excluded.length > 1 ? "s" : ""} left out for missing values: ${excluded
@@ -209,8 +219,9 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     const labels = [...new Set(values)];
     blocks = { column: blockColumn, codes: Int32Array.from(values, (v) => labels.indexOf(v)), labels };
   }
+  let relabelings: PreparedAnalysis["relabelings"];
   if (inference.method !== "fdr") {
-    checkRelabelings({
+    relabelings = checkRelabelings({
       matrix,
       contrasts,
       contrastWhere: design.contrasts.map((spec) => ({ file: design.file, key: spec.key, line: spec.line })),
@@ -284,6 +295,8 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     inputs,
     warnings,
     ...(fit ? { fit } : {}),
+    ...(overrides ? { overrides } : {}),
+    ...(relabelings ? { relabelings } : {}),
   };
 }
 

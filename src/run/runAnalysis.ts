@@ -15,6 +15,7 @@ import { computeNull, contrastInference, needsPermutations, setupNull } from "./
 import { prepareAnalysis } from "./prepareAnalysis.js";
 import { resultLines } from "./resultLines.js";
 import { runFingerprint } from "./runFingerprint.js";
+import type { InferenceOverrides } from "../common/inferenceOverrides.js";
 
 /** What the user asked for (CLI flags or library call). */
 export interface RunOptions {
@@ -32,6 +33,8 @@ export interface RunOptions {
   chunkSize?: number;
   /** The command line as typed, for provenance. */
   commandLine?: string[];
+  /** `--permutations`/`--seed`: replace the design's values for a trial run (recorded in every output). */
+  overrides?: InferenceOverrides;
 }
 
 export interface RunLog {
@@ -64,6 +67,7 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
   try {
     // The output is checked (inputs, lock, --force rule, checkpoint) before any matrix is read.
     const prepared = prepareAnalysis(options.designFile, {
+      ...(options.overrides ? { overrides: options.overrides } : {}),
       beforeMatrices: (design, inputs) => {
         opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs, warn: log.warn });
         if (design.inference.method !== "fdr" && !options.shard && !options.resume && !options.force) refuseUnfinishedCheckpoint(options.out);

@@ -16,7 +16,8 @@ import { valuesTable } from "./strengthTables.js";
  * `plexus extract`: the per-subject mean connectivity of each chosen edge
  * set (by default every significant subnetwork of an earlier results
  * folder), after the design's transform, in one TSV with participant_id and
- * the model's columns as read, for analysis in any statistics package. The
+ * the model's columns as read, the sets' means, then every other column of
+ * the participants table, for analysis in any statistics package. The
  * file is written to a temporary name beside the target and renamed into
  * place. When the subnetwork was found in the same data, a warning says that
  * testing it again there is circular, and what would be valid.
@@ -82,7 +83,15 @@ export function runExtract(options: ExtractOptions, log: StrengthLog): ExtractRe
     const column = prepared.participants.columns.get(name)!;
     return { name, cells: prepared.kept.map((k) => column[k.tableRow]) };
   });
-  writeResultFile(target, valuesTable(ids, cells, selected.sets.map((s) => s.name), values));
+  // Then every other column of the participants table, in table order, so the file stands alone for analysis elsewhere.
+  const rest = prepared.participants.header
+    .slice(1)
+    .filter((name) => !columns.includes(name))
+    .map((name) => {
+      const column = prepared.participants.columns.get(name)!;
+      return { name, cells: prepared.kept.map((k) => column[k.tableRow]) };
+    });
+  writeResultFile(target, valuesTable(ids, cells, selected.sets.map((s) => s.name), values, rest));
   if (!options.quiet) {
     for (const set of selected.sets) log.info(`${set.name}: ${set.description}, ${set.edges.length} edges`);
     log.info(`mean connectivity of ${selected.sets.length} edge set(s) for ${S} participants written to ${target}`);

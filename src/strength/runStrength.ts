@@ -46,6 +46,7 @@ export async function runStrength(options: StrengthOptions, log: StrengthLog, pr
   try {
     // The output is checked (inputs, lock, --force rule) before any matrix is read.
     const prepared = prepareAnalysis(options.designFile, {
+      ...(options.overrides ? { overrides: options.overrides } : {}),
       beforeMatrices: (_design, inputs) => {
         opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs: withSelectionInputs(inputs, options.selection), warn: log.warn });
       },

@@ -1,4 +1,5 @@
 import { formatFormula } from "../model/formula.js";
+import { overridesSentence } from "../output/report/overridesText.js";
 import { escapeMarkdown } from "../output/report/escapeMarkdown.js";
 import { fixed, MISSING, pValue, significant } from "../output/report/printNumbers.js";
 import type { ReportTable } from "../output/report/reportTable.js";
@@ -70,7 +71,8 @@ function contrastTable(prepared: PreparedAnalysis, analysis: StrengthAnalysis, r
               : `random relabelings (Monte Carlo, ${familywise.setup.scheme === "sign-flip" ? "sign flips" : "Freedman–Lane"}, seed ${inference.seed})`
           }.`
         : " No permutations were drawn (the design's method is fdr), so p_FWE is not given.") +
-      (nodal ? ` q_FDR: ${inference.fdr === "by" ? "Benjamini–Yekutieli (2001)" : "Benjamini–Hochberg (1995)"} adjusted p across the regions.` : ""),
+      (nodal ? ` q_FDR: ${inference.fdr === "by" ? "Benjamini–Yekutieli (2001)" : "Benjamini–Hochberg (1995)"} adjusted p across the regions.` : "") +
+      (familywise && prepared.overrides ? ` ${overridesSentence(prepared.overrides)}` : ""),
   ];
   const table: ReportTable = {
     id: `strength-${result.contrast.name}`,

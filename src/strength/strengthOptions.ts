@@ -1,3 +1,4 @@
+import type { InferenceOverrides } from "../common/inferenceOverrides.js";
 import { InputError } from "../errors.js";
 
 /**
@@ -40,6 +41,8 @@ export interface StrengthOptions {
   chunkSize?: number;
   /** The command line as typed, for provenance. */
   commandLine?: string[];
+  /** `--permutations`/`--seed` in place of the design's values (recorded in summary.json and results.md). */
+  overrides?: InferenceOverrides;
 }
 
 /** The option names the CLI uses, for located errors. */

@@ -1,4 +1,4 @@
-import { inferenceSummary, inputsSummary, subjectsSummary } from "../output/summaryParts.js";
+import { inferenceSummary, inputsSummary, overridesSummary, subjectsSummary } from "../output/summaryParts.js";
 import { relabelingSummary, smallestPossibleP } from "../output/relabelingSummary.js";
 import path from "node:path";
 import type { InputRecord } from "../output/provenance.js";
@@ -77,7 +77,7 @@ export function strengthSummary(
     options: {
       transform: design.transform,
       symmetrize: design.symmetrize,
-      inference: inferenceSummary(inference, { components: false }),
+      inference: { ...inferenceSummary(inference, { components: false }), command_line_overrides: overridesSummary(prepared.overrides) },
     },
     warnings,
   };

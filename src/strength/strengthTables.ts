@@ -66,13 +66,16 @@ export function distinctNames(taken: readonly string[], names: readonly string[]
 
 /**
  * Per-subject values: participant_id, then `columns` (e.g. the model's
- * variables as read), then one column per measure; one row per subject.
+ * variables as read), then one column per measure, then `trailing` columns
+ * (e.g. the rest of the participants table, under their own names: a measure
+ * whose name one of them holds is the one renamed); one row per subject.
  */
 export function valuesTable(
   ids: string[],
   columns: { name: string; cells: (string | null)[] }[],
   names: string[],
   values: Float64Array,
+  trailing: { name: string; cells: (string | null)[] }[] = [],
 ): string {
   const S = ids.length;
   const header = ["participant_id", ...columns.map((c) => c.name)];
@@ -80,6 +83,8 @@ export function valuesTable(
     id,
     ...columns.map((c) => c.cells[s] ?? "n/a"),
     ...names.map((_, m) => values[m * S + s]),
+    ...trailing.map((c) => c.cells[s] ?? "n/a"),
   ]);
-  return formatTsv([...header, ...distinctNames(header, names)], rows);
+  const trailingNames = trailing.map((c) => c.name);
+  return formatTsv([...header, ...distinctNames([...header, ...trailingNames], names), ...trailingNames], rows);
 }

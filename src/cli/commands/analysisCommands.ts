@@ -9,7 +9,8 @@ import { describeReading } from "../../io/arrays/describeReading.js";
 import { silentProgress } from "../../common/progress.js";
 import { stderrProgress } from "../progress.js";
 import type { OutputSink } from "../outputSink.js";
-import { parseShard, parseThreads } from "../options.js";
+import { parseOverrides, parseShard, parseThreads, PERMUTATIONS_FLAG, SEED_FLAG } from "../options.js";
+import { inferencePlanLines } from "../inferencePlan.js";
 import { terminalLog } from "../terminalLog.js";
 import { inferenceLine } from "../../output/summaryParts.js";
 
@@ -20,8 +21,11 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
     .command("check")
     .description("validate a design file and every input it names, and print the model that would be fitted")
     .argument("<design>", "design file (YAML)")
-    .action((designFile: string) => {
-      const prepared = prepareAnalysis(designFile);
+    .option(...PERMUTATIONS_FLAG)
+    .option(...SEED_FLAG)
+    .action((designFile: string, flags: OverrideFlags) => {
+      const overrides = parseOverrides(flags);
+      const prepared = prepareAnalysis(designFile, overrides ? { overrides } : {});
       const { matrix, connectomes, design } = prepared;
       const lines = [
         `design      ${designFile}`,
@@ -35,6 +39,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
           (c) => `contrast    ${c.name}: ${c.expression}  ->  ${formatContrastRows(c.kind === "F" ? c.rows : [c.vector], c.kind)}`,
         ),
         `inference   ${inferenceLine(design.inference)}`,
+        ...inferencePlanLines(prepared),
       ];
       for (const warning of prepared.warnings) log.warn(warning);
       sink.out(`${printable(lines.join("\n"))}\nok: the design and its inputs are valid\n`);
@@ -50,7 +55,10 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
     .option("-t, --threads <n>", "worker threads for the permutations (default: all cores)")
     .option("--shard <k/n>", "compute only the k-th of n equal shares of the permutations; combine with `plexus merge`")
     .option("--resume", "continue an interrupted run from its checkpoint", false)
+    .option(...PERMUTATIONS_FLAG)
+    .option(...SEED_FLAG)
     .action(async (designFile: string, flags: RunFlags) => {
+      const overrides = parseOverrides(flags);
       await runAnalysis(
         {
           designFile,
@@ -61,6 +69,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
           shard: flags.shard === undefined ? undefined : parseShard(flags.shard),
           resume: flags.resume,
           commandLine: ["plexus", ...argv()],
+          ...(overrides ? { overrides } : {}),
         },
         log,
         flags.quiet ? silentProgress : stderrProgress(sink),
@@ -85,7 +94,12 @@ export function formatContrastRows(rows: readonly Float64Array[], kind: "t" | "F
   return kind === "F" ? `[${rows.map(row).join(", ")}]` : row(rows[0]);
 }
 
-interface RunFlags {
+interface OverrideFlags {
+  permutations?: string;
+  seed?: string;
+}
+
+interface RunFlags extends OverrideFlags {
   out: string;
   force: boolean;
   quiet: boolean;

@@ -6,7 +6,7 @@ import { MEASURE_KINDS, OPTION, type EdgeSelection, type MeasureKind } from "../
 import type { OutputSink } from "../outputSink.js";
 import { silentProgress } from "../../common/progress.js";
 import { stderrProgress } from "../progress.js";
-import { parseThreads } from "../options.js";
+import { parseOverrides, parseThreads, PERMUTATIONS_FLAG, SEED_FLAG } from "../options.js";
 import { terminalLog } from "../terminalLog.js";
 
 /** The flags as commander hands them over: text, or booleans for switches. */
@@ -26,6 +26,8 @@ interface StrengthFlags extends SelectionFlags {
   threads?: string;
   force: boolean;
   quiet: boolean;
+  permutations?: string;
+  seed?: string;
 }
 
 interface ExtractFlags extends SelectionFlags {
@@ -97,9 +99,12 @@ export function registerStrength(program: Command, sink: OutputSink, argv: () =>
     .option("--from <dir>", "subnetwork: the significant components of an earlier results folder's contrast (RESULTS_DIR/<contrast>)")
     .option("--component <ids>", "with --from: these component ids instead of every component with p_fwe ≤ alpha")
     .option("-t, --threads <n>", "worker threads for the permutations (default: all cores)")
+    .option(...PERMUTATIONS_FLAG)
+    .option(...SEED_FLAG)
     .option("-f, --force", "replace an existing results folder", false)
     .option("-q, --quiet", "print nothing but warnings and errors", false)
     .action(async (designFile: string, flags: StrengthFlags) => {
+      const overrides = parseOverrides(flags);
       await runStrength(
         {
           designFile,
@@ -112,6 +117,7 @@ export function registerStrength(program: Command, sink: OutputSink, argv: () =>
           force: flags.force,
           quiet: flags.quiet,
           commandLine: ["plexus", ...argv()],
+          ...(overrides ? { overrides } : {}),
         },
         log,
         flags.quiet ? silentProgress : stderrProgress(sink),
@@ -120,7 +126,7 @@ export function registerStrength(program: Command, sink: OutputSink, argv: () =>
 
   program
     .command("extract")
-    .description("write each subject's mean connectivity of significant subnetworks (or chosen edges) with the model columns, as TSV")
+    .description("write each subject's mean connectivity of significant subnetworks (or chosen edges) with the participants table's columns, as TSV")
     .argument("<design>", "design file (YAML)")
     .requiredOption("-o, --out <file>", "the TSV to write (refused if it exists, unless --force)")
     .option("--from <dir>", "a contrast folder of an earlier results folder (RESULTS_DIR/<contrast>): its components with p_fwe ≤ alpha")

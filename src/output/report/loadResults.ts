@@ -10,6 +10,7 @@ import { parseNullTable } from "../nullTable.js";
 import type { KnownResults } from "../writeResults.js";
 import type { NullChunk } from "../../permute/nullRangeTypes.js";
 import { tsvCellText } from "./tsvCellText.js";
+import type { RecordedOverrides } from "./overridesText.js";
 
 /**
  * A results folder read back from disk, as `plexus run` wrote it:
@@ -67,6 +68,8 @@ export interface ResultsSummary {
       scheme: string;
       blocks: string | null;
       block_permutation: string;
+      /** `--permutations`/`--seed` that replaced the design's values; null or absent when none. */
+      command_line_overrides?: RecordedOverrides | null;
     };
   };
   warnings: string[];

@@ -3,6 +3,7 @@ import { escapeHtml } from "./escapeHtml.js";
 import type { LoadedResults } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
 import { count, plain, significant } from "./printNumbers.js";
+import { overridesSentence } from "./overridesText.js";
 
 /**
  * The methods paragraph: every choice in force, read from summary.json, in
@@ -190,6 +191,7 @@ export function methodsText(results: LoadedResults): MethodsText {
         ` For ${exact.length === permuted.length ? "every contrast" : `${exact.length} contrast${exact.length > 1 ? "s" : ""}`}, all ${counts.map((k) => plain(k ?? NaN)).join(" or ")} distinct relabelings were enumerated (an exact test), and p_FWE = b/M, where b of the M relabelings, the observed labelling among them, had ${enhancedOnly ? "a largest enhanced value" : "a largest component"} at least as large.`,
       );
     }
+    if (inference.command_line_overrides) inferenceText.push(` ${overridesSentence(inference.command_line_overrides)}`);
     inferenceText.push(` ${enhancedOnly ? "Edges" : "Subnetworks"} with p_FWE ≤ ${plain(inference.alpha)} are reported as significant`);
     const critical = permuted.filter((c) => c.critical_size !== null && c.critical_size !== undefined && Number.isFinite(c.critical_size));
     if (critical.length > 0 && !enhancedOnly) {

@@ -8,6 +8,7 @@ import type { ReportContent } from "./reportContent.js";
 import { REPORT_STYLE } from "./reportStyle.js";
 import { thresholdRule } from "../summaryParts.js";
 import { htmlTable } from "./tables/htmlTable.js";
+import { overridesRow } from "./overridesText.js";
 
 /**
  * report.html: one self-contained page (inline CSS and SVG; no script, no
@@ -49,6 +50,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
         (c.exchangeability_blocks ? `; blocks ${code(c.exchangeability_blocks.column)} (${c.exchangeability_blocks.count}, ${h(c.exchangeability_blocks.permutation)})` : ""),
     ]);
   }
+  if (inference.command_line_overrides) summaryRows.push(["Command-line overrides", `${h(overridesRow(inference.command_line_overrides))}: the design file says otherwise`]);
   summaryRows.push(["Software", `plexus ${h(summary.tool.version)}`]);
 
   const findings = summary.contrasts.map((c, k) => {
