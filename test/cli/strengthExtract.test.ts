@@ -80,7 +80,7 @@ describe("plexus extract", () => {
     expect(significantComponents()).toContain(1);
   });
 
-  it("writes each significant component's mean connectivity with participant_id and the model columns; warns of double dipping on the same data", async () => {
+  it("writes each significant component's mean connectivity with participant_id, the model columns and then every other participants column; warns of double dipping on the same data", async () => {
     const out = path.join(root, "values.tsv");
     const result = await runCli(["extract", discovery, "--from", path.join(results(), "patient_gt_control"), "--out", out]);
     expect(result.code, result.stderr).toBe(0);
@@ -89,7 +89,7 @@ describe("plexus extract", () => {
     expect(result.stderr).toContain("cross-validation");
     const [header, ...rows] = readRows(out);
     const ids = significantComponents();
-    expect(header).toEqual(["participant_id", "group", "age", "sex", ...ids.map((id) => `component_${id}`)]);
+    expect(header).toEqual(["participant_id", "group", "age", "sex", ...ids.map((id) => `component_${id}`), "recall_score", "site"]);
     for (const id of ids) {
       const edges = componentEdges(id);
       expect(edges.length).toBeGreaterThan(0);
@@ -104,6 +104,9 @@ describe("plexus extract", () => {
     }
     const participants = readRows(path.join(root, "discovery", "participants.tsv"));
     expect(rows.map((r) => r.slice(1, 4))).toEqual(participants.slice(1).map((r) => r.slice(1, 4)));
+    // The columns not in the model, in the table's order, as the table holds them (controls' n/a kept).
+    expect(participants[0]).toEqual(["participant_id", "group", "age", "sex", "recall_score", "site"]);
+    expect(rows.map((r) => r.slice(-2))).toEqual(participants.slice(1).map((r) => r.slice(4, 6)));
     expect(readFileSync(out, "utf8").endsWith("\n")).toBe(true);
   });
 
@@ -113,7 +116,7 @@ describe("plexus extract", () => {
     expect(result.code, result.stderr).toBe(0);
     expect(result.stderr).not.toContain("warning");
     const [header, ...rows] = readRows(out);
-    expect(header).toEqual(["participant_id", "group", "age", "sex", "component_1"]);
+    expect(header).toEqual(["participant_id", "group", "age", "sex", "component_1", "recall_score", "site"]);
     const direct = directMean("replication", componentEdges(1));
     expect(rows.map((r) => r[0])).toEqual(direct.ids);
     expectAllClose(rows.map((r) => Number(r[4])), direct.values, { ...DIRECT, label: "component 1 in the replication sample" });
