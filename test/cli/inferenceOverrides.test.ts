@@ -205,13 +205,8 @@ describe("check prints the inference that would run", () => {
     const tally = [...new Set(patterns)].map((p) => patterns.filter((q) => q === p).length);
     const factorial = (n: number): number => (n <= 1 ? 1 : n * factorial(n - 1));
     const expected = tally.reduce((value, k) => value / factorial(k), factorial(sites.length));
+    expect(expected).toBeGreaterThan(1); // the simulated sites differ in their order of patients and controls
     const result = await runCli(["check", file]);
-    if (result.code === 2) {
-      // Whole-block exchange can leave only the identity (all blocks alike): then check refuses, naming the key.
-      expect(expected).toBe(1);
-      expect(result.stderr).toContain("inference.blocks");
-      return;
-    }
     expect(result.code, result.stderr).toBe(0);
     expect(result.stdout).toContain(`  relabelings  all ${expected.toLocaleString("en-US")} distinct relabelings, enumerated exactly`);
     expect(result.stdout).toContain(`  blocks       site: ${sites.length} blocks, whole blocks exchanged as units`);

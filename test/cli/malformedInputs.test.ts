@@ -173,6 +173,14 @@ const caseArbitrary = fc.record({
   out: fc.constantFrom(...OUT_CHOICES),
   force: fc.boolean(),
   resume: fc.boolean(),
+  // --permutations / --seed on the command line (check and run): valid, equal to the design's, or malformed.
+  override: fc.option(
+    fc.record({
+      flag: fc.constantFrom("--permutations", "--seed"),
+      value: fc.constantFrom("19", "40", "7", "0", "-2", "x", "1e3", "2.5", "", "9007199254740993"),
+    }),
+    { nil: undefined },
+  ),
 });
 
 function setKey(design: Record<string, unknown>, key: string, value: unknown, remove = false): void {
@@ -294,9 +302,10 @@ describe("malformed inputs never lose data and never fail with an internal error
         const out = path.resolve(study, testCase.out);
         const outName = path.relative(dir, out);
         const before = snapshot(dir);
+        const override = testCase.override ? [testCase.override.flag, testCase.override.value] : [];
         const argv =
           testCase.command === "check"
-            ? ["check", path.join(study, "design.yaml")]
+            ? ["check", path.join(study, "design.yaml"), ...override]
             : [
                 "run",
                 path.join(study, "design.yaml"),
@@ -307,6 +316,7 @@ describe("malformed inputs never lose data and never fail with an internal error
                 "--quiet",
                 ...(testCase.force ? ["--force"] : []),
                 ...(testCase.resume ? ["--resume"] : []),
+                ...override,
               ];
         const { code, stdout, stderr } = await runCli(argv);
         const context = `case ${caseNumber}: ${JSON.stringify(testCase)}\nstderr: ${stderr}`;
