@@ -14,6 +14,10 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { groupDesignLines, readRows, runCli, writeDesignFile, writeSimulatedCohort } from "../unit/strength/strengthTestFiles.js";
+import { Checkpoint } from "../../src/output/checkpoint.js";
+import { hashInputs } from "../../src/output/provenance.js";
+import { prepareAnalysis } from "../../src/run/prepareAnalysis.js";
+import { runFingerprint } from "../../src/run/runFingerprint.js";
 
 let root = "";
 let designA = "";
@@ -107,6 +111,22 @@ describe("run --permutations --seed", () => {
     expect(result.stderr).toContain(message);
     expect(result.stderr).not.toMatch(/\n\s+at /);
     expect(existsSync(out(`bad-${flags.join("")}`))).toBe(false);
+  });
+});
+
+describe("checkpoints with --permutations --seed", () => {
+  it("a checkpoint made with the flags cannot be resumed without them (exit 2)", async () => {
+    const target = out("resumed");
+    const prepared = prepareAnalysis(designA, { overrides: { permutations: 200, seed: 7 } });
+    const checkpoint = Checkpoint.create(target, runFingerprint(prepared, hashInputs(prepared.inputs)));
+    const one = new Float64Array([1]);
+    checkpoint.save("up", { from: 1, to: 2, maxExtent: one, maxMass: one, maxStatistic: one, extraNames: [], extra: [] });
+    const without = await runCli(["run", designA, "--out", target, "--resume", "--threads", "1", "--quiet"]);
+    expect(without.code).toBe(2);
+    expect(without.stderr).toContain("the checkpoint was made for a different design, inputs, seed or options");
+    const otherSeed = await runCli(["run", designA, "--out", target, "--resume", "--permutations", "200", "--seed", "8", "--threads", "1", "--quiet"]);
+    expect(otherSeed.code).toBe(2);
+    expect(Checkpoint.holdsChunks(target)).toBe(true);
   });
 });
 
