@@ -64,8 +64,12 @@ export function overrideFlags(applied: Pick<AppliedOverrides, "permutations" | "
   return flags.join(" ");
 }
 
-/** The warning printed on stderr (and kept in summary.json's warnings): the design says otherwise. */
-export function overrideWarning(applied: AppliedOverrides, designFile: string): string {
+/**
+ * The warning printed on stderr (and kept in summary.json's warnings): the design says otherwise; or, for a
+ * design whose method draws no relabelings (fdr), that the flags change nothing.
+ */
+export function overrideWarning(applied: AppliedOverrides, designFile: string, drawsRelabelings = true): string {
+  if (!drawsRelabelings) return `${overrideFlags(applied)} changes nothing here: the inference of ${designFile} (method fdr) draws no relabelings`;
   const parts: string[] = [];
   if (applied.permutations !== undefined) parts.push(`${applied.permutations} permutations (the design says ${applied.design.permutations})`);
   if (applied.seed !== undefined) parts.push(`seed ${applied.seed} (the design says ${applied.design.seed})`);

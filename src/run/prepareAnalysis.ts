@@ -157,7 +157,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     );
   }
   const warnings: string[] = [];
-  if (overrides) warnings.push(overrideWarning(overrides, design.file));
+  if (overrides) warnings.push(overrideWarning(overrides, design.file, inference.method !== "fdr"));
   if (excluded.length > 0) {
     warnings.push(
       `${excluded.length} subject${excluded.length > 1 ? "s" : ""} left out for missing values: ${excluded

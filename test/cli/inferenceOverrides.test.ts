@@ -251,9 +251,30 @@ describe("check prints the inference that would run", () => {
     expect(flips.stdout).toContain(`  relabelings  all ${(2 ** n).toLocaleString("en-US")} distinct relabelings, enumerated exactly (no more than the 100,000 permutations asked for)`);
     expect(flips.stdout).toContain("  seed         12 (not used: exact enumeration draws nothing at random) (command line; the design says 1)");
     expect(flips.stdout).toContain("  scheme       sign-flip: the contrast tests the constant term (one-sample design), so signs are flipped");
-    const fdr = await runCli(["check", writeDesignFile(out("one-sample-fdr.yaml"), lines("fdr"))]);
+    const fdr = await runCli(["check", writeDesignFile(out("one-sample-fdr.yaml"), lines("fdr")), "--seed", "3"]);
     expect(fdr.code, fdr.stderr).toBe(0);
+    expect(fdr.stderr).toContain("--seed 3 changes nothing here: the inference of");
+    expect(fdr.stderr).toContain("(method fdr) draws no relabelings");
     expect(fdr.stdout).toContain("plan        mean_up (t contrast)\n  method       fdr: false discovery rate over edges (Benjamini–Hochberg) on the t distribution's p-values; alpha 0.05\n  relabelings  none (fdr draws no relabelings)\n");
+  });
+});
+
+describe("the worked design designs/clinic-within-site.yaml", () => {
+  it("check prints its plan: Monte Carlo within the demo cohort's 3 sites, seed from the command line", async () => {
+    const file = path.resolve(__dirname, "..", "..", "designs", "clinic-within-site.yaml");
+    const result = await runCli(["check", file, "--seed", "7"]);
+    expect(result.code, result.stderr).toBe(0);
+    expect(result.stdout).toContain(
+      [
+        "plan        patient_gt_control (t contrast)",
+        "  method       components: connected subnetworks by extent, family-wise p from the largest extent per relabeling; alpha 0.05",
+        "  threshold    t > 3",
+        "  relabelings  5,000 drawn at random (Monte Carlo) of more than 2^53 distinct",
+        "  seed         7 (command line; the design says 1)",
+        "  scheme       permutation: Freedman–Lane permutation of the reduced-model residuals",
+        "  blocks       site: 3 blocks, relabelings within each block",
+      ].join("\n"),
+    );
   });
 });
 
