@@ -35,7 +35,13 @@ export interface ResultsSummary {
     used: number;
     used_ids: string[];
     excluded: { participant_id: string; line: number; reason: string }[];
+    /** The design's `select` (column → values kept), or null; absent in folders written before it. */
+    selection?: Record<string, string[]> | null;
+    /** How many participants `select` left out (not analysed by design, not excluded). */
+    not_selected?: number;
   };
+  /** Table 1's grouping and variables (absent in folders written before it: the first factor of the model, every column). */
+  cohort_table?: { by: string | null; by_from: "design" | "first contrast" | "none"; variables: string[] };
   regions: number;
   edges: number;
   design: {
@@ -223,6 +229,15 @@ function readSummary(files: FolderFiles, file: string): ResultsSummary {
   expect(subjects.excluded, "subjects.excluded", "array");
   expect(subjects.in_table, "subjects.in_table", "number");
   expect(subjects.used, "subjects.used", "number");
+  if (root.cohort_table !== undefined) {
+    expect(root.cohort_table, "cohort_table", "object");
+    const table = root.cohort_table as Record<string, unknown>;
+    if (table.by !== null) expect(table.by, "cohort_table.by", "string");
+    expect(table.variables, "cohort_table.variables", "array");
+    if (!(table.variables as unknown[]).every((v) => typeof v === "string")) {
+      throw new InputError("expected column names in summary.json", { file, key: "cohort_table.variables" });
+    }
+  }
   const design = root.design as Record<string, unknown>;
   expect(design.model, "design.model", "string");
   expect(design.columns, "design.columns", "array");

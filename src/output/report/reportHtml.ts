@@ -1,4 +1,5 @@
 import { escapeHtml } from "./escapeHtml.js";
+import { selectionText } from "./cohortTable.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
 import type { LoadedResults, ResultsSummary } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
@@ -30,6 +31,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     ["Model", code(summary.design.model)],
     ["Design columns", summary.design.columns.map(code).join(", ")],
     ["Participants", `${summary.subjects.used} analysed of ${summary.subjects.in_table} listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} excluded)` : ""}`],
+    ...(summary.subjects.selection ? ([["Subset (select)", `${h(selectionText(summary.subjects.selection))}; ${summary.subjects.not_selected ?? 0} not selected`]] as [string, string][]) : []),
     ["Network", `${summary.regions} regions, ${summary.edges} edges${summary.options.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`],
     ["Residual df", String(summary.df)],
     [
@@ -64,7 +66,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   const warnings: string[] = summary.warnings.map((w) => `<li>${h(w)}</li>`);
   if (summary.subjects.excluded.length > 0) {
     warnings.push(
-      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table} participants were excluded from the analysis.` +
+      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table - (summary.subjects.not_selected ?? 0)} ${summary.subjects.selection ? "selected " : ""}participants were excluded from the analysis.` +
         `<details><summary>Show the excluded participants</summary>${htmlTable({ ...content.excluded, id: "excluded-list" }, 0)}</details></li>`,
     );
   }
