@@ -1,5 +1,7 @@
 import type { ResultsSummary } from "./loadResults.js";
-import type { Segment } from "./methodsText.js";
+
+/** A piece of the methods text: plexus's words, or text from the user's files (methodsText.ts's Segment). */
+type Segment = string | { user: string };
 
 /**
  * The methods' sentence on the design's `select`: "Analyses were restricted to
