@@ -229,6 +229,13 @@ function readSummary(files: FolderFiles, file: string): ResultsSummary {
   expect(subjects.excluded, "subjects.excluded", "array");
   expect(subjects.in_table, "subjects.in_table", "number");
   expect(subjects.used, "subjects.used", "number");
+  if (subjects.selection !== undefined && subjects.selection !== null) {
+    expect(subjects.selection, "subjects.selection", "object");
+    if (!Object.values(subjects.selection as object).every((v) => Array.isArray(v) && v.every((x) => typeof x === "string"))) {
+      throw new InputError("expected lists of values in summary.json", { file, key: "subjects.selection" });
+    }
+  }
+  if (subjects.not_selected !== undefined) expect(subjects.not_selected, "subjects.not_selected", "number");
   if (root.cohort_table !== undefined) {
     expect(root.cohort_table, "cohort_table", "object");
     const table = root.cohort_table as Record<string, unknown>;
