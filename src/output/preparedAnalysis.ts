@@ -27,6 +27,16 @@ export interface KeptSubject {
   tableRow: number;
 }
 
+/** Table 1 (the cohort table) as the design chose it or its defaults gave it (run/cohortTableChoice.ts). */
+export interface CohortTableChoice {
+  /** The grouping column; null for one column describing every analysed participant ("All"). */
+  by: string | null;
+  /** Where `by` came from: the design's `cohort_table.by`, the first t contrast that compares a factor's levels, or neither. */
+  byFrom: "design" | "first contrast" | "none";
+  /** The columns described, in order (never `by`). */
+  variables: string[];
+}
+
 /** Everything a run needs, validated: the `check` command stops here. */
 export interface PreparedAnalysis {
   design: DesignSpec;
@@ -34,6 +44,10 @@ export interface PreparedAnalysis {
   participants: ParticipantsTable;
   kept: KeptSubject[];
   excluded: ExcludedSubject[];
+  /** Participants the design's `select` leaves out (not analysed by design; never counted as excluded). */
+  notSelected: ExcludedSubject[];
+  /** Table 1's grouping and variables. */
+  cohortTable: CohortTableChoice;
   matrix: DesignMatrix;
   contrasts: Contrast[];
   regions: Region[];

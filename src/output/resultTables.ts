@@ -140,14 +140,18 @@ export function componentsTable(components: ComponentSummary[], inference: Compo
 }
 
 /**
- * subjects.tsv: every participant of the table with the model (and block)
- * columns as read, whether the analysis used them, and why not.
+ * subjects.tsv: every participant of the table with the model (and block,
+ * select and cohort-table) columns as read, whether the analysis used them,
+ * and why not (a missing value, or `not selected (…)` outside `select`).
  */
 export function subjectsTable(prepared: PreparedAnalysis): string {
   const columns = formulaVariables(prepared.formula);
   const blockColumn = prepared.blocks?.column;
-  if (blockColumn !== undefined && blockColumn !== "participant_id" && !columns.includes(blockColumn)) columns.push(blockColumn);
-  const excluded = new Map(prepared.excluded.map((x) => [x.id, x.reason]));
+  // Then the columns of `select` and of the cohort table, so the report can describe them.
+  const { cohortTable } = prepared;
+  const more = [blockColumn, ...prepared.design.select.map((s) => s.column), cohortTable.by, ...cohortTable.variables];
+  for (const name of more) if (name !== undefined && name !== null && name !== "participant_id" && !columns.includes(name)) columns.push(name);
+  const excluded = new Map([...prepared.excluded, ...prepared.notSelected].map((x) => [x.id, x.reason]));
   const { participants } = prepared;
   const rows: Cell[][] = participants.ids.map((id, row) => [
     id,

@@ -4,7 +4,7 @@ import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
 import type { AnalysisResults } from "./analysisResults.js";
 import { relabelingSummary, smallestPossibleP } from "./relabelingSummary.js";
-import { inferenceSummary, inputsSummary, overridesSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
+import { cohortTableSummary, inferenceSummary, inputsSummary, overridesSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
 
 /**
  * summary.json of a results folder: the tool and command, the inputs with
@@ -27,6 +27,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
     inputs: inputsSummary(inputs, design.file),
     matrices_read: readingSummary(connectomes.reading),
     subjects: subjectsSummary(prepared),
+    cohort_table: cohortTableSummary(prepared),
     regions: connectomes.regionCount,
     edges: connectomes.edgeCount,
     design: {

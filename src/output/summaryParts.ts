@@ -34,7 +34,16 @@ export function subjectsSummary(prepared: PreparedAnalysis): Record<string, unkn
     used: prepared.kept.length,
     used_ids: prepared.kept.map((k) => k.id),
     excluded: prepared.excluded.map((x) => ({ participant_id: x.id, line: x.line, reason: x.reason })),
+    // `select`: the analysed subset (column → values kept), or null; the participants it leaves out are not excluded.
+    selection: prepared.design.select.length > 0 ? Object.fromEntries(prepared.design.select.map((s) => [s.column, s.values])) : null,
+    not_selected: prepared.notSelected.length,
   };
+}
+
+/** summary.json's `cohort_table`: Table 1's grouping column (or null), where it came from, and the columns it describes. */
+export function cohortTableSummary(prepared: PreparedAnalysis): Record<string, unknown> {
+  const { by, byFrom, variables } = prepared.cohortTable;
+  return { by, by_from: byFrom, variables };
 }
 
 /**

@@ -9,6 +9,7 @@ import { modelColumnProblems } from "../io/numericCells.js";
 import { printable } from "../io/printable.js";
 import { templateValueProblem } from "../io/templateValues.js";
 import { PARTICIPANT_ID, readParticipantsCollecting } from "../io/participants.js";
+import { controlCharacterCells, selectParticipants, selectionText, tableRows } from "../io/selectParticipants.js";
 import { defaultRegions, readRegions } from "../io/regions.js";
 import { contrastStatistics } from "../edges/contrastStatistics.js";
 import { edgePairs } from "../edges/edgeIndex.js";
@@ -24,6 +25,7 @@ import { checkRelabelings } from "../permute/exchangeability.js";
 import type { ExcludedSubject, KeptSubject, PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { checkEnhancementLevels } from "./enhancementLevels.js";
 import { applyInferenceOverrides, overrideWarning, type InferenceOverrides } from "../common/inferenceOverrides.js";
+import { chooseCohortTable } from "./cohortTableChoice.js";
 
 
 /**
@@ -125,11 +127,14 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     );
   }
 
-  // Listwise deletion over the model and block columns.
+  // The design's subset first (`select`), then listwise deletion over the model and block columns within it.
+  const selection = selectParticipants(participants, design.select, where);
+  const notSelected: ExcludedSubject[] = selection.notSelected.map(({ row, reason }) => ({ id: participants.ids[row], line: participants.lines[row], reason }));
   const checked = blockColumn ? [...needed, blockColumn] : needed;
   const kept: KeptSubject[] = [];
   const excluded: ExcludedSubject[] = [];
-  participants.ids.forEach((id, row) => {
+  selection.rows.forEach((row) => {
+    const id = participants.ids[row];
     const missing = checked.filter((name) => participants.columns.get(name)![row] === null);
     if (missing.length > 0) excluded.push({ id, line: participants.lines[row], reason: `missing ${missing.join(", ")}` });
     else kept.push({ id, tableRow: row });
@@ -137,10 +142,21 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
 
   // Every problem of the participants table's cells, reported in one pass, in file order.
   const source = connectomeSource(design);
+  // The model's cells are checked in the analysed subset only; every cell written to subjects.tsv is free of control characters.
+  const selected = tableRows(participants, selection.rows);
+  const notSelectedRows = selection.notSelected.map((x) => x.row);
   const cellProblems = [
     ...tableProblems,
-    ...modelColumnProblems(participants, needed, new Set(Object.keys(design.levels))),
-    ...factorCellProblems(participants, needed, design.levels, blockColumn),
+    ...modelColumnProblems(selected, needed, new Set(Object.keys(design.levels))),
+    ...factorCellProblems(selected, needed, design.levels, blockColumn),
+    ...controlCharacterCells(participants, checked, notSelectedRows),
+    ...controlCharacterCells(
+      participants,
+      [...design.select.map((s) => s.column), ...(design.cohortTable.by ? [design.cohortTable.by] : []), ...(design.cohortTable.variables ?? [])].filter(
+        (name) => !checked.includes(name),
+      ),
+      participants.ids.map((_, row) => row),
+    ),
   ];
   if (source.kind === "template") {
     const problem = templateValueProblem(source.template, participants, kept.map((k) => k.tableRow), "connectomes");
@@ -151,7 +167,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
   if (cellError) throw cellError;
   if (kept.length === 0) {
     throw new InputError(
-      `no subject has values in every model column (${checked.join(", ")})`,
+      `no ${design.select.length > 0 ? "selected " : ""}subject has values in every model column (${checked.join(", ")})`,
       { file: participants.file },
       `check for missing values (${design.missingValues.map((v) => JSON.stringify(v)).join(", ")}) in those columns`,
     );
@@ -166,6 +182,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     );
   }
 
+  selectedFactorCheck(design, needed, kept.map((k) => k.tableRow), participants, where);
   const variables = new Map<string, Variable>();
   for (const name of needed) {
     const column = participants.columns.get(name)!;
@@ -211,6 +228,16 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
       );
     }
   }
+
+  const cohortTable = chooseCohortTable({
+    spec: design.cohortTable,
+    participants,
+    rows: kept.map((k) => k.tableRow),
+    matrix,
+    contrasts,
+    defaultVariables: blockColumn ? [...needed, blockColumn] : needed,
+    where,
+  });
 
   let blocks: PreparedAnalysis["blocks"];
   if (blockColumn) {
@@ -286,6 +313,8 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     participants,
     kept,
     excluded,
+    notSelected,
+    cohortTable,
     matrix,
     contrasts,
     regions,
@@ -330,4 +359,41 @@ function plannedInputs(
     }
   }
   return { files, folders: [...folders] };
+}
+
+/**
+ * A model column that `select` restricts: a factor left with one level among
+ * the analysed participants cannot be estimated, and a level listed under
+ * `levels:` that `select` leaves out has no participant; both are errors at
+ * the `select` key, saying why.
+ */
+function selectedFactorCheck(
+  design: DesignSpec,
+  modelColumns: readonly string[],
+  rows: readonly number[],
+  participants: { columns: Map<string, (string | null)[]> },
+  where: (key: string) => { file?: string; key: string; line?: number | undefined },
+): void {
+  for (const spec of design.select) {
+    if (!modelColumns.includes(spec.column)) continue;
+    const key = `select.${spec.column}`;
+    const listed = design.levels[spec.column];
+    const outside = listed?.filter((level) => !spec.values.includes(level)) ?? [];
+    if (outside.length > 0) {
+      throw new InputError(
+        `'levels' of '${spec.column}' list ${outside.map((l) => `'${printable(l)}'`).join(", ")}, which 'select' leaves out (it keeps ${selectionText([spec])}), so no analysed participant has ${outside.length > 1 ? "them" : "it"}`,
+        where(key),
+        `list only the selected levels under \`levels: ${spec.column}\`, or remove '${spec.column}' from the model if one level remains`,
+      );
+    }
+    const cells = participants.columns.get(spec.column)!;
+    const present = new Set(rows.map((r) => cells[r]));
+    if (present.size === 1) {
+      throw new InputError(
+        `the model uses '${spec.column}', but 'select' keeps only ${selectionText([{ column: spec.column, values: [...present].map(String) }])}, so it has one value among the analysed participants and cannot be estimated`,
+        where(key),
+        `remove '${spec.column}' (and the contrasts that compare its levels) from the model: within the subset it is constant`,
+      );
+    }
+  }
 }

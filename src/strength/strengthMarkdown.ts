@@ -1,5 +1,6 @@
 import { formatFormula } from "../model/formula.js";
 import { overridesSentence } from "../output/report/overridesText.js";
+import { selectionText } from "../io/selectParticipants.js";
 import { escapeMarkdown } from "../output/report/escapeMarkdown.js";
 import { fixed, MISSING, pValue, significant } from "../output/report/printNumbers.js";
 import type { ReportTable } from "../output/report/reportTable.js";
@@ -55,7 +56,8 @@ function contrastTable(prepared: PreparedAnalysis, analysis: StrengthAnalysis, r
   ];
   const { inference } = prepared.design;
   const notes = [
-    `Model: ${formatFormula(prepared.formula)}; N = ${prepared.kept.length}${prepared.excluded.length > 0 ? ` (${prepared.excluded.length} left out for missing values)` : ""}. ` +
+    `Model: ${formatFormula(prepared.formula)}; N = ${prepared.kept.length}${prepared.excluded.length > 0 ? ` (${prepared.excluded.length} left out for missing values)` : ""}` +
+      `${prepared.design.select.length > 0 ? `, analysed subset ${selectionText(prepared.design.select)}` : ""}. ` +
       `β is the contrast's estimate c'β̂ on the scale of the measure, SE its standard error, t = β/SE on df = N − rank(X) degrees of freedom; partial r = t/√(t² + df).`,
     `${MEASURE_TITLE[choice.measure]}: ${nodal ? analysis.descriptions[0] : analysis.names.map((n, m) => `${n}, ${analysis.descriptions[m]}`).join("; ")}` +
       `${prepared.design.transform === "fisher-z" ? ", on the Fisher z scale" : ""}.`,

@@ -90,6 +90,8 @@ const WEIRD_VALUES: unknown[] = [
   "y ~ group", "participant_id", "site", "whole", "within", "both", "lower", "max-t", "fdr", "threshold-free",
   0, -1, 1, 2, 1e400, -1e400, 1e200, -999, ["-999"], "NA", 1e-9, 0.5, 1.5, 1e9, 2 ** 31, true, false, null, [], [1, 2], ["a"], {}, { a: 1 },
   [[0, 1, 0, 0], [0, 0, 1, 0]], "[0, 1, 0, 0]", "1e400*age", "group[patient]", "site", "sex[M] - sex[F]",
+  ["patient"], ["control", "patient"], ["east"], ["west", "east"], ["F"], "sub-03", ["sub-01", "sub-02"], ["age", "site", "sex"], ["n/a"], { group: ["patient"] },
+  { by: "site", variables: ["age", "sex"] }, { by: null }, { by: "age" }, { variables: "site" },
 ];
 
 const DESIGN_KEYS = [
@@ -99,6 +101,9 @@ const DESIGN_KEYS = [
   "inference.threshold", "inference.size", "inference.tail", "inference.permutations", "inference.seed",
   "inference.alpha", "inference.fdr", "inference.scheme", "inference.blocks", "inference.block_permutation",
   "inference.enhancement", "inference.enhancement.step", "inference.enhancement.extent_exponent", "missing_values", "unknown_key",
+  // select and cohort_table
+  "select", "select.group", "select.site", "select.sex", "select.participant_id", "select.unknown_column",
+  "cohort_table", "cohort_table.by", "cohort_table.variables", "cohort_table.unknown_key",
 ];
 
 const CELL_VALUES = [

@@ -13,6 +13,8 @@ import { parseOverrides, parseShard, parseThreads, PERMUTATIONS_FLAG, SEED_FLAG 
 import { inferencePlanLines } from "../inferencePlan.js";
 import { terminalLog } from "../terminalLog.js";
 import { inferenceLine } from "../../output/summaryParts.js";
+import type { PreparedAnalysis } from "../../output/preparedAnalysis.js";
+import { selectionText } from "../../io/selectParticipants.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */
 export function registerAnalysisCommands(program: Command, sink: OutputSink, argv: () => string[]): void {
@@ -30,6 +32,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
       const lines = [
         `design      ${designFile}`,
         `subjects    ${prepared.kept.length} used of ${prepared.participants.ids.length}${prepared.excluded.length ? ` (${prepared.excluded.length} left out for missing values)` : ""}`,
+        ...selectionLines(prepared),
         `connectomes ${connectomes.regionCount} regions, ${connectomes.edgeCount} edges${design.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`,
         `read        ${describeReading(connectomes.reading)}`,
         `model       ${formatFormula(prepared.formula)}`,
@@ -106,4 +109,16 @@ interface RunFlags extends OverrideFlags {
   threads?: string;
   shard?: string;
   resume: boolean;
+}
+
+/** `plexus check`'s lines for `select` (when set) and the cohort table. */
+function selectionLines(prepared: PreparedAnalysis): string[] {
+  const { select } = prepared.design;
+  const selected = prepared.participants.ids.length - prepared.notSelected.length;
+  const { by, byFrom, variables } = prepared.cohortTable;
+  const source = byFrom === "design" ? "cohort_table.by" : byFrom === "first contrast" ? "the factor the first contrast compares" : "no factor compared";
+  return [
+    ...(select.length > 0 ? [`select      ${selectionText(select)}: ${selected} of ${prepared.participants.ids.length} selected, ${prepared.notSelected.length} not selected (not analysed by design)`] : []),
+    `table 1     by ${by ?? "none (all analysed participants)"} (${source}); variables ${variables.length > 0 ? variables.join(", ") : "none"}`,
+  ];
 }

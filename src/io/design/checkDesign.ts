@@ -2,9 +2,10 @@ import { isMap, isScalar, isSeq } from "yaml";
 import type { BlockPermutation, EnhancementSpec, FdrVariant, InferenceMethod, Scheme, SizeMeasure, Tail } from "../../common/inferenceOptions.js";
 import { InputError } from "../../errors.js";
 import { checkContrasts } from "./checkContrasts.js";
+import { checkCohortTable, checkSelect } from "./checkSelection.js";
 import { CONNECTOMES_KEYS, DESIGN_KEYS, ENHANCEMENT_KEYS, INFERENCE_KEYS } from "./designKeys.js";
 import { DesignSection } from "./designSection.js";
-import type { ContrastSpec } from "./designSpec.js";
+import type { CohortTableSpec, ContrastSpec, SelectionSpec } from "./designSpec.js";
 import type { DesignYaml } from "./designYaml.js";
 
 /** The inference options the file sets, each checked; an absent one is undefined (resolveDesign.ts fills it). */
@@ -29,6 +30,8 @@ export interface CheckedDesign {
   missingValues?: string[];
   levels?: Record<string, string[]>;
   center?: string[];
+  select?: SelectionSpec[];
+  cohortTable?: CohortTableSpec;
   transform?: "none" | "fisher-z";
   symmetrize?: boolean;
   asymmetryTolerance?: number;
@@ -45,7 +48,7 @@ export interface CheckedDesign {
  * Checks every key of a design file against its rule (designKeys.ts has the table),
  * raising the first problem as an InputError at the key and its line. The keys are
  * checked in this order (so a file with several problems reports the same one first):
- * unknown keys, contrasts, missing_values, levels, center, transform, symmetrize,
+ * unknown keys, contrasts, missing_values, levels, center, select, cohort_table, transform, symmetrize,
  * asymmetry_tolerance, inference, then subjects, connectomes, regions and model.
  */
 export function checkDesign(yaml: DesignYaml): CheckedDesign {
@@ -54,6 +57,8 @@ export function checkDesign(yaml: DesignYaml): CheckedDesign {
   const missingValues = checkMissingValues(top);
   const levels = checkLevels(top);
   const center = checkCenter(top);
+  const select = checkSelect(top);
+  const cohortTable = checkCohortTable(top);
   const transform = checkTransform(top);
   const symmetrize = checkSymmetrize(top);
   const asymmetryTolerance = checkNumber(top, "asymmetry_tolerance", DESIGN_KEYS.asymmetry_tolerance);
@@ -62,7 +67,7 @@ export function checkDesign(yaml: DesignYaml): CheckedDesign {
   const { path: connectomes, variable: connectomeVariable, subjectsAxis } = checkConnectomes(top);
   const regions = top.value("regions") === undefined ? undefined : checkText(top, "regions");
   const model = checkModel(top);
-  return { contrasts, missingValues, levels, center, transform, symmetrize, asymmetryTolerance, inference, subjects, connectomes, connectomeVariable, subjectsAxis, regions, model };
+  return { contrasts, missingValues, levels, center, select, cohortTable, transform, symmetrize, asymmetryTolerance, inference, subjects, connectomes, connectomeVariable, subjectsAxis, regions, model };
 }
 
 /** connectomes: a path or template, or { path, variable, subjects_axis }. */

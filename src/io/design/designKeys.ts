@@ -16,6 +16,10 @@ export const PERMUTATIONS_LIMIT = 10_000_000;
 export const CONTRASTS_LIMIT = 1000;
 /** At most this many levels listed for one factor. */
 export const LEVELS_LIMIT = 10_000;
+/** At most this many values kept for one `select` column. */
+export const SELECT_VALUES_LIMIT = 10_000;
+/** At most this many columns described by the cohort table. */
+export const COHORT_VARIABLES_LIMIT = 1000;
 
 /** A key taking one of a few words. */
 interface ChoiceKey<T extends string> {
@@ -90,6 +94,14 @@ export const CONNECTOMES_KEYS = {
   subjects_axis: { kind: "choice", allowed: ["first", "last"] as const },
 } as const;
 
+/** `cohort_table`: the grouping of the participant-characteristics table and the columns it describes. */
+export const COHORT_TABLE_KEYS = {
+  /** A column of the participants table, or null for one column of everyone; default from the contrasts. */
+  by: { kind: "column" },
+  /** Columns of the participants table; default: the model's (and blocks') columns. */
+  variables: { kind: "columns", limit: COHORT_VARIABLES_LIMIT },
+} as const;
+
 /** The top level of a design file. */
 export const DESIGN_KEYS = {
   subjects: { kind: "text", required: true },
@@ -108,6 +120,9 @@ export const DESIGN_KEYS = {
   levels: { kind: "levels", limit: LEVELS_LIMIT },
   /** Numeric columns to centre; none by default. */
   center: { kind: "columns" },
+  /** Column → the cell texts kept (all columns must hold); none by default (every participant). */
+  select: { kind: "selection", limit: SELECT_VALUES_LIMIT },
+  cohort_table: { kind: "section", keys: COHORT_TABLE_KEYS },
   contrasts: { kind: "contrasts", required: true, limit: CONTRASTS_LIMIT },
   transform: choice(["none", "fisher-z"] as const, "none", true),
   symmetrize: { kind: "boolean", default: false, nullIsDefault: true },

@@ -12,6 +12,20 @@ export interface ContrastSpec {
   line?: number;
 }
 
+/** One column of `select`: the participants kept have one of these cell texts in it. */
+export interface SelectionSpec {
+  column: string;
+  values: string[];
+  /** Line of `select.<column>`, for errors. */
+  line?: number;
+}
+
+/** `cohort_table` as written: `by` null means one column of every analysed participant; absent keys take defaults. */
+export interface CohortTableSpec {
+  by?: string | null;
+  variables?: string[];
+}
+
 /** A design file read and checked for shape; columns and files are checked later against the data. */
 export interface DesignSpec {
   file: string;
@@ -28,6 +42,10 @@ export interface DesignSpec {
   missingValues: string[];
   levels: Record<string, string[]>;
   center: string[];
+  /** `select`: the analysed subset (every column must hold); empty when every participant is analysed. */
+  select: SelectionSpec[];
+  /** `cohort_table` as written (defaults resolved in preparation, where the contrasts are known). */
+  cohortTable: CohortTableSpec;
   contrasts: ContrastSpec[];
   transform: "none" | "fisher-z";
   symmetrize: boolean;

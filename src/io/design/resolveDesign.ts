@@ -45,6 +45,8 @@ export function resolveDesign(checked: CheckedDesign, file: string, lines: Map<s
     model: checked.model,
     levels: checked.levels ?? {},
     center: checked.center ?? [],
+    select: checked.select ?? [],
+    cohortTable: checked.cohortTable ?? {},
     contrasts: checked.contrasts,
     transform: checked.transform ?? DESIGN_KEYS.transform.default,
     symmetrize: checked.symmetrize ?? DESIGN_KEYS.symmetrize.default,

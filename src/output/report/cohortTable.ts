@@ -120,7 +120,13 @@ export function cohortTables(results: LoadedResults, options: CohortOptions = {}
     );
   }
   if (smallExpected) notes.push(SMALL_EXPECTED_NOTE);
-  notes.push(...excludedNotes(results));
+  if (cohort.group) {
+    const ungrouped = cohort.group.codes.filter((c) => c < 0).length;
+    if (ungrouped > 0) {
+      notes.push(`${ungrouped} analysed participant${ungrouped > 1 ? "s have" : " has"} no value of ${cohort.group.column} and ${ungrouped > 1 ? "are" : "is"} in no column.`);
+    }
+  }
+  notes.push(...selectionNotes(results), ...excludedNotes(results));
 
   const title = cohort.group ? `Participant characteristics by ${cohort.group.column}` : "Participant characteristics";
   return {
@@ -215,14 +221,32 @@ function testRow(variable: string, test: GroupTest): Cell[] {
   return [variable, test.test, test.statistic, test.df, test.df2, test.pValue, test.minExpected];
 }
 
-/** "Excluded from the analysis: k of N participants (missing age: 2; …)." or nothing. */
+/**
+ * "Excluded from the analysis: k of N participants (missing age: 2; …)." or
+ * nothing; with `select`, N counts the selected participants only (the others
+ * were not analysed by design, see selectionNotes).
+ */
 function excludedNotes(results: LoadedResults): string[] {
-  const { excluded, in_table: inTable } = results.summary.subjects;
+  const { excluded, in_table: inTable, not_selected: notSelected = 0 } = results.summary.subjects;
   if (excluded.length === 0) return [];
   const reasons = new Map<string, number>();
   for (const x of excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
   const list = [...reasons].map(([reason, n]) => `${reason}: ${n}`).join("; ");
-  return [`Excluded from the analysis: ${excluded.length} of ${inTable} participants (${list}).`];
+  return [`Excluded from the analysis: ${excluded.length} of ${inTable - notSelected} ${notSelected > 0 ? "selected " : ""}participants (${list}).`];
+}
+
+/** "Analysed subset (select): group = patient (30 of the 60 participants listed)." or nothing. */
+function selectionNotes(results: LoadedResults): string[] {
+  const { selection, in_table: inTable, not_selected: notSelected = 0 } = results.summary.subjects;
+  if (!selection) return [];
+  return [`Analysed subset: ${selectionText(selection)} (${inTable - notSelected} of the ${inTable} participants listed).`];
+}
+
+/** A selection as words: "group = patient", "site = north or south and group = patient". */
+export function selectionText(selection: Record<string, string[]>): string {
+  return Object.entries(selection)
+    .map(([column, values]) => `${column} = ${values.join(" or ")}`)
+    .join(" and ");
 }
 
 /** Excluded participants (ID, line of the participants table, reason): the print table and tables/excluded.tsv. */

@@ -1,14 +1,21 @@
+import { InputError } from "../../errors.js";
 import type { LoadedResults } from "./loadResults.js";
 
 /**
- * The participant characteristics the cohort table describes, read from
- * subjects.tsv: the grouping factor (the first factor of the model, if any),
- * and every other model (or block) column as numeric or categorical. A column
- * the design coded as a factor is categorical; any other column is numeric
- * when every value present reads as a number, categorical otherwise.
+ * The participant characteristics the cohort table (Table 1) describes, read
+ * from subjects.tsv for the participants the analysis used. This is the one
+ * place that decides what Table 1 groups by and which columns it describes:
+ *   - with summary.json's `cohort_table` (the design's `cohort_table`, or its
+ *     defaults: the factor the first t contrast compares, else one group of
+ *     everyone), its `by` and `variables`, in that order;
+ *   - in a folder written before `cohort_table` existed: the first factor of
+ *     the model, and every other column of subjects.tsv.
+ * A column the design coded as a factor is categorical; any other column is
+ * numeric when every value present among the analysed participants reads as a
+ * number, categorical otherwise.
  */
 export interface CohortVariables {
-  /** The grouping factor and its levels in the design's order; null when the model has no factor. */
+  /** The grouping column and its levels in the design's order; null for one group of everyone. */
   group: { column: string; levels: string[]; codes: Int32Array } | null;
   /** Rows of subjects.tsv that the analysis used, in file order. */
   used: number[];
@@ -26,8 +33,20 @@ export function cohortVariables(results: LoadedResults): CohortVariables {
   const used = subjects.rows.map((row, k) => (row.included ? k : -1)).filter((k) => k >= 0);
   const factorLevels = summary.design.levels ?? {};
   const columnValues = (c: number) => used.map((k) => subjects.rows[k].values[c]);
+  const indexOf = (name: string): number => {
+    const index = subjects.columns.indexOf(name);
+    if (index < 0) {
+      throw new InputError(`summary.json's cohort_table names '${name}', which is not a column of subjects.tsv`, { file: `${results.dir}/subjects.tsv` });
+    }
+    return index;
+  };
 
-  const groupIndex = subjects.columns.findIndex((name) => Object.hasOwn(factorLevels, name));
+  const chosen = summary.cohort_table;
+  const groupIndex = chosen
+    ? chosen.by === null
+      ? -1
+      : indexOf(chosen.by)
+    : subjects.columns.findIndex((name) => Object.hasOwn(factorLevels, name));
   let group: CohortVariables["group"] = null;
   if (groupIndex >= 0) {
     const column = subjects.columns[groupIndex];
@@ -36,9 +55,11 @@ export function cohortVariables(results: LoadedResults): CohortVariables {
     group = { column, levels, codes: Int32Array.from(values, (v) => (v === null ? -1 : levels.indexOf(v))) };
   }
 
+  const described = chosen ? chosen.variables.map(indexOf) : subjects.columns.map((_, c) => c);
   const variables: CohortVariable[] = [];
-  subjects.columns.forEach((column, c) => {
-    if (c === groupIndex) return;
+  for (const c of described) {
+    if (c === groupIndex) continue;
+    const column = subjects.columns[c];
     const values = columnValues(c);
     const present = values.filter((v): v is string => v !== null);
     if (!Object.hasOwn(factorLevels, column) && present.length > 0 && present.every((v) => NUMBER.test(v))) {
@@ -46,7 +67,7 @@ export function cohortVariables(results: LoadedResults): CohortVariables {
     } else {
       variables.push({ kind: "categorical", column, levels: orderedLevels(factorLevels[column], values), values });
     }
-  });
+  }
   return { group, used, variables };
 }
 

@@ -36,7 +36,13 @@ export interface ResultsSummary {
     used: number;
     used_ids: string[];
     excluded: { participant_id: string; line: number; reason: string }[];
+    /** The design's `select` (column → values kept), or null; absent in folders written before it. */
+    selection?: Record<string, string[]> | null;
+    /** How many participants `select` left out (not analysed by design, not excluded). */
+    not_selected?: number;
   };
+  /** Table 1's grouping and variables (absent in folders written before it: the first factor of the model, every column). */
+  cohort_table?: { by: string | null; by_from: "design" | "first contrast" | "none"; variables: string[] };
   regions: number;
   edges: number;
   design: {
@@ -226,6 +232,22 @@ function readSummary(files: FolderFiles, file: string): ResultsSummary {
   expect(subjects.excluded, "subjects.excluded", "array");
   expect(subjects.in_table, "subjects.in_table", "number");
   expect(subjects.used, "subjects.used", "number");
+  if (subjects.selection !== undefined && subjects.selection !== null) {
+    expect(subjects.selection, "subjects.selection", "object");
+    if (!Object.values(subjects.selection as object).every((v) => Array.isArray(v) && v.every((x) => typeof x === "string"))) {
+      throw new InputError("expected lists of values in summary.json", { file, key: "subjects.selection" });
+    }
+  }
+  if (subjects.not_selected !== undefined) expect(subjects.not_selected, "subjects.not_selected", "number");
+  if (root.cohort_table !== undefined) {
+    expect(root.cohort_table, "cohort_table", "object");
+    const table = root.cohort_table as Record<string, unknown>;
+    if (table.by !== null) expect(table.by, "cohort_table.by", "string");
+    expect(table.variables, "cohort_table.variables", "array");
+    if (!(table.variables as unknown[]).every((v) => typeof v === "string")) {
+      throw new InputError("expected column names in summary.json", { file, key: "cohort_table.variables" });
+    }
+  }
   const design = root.design as Record<string, unknown>;
   expect(design.model, "design.model", "string");
   expect(design.columns, "design.columns", "array");

@@ -4,6 +4,7 @@ import type { LoadedResults } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
 import { count, plain, significant } from "./printNumbers.js";
 import { overridesSentence } from "./overridesText.js";
+import { exclusionDenominator, selectionSentence } from "./selectionMethods.js";
 
 /**
  * The methods paragraph: every choice in force, read from summary.json, in
@@ -60,11 +61,11 @@ export function methodsText(results: LoadedResults): MethodsText {
   // 1. Participants, data and model.
   const model: Segment[] = [];
   const excluded = subjects.excluded.length;
-  model.push(`Connectivity matrices of ${subjects.used} participants were analysed`);
+  model.push(...selectionSentence(subjects), `Connectivity matrices of ${subjects.used} participants were analysed`);
   if (excluded > 0) {
     const reasons = new Map<string, number>();
     for (const x of subjects.excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
-    model.push(` (${excluded} of the ${subjects.in_table} participants listed were excluded: `);
+    model.push(` (${excluded} of the ${exclusionDenominator(subjects)} were excluded: `);
     model.push(...list([...reasons], ([reason, count]) => [{ user: reason }, ` (${count})`]));
     model.push(")");
   }

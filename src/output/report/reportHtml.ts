@@ -1,4 +1,5 @@
 import { escapeHtml } from "./escapeHtml.js";
+import { selectionText } from "./cohortTable.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
 import type { LoadedResults, ResultsSummary } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
@@ -31,6 +32,8 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     ["Model", code(summary.design.model)],
     ["Design columns", summary.design.columns.map(code).join(", ")],
     ["Participants", `${summary.subjects.used} analysed of ${summary.subjects.in_table} listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} excluded)` : ""}`],
+    ...(summary.subjects.selection ? ([["Subset (select)", `${h(selectionText(summary.subjects.selection))}; ${summary.subjects.not_selected ?? 0} not selected`]] as [string, string][]) : []),
+    ...(summary.cohort_table ? ([["Table 1", cohortTableLine(summary.cohort_table, code)]] as [string, string][]) : []),
     ["Network", `${summary.regions} regions, ${summary.edges} edges${summary.options.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`],
     ["Residual df", String(summary.df)],
     [
@@ -66,7 +69,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   const warnings: string[] = summary.warnings.map((w) => `<li>${h(w)}</li>`);
   if (summary.subjects.excluded.length > 0) {
     warnings.push(
-      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table} participants were excluded from the analysis.` +
+      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table - (summary.subjects.not_selected ?? 0)} ${summary.subjects.selection ? "selected " : ""}participants were excluded from the analysis.` +
         `<details><summary>Show the excluded participants</summary>${htmlTable({ ...content.excluded, id: "excluded-list" }, 0)}</details></li>`,
     );
   }
@@ -200,4 +203,10 @@ function matricesRead(read: NonNullable<ResultsSummary["matrices_read"]>): strin
     ...(read.subjects_axis !== null ? [`participants on the ${read.subjects_axis} axis`] : []),
   ];
   return `${parts.join(", ")}; region labels: ${read.labels}${read.reordered ? " (rows and columns reordered to the regions table's order)" : ""}`;
+}
+
+/** The report's Table 1 row: its grouping and where it came from. */
+function cohortTableLine(table: NonNullable<ResultsSummary["cohort_table"]>, code: (text: string) => string): string {
+  if (table.by === null) return table.by_from === "design" ? "all analysed participants in one column (cohort_table.by: ~)" : "all analysed participants in one column (no contrast compares a factor)";
+  return `by ${code(table.by)} (${table.by_from === "design" ? "cohort_table.by" : "the factor the first contrast compares"})`;
 }

@@ -260,7 +260,7 @@ describe("parseDesign: unknown keys (line and a did-you-mean hint)", () => {
       file: FILE,
       line: 6,
       key: "zzzzzzzzzz",
-      hint: /valid keys: subjects, connectomes, regions, model, missing_values, levels, center, contrasts, transform, symmetrize, asymmetry_tolerance, inference/,
+      hint: /valid keys: subjects, connectomes, regions, model, missing_values, levels, center, select, cohort_table, contrasts, transform, symmetrize, asymmetry_tolerance, inference/,
     });
     expectInputError(() => parseDesign(withBase("inference:", "  qqqqqqqqqqqq: 1"), FILE), {
       file: FILE,
@@ -486,5 +486,40 @@ describe("parseDesign: missing_values", () => {
     expect(parseDesign(withBase("missing_values: -999"), FILE).missingValues).toEqual(["-999"]);
     expect(parseDesign(withBase("missing_values: NA"), FILE).missingValues).toEqual(["NA"]);
     expect(parseDesign(withBase("missing_values:\n  - -999\n  - '.'"), FILE).missingValues).toEqual(["-999", "."]);
+  });
+});
+
+describe("parseDesign: select and cohort_table", () => {
+  it("select maps columns to the cell texts kept; numbers and booleans as written; one value alone is a list of one", () => {
+    const design = parseDesign(withBase("select:", "  group: [patient]", "  site: [1, 02, 3.0, true]", "  sex: F"), FILE);
+    expect(design.select).toEqual([
+      { column: "group", values: ["patient"], line: 7 },
+      { column: "site", values: ["1", "02", "3.0", "true"], line: 8 },
+      { column: "sex", values: ["F"], line: 9 },
+    ]);
+    expect(parseDesign(BASE, FILE).select).toEqual([]);
+  });
+
+  it("refuses a select that is not a mapping of non-empty lists of texts or numbers", () => {
+    expectInputError(() => parseDesign(withBase("select: [patient]"), FILE), { file: FILE, line: 6, key: "select" });
+    expectInputError(() => parseDesign(withBase("select: {}"), FILE), { file: FILE, line: 6, key: "select" });
+    expectInputError(() => parseDesign(withBase("select:", "  group: []"), FILE), { file: FILE, line: 7, key: "select.group" });
+    expectInputError(() => parseDesign(withBase("select:", "  group: [~]"), FILE), { file: FILE, line: 7, key: "select.group" });
+    expectInputError(() => parseDesign(withBase("select:", "  group: [[a]]"), FILE), { file: FILE, line: 7, key: "select.group" });
+    expectInputError(() => parseDesign(withBase("select:", "  group: ''"), FILE), { file: FILE, line: 7, key: "select.group" });
+  });
+
+  it("cohort_table takes by (a column, or ~ for none) and variables (columns)", () => {
+    expect(parseDesign(withBase("cohort_table: { by: site, variables: [age, education] }"), FILE).cohortTable).toEqual({ by: "site", variables: ["age", "education"] });
+    expect(parseDesign(withBase("cohort_table: { by: ~ }"), FILE).cohortTable).toEqual({ by: null });
+    expect(parseDesign(withBase("cohort_table: { variables: education }"), FILE).cohortTable).toEqual({ variables: ["education"] });
+    expect(parseDesign(BASE, FILE).cohortTable).toEqual({});
+  });
+
+  it("refuses a cohort_table of the wrong shape, naming the key", () => {
+    expectInputError(() => parseDesign(withBase("cohort_table: group"), FILE), { file: FILE, line: 6, key: "cohort_table" });
+    expectInputError(() => parseDesign(withBase("cohort_table:", "  by: [group]"), FILE), { file: FILE, line: 7, key: "cohort_table.by" });
+    expectInputError(() => parseDesign(withBase("cohort_table:", "  variables: [1]"), FILE), { file: FILE, line: 7, key: "cohort_table.variables" });
+    expectInputError(() => parseDesign(withBase("cohort_table:", "  bye: group"), FILE), { file: FILE, line: 7, key: "cohort_table.bye", hint: /did you mean 'cohort_table\.by'/ });
   });
 });

@@ -67,7 +67,7 @@ describe("demo-cohort/", () => {
 });
 
 describe("designs/ on the demo cohort", () => {
-  for (const name of ["clinic-contrast", "symptom-within-patients", "one-sample", "clinic-from-mat", "clinic-from-labelled-csv", "clinic-from-cifti"]) {
+  for (const name of ["clinic-contrast", "symptom-within-patients", "one-sample", "clinic-from-mat", "clinic-from-labelled-csv", "clinic-from-cifti", "clinic-cohort-table"]) {
     it(`designs/${name}.yaml reads as a design whose files exist`, () => {
       const design = readDesign(join(ROOT, "designs", `${name}.yaml`));
       expect(existsSync(resolve(design.baseDir, design.subjects))).toBe(true);
@@ -76,4 +76,23 @@ describe("designs/ on the demo cohort", () => {
       expect(design.transform).toBe("fisher-z");
     });
   }
+});
+
+describe("the worked designs of select and cohort_table", () => {
+  it("symptom-within-patients analyses the patients only: controls are not selected, none is excluded", async () => {
+    const { prepareAnalysis } = await import("../../../src/run/prepareAnalysis.js");
+    const prepared = prepareAnalysis(join(ROOT, "designs", "symptom-within-patients.yaml"));
+    expect(prepared.kept).toHaveLength(30);
+    expect(prepared.excluded).toEqual([]);
+    expect(prepared.notSelected).toHaveLength(30);
+    expect(new Set(prepared.notSelected.map((x) => x.reason))).toEqual(new Set(["not selected (group: control)"]));
+    expect(prepared.warnings).toEqual([]);
+    expect(prepared.cohortTable).toEqual({ by: null, byFrom: "none", variables: ["recall_score", "age", "sex", "site"] });
+  });
+
+  it("clinic-cohort-table groups Table 1 by group and describes columns outside the model", async () => {
+    const { prepareAnalysis } = await import("../../../src/run/prepareAnalysis.js");
+    const prepared = prepareAnalysis(join(ROOT, "designs", "clinic-cohort-table.yaml"));
+    expect(prepared.cohortTable).toEqual({ by: "group", byFrom: "design", variables: ["age", "sex", "site", "recall_score"] });
+  });
 });
