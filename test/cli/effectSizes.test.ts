@@ -116,4 +116,13 @@ describe(`edges.tsv effect sizes against R (${fixture.r_version})`, () => {
     expect(byName.get("site_b_vs_c")).toMatchObject({ cohens_d: { factor: "site", levels: ["b", "c"] } });
     expect(byName.get("age_up")).toMatchObject({ cohens_d: null, level_means: null });
   });
+
+  it("the methods text says how the interval and d were computed; the report's tables name the columns", () => {
+    const methods = readFileSync(path.join(out, "methods.md"), "utf8");
+    expect(methods).toContain(`the 95% confidence interval of the estimate was the estimate ± the 97.5th percentile of the t distribution with ${fixture.contrasts.age_up.df} degrees of freedom`);
+    expect(methods).toContain("Cohen's d (Cohen 1988) was the estimate divided by the residual standard deviation of the full model");
+    expect(methods).toContain("Steiger JH, Fouladi RT (1997)");
+    const edgesTsv = readFileSync(path.join(out, "tables", "subnetwork_edges.tsv"), "utf8").split("\n")[0].split("\t");
+    expect(edgesTsv.slice(-9)).toEqual(["ci_low", "ci_high", "cohens_d", "cohens_d_ci_low", "cohens_d_ci_high", "level_1", "r_level_1", "level_2", "r_level_2"]);
+  });
 });
