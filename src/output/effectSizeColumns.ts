@@ -53,7 +53,8 @@ export function effectSizesSummary(contrasts: ObservedContrast[]): Record<string
     cohens_d: {
       applies_to: "t contrasts comparing two levels of one factor that enters the model as a main effect only",
       standardiser: "residual standard deviation of the full model (√(SSE / residual df)), so d = t × √(c'(X'X)⁻¹c)",
-      interval: "the noncentrality interval of the observed t (noncentral t distribution inverted; Steiger & Fouladi 1997) times √(c'(X'X)⁻¹c)",
+      interval: "the noncentrality interval of the observed t (the noncentral t distribution inverted; Steiger & Fouladi 1997; Cumming & Finch 2001) times √(c'(X'X)⁻¹c)",
+      bias_correction: "none",
     },
     level_means: {
       applies_to: "as Cohen's d, when the edges were Fisher z-transformed",
