@@ -24,32 +24,35 @@ export function effectSizeCells(effects: EdgeEffectColumns | undefined, e: numbe
 }
 
 /**
- * The printed edge table's effect-size columns for a t contrast: the
- * estimate's 95% interval; Cohen's d with its interval when the contrast
- * compares two levels (some listed edge has a d); each level's mean
- * correlation when written; and the words for the table's note.
+ * The printed edge table's effect sizes for a t contrast: the estimate with its
+ * 95% interval in one cell (replacing the bare estimate), Cohen's d with its
+ * interval when the contrast compares two levels (some listed edge has a d),
+ * the two levels' mean correlations in one cell when written, and the words
+ * for the table's note. Combined cells keep the table narrow enough for a page.
  */
 export function effectSizePrint(
   effects: EdgeEffectColumns | undefined,
   listed: number[],
-): { columns: TableColumn[]; cells: (e: number) => string[]; note: string } {
-  if (!effects) return { columns: [], cells: () => [], note: "" };
+): { estimateHeader: string; estimate: (e: number, estimate: number) => string; columns: TableColumn[]; cells: (e: number) => string[]; note: string } {
+  if (!effects) return { estimateHeader: "Estimate", estimate: (_, value) => significant(value), columns: [], cells: () => [], note: "" };
   const interval = (low: number, high: number, format: (v: number) => string) =>
     Number.isFinite(low) && Number.isFinite(high) ? `[${format(low)}, ${format(high)}]` : MISSING;
   const withD = listed.some((e) => Number.isFinite(effects.cohensD[e]));
   const means = effects.means;
-  const columns: TableColumn[] = [{ header: "95% CI", align: "right" }];
+  const columns: TableColumn[] = [];
   if (withD) columns.push({ header: "Cohen's d [95% CI]", align: "right" });
-  if (means) columns.push({ header: `r ${means.levels[0]}`, align: "right" }, { header: `r ${means.levels[1]}`, align: "right" });
-  let note = "; 95% CI: its confidence interval (t quantile × standard error)";
-  if (withD) note += "; Cohen's d: the estimate over the residual standard deviation of the full model, with its interval from the noncentral t distribution";
-  if (means) note += `; r ${means.levels[0]}, r ${means.levels[1]}: each level's model mean (covariates at their means) back-transformed to a correlation (tanh)`;
+  if (means) columns.push({ header: `r: ${means.levels[0]} / ${means.levels[1]}`, align: "right" });
+  let note = " (with its 95% confidence interval: t quantile × standard error)";
+  if (withD) note += "; Cohen's d: the estimate over the residual standard deviation of the full model, with its 95% interval from the noncentral t distribution";
+  if (means) note += `; r: each level's model mean (covariates at their means) back-transformed to a correlation (tanh), ${means.levels[0]} / ${means.levels[1]}`;
   return {
+    estimateHeader: "Estimate [95% CI]",
+    estimate: (e, value) => (Number.isFinite(value) ? `${significant(value)} ${interval(effects.ciLow[e], effects.ciHigh[e], (v) => significant(v))}` : MISSING),
     columns,
     cells: (e) => {
-      const cells = [interval(effects.ciLow[e], effects.ciHigh[e], (v) => significant(v))];
+      const cells: string[] = [];
       if (withD) cells.push(Number.isFinite(effects.cohensD[e]) ? `${fixed(effects.cohensD[e], 2)} ${interval(effects.cohensDLow[e], effects.cohensDHigh[e], (v) => fixed(v, 2))}` : MISSING);
-      if (means) cells.push(fixed(means.first[e], 2), fixed(means.second[e], 2));
+      if (means) cells.push(Number.isFinite(means.first[e]) && Number.isFinite(means.second[e]) ? `${fixed(means.first[e], 2)} / ${fixed(means.second[e], 2)}` : MISSING);
       return cells;
     },
     note,

@@ -208,7 +208,7 @@ function contrastTables(
   else
     columns.push(
       { header: "t", align: "right" },
-      { header: "Estimate", align: "right" },
+      { header: effects.estimateHeader, align: "right" },
       ...effects.columns,
       { header: "Partial r", align: "right" },
       { header: "p (unc.)", align: "right" },
@@ -227,7 +227,7 @@ function contrastTables(
     cells.push(b.label);
     if (shape.hasSystem) cells.push(b.system ?? MISSING);
     if (isF) cells.push(fixed(edges.statistic[e], 2), fixed(edges.partialEtaSquared[e], 2), pValue(edges.pUncorrected[e]));
-    else cells.push(fixed(edges.statistic[e], 2), significant(edges.estimate[e]), ...effects.cells(e), fixed(edges.partialR[e], 2), pValue(edges.pUncorrected[e]));
+    else cells.push(fixed(edges.statistic[e], 2), effects.estimate(e, edges.estimate[e]), ...effects.cells(e), fixed(edges.partialR[e], 2), pValue(edges.pUncorrected[e]));
     if (!byComponent) cells.push(pValue(edges.qFdr[e]));
     if (edgePFwe) cells.push(pValue(edges.pFwe![e]));
     return { cells };
