@@ -49,7 +49,7 @@ export function effectSizesSummary(contrasts: ObservedContrast[]): Record<string
   const level = withEffects[0].effects!.level;
   return {
     confidence_level: level,
-    estimate_interval: "estimate ± t quantile (1 + level)/2 with the residual degrees of freedom × standard error",
+    estimate_interval: "two-sided, whatever inference.tail: estimate ± t quantile (1 + level)/2 with the residual degrees of freedom × standard error",
     cohens_d: {
       applies_to: "t contrasts comparing two levels of one factor that enters the model as a main effect only",
       standardiser: "residual standard deviation of the full model (√(SSE / residual df)), so d = t × √(c'(X'X)⁻¹c)",
