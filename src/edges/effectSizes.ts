@@ -85,7 +85,16 @@ function modelMeans(fit: EdgeFit, row: ArrayLike<number>, statistic: Float64Arra
 }
 
 /**
- * The noncentrality interval of every t (NaN where t is not finite). The
+ * |t| above which the noncentrality interval is not computed (NaN): the series
+ * then runs to hundreds of thousands of terms per evaluation (its Poisson weights
+ * spread like √(δ²/2)), and such t's come only from near-exact fits. Up to it,
+ * an interval takes at most a few tens of milliseconds (df = 1) and usually
+ * well under one (bench/effectSizes.ts).
+ */
+export const MAX_INTERVAL_STATISTIC = 100;
+
+/**
+ * The noncentrality interval of every t (NaN where t is not finite or |t| > MAX_INTERVAL_STATISTIC). The
  * edges are solved in ascending order of t, each root's Newton search starting
  * from the line through the two previous roots (neighbouring t's differ
  * little among tens of thousands of edges, so one or two evaluations of the
@@ -100,7 +109,7 @@ export function noncentralIntervals(statistic: Float64Array, df: number, level: 
   const low = new Float64Array(E).fill(NaN);
   const high = new Float64Array(E).fill(NaN);
   const order: number[] = [];
-  for (let e = 0; e < E; e++) if (Number.isFinite(statistic[e])) order.push(e);
+  for (let e = 0; e < E; e++) if (Math.abs(statistic[e]) <= MAX_INTERVAL_STATISTIC) order.push(e);
   order.sort((a, b) => statistic[a] - statistic[b] || a - b);
   // The last two solved (t, δ_L, δ_U), for the extrapolated starting points.
   let t1 = NaN;

@@ -1,3 +1,4 @@
+import { MAX_INTERVAL_STATISTIC } from "../edges/effectSizes.js";
 import type { ObservedContrast } from "./contrastResults.js";
 import type { EdgeColumns } from "./edgeColumns.js";
 
@@ -55,6 +56,7 @@ export function effectSizesSummary(contrasts: ObservedContrast[]): Record<string
       standardiser: "residual standard deviation of the full model (√(SSE / residual df)), so d = t × √(c'(X'X)⁻¹c)",
       interval: "the noncentrality interval of the observed t (the noncentral t distribution inverted; Steiger & Fouladi 1997; Cumming & Finch 2001) times √(c'(X'X)⁻¹c)",
       bias_correction: "none",
+      interval_empty_above_abs_t: MAX_INTERVAL_STATISTIC,
     },
     level_means: {
       applies_to: "as Cohen's d, when the edges were Fisher z-transformed",
