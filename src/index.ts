@@ -53,6 +53,7 @@ export { runPower, type PowerOptions } from "./power/runPower.js";
 export { analysePowerCohort, type PowerPlan } from "./power/powerStudy.js";
 export { contrastFStatistics } from "./edges/fStatistics.js";
 export { fisherFUpperTail } from "./statistics/fisherF.js";
+export { noncentralTCdf, noncentralityInterval } from "./statistics/noncentralT.js";
 export { simulateCohort, type SimulationOptions, type SimulatedCohort } from "./simulate/simulateCohort.js";
 export { writeCohort } from "./simulate/writeCohort.js";
 

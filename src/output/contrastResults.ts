@@ -1,4 +1,5 @@
 import type { EdgeStatistics } from "../edges/contrastStatistics.js";
+import type { EdgeEffectSizes } from "../edges/effectSizes.js";
 import type { ComponentSummary } from "../network/components.js";
 import type { FamilywiseP } from "../inference/familywiseP.js";
 import type { Contrast } from "../model/contrast.js";
@@ -20,6 +21,19 @@ export interface ObservedContrast {
   qFdr: Float64Array;
   labels: Int32Array;
   components: ComponentSummary[];
+  /** t contrasts of an analysis: the effect sizes written after the contract columns (README: Effect sizes). */
+  effects?: ContrastEffectSizes;
+}
+
+/**
+ * A t contrast's effect sizes: the estimate's interval; Cohen's d and its
+ * interval when the contrast compares two levels of a factor (`comparison`);
+ * and, for Fisher z-transformed edges, the two levels' model means
+ * back-transformed to correlations (`means`, tanh).
+ */
+export interface ContrastEffectSizes extends EdgeEffectSizes {
+  comparison?: { variable: string; first: string; second: string };
+  backTransform: "tanh" | null;
 }
 
 /** A contrast's null distribution (full, or one shard's share) with how it was drawn. */

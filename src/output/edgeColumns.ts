@@ -15,4 +15,16 @@ export interface EdgeColumns {
   standardError: Float64Array;
   /** F contrasts: partial η² (NaN for t contrasts). */
   partialEtaSquared: Float64Array;
+  /** t contrasts: the effect-size columns (output/effectSizeColumns.ts), when written. */
+  effects?: EdgeEffectColumns;
+}
+
+/** The estimate's interval, Cohen's d with its interval (NaN where it does not apply), and the two levels' means (correlation scale). */
+export interface EdgeEffectColumns {
+  ciLow: Float64Array;
+  ciHigh: Float64Array;
+  cohensD: Float64Array;
+  cohensDLow: Float64Array;
+  cohensDHigh: Float64Array;
+  means?: { levels: [string, string]; first: Float64Array; second: Float64Array };
 }

@@ -4,6 +4,7 @@ import type { PreparedAnalysis } from "./preparedAnalysis.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { ComponentSummary } from "../network/components.js";
 import type { EdgeColumns } from "./edgeColumns.js";
+import { readEffectSizeColumns } from "./effectSizeColumns.js";
 import { formatCell, formatNumber, formatTsv, NumberTexts, TsvBytes, utf8Field, type Cell } from "./tsvWriter.js";
 
 /** Extra per-edge columns after the contract columns, in order. */
@@ -113,6 +114,7 @@ export function edgeColumnsReadBack(
     partialEtaSquared: named("partial_eta_squared"),
   };
   if (extra.some((c) => c.name === "p_fwe")) columns.pFwe = named("p_fwe");
+  Object.assign(columns, readEffectSizeColumns(extra.map((c) => c.name), named));
   return columns;
 }
 

@@ -3,6 +3,7 @@ import { thresholdSweepSummary } from "./thresholdSweepFiles.js";
 import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
 import type { AnalysisResults } from "./analysisResults.js";
+import { effectSizesSummary } from "./effectSizeColumns.js";
 import { relabelingSummary, smallestPossibleP } from "./relabelingSummary.js";
 import { cohortTableSummary, inferenceSummary, inputsSummary, overridesSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
 
@@ -83,6 +84,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
           : {}),
       };
     }),
+    effect_sizes: effectSizesSummary(contrasts),
     options: {
       transform: design.transform,
       symmetrize: design.symmetrize,

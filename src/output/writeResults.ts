@@ -1,5 +1,6 @@
 import type { AnalysisResults } from "./analysisResults.js";
 import type { EdgeColumns } from "./edgeColumns.js";
+import { effectSizeColumns } from "./effectSizeColumns.js";
 import { nullTable } from "./nullTable.js";
 import { componentsTable, edgeColumnsReadBack, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "./resultTables.js";
 import type { ResultsFolder } from "./resultsFolder.js";
@@ -40,6 +41,7 @@ export function writeResults(folder: ResultsFolder, results: AnalysisResults): K
     else if (fwe?.edgeP) extra.push({ name: "p_fwe", values: fwe.edgeP });
     if (observed.contrast.kind === "F") extra.push({ name: "partial_eta_squared", values: statistics.partialR });
     else extra.push({ name: "partial_r", values: statistics.partialR }, { name: "standard_error", values: statistics.standardError });
+    extra.push(...effectSizeColumns(observed));
     const name = observed.contrast.name;
     const labels = free ? free.labels : observed.labels;
     folder.write(

@@ -1,10 +1,12 @@
 import { contrastStatistics, type EdgeStatistics } from "../edges/contrastStatistics.js";
+import { edgeEffectSizes } from "../edges/effectSizes.js";
 import { contrastFStatistics } from "../edges/fStatistics.js";
 import { fitEdges, type EdgeFit } from "../edges/fitEdges.js";
 import { tailPValues } from "../edges/tailPValues.js";
 import { adjustFdr } from "../inference/fdr.js";
 import { primaryComponents } from "../network/components.js";
 import type { Contrast } from "../model/contrast.js";
+import { levelComparison } from "../model/levelComparison.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { InferenceSpec } from "../common/inferenceOptions.js";
 import type { ObservedContrast } from "../output/contrastResults.js";
@@ -17,8 +19,26 @@ export function fitAll(prepared: PreparedAnalysis): EdgeFit {
   return fitEdges(matrix.values, matrix.rows, matrix.cols, connectomes.data, connectomes.edgeCount);
 }
 
+/** Confidence level of the effect sizes' intervals (README: Effect sizes). */
+export const EFFECT_SIZE_LEVEL = 0.95;
+
 export function observeContrast(prepared: PreparedAnalysis, fit: EdgeFit, contrast: Contrast): ObservedContrast {
-  return observeContrastOn(fit, contrast, prepared.pairs, prepared.design.inference);
+  const observed = observeContrastOn(fit, contrast, prepared.pairs, prepared.design.inference);
+  if (contrast.kind === "t") {
+    // Effect sizes of a t contrast: the estimate's interval; Cohen's d when it compares two levels of a factor;
+    // the two levels' means back on the correlation scale when the edges were Fisher z-transformed.
+    const comparison = levelComparison(contrast, prepared.matrix);
+    const fisher = prepared.design.transform === "fisher-z";
+    const effects = edgeEffectSizes(fit, observed.statistics, {
+      level: EFFECT_SIZE_LEVEL,
+      contrast: contrast.vector,
+      compareLevels: comparison !== undefined,
+      ...(comparison && fisher ? { means: { first: comparison.firstRow, second: comparison.secondRow } } : {}),
+    });
+    if (effects.means) for (const column of [effects.means.first, effects.means.second]) for (let e = 0; e < column.length; e++) column[e] = Math.tanh(column[e]);
+    observed.effects = { ...effects, ...(comparison ? { comparison: { variable: comparison.variable, first: comparison.first, second: comparison.second } } : {}), backTransform: effects.means ? "tanh" : null };
+  }
+  return observed;
 }
 
 /** Edge statistics, FDR and observed components of a contrast, from a fit and the inference options alone. */

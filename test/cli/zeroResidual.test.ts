@@ -57,7 +57,7 @@ describe("zero residual variance: no statistic, no estimate, no standard error",
     expect(result.code, result.stderr).toBe(0);
     const table = readTable(path.join(out, "patient_gt_control", "edges.tsv"));
     const column = (name: string) => table.header.indexOf(name);
-    for (const name of ["statistic", "estimate", "standard_error", "p_unc", "q_fdr", "partial_r"]) {
+    for (const name of ["statistic", "estimate", "standard_error", "p_unc", "q_fdr", "partial_r", "ci_low", "ci_high", "cohens_d", "cohens_d_ci_low", "cohens_d_ci_high"]) {
       expect(column(name), name).toBeGreaterThanOrEqual(0);
       expect(table.rows[0][column(name)], `constant edge, ${name}`).toBe("");
       expect(table.rows[1][column(name)], `exactly fitted edge, ${name}`).toBe("");

@@ -6,6 +6,7 @@ import type { Region } from "../../io/regions.js";
 import { readTextFile } from "../../io/readInputFile.js";
 import { parseTsv, type LocatedTsvTable } from "../../io/tsv.js";
 import type { EdgeColumns } from "../edgeColumns.js";
+import { readEffectSizeColumns } from "../effectSizeColumns.js";
 import { parseNullTable } from "../nullTable.js";
 import type { KnownResults } from "../writeResults.js";
 import type { NullChunk } from "../../permute/nullRangeTypes.js";
@@ -56,6 +57,8 @@ export interface ResultsSummary {
   };
   df: number;
   contrasts: ContrastSummary[];
+  /** What effect sizes the edge tables hold, and how they were computed (output/effectSizeColumns.ts); absent in older results. */
+  effect_sizes?: EffectSizesSummary | null;
   options: {
     transform: string;
     symmetrize: boolean;
@@ -79,6 +82,11 @@ export interface ResultsSummary {
     };
   };
   warnings: string[];
+}
+
+export interface EffectSizesSummary {
+  confidence_level: number;
+  contrasts: { name: string; columns: string[]; cohens_d: { factor: string; levels: [string, string]; scale: number } | null; level_means: { columns: [string, string]; levels: [string, string] } | null }[];
 }
 
 export interface ContrastSummary {
@@ -414,6 +422,7 @@ function readEdges(files: FolderFiles, edgesFile: string, regions: Region[]): Ed
     partialEtaSquared: numeric("partial_eta_squared"),
   };
   if (table.header.includes("p_fwe")) edges.pFwe = numeric("p_fwe");
+  Object.assign(edges, readEffectSizeColumns(table.header, numeric));
   return edges;
 }
 

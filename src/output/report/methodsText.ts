@@ -1,4 +1,5 @@
 import { cohortVariables } from "./cohortVariables.js";
+import { effectSizesMethods } from "./effectSizesMethods.js";
 import { escapeHtml } from "./escapeHtml.js";
 import type { LoadedResults } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
@@ -118,6 +119,8 @@ export function methodsText(results: LoadedResults): MethodsText {
   } else {
     contrasts.push(" Uncorrected p-values come from the upper tail of F.");
   }
+  const effectSizes = effectSizesMethods(summary);
+  contrasts.push(...effectSizes.segments);
   const degenerate = summary.contrasts.filter((c) => c.edges_without_statistic > 0);
   if (degenerate.length > 0) {
     const most = Math.max(...degenerate.map((c) => c.edges_without_statistic));
@@ -247,7 +250,7 @@ export function methodsText(results: LoadedResults): MethodsText {
     }
   }
 
-  const references = [...cited].map((key) => REFERENCES[key]).sort();
+  const references = [...[...cited].map((key) => REFERENCES[key]), ...effectSizes.references].sort();
   return { paragraphs, references };
 }
 

@@ -5,6 +5,7 @@ import type { ContrastResults, LoadedResults } from "./loadResults.js";
 import { fixed, MISSING, plain, pValue, significant } from "./printNumbers.js";
 import type { ReportTable, TableColumn, TsvTable } from "./reportTable.js";
 import { significantEdges, type SignificantEdges } from "./significantEdges.js";
+import { EFFECT_SIZE_TSV_COLUMNS, effectSizeCells, effectSizePrint } from "./effectSizeCells.js";
 
 /** Print tables show at most this many edges per contrast and hubs per component; the TSVs hold all. */
 export const PRINT_EDGE_LIMIT = 50;
@@ -117,6 +118,7 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
         edges.pUncorrected[e],
         edges.qFdr[e],
         edges.pFwe ? edges.pFwe[e] : null,
+        ...effectSizeCells(edges.effects, e),
       ]);
     }
     for (const hub of hubRegions(edges, finding.edges, finding.kind === "components")) {
@@ -173,7 +175,7 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
       },
       {
         name: "subnetwork_edges",
-        header: ["contrast", "selection", "component", "region_a", "region_b", "hemisphere_a", "system_a", "hemisphere_b", "system_b", "statistic_kind", "statistic", "estimate", "standard_error", "partial_r", "partial_eta_squared", "p_unc", "q_fdr", "p_fwe"],
+        header: ["contrast", "selection", "component", "region_a", "region_b", "hemisphere_a", "system_a", "hemisphere_b", "system_b", "statistic_kind", "statistic", "estimate", "standard_error", "partial_r", "partial_eta_squared", "p_unc", "q_fdr", "p_fwe", ...EFFECT_SIZE_TSV_COLUMNS],
         rows: edgeTsv,
       },
       { name: "hubs", header: ["contrast", "component", "region", "hemisphere", "system", "degree", "strength"], rows: hubTsv },
@@ -194,6 +196,7 @@ function contrastTables(
   const byComponent = finding.kind === "components";
   const edgePFwe = edges.pFwe !== undefined;
   const isF = contrast.summary.statistic === "F";
+  const effects = effectSizePrint(edges.effects, finding.edges);
 
   const columns: TableColumn[] = [];
   if (byComponent) columns.push({ header: "Subnetwork", align: "right" });
@@ -205,7 +208,8 @@ function contrastTables(
   else
     columns.push(
       { header: "t", align: "right" },
-      { header: "Estimate", align: "right" },
+      { header: effects.estimateHeader, align: "right" },
+      ...effects.columns,
       { header: "Partial r", align: "right" },
       { header: "p (unc.)", align: "right" },
     );
@@ -223,7 +227,7 @@ function contrastTables(
     cells.push(b.label);
     if (shape.hasSystem) cells.push(b.system ?? MISSING);
     if (isF) cells.push(fixed(edges.statistic[e], 2), fixed(edges.partialEtaSquared[e], 2), pValue(edges.pUncorrected[e]));
-    else cells.push(fixed(edges.statistic[e], 2), significant(edges.estimate[e]), fixed(edges.partialR[e], 2), pValue(edges.pUncorrected[e]));
+    else cells.push(fixed(edges.statistic[e], 2), effects.estimate(e, edges.estimate[e]), ...effects.cells(e), fixed(edges.partialR[e], 2), pValue(edges.pUncorrected[e]));
     if (!byComponent) cells.push(pValue(edges.qFdr[e]));
     if (edgePFwe) cells.push(pValue(edges.pFwe![e]));
     return { cells };
@@ -231,7 +235,7 @@ function contrastTables(
   const edgeNotes = [
     isF
       ? "F: the contrast's F-statistic; partial η²: the share of the variance left by the other terms that the contrast explains; p (unc.): uncorrected p-value of the edge."
-      : "t: the contrast's t-statistic; estimate: the contrast of the fitted coefficients on the analysed scale; partial r = t/√(t² + df); p (unc.): uncorrected p-value of the edge.",
+      : `t: the contrast's t-statistic; estimate: the contrast of the fitted coefficients on the analysed scale${effects.note}; partial r = t/√(t² + df); p (unc.): uncorrected p-value of the edge.`,
   ];
   if (finding.edges.length > shown.length) {
     edgeNotes.unshift(`Showing the first ${shown.length} of ${finding.edges.length} edges (strongest first); tables/subnetwork_edges.tsv lists all.`);

@@ -71,6 +71,15 @@ function compare(read: EdgeColumns, memory: EdgeColumns, inputs: unknown): void 
   }
   expect(memory.pFwe === undefined, "pFwe present in one and not the other").toBe(read.pFwe === undefined);
   if (read.pFwe) expectSameBits(memory.pFwe!, read.pFwe, "pFwe", inputs);
+  expect(memory.effects === undefined, "effect sizes present in one and not the other").toBe(read.effects === undefined);
+  if (read.effects && memory.effects) {
+    for (const key of ["ciLow", "ciHigh", "cohensD", "cohensDLow", "cohensDHigh"] as const) expectSameBits(memory.effects[key], read.effects[key], key, inputs);
+    expect(memory.effects.means?.levels).toEqual(read.effects.means?.levels);
+    if (read.effects.means) {
+      expectSameBits(memory.effects.means!.first, read.effects.means.first, "means.first", inputs);
+      expectSameBits(memory.effects.means!.second, read.effects.means.second, "means.second", inputs);
+    }
+  }
 }
 
 const specialNumbers = fc.constantFrom(0, -0, NaN, Infinity, -Infinity, 5e-324, -1e21, 1e-7, 1.7976931348623157e308);
@@ -92,6 +101,28 @@ const extraKinds: ((a: Float64Array, b: Float64Array, c: Float64Array) => ExtraE
     { name: "enhanced", values: b },
     { name: "p_fwe", values: c },
     { name: "partial_eta_squared", values: a },
+  ],
+  // A t contrast with effect sizes (output/effectSizeColumns.ts), with and without the levels' means.
+  (a, b, c) => [
+    { name: "partial_r", values: a },
+    { name: "standard_error", values: b },
+    { name: "ci_low", values: c },
+    { name: "ci_high", values: a },
+    { name: "cohens_d", values: b },
+    { name: "cohens_d_ci_low", values: c },
+    { name: "cohens_d_ci_high", values: a },
+  ],
+  (a, b, c) => [
+    { name: "p_fwe", values: c },
+    { name: "partial_r", values: a },
+    { name: "standard_error", values: b },
+    { name: "ci_low", values: c },
+    { name: "ci_high", values: a },
+    { name: "cohens_d", values: b },
+    { name: "cohens_d_ci_low", values: c },
+    { name: "cohens_d_ci_high", values: a },
+    { name: "r_Région α", values: b },
+    { name: "r_control", values: c },
   ],
 ];
 

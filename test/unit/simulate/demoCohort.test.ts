@@ -67,7 +67,7 @@ describe("demo-cohort/", () => {
 });
 
 describe("designs/ on the demo cohort", () => {
-  for (const name of ["clinic-contrast", "symptom-within-patients", "one-sample", "clinic-from-mat", "clinic-from-labelled-csv", "clinic-from-cifti", "clinic-cohort-table"]) {
+  for (const name of ["clinic-contrast", "symptom-within-patients", "one-sample", "clinic-from-mat", "clinic-from-labelled-csv", "clinic-from-cifti", "clinic-cohort-table", "clinic-effect-sizes"]) {
     it(`designs/${name}.yaml reads as a design whose files exist`, () => {
       const design = readDesign(join(ROOT, "designs", `${name}.yaml`));
       expect(existsSync(resolve(design.baseDir, design.subjects))).toBe(true);
