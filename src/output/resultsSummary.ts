@@ -3,6 +3,7 @@ import { thresholdSweepSummary } from "./thresholdSweepFiles.js";
 import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
 import type { AnalysisResults } from "./analysisResults.js";
+import { acrossContrastsSummary, familywiseNullFile } from "./acrossContrastsSummary.js";
 import { relabelingSummary, smallestPossibleP } from "./relabelingSummary.js";
 import { inferenceSummary, inputsSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
 
@@ -62,6 +63,8 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
               critical_size_measure: inference.size,
               critical_statistic: finiteOrNull(fwe.criticalStatistic),
               smallest_possible_p: smallestPossibleP(contrastNull.setup),
+              p_fwe_null: familywiseNullFile(results, observed.contrast.name),
+              corrected_across_contrasts: results.familyNull !== undefined,
             }
           : { mode: null }),
         ...(free
@@ -82,11 +85,12 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
           : {}),
       };
     }),
+    across_contrasts: acrossContrastsSummary(results),
     options: {
       transform: design.transform,
       symmetrize: design.symmetrize,
       asymmetry_tolerance: design.asymmetryTolerance,
-      inference: inferenceSummary(inference, { components: true }),
+      inference: { ...inferenceSummary(inference, { components: true }), across_contrasts: inference.acrossContrasts },
     },
     warnings: prepared.warnings,
   };
