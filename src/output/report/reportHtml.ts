@@ -1,3 +1,4 @@
+import { acrossContrastsRow } from "./acrossContrastsText.js";
 import { escapeHtml } from "./escapeHtml.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
 import type { LoadedResults, ResultsSummary } from "./loadResults.js";
@@ -49,6 +50,8 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
         (c.exchangeability_blocks ? `; blocks ${code(c.exchangeability_blocks.column)} (${c.exchangeability_blocks.count}, ${h(c.exchangeability_blocks.permutation)})` : ""),
     ]);
   }
+  const acrossRow = acrossContrastsRow(summary);
+  if (acrossRow) summaryRows.push([acrossRow[0], h(acrossRow[1])]);
   summaryRows.push(["Software", `plexus ${h(summary.tool.version)}`]);
 
   const findings = summary.contrasts.map((c, k) => {
