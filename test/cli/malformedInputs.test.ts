@@ -99,6 +99,7 @@ const DESIGN_KEYS = [
   "inference.threshold", "inference.size", "inference.tail", "inference.permutations", "inference.seed",
   "inference.alpha", "inference.fdr", "inference.scheme", "inference.blocks", "inference.block_permutation",
   "inference.enhancement", "inference.enhancement.step", "inference.enhancement.extent_exponent", "missing_values", "unknown_key",
+  "inference.across_contrasts",
 ];
 
 const CELL_VALUES = [
