@@ -59,3 +59,13 @@ export function acrossContrastsRow(summary: ResultsSummary): [string, string] | 
 export function familyNullCaption(summary: ResultsSummary): string {
   return summary.across_contrasts ? ` The distribution is that of the largest over all ${summary.contrasts.length} contrasts (error control across contrasts).` : "";
 }
+
+/** The subnetwork table's note on several contrasts, or null for a single contrast. */
+export function acrossContrastsTableNote(summary: ResultsSummary): string | null {
+  const k = summary.contrasts.length;
+  if (summary.across_contrasts) {
+    return `p_FWE is corrected across the ${k} contrasts as well as the network: it is taken against the permutation distribution of the largest size over all ${k} contrasts.`;
+  }
+  if (k >= 2) return `p_FWE is corrected over the network within each contrast, not across the ${k} contrasts.`;
+  return null;
+}

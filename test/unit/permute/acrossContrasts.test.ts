@@ -191,13 +191,15 @@ describe("across_contrasts on 3 contrasts, all 720 relabelings (exact)", () => {
     });
   });
 
-  it("the methods text says how the contrasts were handled, with and without the option; the report has its row", () => {
+  it("the methods text, the subnetwork table's note and the report's row say how the contrasts were handled, with and without the option", () => {
     const jointMethods = readFileSync(join(out("joint"), "methods.md"), "utf8");
     expect(jointMethods).toContain("family-wise corrected across the three contrasts and the network");
     expect(jointMethods).toContain("Winkler AM, Webster MA, Brooks JC, Tracey I, Smith SM, Nichols TE (2016)");
     const separateMethods = readFileSync(join(out("separate"), "methods.md"), "utf8");
     expect(separateMethods).toContain("Each of the three contrasts was tested at α = 0.05 on its own, without correction across contrasts.");
     expect(readFileSync(join(out("joint"), "report.html"), "utf8")).toContain("<dt>Across contrasts</dt>");
+    expect(readFileSync(join(out("joint"), "tables.md"), "utf8")).toContain("p\\_FWE is corrected across the 3 contrasts as well as the network");
+    expect(readFileSync(join(out("separate"), "tables.md"), "utf8")).toContain("not across the 3 contrasts");
     expect(readFileSync(join(out("separate"), "report.html"), "utf8")).toContain("no correction: each of the 3 contrasts tested at α = 0.05 on its own");
   });
 });
