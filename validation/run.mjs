@@ -47,7 +47,7 @@ const acrossConditions = [
     model: "group",
     levels: { group: ["control", "patient"] },
     contrasts: oppositeContrasts,
-    inference: { threshold: 2.5, size: "mass", tail: "upper" },
+    inference: { thresholds: [2.5], size: "mass", tail: "upper" },
   },
   {
     name: "two opposite one-sided contrasts, Freedman–Lane (age, sex)",
@@ -55,7 +55,7 @@ const acrossConditions = [
     model: "group + age + sex",
     levels: { group: ["control", "patient"] },
     contrasts: oppositeContrasts,
-    inference: { threshold: 2.5, size: "mass", tail: "upper" },
+    inference: { thresholds: [2.5], size: "mass", tail: "upper" },
   },
 ];
 {
