@@ -164,6 +164,8 @@ const md = [
   "| --- | --- | ---: | ---: | ---: | --- | --- |",
   ...errorRows.map((r) => `| ${r.condition} | ${r.measure} | ${r.cohorts} | ${r.rejections} | ${fmt(r.rate)} | ${fmt(r.low)}–${fmt(r.high)} | ${r.low <= 0.05 && 0.05 <= r.high ? "yes" : r.high < 0.05 ? "yes (conservative)" : "NO"} |`),
   "",
+  "Error control across two contrasts (`inference.across_contrasts`): see [across-contrasts.md](across-contrasts.md).",
+  "",
   "## False discovery rate",
   "",
   `With a planted subnetwork (5 regions, d = 1.0), the Benjamini–Hochberg false discovery proportion averaged ${fmt(meanFdp)} (SD ${fmt(sdFdp)}, ${fdp.length} cohorts; standard error ${fmt(sdFdp / Math.sqrt(fdp.length))}) against q = 0.05.`,
