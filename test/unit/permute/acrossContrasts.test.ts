@@ -204,6 +204,34 @@ describe("across_contrasts on 3 contrasts, all 720 relabelings (exact)", () => {
   });
 });
 
+describe("threshold-free inference across contrasts", () => {
+  it("each edge's p_fwe = b/720 over the row-wise largest max_enhanced of the three contrasts' null.tsv", async () => {
+    const design = writeDesign(dir, "free.yaml", body("  across_contrasts: true\n").replace("method: max-t", "method: threshold-free"));
+    await runAnalysis({ designFile: design, out: out("free"), threads: 1, quiet: true }, quietLog);
+    const column = (file: string) => {
+      const [header, ...rows] = readTsv(file);
+      return rows.map((row) => Number(row[header.indexOf("max_enhanced")]));
+    };
+    const own = contrasts.map((c) => column(join(out("free"), c.name, "null.tsv")));
+    const family = column(join(out("free"), "null_across_contrasts.tsv"));
+    family.forEach((value, k) => expect(value, `row ${k + 1}`).toBe(Math.max(...own.map((rows) => rows[k]))));
+    let checked = 0;
+    for (const c of contrasts) {
+      const [header, ...edges] = readTsv(join(out("free"), c.name, "edges.tsv"));
+      for (const edge of edges) {
+        const enhanced = Number(edge[header.indexOf("enhanced")]);
+        if (!(enhanced > 0)) continue;
+        const b = own[0].filter((_, k) => Math.max(...own.map((rows) => rows[k])) >= enhanced - 1e-10 * enhanced).length;
+        expect(Number(edge[header.indexOf("p_fwe")]), `${c.name}: enhanced ${enhanced}`).toBe(b / 720);
+        checked++;
+      }
+    }
+    expect(checked).toBeGreaterThan(0);
+    const summary = JSON.parse(readFileSync(join(out("free"), "summary.json"), "utf8"));
+    expect(typeof summary.across_contrasts.critical_enhanced).toBe("number");
+  });
+});
+
 describe("shards", () => {
   it("two shards merged give the same bytes as one run (null_across_contrasts.tsv, tables, summary.json)", async () => {
     for (const k of [1, 2]) {
