@@ -1,5 +1,4 @@
 import type { ResultsSummary } from "./loadResults.js";
-import type { Segment } from "./methodsText.js";
 import { plain } from "./printNumbers.js";
 
 export const WINKLER_2016 = "Winkler AM, Webster MA, Brooks JC, Tracey I, Smith SM, Nichols TE (2016). Human Brain Mapping 37:1486–1511.";
@@ -13,7 +12,7 @@ const NUMBER_WORDS = ["zero", "one", "two", "three", "four", "five", "six", "sev
  * or more contrasts, that each was tested at alpha with no correction across
  * them. Nothing for a single contrast.
  */
-export function acrossContrastsSentence(summary: ResultsSummary): { segments: Segment[]; references: string[] } {
+export function acrossContrastsSentence(summary: ResultsSummary): { segments: string[]; references: string[] } {
   const k = summary.contrasts.length;
   const alpha = plain(summary.options.inference.alpha);
   const family = summary.across_contrasts;
