@@ -32,5 +32,10 @@ export interface InferenceSpec {
   tail: Tail;
   fdr: FdrVariant;
   scheme: Scheme;
+  /**
+   * `inference.across_contrasts`: p_FWE from the maxima over every t contrast
+   * as well as over the network (one family null for all contrasts).
+   */
+  acrossContrasts: boolean;
 }
 

@@ -1,4 +1,5 @@
 import type { ContrastInference, ContrastNull, ObservedContrast } from "./contrastResults.js";
+import type { NullChunk } from "../permute/nullRangeTypes.js";
 import type { PreparedAnalysis } from "./preparedAnalysis.js";
 import type { InputRecord } from "./provenance.js";
 
@@ -12,6 +13,8 @@ export interface AnalysisResults {
   contrasts: ObservedContrast[];
   nulls: (ContrastNull | undefined)[];
   inferred: ContrastInference[];
+  /** With `inference.across_contrasts`: the family null (row-wise maxima over the contrasts) every p_FWE comes from. */
+  familyNull?: NullChunk;
   inputs: InputRecord[];
   commandLine: string[] | null;
 }

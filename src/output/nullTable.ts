@@ -3,6 +3,9 @@ import type { NullChunk } from "../permute/nullRangeTypes.js";
 import { parseTsv } from "../io/tsv.js";
 import { formatTsv, type Cell } from "./tsvWriter.js";
 
+/** The family null of `inference.across_contrasts` (row-wise maxima over the contrasts), at the top of a results folder. */
+export const FAMILY_NULL_FILE = "null_across_contrasts.tsv";
+
 export const NULL_COLUMNS = ["permutation", "max_extent", "max_mass", "max_statistic"] as const;
 
 /** null.tsv: one row per relabeling, numbered from `from` (1 for a whole run). */

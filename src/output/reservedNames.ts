@@ -1,3 +1,4 @@
+import { FAMILY_NULL_FILE } from "./nullTable.js";
 import { SHARD_MANIFEST } from "./shardManifest.js";
 import { WRITTEN_RECORD } from "./writtenRecord.js";
 
@@ -23,6 +24,7 @@ export const RESERVED_TOP_LEVEL_NAMES: readonly string[] = [
   SHARD_MANIFEST,
   "strength_values.tsv",
   "results.md",
+  FAMILY_NULL_FILE,
   WRITTEN_RECORD,
 ];
 

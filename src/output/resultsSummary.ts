@@ -4,6 +4,7 @@ import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
 import type { AnalysisResults } from "./analysisResults.js";
 import { effectSizesSummary } from "./effectSizeColumns.js";
+import { acrossContrastsSummary, familywiseNullFile } from "./acrossContrastsSummary.js";
 import { relabelingSummary, smallestPossibleP } from "./relabelingSummary.js";
 import { cohortTableSummary, inferenceSummary, inputsSummary, overridesSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
 
@@ -64,6 +65,8 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
               critical_size_measure: inference.size,
               critical_statistic: finiteOrNull(fwe.criticalStatistic),
               smallest_possible_p: smallestPossibleP(contrastNull.setup),
+              p_fwe_null: familywiseNullFile(results, observed.contrast.name),
+              corrected_across_contrasts: results.familyNull !== undefined,
             }
           : { mode: null }),
         ...(free
@@ -85,11 +88,16 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
       };
     }),
     effect_sizes: effectSizesSummary(contrasts),
+    across_contrasts: acrossContrastsSummary(results),
     options: {
       transform: design.transform,
       symmetrize: design.symmetrize,
       asymmetry_tolerance: design.asymmetryTolerance,
-      inference: { ...inferenceSummary(inference, { components: true }), command_line_overrides: overridesSummary(prepared.overrides) },
+      inference: {
+        ...inferenceSummary(inference, { components: true }),
+        across_contrasts: inference.acrossContrasts,
+        command_line_overrides: overridesSummary(prepared.overrides),
+      },
     },
     warnings: prepared.warnings,
   };

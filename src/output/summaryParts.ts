@@ -110,7 +110,7 @@ export function primaryRule(inference: InferenceSpec): string {
 
 /** One line of the resolved inference options, e.g. "components, threshold 3, size extent, tail both, alpha 0.05". */
 export function inferenceLine(inference: InferenceSpec): string {
-  return `${inference.method}, threshold ${inference.thresholds.join(", ")}, size ${inference.size}, tail ${inference.tail}, alpha ${inference.alpha}`;
+  return `${inference.method}, threshold ${inference.thresholds.join(", ")}, size ${inference.size}, tail ${inference.tail}, alpha ${inference.alpha}${inference.acrossContrasts ? ", p_fwe corrected across contrasts" : ""}`;
 }
 
 /**

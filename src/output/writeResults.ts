@@ -1,7 +1,7 @@
 import type { AnalysisResults } from "./analysisResults.js";
 import type { EdgeColumns } from "./edgeColumns.js";
 import { effectSizeColumns } from "./effectSizeColumns.js";
-import { nullTable } from "./nullTable.js";
+import { FAMILY_NULL_FILE, nullTable } from "./nullTable.js";
 import { componentsTable, edgeColumnsReadBack, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "./resultTables.js";
 import type { ResultsFolder } from "./resultsFolder.js";
 import { resultsSummary } from "./resultsSummary.js";
@@ -70,6 +70,7 @@ export function writeResults(folder: ResultsFolder, results: AnalysisResults): K
     if (sweep) for (const [file, text] of thresholdSweepFiles(name, prepared, observed, sweep, { alpha: inference.alpha, exact })) write(file, text);
     if (contrastNull) write(`${name}/null.tsv`, nullTable(contrastNull.rows));
   });
+  if (results.familyNull) write(FAMILY_NULL_FILE, nullTable(results.familyNull));
   write("subjects.tsv", subjectsTable(prepared));
   write("regions.tsv", regionsTable(prepared.regions));
   const summary = resultsSummary(results);

@@ -10,7 +10,8 @@ import { SHARD_MANIFEST, type ShardManifest } from "../output/shardManifest.js";
 import { fitAll, observeContrast } from "./analyzeContrasts.js";
 import type { ContrastNull } from "../output/contrastResults.js";
 import { writeResults } from "../output/writeResults.js";
-import { contrastInference, setupNull } from "./permutationInference.js";
+import { inferContrasts } from "./acrossContrasts.js";
+import { setupNull } from "./permutationInference.js";
 import { prepareAnalysis } from "./prepareAnalysis.js";
 import { writeReport } from "../output/report/writeReport.js";
 import type { RunLog } from "./runAnalysis.js";
@@ -128,8 +129,8 @@ export function mergeShards(
       }
       return { setup, rows: concatenateChunks(chunks, 1, total + 1) };
     });
-    const inferred = contrasts.map((observed, i) => contrastInference(prepared.design.inference, observed, nulls[i], prepared.pairs));
-    writeResults(folder, { prepared, contrasts, nulls, inferred, inputs, commandLine: options.commandLine ?? null });
+    const { inferred, familyNull } = inferContrasts(prepared, contrasts, nulls);
+    writeResults(folder, { prepared, contrasts, nulls, inferred, familyNull, inputs, commandLine: options.commandLine ?? null });
     folder.readingBack(() => writeReport(folder.staging, (relative, content) => folder.write(relative, content)));
     folder.commit();
     if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);

@@ -22,6 +22,7 @@ import { codeVariable, type Variable } from "../model/variables.js";
 import type { GuardedInputs } from "../output/inputOverlap.js";
 import { contrastFolderProblem } from "../output/reservedNames.js";
 import { checkRelabelings } from "../permute/exchangeability.js";
+import { checkSharedRelabelings } from "../permute/sharedRelabelings.js";
 import type { ExcludedSubject, KeptSubject, PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { checkEnhancementLevels } from "./enhancementLevels.js";
 import { applyInferenceOverrides, overrideWarning, type InferenceOverrides } from "../common/inferenceOverrides.js";
@@ -257,6 +258,8 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
       where,
     });
   }
+  const acrossNote = checkSharedRelabelings({ matrix, contrasts, contrastWhere: design.contrasts.map((spec) => ({ file: design.file, key: spec.key, line: spec.line })), inference, where });
+  if (acrossNote) warnings.push(acrossNote);
 
   const subjectOfRow = (row: number): ConnectomeSubject => ({
     id: participants.ids[row],

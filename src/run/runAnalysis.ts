@@ -11,7 +11,8 @@ import { writeResults } from "../output/writeResults.js";
 import { writeShard } from "../output/writeShard.js";
 import { writeReport } from "../output/report/writeReport.js";
 import { fitAll, observeContrast } from "./analyzeContrasts.js";
-import { computeNull, contrastInference, needsPermutations, setupNull } from "./permutationInference.js";
+import { inferContrasts } from "./acrossContrasts.js";
+import { computeNull, needsPermutations, setupNull } from "./permutationInference.js";
 import { prepareAnalysis } from "./prepareAnalysis.js";
 import { resultLines } from "./resultLines.js";
 import { runFingerprint } from "./runFingerprint.js";
@@ -118,8 +119,9 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
     if (options.shard) {
       writeShard(output, prepared, contrasts, nulls, inputs, fingerprint, options.shard);
     } else {
-      inferred = contrasts.map((observed, i) => contrastInference(prepared.design.inference, observed, nulls[i], prepared.pairs));
-      const written = writeResults(output, { prepared, contrasts, nulls, inferred, inputs, commandLine: options.commandLine ?? null });
+      const family = inferContrasts(prepared, contrasts, nulls);
+      inferred = family.inferred;
+      const written = writeResults(output, { prepared, contrasts, nulls, inferred, familyNull: family.familyNull, inputs, commandLine: options.commandLine ?? null });
       output.readingBack(() => writeReport(output.staging, (relative, content) => output.write(relative, content), {}, written));
     }
     output.commit();

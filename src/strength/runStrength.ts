@@ -55,7 +55,11 @@ export async function runStrength(options: StrengthOptions, log: StrengthLog, pr
     if (!folder) throw new Error("the output folder was not opened before the matrices were read");
     refuseFContrasts(prepared);
     const warnings = [...prepared.warnings];
-    for (const warning of prepared.warnings) log.warn(warning);
+    // The strength measures' p_FWE are corrected over the measures of each contrast; the design's option applies to `run`.
+    if (prepared.design.inference.acrossContrasts && prepared.contrasts.length > 1) {
+      warnings.push("'inference.across_contrasts' applies to `plexus run`; the p_FWE of `plexus strength` are corrected over the measures within each contrast, not across contrasts");
+    }
+    for (const warning of warnings) log.warn(warning);
     const selected = measure === "subnetwork" ? selectEdgeSets(options.selection ?? {}, prepared.regions, prepared.pairs) : undefined;
     const inputs = hashInputs([...prepared.inputs, ...(selected?.files ?? [])]);
     let source: { subnetworks: SubnetworkSource; overlap: SampleOverlap } | undefined;

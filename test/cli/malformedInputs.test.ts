@@ -104,6 +104,7 @@ const DESIGN_KEYS = [
   // select and cohort_table
   "select", "select.group", "select.site", "select.sex", "select.participant_id", "select.unknown_column",
   "cohort_table", "cohort_table.by", "cohort_table.variables", "cohort_table.unknown_key",
+  "inference.across_contrasts",
 ];
 
 const CELL_VALUES = [

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { clopperPearson } from "../../src/inference/familywiseP.js";
 import { runCondition, type StudyCondition } from "../../src/errorRateStudy/errorRateStudy.js";
+import { runAcrossContrastsCondition, type AcrossContrastsCondition } from "../../src/errorRateStudy/acrossContrastsStudy.js";
 
 // The reduced, CI-sized form of the validation study (`npm run validate` runs the
 // full one). Criterion: under the null the share of cohorts with a family-wise
@@ -61,5 +62,34 @@ describe("error control by simulation (reduced form)", () => {
     expect(mean, `mean FDP ${mean} (se ${se})`).toBeLessThanOrEqual(0.05 + 3 * se);
     // The planted effect is found at all (the test is not vacuous).
     expect(outcomes.some((o) => o.fdr.truePositive > 0)).toBe(true);
+  });
+});
+
+describe("error control across contrasts by simulation (reduced form)", () => {
+  // Two opposite one-sided contrasts of null cohorts (Winkler et al. 2016, Human Brain Mapping
+  // 37:1486, the joint null of the maxima): with each contrast at alpha on its own null, the
+  // family-wise error over the pair is about 2 alpha, above alpha; on the family null of
+  // `inference.across_contrasts` it is alpha (the 99% Clopper–Pearson interval contains 0.05 or
+  // lies below it). `node validation/run.mjs --only across-contrasts` runs the full form.
+  it("two opposite one-sided contrasts: about 2α each on its own, at most α with across_contrasts", () => {
+    const condition: AcrossContrastsCondition = {
+      name: "ci-across-contrasts",
+      simulation: { ...base, effect: null },
+      model: "group",
+      levels: { group: ["control", "patient"] },
+      contrasts: ["group[patient] - group[control]", "group[control] - group[patient]"],
+      inference: { thresholds: [2.5], size: "mass", tail: "upper" },
+    };
+    const cohorts = 800;
+    const outcomes = runAcrossContrastsCondition(condition, cohorts, 99);
+    for (const key of ["component", "edge"] as const) {
+      const joint = outcomes.filter((o) => o.joint[key]).length;
+      const separate = outcomes.filter((o) => o.separate[key]).length;
+      const jointInterval = clopperPearson(joint, cohorts, 0.99);
+      expect(jointInterval.low, `${key}, across_contrasts: ${joint}/${cohorts}`).toBeLessThanOrEqual(0.05);
+      const separateInterval = clopperPearson(separate, cohorts, 0.99);
+      expect(separateInterval.low, `${key}, each contrast on its own: ${separate}/${cohorts} exceeds alpha`).toBeGreaterThan(0.05);
+      expect(separateInterval.high, `${key}, each contrast on its own: ${separate}/${cohorts} near 2 alpha`).toBeGreaterThanOrEqual(0.1 - 0.02);
+    }
   });
 });

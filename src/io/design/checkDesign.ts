@@ -22,6 +22,7 @@ export interface CheckedInference {
   permutations?: number;
   seed?: number;
   blocks?: string;
+  acrossContrasts?: boolean;
 }
 
 /** The keys the file sets, each checked by its rule; an absent optional key is undefined. */
@@ -226,8 +227,17 @@ function checkInference(top: DesignSection): CheckedInference | undefined {
     permutations: checkNumber(section, "permutations", INFERENCE_KEYS.permutations),
     seed: checkNumber(section, "seed", INFERENCE_KEYS.seed),
     blocks: checkBlocks(section),
+    acrossContrasts: checkAcrossContrasts(section),
   };
   return checked;
+}
+
+/** inference.across_contrasts: true or false. */
+function checkAcrossContrasts(section: DesignSection): boolean | undefined {
+  const value = section.value("across_contrasts");
+  if (value === undefined || (value === null && INFERENCE_KEYS.across_contrasts.nullIsDefault)) return undefined;
+  if (typeof value !== "boolean") throw new InputError("'inference.across_contrasts' must be true or false", section.where("across_contrasts"));
+  return value;
 }
 
 /** inference.threshold: one positive number, or a sweep of different ones (the first is the primary). */

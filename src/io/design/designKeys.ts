@@ -84,6 +84,8 @@ export const INFERENCE_KEYS = {
   fdr: choice(["bh", "by"] as const, "bh"),
   scheme: choice(["auto", "permute", "sign-flip"] as const, "auto"),
   enhancement: { kind: "section", keys: ENHANCEMENT_KEYS },
+  /** Take each relabeling's maxima over every t contrast too (family-wise error across contrasts). */
+  across_contrasts: { kind: "boolean", default: false, nullIsDefault: true },
 } as const;
 
 /** `connectomes` as a mapping: the file or template, the array in it, and its participants' axis. */

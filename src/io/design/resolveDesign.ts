@@ -23,6 +23,7 @@ export function resolveInference(checked: CheckedInference = {}): InferenceSpec 
     tail: checked.tail ?? INFERENCE_KEYS.tail.default,
     fdr: checked.fdr ?? INFERENCE_KEYS.fdr.default,
     scheme: checked.scheme ?? INFERENCE_KEYS.scheme.default,
+    acrossContrasts: checked.acrossContrasts ?? INFERENCE_KEYS.across_contrasts.default,
   };
   if (checked.blocks !== undefined) inference.blocks = checked.blocks;
   return inference;

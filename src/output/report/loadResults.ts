@@ -7,7 +7,7 @@ import { readTextFile } from "../../io/readInputFile.js";
 import { parseTsv, type LocatedTsvTable } from "../../io/tsv.js";
 import type { EdgeColumns } from "../edgeColumns.js";
 import { readEffectSizeColumns } from "../effectSizeColumns.js";
-import { parseNullTable } from "../nullTable.js";
+import { FAMILY_NULL_FILE, parseNullTable } from "../nullTable.js";
 import type { KnownResults } from "../writeResults.js";
 import type { NullChunk } from "../../permute/nullRangeTypes.js";
 import { tsvCellText } from "./tsvCellText.js";
@@ -79,8 +79,21 @@ export interface ResultsSummary {
       block_permutation: string;
       /** `--permutations`/`--seed` that replaced the design's values; null or absent when none. */
       command_line_overrides?: RecordedOverrides | null;
+      /** `inference.across_contrasts` (absent in folders written before it existed: false). */
+      across_contrasts?: boolean;
     };
   };
+  /** With `inference.across_contrasts`: the family of contrasts and its null (src/output/acrossContrastsSummary.ts). */
+  across_contrasts?: {
+    contrasts: string[];
+    null_file: string;
+    mode: "exact" | "monte-carlo";
+    permutations: number;
+    critical_size: number | null;
+    critical_size_measure: "extent" | "mass";
+    critical_statistic: number | null;
+    critical_enhanced?: number | null;
+  } | null;
   warnings: string[];
 }
 
@@ -115,6 +128,9 @@ export interface ContrastSummary {
   critical_size_measure?: "extent" | "mass";
   critical_statistic?: number | null;
   smallest_possible_p?: number;
+  /** The file its p_FWE come from: `<name>/null.tsv`, or the family null with `inference.across_contrasts`. */
+  p_fwe_null?: string;
+  corrected_across_contrasts?: boolean;
 }
 
 /** The contrast's rows: `rows` for an F contrast, else the one vector. */
@@ -358,7 +374,8 @@ function readContrast(files: FolderFiles, dir: string, summary: ContrastSummary,
   const components = readComponents(files, path.join(folder, "components.tsv"));
   let nullDistribution: NullChunk | undefined;
   if (summary.mode !== null && summary.mode !== undefined) {
-    const nullFile = path.join(folder, "null.tsv");
+    // With error control across contrasts, the p-values and critical values come from the family null: show that one.
+    const nullFile = summary.corrected_across_contrasts ? path.join(dir, FAMILY_NULL_FILE) : path.join(folder, "null.tsv");
     nullDistribution = parseNullTable(files.text(nullFile), nullFile);
   }
   const robustnessFile = path.join(folder, "threshold_robustness.tsv");

@@ -1,3 +1,4 @@
+import { acrossContrastsSentence } from "./acrossContrastsText.js";
 import { cohortVariables } from "./cohortVariables.js";
 import { effectSizesMethods } from "./effectSizesMethods.js";
 import { escapeHtml } from "./escapeHtml.js";
@@ -233,6 +234,8 @@ export function methodsText(results: LoadedResults): MethodsText {
   } else {
     inferenceText.push(` Edge-wise q-values controlling the false discovery rate by ${fdrName} are also reported.`);
   }
+  const acrossContrasts = acrossContrastsSentence(summary);
+  inferenceText.push(...acrossContrasts.segments);
 
   // 4. The cohort table's tests.
   const paragraphs: Segment[][] = [model, contrasts, inferenceText];
@@ -250,7 +253,7 @@ export function methodsText(results: LoadedResults): MethodsText {
     }
   }
 
-  const references = [...[...cited].map((key) => REFERENCES[key]), ...effectSizes.references].sort();
+  const references = [...new Set([...[...cited].map((key) => REFERENCES[key]), ...effectSizes.references, ...acrossContrasts.references])].sort();
   return { paragraphs, references };
 }
 

@@ -1,3 +1,4 @@
+import { familyNullCaption } from "./acrossContrastsText.js";
 import { cohortTables, excludedTables, type CohortOptions } from "./cohortTable.js";
 import { matrixFigure } from "./figures/matrixFigure.js";
 import { networkFigure } from "./figures/networkFigure.js";
@@ -60,7 +61,7 @@ export function reportContent(results: LoadedResults, options: CohortOptions = {
     if (nullSvg) {
       figures.push({
         file: `figures/${name}-null.svg`,
-        caption: `Permutation distribution of the largest component ${summary.options.inference.size} (grey bars), the critical value at α = ${alpha} (dashed line) and the observed components (solid lines, dark when p_FWE ≤ α).`,
+        caption: `Permutation distribution of the largest component ${summary.options.inference.size} (grey bars), the critical value at α = ${alpha} (dashed line) and the observed components (solid lines, dark when p_FWE ≤ α).${familyNullCaption(summary)}`,
         svg: nullSvg,
       });
     }

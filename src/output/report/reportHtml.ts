@@ -1,3 +1,4 @@
+import { acrossContrastsRow } from "./acrossContrastsText.js";
 import { escapeHtml } from "./escapeHtml.js";
 import { selectionText } from "./cohortTable.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
@@ -54,6 +55,8 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     ]);
   }
   if (inference.command_line_overrides) summaryRows.push(["Command-line overrides", `${h(overridesRow(inference.command_line_overrides))}: the design file says otherwise`]);
+  const acrossRow = acrossContrastsRow(summary);
+  if (acrossRow) summaryRows.push([acrossRow[0], h(acrossRow[1])]);
   summaryRows.push(["Software", `plexus ${h(summary.tool.version)}`]);
 
   const findings = summary.contrasts.map((c, k) => {

@@ -1,3 +1,4 @@
+import { acrossContrastsTableNote } from "./acrossContrastsText.js";
 import { thresholdRule } from "../summaryParts.js";
 import type { Cell } from "../tsvWriter.js";
 import { hubRegions } from "./hubRegions.js";
@@ -143,6 +144,8 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
       "p_FWE: family-wise error-corrected p-value of the subnetwork's size (" +
       `${inference.size}) against the permutation distribution of the largest size, with its 95% Clopper–Pearson interval for Monte Carlo permutations, or exact when every distinct relabeling was enumerated.`,
   );
+  const acrossNote = acrossContrastsTableNote(results.summary);
+  if (acrossNote && permuted.length > 0) subnetworkNotes.push(acrossNote);
   const subnetworks: ReportTable | null =
     permuted.length === 0
       ? null

@@ -57,6 +57,7 @@ describe("parseDesign: a minimal design and the defaults", () => {
       tail: "upper",
       fdr: "bh",
       scheme: "auto",
+      acrossContrasts: false,
     });
   });
 
@@ -141,8 +142,18 @@ describe("parseDesign: every key set", () => {
       tail: "both",
       fdr: "by",
       scheme: "sign-flip",
+      acrossContrasts: false,
     });
     expect(design.lines.get("inference.scheme")).toBe(27);
+  });
+
+  it("inference.across_contrasts: true or false (a YAML null is the default, false); anything else names the key", () => {
+    expect(parseDesign(withBase("inference:", "  across_contrasts: true"), FILE).inference.acrossContrasts).toBe(true);
+    expect(parseDesign(withBase("inference:", "  across_contrasts: false"), FILE).inference.acrossContrasts).toBe(false);
+    expect(parseDesign(withBase("inference:", "  across_contrasts: ~"), FILE).inference.acrossContrasts).toBe(false);
+    for (const value of ["1", "yes please", "[true]", "'true'"]) {
+      expect(() => parseDesign(withBase("inference:", `  across_contrasts: ${value}`), FILE), value).toThrow(/'inference.across_contrasts' must be true or false/);
+    }
   });
 
   it("center also takes a list; model may be the number 1; a contrast may be a number", () => {
