@@ -25,12 +25,12 @@ const base = { regions: 16, patients: 12, controls: 12, kind: "correlation", cov
 const groupOnly = { model: "group", contrast: "group[patient] - group[control]", levels: { group: ["control", "patient"] } };
 const withCovariates = { model: "group + age + sex", contrast: "group[patient] - group[control]", levels: { group: ["control", "patient"] } };
 const nullConditions = [
-  { name: "extent, group only", simulation: { ...base, effect: null }, design: groupOnly, inference: { threshold: 2.5, size: "extent" } },
-  { name: "mass, group only", simulation: { ...base, effect: null }, design: groupOnly, inference: { threshold: 2.5, size: "mass" } },
-  { name: "extent, Freedman–Lane (age, sex)", simulation: { ...base, effect: null }, design: withCovariates, inference: { threshold: 2.5, size: "extent" } },
-  { name: "mass, Freedman–Lane (age, sex)", simulation: { ...base, effect: null }, design: withCovariates, inference: { threshold: 2.5, size: "mass" } },
-  { name: "extent, blocks (site), Freedman–Lane", simulation: { ...base, effect: null }, design: withCovariates, inference: { threshold: 2.5, size: "extent" }, blocks: true },
-  { name: "extent, two-tailed", simulation: { ...base, effect: null }, design: groupOnly, inference: { threshold: 2.5, size: "extent", tail: "both" } },
+  { name: "extent, group only", simulation: { ...base, effect: null }, design: groupOnly, inference: { thresholds: [2.5], size: "extent" } },
+  { name: "mass, group only", simulation: { ...base, effect: null }, design: groupOnly, inference: { thresholds: [2.5], size: "mass" } },
+  { name: "extent, Freedman–Lane (age, sex)", simulation: { ...base, effect: null }, design: withCovariates, inference: { thresholds: [2.5], size: "extent" } },
+  { name: "mass, Freedman–Lane (age, sex)", simulation: { ...base, effect: null }, design: withCovariates, inference: { thresholds: [2.5], size: "mass" } },
+  { name: "extent, blocks (site), Freedman–Lane", simulation: { ...base, effect: null }, design: withCovariates, inference: { thresholds: [2.5], size: "extent" }, blocks: true },
+  { name: "extent, two-tailed", simulation: { ...base, effect: null }, design: groupOnly, inference: { thresholds: [2.5], size: "extent", tail: "both" } },
   { name: "threshold-free, Freedman–Lane (age, sex)", simulation: { ...base, effect: null }, design: withCovariates, inference: { method: "threshold-free" } },
 ];
 
@@ -124,7 +124,7 @@ for (const condition of nullConditions) {
 }
 
 // FDR: planted effects, false discovery proportion averaged over cohorts (Benjamini & Hochberg 1995).
-const fdrCondition = { name: "FDR with a planted effect", simulation: { ...base, effect: { regions: 5, size: 1.0 } }, design: withCovariates, inference: { threshold: 2.5 } };
+const fdrCondition = { name: "FDR with a planted effect", simulation: { ...base, effect: { regions: 5, size: 1.0 } }, design: withCovariates, inference: { thresholds: [2.5] } };
 const fdrOutcomes = runCondition(fdrCondition, Math.min(cohorts, quick ? 100 : 500), 19);
 const fdp = fdrOutcomes.map((o) => (o.fdr.declared === 0 ? 0 : (o.fdr.declared - o.fdr.truePositive) / o.fdr.declared));
 const meanFdp = fdp.reduce((a, b) => a + b, 0) / fdp.length;
@@ -134,7 +134,7 @@ const sdFdp = Math.sqrt(fdp.reduce((a, b) => a + (b - meanFdp) ** 2, 0) / (fdp.l
 const powerRows = [];
 for (const regions of [4, 6]) {
   for (const size of [0.8, 1.2, 1.6]) {
-    const condition = { name: `power ${regions} regions d=${size}`, simulation: { ...base, effect: { regions, size } }, design: withCovariates, inference: { threshold: 2.5 } };
+    const condition = { name: `power ${regions} regions d=${size}`, simulation: { ...base, effect: { regions, size } }, design: withCovariates, inference: { thresholds: [2.5] } };
     const outcomes = runCondition(condition, powerCohorts, Math.min(permutations, 499));
     const share = (pick) => outcomes.reduce((a, o) => a + pick(o).truePositive / o.planted, 0) / outcomes.length;
     powerRows.push({
