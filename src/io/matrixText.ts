@@ -44,6 +44,11 @@ export interface MatrixTextOptions {
    * non-finite cells are rejected either way.
    */
   allowNonFiniteDiagonal?: boolean;
+  /**
+   * `edges.missing: drop`: a cell written nan (any case) or NA anywhere is a
+   * missing value (NaN). An empty cell and ±Inf off the diagonal stay errors.
+   */
+  allowMissing?: boolean;
 }
 
 export interface ParsedMatrixText {
@@ -96,6 +101,7 @@ const FIRST_ROW_CAPACITY = 64;
 
 export function parseMatrixText(text: string, file: string, options: MatrixTextOptions = {}): ParsedMatrixText {
   const allowNonFiniteDiagonal = options.allowNonFiniteDiagonal === true;
+  const allowMissing = options.allowMissing === true;
   const end = text.length;
   const layout = detectMatrixLayout(text, text.charCodeAt(0) === 0xfeff ? 1 : 0, file);
   const commaSeparated = layout.commaSeparated;
@@ -152,7 +158,7 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
         if (p === start) {
           throw new InputError(`empty cell in column ${column + 1}`, { file, line, column: column + 1 + columnShift });
         }
-        const word = nonFiniteWord(text, start, p);
+        const word = allowMissing && p - start === 2 && text.slice(start, p) === "NA" ? "NaN" : nonFiniteWord(text, start, p);
         if (word === "") {
           throw new InputError(
             `cell '${shortCell(text.slice(start, p))}' at row ${row + 1}, column ${column + 1} is not a number` +
@@ -163,7 +169,7 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
         value = Number(word);
       }
       // While the first row is read `row` is 0, so the diagonal test holds before N is known.
-      if (!Number.isFinite(value) && !(allowNonFiniteDiagonal && column === row)) {
+      if (!Number.isFinite(value) && !(allowNonFiniteDiagonal && column === row) && !(allowMissing && value !== value)) {
         throw new InputError(
           `cell '${shortCell(text.slice(start, p))}' at row ${row + 1}, column ${column + 1} is not finite` +
             (allowNonFiniteDiagonal ? " (only the diagonal may be NaN or infinite)" : ""),

@@ -1,6 +1,6 @@
 import path from "node:path";
 import { InputError, inputErrors } from "../errors.js";
-import { loadConnectomes, resolveTemplate, type ConnectomeSource, type ConnectomeSubject } from "../io/connectomes.js";
+import { loadConnectomes, resolveTemplate, type ConnectomeSource, type ConnectomeSubject, type LoadedConnectomes } from "../io/connectomes.js";
 import { designKeyLocation, readDesign, type DesignSpec } from "../io/designFile.js";
 import { nearestName } from "../io/nearestName.js";
 import { factorCellProblems } from "../io/factorCells.js";
@@ -22,6 +22,7 @@ import type { GuardedInputs } from "../output/inputOverlap.js";
 import { contrastFolderProblem } from "../output/reservedNames.js";
 import { checkRelabelings } from "../permute/exchangeability.js";
 import type { ExcludedSubject, KeptSubject, PreparedAnalysis } from "../output/preparedAnalysis.js";
+import { applyCoverage, withMissingEdgesHint } from "./coverageRules.js";
 import { checkEnhancementLevels } from "./enhancementLevels.js";
 
 
@@ -228,22 +229,35 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   const regionsPath = design.regions ? path.resolve(design.baseDir, design.regions) : undefined;
   hooks.beforeMatrices?.(design, plannedInputs(design, source, participantsPath, regionsPath, participants.ids.map((_, row) => subjectOfRow(row))));
   const regionTable = regionsPath ? readRegions(regionsPath) : undefined;
-  const connectomes = loadConnectomes(
-    source,
-    kept.map((k) => subjectOfRow(k.tableRow)),
-    {
-      symmetrize: design.symmetrize,
-      asymmetryTolerance: design.asymmetryTolerance,
-      transform: design.transform,
-      participantRowCount: participants.ids.length,
-      ...(regionTable ? { regionTable: { labels: regionTable.map((r) => r.label), file: regionsPath! } } : {}),
-    },
-  );
+  let loaded: LoadedConnectomes;
+  try {
+    loaded = loadConnectomes(
+      source,
+      kept.map((k) => subjectOfRow(k.tableRow)),
+      {
+        symmetrize: design.symmetrize,
+        asymmetryTolerance: design.asymmetryTolerance,
+        transform: design.transform,
+        ...(design.edges ? { missing: design.edges.missing } : {}),
+        participantRowCount: participants.ids.length,
+        ...(regionTable ? { regionTable: { labels: regionTable.map((r) => r.label), file: regionsPath! } } : {}),
+      },
+    );
+  } catch (error) {
+    throw withMissingEdgesHint(error, design);
+  }
+  if (loaded.regionCount < 2) {
+    throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
+  }
+  const { connectomes, pairs, edgeRules } = applyCoverage(design, loaded, edgePairs(loaded.regionCount), kept);
   if (connectomes.reading.reordered) {
     warnings.push("the matrices name their regions in another order than the regions table; their rows and columns were reordered to the table's order");
   }
-  if (connectomes.regionCount < 2) {
-    throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
+  if (edgeRules && edgeRules.kept.length < edgeRules.allPairs.edgeCount) {
+    const { missing, rare } = edgeRules.dropped;
+    warnings.push(
+      `the edge rules left out ${missing + rare} of ${edgeRules.allPairs.edgeCount} edges (${missing} missing in some participant, ${rare} present in too few participants); ${edgeRules.kept.length} edges are analysed`,
+    );
   }
   let fit: EdgeFit | undefined;
   if (inference.method === "threshold-free") {
@@ -263,6 +277,10 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
       ? connectomes.labels.map((label) => ({ label }))
       : defaultRegions(connectomes.regionCount);
 
+  if (edgeRules && edgeRules.regionsWithoutEdges.length > 0) {
+    const names = edgeRules.regionsWithoutEdges.map((r) => printable(regions[r].label));
+    warnings.push(`no edge of ${names.length === 1 ? "region" : `these ${names.length} regions`} is analysed (all left out by the edge rules): ${names.join(", ")}`);
+  }
   const inputs = [
     { role: "design", path: path.resolve(design.file) },
     { role: "participants", path: participantsPath },
@@ -278,8 +296,9 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     matrix,
     contrasts,
     regions,
-    pairs: edgePairs(connectomes.regionCount),
+    pairs,
     connectomes,
+    ...(edgeRules ? { edgeRules } : {}),
     blocks,
     inputs,
     warnings,
