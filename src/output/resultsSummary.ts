@@ -1,4 +1,5 @@
 import { finiteOrNull } from "../common/finiteOrNull.js";
+import { edgeRulesSummary } from "./edgeRulesSummary.js";
 import { thresholdSweepSummary } from "./thresholdSweepFiles.js";
 import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
@@ -28,7 +29,8 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
     matrices_read: readingSummary(connectomes.reading),
     subjects: subjectsSummary(prepared),
     regions: connectomes.regionCount,
-    edges: connectomes.edgeCount,
+    edges: prepared.edgeRules?.allPairs.edgeCount ?? connectomes.edgeCount,
+    ...(prepared.edgeRules ? { edge_rules: edgeRulesSummary(prepared.edgeRules, prepared.regions) } : {}),
     design: {
       model: design.model,
       intercept: prepared.formula.intercept,
@@ -84,6 +86,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
     }),
     options: {
       transform: design.transform,
+      scale: design.scale,
       symmetrize: design.symmetrize,
       asymmetry_tolerance: design.asymmetryTolerance,
       inference: inferenceSummary(inference, { components: true }),

@@ -1,4 +1,5 @@
 import { cohortVariables } from "./cohortVariables.js";
+import { coverageMethods } from "./coverageMethods.js";
 import { escapeHtml } from "./escapeHtml.js";
 import type { LoadedResults } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
@@ -73,6 +74,8 @@ export function methodsText(results: LoadedResults): MethodsText {
   if (options.transform === "fisher-z") {
     model.push(` Correlations were Fisher z-transformed (z = atanh r; ${cite("fisherZ", "Fisher 1915")}) before analysis.`);
   }
+  const coverage = coverageMethods(summary);
+  model.push(...coverage.segments);
   model.push(" At every edge, the general linear model ", { user: design.model });
   model.push(design.intercept ? " (with an intercept)" : " (without an intercept)");
   model.push(" was fitted by ordinary least squares");
@@ -244,7 +247,7 @@ export function methodsText(results: LoadedResults): MethodsText {
     }
   }
 
-  const references = [...cited].map((key) => REFERENCES[key]).sort();
+  const references = [...[...cited].map((key) => REFERENCES[key]), ...coverage.references].sort();
   return { paragraphs, references };
 }
 

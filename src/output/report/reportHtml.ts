@@ -1,3 +1,4 @@
+import { coverageRow } from "./coverageRow.js";
 import { escapeHtml } from "./escapeHtml.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
 import type { LoadedResults, ResultsSummary } from "./loadResults.js";
@@ -31,6 +32,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     ["Design columns", summary.design.columns.map(code).join(", ")],
     ["Participants", `${summary.subjects.used} analysed of ${summary.subjects.in_table} listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} excluded)` : ""}`],
     ["Network", `${summary.regions} regions, ${summary.edges} edges${summary.options.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`],
+    ...[coverageRow(summary, h)].filter((row): row is [string, string] => row !== null),
     ["Residual df", String(summary.df)],
     [
       "Inference",

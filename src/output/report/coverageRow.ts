@@ -1,0 +1,21 @@
+import type { LoadedResults } from "./loadResults.js";
+
+/**
+ * The report's summary row on the edges' path (`edges:`, `scale`, `transform: log1p`):
+ * how many edges were analysed and why the others were left out. Null when none is in force.
+ * Text from the user's files (region labels) goes through `h` (HTML-escaped).
+ */
+export function coverageRow(summary: LoadedResults["summary"], h: (text: string) => string): [string, string] | null {
+  const rules = summary.edge_rules;
+  const steps: string[] = [];
+  if (summary.options.transform === "log1p") steps.push("log(1 + x)");
+  if (rules) {
+    const why: string[] = [];
+    if (rules.missing === "drop") why.push(`${rules.dropped_missing} missing`);
+    if (rules.present_in !== null) why.push(`${rules.dropped_present_in} present in < ${Number((100 * rules.present_in).toFixed(1))}% of participants`);
+    steps.push(`${rules.kept} of ${rules.edges} edges analysed${why.length ? ` (left out: ${why.join(", ")})` : ""}`);
+    if (rules.regions_without_edges.length > 0) steps.push(`no edge kept for ${rules.regions_without_edges.map(h).join(", ")}`);
+  }
+  if (summary.options.scale === "total") steps.push("each participant scaled to the total of its edges");
+  return steps.length > 0 ? ["Edges", steps.join("; ")] : null;
+}
