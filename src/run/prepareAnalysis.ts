@@ -255,9 +255,11 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   }
   if (edgeRules && edgeRules.kept.length < edgeRules.allPairs.edgeCount) {
     const { missing, rare } = edgeRules.dropped;
-    warnings.push(
-      `the edge rules left out ${missing + rare} of ${edgeRules.allPairs.edgeCount} edges (${missing} missing in some participant, ${rare} present in too few participants); ${edgeRules.kept.length} edges are analysed`,
-    );
+    const why = [
+      ...(edgeRules.missing === "drop" ? [`${missing} missing in some participant`] : []),
+      ...(edgeRules.presentIn !== undefined ? [`${rare} present in fewer than ${Number((100 * edgeRules.presentIn).toFixed(1))}% of the participants`] : []),
+    ];
+    warnings.push(`the edge rules left out ${missing + rare} of ${edgeRules.allPairs.edgeCount} edges (${why.join(", ")}); ${edgeRules.kept.length} edges are analysed`);
   }
   let fit: EdgeFit | undefined;
   if (inference.method === "threshold-free") {
@@ -279,7 +281,9 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
 
   if (edgeRules && edgeRules.regionsWithoutEdges.length > 0) {
     const names = edgeRules.regionsWithoutEdges.map((r) => printable(regions[r].label));
-    warnings.push(`no edge of ${names.length === 1 ? "region" : `these ${names.length} regions`} is analysed (all left out by the edge rules): ${names.join(", ")}`);
+    warnings.push(
+      `${names.length === 1 ? "1 region has" : `${names.length} regions have`} no analysed edge (the edge rules left out all of ${names.length === 1 ? "its" : "their"} edges): ${names.join(", ")}`,
+    );
   }
   const inputs = [
     { role: "design", path: path.resolve(design.file) },

@@ -1,5 +1,7 @@
 import type { LoadedResults } from "./loadResults.js";
-import type { Segment } from "./methodsText.js";
+
+/** A piece of the methods text (methodsText.ts's Segment): plain text, or text from the user's files. */
+type Segment = string | { user: string };
 
 const DE_REUS = "de Reus MA, van den Heuvel MP (2013). Estimating false positives and negatives in brain networks. NeuroImage 70:402–409.";
 
