@@ -45,8 +45,9 @@ export interface MatrixTextOptions {
    */
   allowNonFiniteDiagonal?: boolean;
   /**
-   * `edges.missing: drop`: a cell written nan (any case) or NA anywhere is a
-   * missing value (NaN). An empty cell and ±Inf off the diagonal stay errors.
+   * `edges.missing: drop`: a cell written nan (any case) anywhere is a missing
+   * value (NaN). NA (a region label in a header row), an empty cell and ±Inf
+   * off the diagonal stay errors.
    */
   allowMissing?: boolean;
 }
@@ -158,7 +159,7 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
         if (p === start) {
           throw new InputError(`empty cell in column ${column + 1}`, { file, line, column: column + 1 + columnShift });
         }
-        const word = allowMissing && p - start === 2 && text.slice(start, p) === "NA" ? "NaN" : nonFiniteWord(text, start, p);
+        const word = nonFiniteWord(text, start, p);
         if (word === "") {
           throw new InputError(
             `cell '${shortCell(text.slice(start, p))}' at row ${row + 1}, column ${column + 1} is not a number` +
