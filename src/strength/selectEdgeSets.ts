@@ -1,7 +1,7 @@
 import { existsSync } from "node:fs";
 import path from "node:path";
 import { InputError } from "../errors.js";
-import type { EdgePairs } from "../edges/edgeIndex.js";
+import { edgeCountFor, edgeIndexOf, type EdgePairs } from "../edges/edgeIndex.js";
 import { nearestName } from "../io/nearestName.js";
 import type { Region } from "../io/regions.js";
 import { edgesBetweenSystems, edgesWithinSystem, systemNames, type EdgeSet } from "./edgeSets.js";
@@ -36,6 +36,19 @@ function checkSystem(name: string, known: string[], key: string): void {
     const near = nearestName(name, known);
     throw new InputError(`no region belongs to the system '${name}'`, { key }, near ? `did you mean '${near}'?` : `systems: ${known.join(", ")}`);
   }
+}
+
+/**
+ * Edges named in the full edge order (an edge list, a results folder's component)
+ * as indices of the analysed edges `pairs`: the same when every edge is analysed;
+ * with coverage rules (`edges:` in the design), the edges left out are left out
+ * of the set too, as the strength measures see the kept edges only.
+ */
+function analysedEdges(full: Uint32Array, pairs: EdgePairs): Uint32Array {
+  if (pairs.edgeCount === edgeCountFor(pairs.regionCount)) return full;
+  const analysed = new Int32Array(edgeCountFor(pairs.regionCount)).fill(-1);
+  for (let k = 0; k < pairs.edgeCount; k++) analysed[edgeIndexOf(pairs.regionCount, pairs.regionA[k], pairs.regionB[k])] = k;
+  return Uint32Array.from(Array.from(full, (e) => analysed[e]).filter((k) => k >= 0)).sort();
 }
 
 export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pairs: EdgePairs): SelectedEdgeSets {
@@ -77,7 +90,7 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
       {
         name: `pairs_${path.basename(file, path.extname(file))}`,
         description: `the edges listed in ${selection.pairs}`,
-        edges: readPairsFile(selection.pairs, regions),
+        edges: analysedEdges(readPairsFile(selection.pairs, regions), pairs),
       },
       OPTION.pairs,
     );
@@ -90,7 +103,7 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
       fromOption: OPTION.from,
       componentOption: OPTION.component,
     });
-    for (const set of source.sets) add(set, OPTION.from);
+    for (const set of source.sets) add({ ...set, edges: analysedEdges(set.edges, pairs) }, OPTION.from);
     files.push(...source.files);
   }
   return { sets, source, files };
