@@ -54,6 +54,12 @@ function analysedEdges(full: Uint32Array, pairs: EdgePairs): Uint32Array {
 export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pairs: EdgePairs): SelectedEdgeSets {
   const sets: EdgeSet[] = [];
   const files: SelectedEdgeSets["files"] = [];
+  // A set named in the full edge order (an edge list, a results folder's components), mapped to the analysed edges.
+  const keptOf = (set: EdgeSet): EdgeSet => {
+    const edges = analysedEdges(set.edges, pairs);
+    if (edges.length === set.edges.length) return set;
+    return { ...set, edges, description: `${set.description} (${edges.length} of its ${set.edges.length} edges analysed: the edge rules left out the others)` };
+  };
   const known = systemNames(regions);
   const add = (set: EdgeSet, key: string) => {
     if (set.edges.length === 0) {
@@ -87,11 +93,11 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
       throw new InputError(`the edge list ${selection.pairs} does not exist`, { key: OPTION.pairs }, "give a TSV with columns region_a and region_b");
     }
     add(
-      {
+      keptOf({
         name: `pairs_${path.basename(file, path.extname(file))}`,
         description: `the edges listed in ${selection.pairs}`,
-        edges: analysedEdges(readPairsFile(selection.pairs, regions), pairs),
-      },
+        edges: readPairsFile(selection.pairs, regions),
+      }),
       OPTION.pairs,
     );
     files.push({ role: "edge_list", path: file });
@@ -103,7 +109,7 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
       fromOption: OPTION.from,
       componentOption: OPTION.component,
     });
-    for (const set of source.sets) add({ ...set, edges: analysedEdges(set.edges, pairs) }, OPTION.from);
+    for (const set of source.sets) add(keptOf(set), OPTION.from);
     files.push(...source.files);
   }
   return { sets, source, files };

@@ -142,6 +142,26 @@ describe("coverage rules against numpy and statsmodels", () => {
   });
 });
 
+describe("coverage rules: the strength measures see the kept edges only", () => {
+  it("plexus extract's mean over a listed edge set uses its kept edges, on the scaled log1p values (numpy)", async () => {
+    const design = writeDesignFile(path.join(root, "extract.yaml"), designLines(COVERAGE));
+    const pairsFile = path.join(root, "pairs.tsv");
+    // Two kept edges and R1–R2, which the prevalence rule drops.
+    writeFileSync(pairsFile, "region_a\tregion_b\nR3\tR4\nR3\tR6\nR1\tR2\n");
+    const out = path.join(root, "extract.tsv");
+    const result = await runCli(["extract", design, "--pairs", pairsFile, "--out", out, "--quiet"]);
+    expect(result.code, result.stderr).toBe(0);
+    const table = readTable(out);
+    const values = numberColumn(table, "pairs_pairs");
+    const keptIndex = (a: string, b: string) => reference.kept.findIndex((e) => reference.edges[e][0] === a && reference.edges[e][1] === b);
+    const [k34, k36] = [keptIndex("R3", "R4"), keptIndex("R3", "R6")];
+    expect(k34 >= 0 && k36 >= 0).toBe(true);
+    reference.scaled.forEach((row, s) =>
+      expectClose(values[s], (row[k34] + row[k36]) / 2, { rel: 1e-12, label: `participant ${s + 1}: mean of the kept listed edges (numpy values)` }),
+    );
+  });
+});
+
 describe("coverage rules: user mistakes are InputErrors naming the key or the file", () => {
   const prepareError = (name: string, lines: string[]) => {
     const design = writeDesignFile(path.join(root, `${name}.yaml`), lines);
