@@ -193,7 +193,7 @@ function checkTransform(top: DesignSection): "none" | "fisher-z" | "log1p" | und
   const { allowed, nullIsDefault } = DESIGN_KEYS.transform;
   if (value === undefined || (value === null && nullIsDefault)) return undefined;
   if (!allowed.includes(value as (typeof allowed)[number])) {
-    throw new InputError(`'transform' must be ${allowed.join(" or ")}, found '${String(value)}'`, top.where("transform"));
+    throw new InputError(`'transform' must be ${allowed.slice(0, -1).join(", ")} or ${allowed[allowed.length - 1]}, found '${String(value)}'`, top.where("transform"));
   }
   return value as (typeof allowed)[number];
 }
