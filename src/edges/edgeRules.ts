@@ -33,8 +33,8 @@ export interface EdgeRuleCounts {
  * Applies the rules to the edge-major data (data[e·S + s], E edges): an edge
  * NaN in any participant is missing (when dropping missing edges); one
  * non-zero in fewer than `presentIn` × S participants is rare. The fraction is
- * compared as present ≥ presentIn × S − 1e-9 × S, so 0.7 × 10 keeps an edge
- * present in 7 of 10 despite rounding.
+ * compared as present ≥ presentIn × S − 1e-9 × S, so 0.07 × 100 (which rounds
+ * to 7.000000000000001) keeps an edge present in 7 of 100.
  */
 export function applyEdgeRules(data: Float64Array, S: number, E: number, options: EdgeRuleOptions): EdgeRuleCounts {
   const reason = new Uint8Array(E);

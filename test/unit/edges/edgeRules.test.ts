@@ -1,6 +1,6 @@
 // The edge rules on data small enough to count by hand (the expected counts are written out
 // below, edge by edge): missing edges, the prevalence fraction compared despite rounding
-// (0.7 × 10 = 7.000000000000001 in binary64 must keep an edge present in 7 of 10), and the
+// (0.07 × 100 = 7.000000000000001 in binary64 must keep an edge present in 7 of 100), and the
 // scaling to each participant's total (sums written out by hand).
 import { describe, expect, it } from "vitest";
 import { edgePairs } from "../../../src/edges/edgeIndex.js";
@@ -22,11 +22,10 @@ describe("applyEdgeRules", () => {
     expect([...applyEdgeRules(data, 4, 3, { dropMissing: true }).kept]).toEqual([1, 2]);
   });
 
-  it("present_in 0.7 keeps an edge present in 7 of 10 participants, and leaves out one present in 6", () => {
-    expect(0.7 * 10).toBeGreaterThan(7); // why the comparison allows for rounding
-    const seven = [1, 1, 1, 1, 1, 1, 1, 0, 0, 0];
-    const six = [1, 1, 1, 1, 1, 1, 0, 0, 0, 0];
-    const rules = applyEdgeRules(Float64Array.from([...seven, ...six]), 10, 2, { dropMissing: false, presentIn: 0.7 });
+  it("present_in 0.07 keeps an edge present in 7 of 100 participants (0.07 × 100 rounds above 7), and leaves out one present in 6", () => {
+    expect(0.07 * 100).toBeGreaterThan(7); // why the comparison allows for rounding
+    const edge = (present: number) => Array.from({ length: 100 }, (_, s) => (s < present ? 1 : 0));
+    const rules = applyEdgeRules(Float64Array.from([...edge(7), ...edge(6)]), 100, 2, { dropMissing: false, presentIn: 0.07 });
     expect([...rules.kept]).toEqual([0]);
   });
 
