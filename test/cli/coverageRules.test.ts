@@ -133,6 +133,7 @@ describe("coverage rules against numpy and statsmodels", () => {
     expect(methods).toContain("log(1 + x)");
     expect(methods).toContain("divided by their sum over the kept edges");
     expect(methods).toContain("de Reus MA, van den Heuvel MP (2013)");
+    expect(readFileSync(path.join(out, "tables.md"), "utf8")).toContain(`Edges analysed: ${reference.kept.length} of ${reference.edges.length}`);
     const report = readFileSync(path.join(out, "report.html"), "utf8");
     expect(report).toContain(`${reference.kept.length} of ${reference.edges.length} edges analysed`);
 

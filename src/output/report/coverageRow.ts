@@ -19,3 +19,13 @@ export function coverageRow(summary: LoadedResults["summary"], h: (text: string)
   if (summary.options.scale === "total") steps.push("each participant scaled to the total of its edges");
   return steps.length > 0 ? ["Edges", steps.join("; ")] : null;
 }
+
+/** The tables' note on the edge rules (`edges:`): how many edges were analysed and why the others were not. Null without rules. */
+export function coverageTableNote(summary: LoadedResults["summary"]): string | null {
+  const rules = summary.edge_rules;
+  if (!rules) return null;
+  const why: string[] = [];
+  if (rules.missing === "drop") why.push(`${rules.dropped_missing} missing in some participant`);
+  if (rules.present_in !== null) why.push(`${rules.dropped_present_in} non-zero in fewer than ${Number((100 * rules.present_in).toFixed(1))}% of the participants`);
+  return `Edges analysed: ${rules.kept} of ${rules.edges}${why.length ? ` (left out by the edge rules: ${why.join("; ")})` : ""}; subnetworks, p_FWE and q_FDR concern the analysed edges only.`;
+}

@@ -1,3 +1,4 @@
+import { coverageTableNote } from "./coverageRow.js";
 import { thresholdRule } from "../summaryParts.js";
 import type { Cell } from "../tsvWriter.js";
 import { hubRegions } from "./hubRegions.js";
@@ -141,6 +142,8 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
       "p_FWE: family-wise error-corrected p-value of the subnetwork's size (" +
       `${inference.size}) against the permutation distribution of the largest size, with its 95% Clopper–Pearson interval for Monte Carlo permutations, or exact when every distinct relabeling was enumerated.`,
   );
+  const coverageNote = coverageTableNote(results.summary);
+  if (coverageNote) subnetworkNotes.push(coverageNote);
   const subnetworks: ReportTable | null =
     permuted.length === 0
       ? null
