@@ -17,7 +17,7 @@ in two made-up systems). Two kinds of matrices, one text file per participant:
   counts/<id>.tsv  streamline counts: whole numbers with many zeros (the weaker
                    connections are often not found), each participant's total
                    scaled by a random "tracking yield" factor, and patients with
-                   about 1.8 times the count on the edges among regions 1-5.
+                   about 2.5 times the count on the edges among regions 1-5.
 """
 import json
 import os
@@ -114,7 +114,7 @@ for s in range(S):
     yield_factor = RNG.uniform(0.6, 1.6)
     mean = typical * yield_factor
     if group[s] == "patient":
-        mean = np.where(effect, mean * 1.8, mean)
+        mean = np.where(effect, mean * 2.5, mean)
     counts = RNG.poisson(mean * RNG.gamma(8.0, 1 / 8.0, size=mean.shape))
     present = RNG.uniform(size=mean.shape) < found
     counts = np.where(present, counts, 0).astype(float)

@@ -143,6 +143,31 @@ describe("coverage rules against numpy and statsmodels", () => {
   });
 });
 
+describe("the worked designs on demo-cohort/coverage", () => {
+  const ROOT = path.resolve(__dirname, "../..");
+  it("coverage-gaps.yaml leaves out the 19 edges of V-vale-04 and one more pair (the cohort was made so)", () => {
+    const prepared = prepareAnalysis(path.join(ROOT, "designs", "coverage-gaps.yaml"));
+    const rules = prepared.edgeRules!;
+    expect(rules.dropped).toEqual({ missing: 20, rare: 0 });
+    expect(rules.regionsWithoutEdges.map((r) => prepared.regions[r].label)).toEqual(["V-vale-04"]);
+    expect(rules.reasons.filter((r) => r === "missing in 3 participants")).toHaveLength(19);
+    expect(rules.reasons.filter((r) => r === "missing in 1 participant")).toHaveLength(1);
+  });
+
+  it("streamline-counts.yaml reads log1p counts, keeps the edges present in 75%, and scales each participant's kept edges to sum 1", () => {
+    const prepared = prepareAnalysis(path.join(ROOT, "designs", "streamline-counts.yaml"));
+    const rules = prepared.edgeRules!;
+    expect(rules.dropped.missing).toBe(0);
+    expect(rules.dropped.rare).toBeGreaterThan(0);
+    const { data, subjectCount: S, edgeCount: E } = prepared.connectomes;
+    for (let s = 0; s < S; s++) {
+      let sum = 0;
+      for (let e = 0; e < E; e++) sum += data[e * S + s];
+      expectClose(sum, 1, { rel: 1e-12, label: `participant ${s + 1}: scaled kept edges sum to 1` });
+    }
+  });
+});
+
 describe("coverage rules: the strength measures see the kept edges only", () => {
   it("plexus extract's mean over a listed edge set uses its kept edges, on the scaled log1p values (numpy)", async () => {
     const design = writeDesignFile(path.join(root, "extract.yaml"), designLines(COVERAGE));
