@@ -90,7 +90,9 @@ export function applyCoverage(
  */
 export function withMissingEdgesHint(error: unknown, design: DesignSpec): unknown {
   if (!isInputError(error) || design.edges?.missing === "drop") return error;
-  if (!error.problems.some((problem) => /not finite|must be finite|is NaN/.test(problem.message))) return error;
+  // Non-finite cells of any reader; in a participants × edges table also empty, NA and nan cells (which `drop` reads as missing).
+  const missingLike = /not finite|must be finite|is NaN|^the cell '(NA|nan)?' of edge '.*' is (empty|not a number)$/i;
+  if (!error.problems.some((problem) => missingLike.test(problem.message))) return error;
   const hint = error.hint ? `${error.hint}\n  ${MISSING_EDGES_HINT}` : MISSING_EDGES_HINT;
   return new InputError(error.message, error.location, hint, error.also, error.unlisted);
 }

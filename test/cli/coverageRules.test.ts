@@ -207,6 +207,20 @@ describe("coverage rules: user mistakes are InputErrors naming the key or the fi
     expect(text.split("edges: {missing: drop}").length - 1).toBe(1);
   });
 
+  it("a participants × edges table: an empty cell stops the run with the hint; with missing: drop it is a missing edge", () => {
+    const dir = path.join(root, "edge-table");
+    mkdirSync(dir, { recursive: true });
+    writeFileSync(path.join(dir, "participants.tsv"), "participant_id\tgroup\na\tcontrol\nb\tpatient\nc\tcontrol\nd\tpatient\n");
+    writeFileSync(path.join(dir, "edges.tsv"), "participant_id\t1-2\t1-3\t2-3\na\t1\t2\t3\nb\t\t2\t4\nc\t2\t3\t1\nd\t1\t5\t2\n");
+    const lines = ["subjects: participants.tsv", "connectomes: edges.tsv", "model: group", "contrasts:", "  g: group[patient] - group[control]", "inference: { method: fdr }"];
+    const error = prepareError(path.join("edge-table", "error"), lines);
+    expect(error.message).toContain("is empty");
+    expect(error.hint).toContain("edges: {missing: drop}");
+    const design = writeDesignFile(path.join(dir, "drop.yaml"), [...lines, "edges: { missing: drop }"]);
+    const prepared = prepareAnalysis(design);
+    expect(prepared.edgeRules!.reasons).toEqual(["missing in 1 participant", "", ""]);
+  });
+
   it.each([["0"], ["1.5"], ["-0.2"], ["high"], ["[0.5]"]])("edges.present_in: %s is refused, naming the key", (value) => {
     const error = prepareError("bad-present", designLines([`edges: { present_in: ${value} }`]));
     expect(error.location.key).toBe("edges.present_in");
