@@ -16,7 +16,7 @@ export function coverageRow(summary: LoadedResults["summary"], h: (text: string)
     steps.push(`${rules.kept} of ${rules.edges} edges analysed${why.length ? ` (left out: ${why.join(", ")})` : ""}`);
     if (rules.regions_without_edges.length > 0) steps.push(`no edge kept for ${rules.regions_without_edges.map(h).join(", ")}`);
   }
-  if (summary.options.scale === "total") steps.push("each participant scaled to the total of its edges");
+  if (summary.options.scale === "total") steps.push(`each participant scaled to the total of its ${rules ? "kept " : ""}edges`);
   return steps.length > 0 ? ["Edges", steps.join("; ")] : null;
 }
 
