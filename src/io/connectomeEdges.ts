@@ -8,8 +8,14 @@ export interface EdgeExtractionOptions {
   symmetrize: boolean;
   /** Without `symmetrize`: |a_ij − a_ji| ≤ tol × max(1, |a_ij|, |a_ji|) is required. */
   asymmetryTolerance: number;
-  transform: "none" | "fisher-z";
+  transform: "none" | "fisher-z" | "log1p";
+  /** `edges.missing: drop`: a NaN cell is a missing edge (NaN in the data, left out by the edge rules) instead of an error. */
+  missing?: "error" | "drop";
 }
+
+/** The hint of the first error about a non-finite cell, when the design does not drop missing edges. */
+export const MISSING_EDGES_HINT =
+  "if NaN marks an edge without coverage (e.g. a region without signal), `edges: {missing: drop}` in the design leaves out every edge that is NaN in any analysed participant";
 
 /** Where a matrix came from, so that a bad cell can be located. */
 export interface MatrixOrigin {
@@ -34,7 +40,10 @@ export const SYMMETRIZE_HINT = "set `symmetrize: true` in the design to average 
  * symmetrizing, a_ij and a_ji must agree within the tolerance (the edge is then
  * a_ij), and with symmetrizing the edge is (a_ij + a_ji) / 2. The "fisher-z"
  * transform maps each edge r to atanh(r), Fisher's z (Fisher 1915, Biometrika
- * 10(4):507-521), and needs every off-diagonal cell strictly inside (−1, 1).
+ * 10(4):507-521), and needs every off-diagonal cell strictly inside (−1, 1);
+ * "log1p" maps x to log(1 + x) and needs every off-diagonal cell above −1.
+ * With `missing: "drop"`, a NaN cell (either triangle) makes the edge NaN, a
+ * missing edge that the edge rules (src/edges/edgeRules.ts) leave out.
  */
 export function writeMatrixEdges(
   matrix: Float64Array,
@@ -48,6 +57,8 @@ export function writeMatrixEdges(
 ): void {
   const n = pairs.regionCount;
   const fisher = options.transform === "fisher-z";
+  const log1p = options.transform === "log1p";
+  const dropMissing = options.missing === "drop";
   const tolerance = options.asymmetryTolerance;
   // Edges in order (0,1), (0,2), …, (1,2), …: e runs with (i, j) as in src/edges/edgeIndex.ts.
   let to = outOffset;
@@ -56,6 +67,10 @@ export function writeMatrixEdges(
     for (let j = i + 1, below = matrixOffset + (i + 1) * n + i; j < n; j++, below += n, to += outStride) {
       const upper = matrix[rowStart + j];
       const lower = matrix[below];
+      if (dropMissing && (upper !== upper || lower !== lower)) {
+        out[to] = NaN;
+        continue;
+      }
       if (!Number.isFinite(upper)) throw cellError(origin, i, j, `is ${upper}; off-diagonal cells must be finite`);
       if (!Number.isFinite(lower)) throw cellError(origin, j, i, `is ${lower}; off-diagonal cells must be finite`);
       let value: number;
@@ -76,6 +91,10 @@ export function writeMatrixEdges(
         if (!(Math.abs(upper) < 1)) throw fisherError(origin, i, j, upper);
         if (!(Math.abs(lower) < 1)) throw fisherError(origin, j, i, lower);
         value = Math.atanh(value);
+      } else if (log1p) {
+        if (!(upper > -1)) throw log1pError(origin, i, j, upper);
+        if (!(lower > -1)) throw log1pError(origin, j, i, lower);
+        value = Math.log1p(value);
       }
       out[to] = value;
     }
@@ -110,6 +129,10 @@ function fisherError(origin: MatrixOrigin, row: number, column: number, value: n
     column,
     `is ${value}; fisher-z needs correlations strictly between -1 and 1`,
   );
+}
+
+function log1pError(origin: MatrixOrigin, row: number, column: number, value: number): InputError {
+  return cellError(origin, row, column, `is ${value}; log1p (log(1 + x)) needs values above -1`);
 }
 
 /** Subjects per block of EdgeMajorWriter: an edge's 16 values fill two 64-byte cache lines. */

@@ -203,7 +203,7 @@ function loadFromTemplate(template: string, baseDir: string, subjects: Connectom
   }
   const hints = subjects.map((subject) => `connectivity matrix of participant '${subject.id}' (from the template '${template}')`);
   const files = resolveAll(template, subjects, baseDir);
-  const reference = referenceMatrix(files, hints);
+  const reference = referenceMatrix(files, hints, options.missing === "drop");
   // Labels in the first file: every file must repeat them; a regions table may reorder them.
   const plan = textLabelPlan(reference.labels, reference.file, options.regionTable);
   const pairs = edgePairs(reference.size);
@@ -264,13 +264,13 @@ function resolveAll(template: string, subjects: ConnectomeSubject[], baseDir: st
  * that reads as a matrix of at least 2 regions. When none does, every file's
  * problem is raised at once.
  */
-function referenceMatrix(files: string[], hints: string[]): { file: string; size: number; bytes: number; labels?: MatrixLabels } {
+function referenceMatrix(files: string[], hints: string[], allowMissing: boolean): { file: string; size: number; bytes: number; labels?: MatrixLabels } {
   const reader = new TextFileReader();
   const problems: InputError[] = [];
   for (let s = 0; s < files.length; s++) {
     try {
       const bytes = reader.readBytes(files[s], hints[s]);
-      const matrix = parseMatrixFile(bytes, files[s], { allowNonFiniteDiagonal: true });
+      const matrix = parseMatrixFile(bytes, files[s], { allowNonFiniteDiagonal: true, allowMissing });
       requireTwoRegions(matrix.size, { file: files[s], line: matrix.rowLines[0] });
       return { file: files[s], size: matrix.size, bytes: bytes.length, ...(matrix.labels ? { labels: matrix.labels } : {}) };
     } catch (error) {

@@ -26,7 +26,10 @@ import { notTextProblem } from "./textMatrixFile.js";
  * - In a row that is read, every edge cell is a finite number in decimal
  *   syntax: an empty cell, a missing-value code or text is an error naming
  *   file:line:column and the edge. `transform: fisher-z` maps each value r to
- *   atanh(r) (Fisher 1915, Biometrika 10(4):507-521) and needs |r| < 1.
+ *   atanh(r) (Fisher 1915, Biometrika 10(4):507-521) and needs |r| < 1;
+ *   `transform: log1p` maps x to log(1 + x) and needs x > −1. With
+ *   `edges.missing: drop`, an empty cell, NA or nan (any case) is a missing
+ *   edge (NaN), which the edge rules leave out.
  * The values go into the edge-major array data[e·S + s].
  */
 export interface EdgeTableOptions extends EdgeExtractionOptions {
@@ -91,7 +94,7 @@ export function loadEdgeTable(file: string, subjects: readonly { id: string }[],
       problems.add(new InputError(`expected ${headerCells.length} cells (as in the header on line ${header.line}) but found ${cellCount}`, where));
       continue;
     }
-    const target = { data, s, S, fisher: options.transform === "fisher-z", edgeOfColumn: columns.edgeOfColumn };
+    const target = { data, s, S, transform: options.transform, dropMissing: options.missing === "drop", edgeOfColumn: columns.edgeOfColumn };
     if (cells) {
       for (let c = 1; c < cells.length; c++) {
         const problem = storeEdgeValue(cells[c].text, 0, cells[c].text.length, c, target);
@@ -137,18 +140,32 @@ interface EdgeTarget {
   data: Float64Array;
   s: number;
   S: number;
-  fisher: boolean;
+  transform: EdgeExtractionOptions["transform"];
+  /** `edges.missing: drop`: an empty cell, NA or nan (any case) is a missing edge (NaN). */
+  dropMissing: boolean;
   edgeOfColumn: Int32Array;
 }
 
 /** Stores the value in text[a, b) of edge column c (1-based after the ID), or says what is wrong with it. */
 function storeEdgeValue(text: string, a: number, b: number, c: number, target: EdgeTarget): string | undefined {
+  const at = target.edgeOfColumn[c - 1] * target.S + target.s;
+  if (target.dropMissing && (a === b || (b - a === 2 && text.slice(a, b) === "NA") || (b - a === 3 && text.slice(a, b).toLowerCase() === "nan"))) {
+    target.data[at] = NaN;
+    return undefined;
+  }
   if (a === b) return "is empty";
   const value = parseDecimalSpan(text, a, b);
   if (value !== value) return "is not a number";
   if (!Number.isFinite(value)) return "is not finite";
-  if (target.fisher && !(Math.abs(value) < 1)) return "is not strictly between -1 and 1, as fisher-z needs";
-  target.data[target.edgeOfColumn[c - 1] * target.S + target.s] = target.fisher ? Math.atanh(value) : value;
+  if (target.transform === "fisher-z") {
+    if (!(Math.abs(value) < 1)) return "is not strictly between -1 and 1, as fisher-z needs";
+    target.data[at] = Math.atanh(value);
+  } else if (target.transform === "log1p") {
+    if (!(value > -1)) return "is not above -1, as log1p (log(1 + x)) needs";
+    target.data[at] = Math.log1p(value);
+  } else {
+    target.data[at] = value;
+  }
   return undefined;
 }
 

@@ -44,6 +44,12 @@ export interface MatrixTextOptions {
    * non-finite cells are rejected either way.
    */
   allowNonFiniteDiagonal?: boolean;
+  /**
+   * `edges.missing: drop`: a cell written nan (any case) anywhere is a missing
+   * value (NaN). NA (a region label in a header row), an empty cell and ±Inf
+   * off the diagonal stay errors.
+   */
+  allowMissing?: boolean;
 }
 
 export interface ParsedMatrixText {
@@ -96,6 +102,7 @@ const FIRST_ROW_CAPACITY = 64;
 
 export function parseMatrixText(text: string, file: string, options: MatrixTextOptions = {}): ParsedMatrixText {
   const allowNonFiniteDiagonal = options.allowNonFiniteDiagonal === true;
+  const allowMissing = options.allowMissing === true;
   const end = text.length;
   const layout = detectMatrixLayout(text, text.charCodeAt(0) === 0xfeff ? 1 : 0, file);
   const commaSeparated = layout.commaSeparated;
@@ -163,7 +170,7 @@ export function parseMatrixText(text: string, file: string, options: MatrixTextO
         value = Number(word);
       }
       // While the first row is read `row` is 0, so the diagonal test holds before N is known.
-      if (!Number.isFinite(value) && !(allowNonFiniteDiagonal && column === row)) {
+      if (!Number.isFinite(value) && !(allowNonFiniteDiagonal && column === row) && !(allowMissing && value !== value)) {
         throw new InputError(
           `cell '${shortCell(text.slice(start, p))}' at row ${row + 1}, column ${column + 1} is not finite` +
             (allowNonFiniteDiagonal ? " (only the diagonal may be NaN or infinite)" : ""),

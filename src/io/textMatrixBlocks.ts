@@ -75,7 +75,7 @@ export function textBlockLoader(job: TextBlockJob): BlockLoader {
           const file = job.files[s];
           const bytes = reader.readBytes(file, job.hints[s]);
           if (job.digests) job.digests.set(createHash("sha256").update(bytes).digest(), DIGEST_BYTES * s);
-          const matrix = parseMatrixFile(bytes, file, { allowNonFiniteDiagonal: true }, reuse);
+          const matrix = parseMatrixFile(bytes, file, { allowNonFiniteDiagonal: true, allowMissing: job.options.missing === "drop" }, reuse);
           reuse = matrix;
           if (matrix.size !== job.regionCount) throw sizeMismatch(file, matrix.size, job.firstFile, job.regionCount, matrix.rowLines[0]);
           const mismatch = labelMismatch(matrix.labels, job.firstLabels, job.firstFile, file);

@@ -61,10 +61,32 @@ export interface PreparedAnalysis {
    */
   inputs: { role: string; path: string; sha256?: string }[];
   warnings: string[];
+  /** The coverage rules as applied, when the design has `edges:`. */
+  edgeRules?: AppliedEdgeRules;
   /** The fit of every edge, when preparation needed it (threshold-free: the step's bound); the run reuses it. */
   fit?: EdgeFit;
   /** `--permutations`/`--seed` that replaced the design's values (already applied to `design.inference`). */
   overrides?: AppliedOverrides;
   /** Each contrast's relabelings as the run will draw them (absent for `method: fdr`), for `plexus check`. */
   relabelings?: ContrastRelabelings[];
+}
+
+/**
+ * The coverage rules as applied (`edges:` in the design): the analysis sees the
+ * kept edges only (`PreparedAnalysis.pairs` and the connectome data hold them,
+ * with their real regions); the writers list every edge, the dropped ones
+ * with their reason.
+ */
+export interface AppliedEdgeRules {
+  missing: "error" | "drop";
+  presentIn?: number;
+  /** Every edge of the matrices, in the fixed edge order. */
+  allPairs: EdgePairs;
+  /** Full edge index of each kept edge, ascending (kept edge k is allPairs' edge kept[k]). */
+  kept: Uint32Array;
+  /** Per edge of allPairs: why it was left out ("" when kept), e.g. "missing in 3 participants". */
+  reasons: string[];
+  dropped: { missing: number; rare: number };
+  /** Regions (0-based) of which no edge is kept. */
+  regionsWithoutEdges: number[];
 }

@@ -14,6 +14,8 @@ export interface ExtraEdgeColumn {
 }
 
 export const EDGE_COLUMNS = ["region_a", "region_b", "statistic", "estimate", "p_unc", "q_fdr", "component"] as const;
+/** The last column of edges.tsv when the design has `edges:`: why the edge was left out (empty when analysed). */
+export const REASON_COLUMN = "reason";
 
 /**
  * edges.tsv, as UTF-8 bytes: one row per edge i<j in the fixed order. Written
@@ -31,12 +33,14 @@ export function edgesTable(
   qFdr: Float64Array,
   labels: Int32Array,
   extra: ExtraEdgeColumn[],
+  reasons?: readonly string[],
 ): Uint8Array {
   const labelBytes = regions.map((region) => utf8Field(formatCell(region.label)));
   const qText = new NumberTexts();
   // About 20 bytes a number: a first guess at the size, grown as needed.
   const out = new TsvBytes(pairs.edgeCount * (24 + 20 * (5 + extra.length)));
-  out.header([...EDGE_COLUMNS, ...extra.map((c) => c.name)]);
+  // `reason` (why an edge was left out by the edge rules) is always the last column.
+  out.header([...EDGE_COLUMNS, ...extra.map((c) => c.name), ...(reasons ? [REASON_COLUMN] : [])]);
   for (let e = 0; e < pairs.edgeCount; e++) {
     const t = statistic[e];
     const finite = Number.isFinite(t);
@@ -56,6 +60,10 @@ export function edgesTable(
     for (let c = 0; c < extra.length; c++) {
       out.tab();
       out.ascii(formatNumber(extra[c].values[e]));
+    }
+    if (reasons) {
+      out.tab();
+      if (reasons[e] !== "") out.field(utf8Field(formatCell(reasons[e])));
     }
     out.newline();
   }

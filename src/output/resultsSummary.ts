@@ -1,4 +1,5 @@
 import { finiteOrNull } from "../common/finiteOrNull.js";
+import { edgeRulesSummary } from "./edgeRulesSummary.js";
 import { thresholdSweepSummary } from "./thresholdSweepFiles.js";
 import { residualDf } from "../model/designMatrix.js";
 import { VERSION } from "../version.js";
@@ -31,7 +32,8 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
     subjects: subjectsSummary(prepared),
     cohort_table: cohortTableSummary(prepared),
     regions: connectomes.regionCount,
-    edges: connectomes.edgeCount,
+    edges: prepared.edgeRules?.allPairs.edgeCount ?? connectomes.edgeCount,
+    ...(prepared.edgeRules ? { edge_rules: edgeRulesSummary(prepared.edgeRules, prepared.regions) } : {}),
     design: {
       model: design.model,
       intercept: prepared.formula.intercept,
@@ -91,6 +93,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
     across_contrasts: acrossContrastsSummary(results),
     options: {
       transform: design.transform,
+      scale: design.scale,
       symmetrize: design.symmetrize,
       asymmetry_tolerance: design.asymmetryTolerance,
       inference: {

@@ -2,6 +2,7 @@ import type { AnalysisResults } from "./analysisResults.js";
 import type { EdgeColumns } from "./edgeColumns.js";
 import { effectSizeColumns } from "./effectSizeColumns.js";
 import { FAMILY_NULL_FILE, nullTable } from "./nullTable.js";
+import { allEdgesFloat, allEdgesLabels } from "./allEdges.js";
 import { componentsTable, edgeColumnsReadBack, edgesTable, regionsTable, subjectsTable, type ExtraEdgeColumn } from "./resultTables.js";
 import type { ResultsFolder } from "./resultsFolder.js";
 import { resultsSummary } from "./resultsSummary.js";
@@ -44,15 +45,16 @@ export function writeResults(folder: ResultsFolder, results: AnalysisResults): K
     extra.push(...effectSizeColumns(observed));
     const name = observed.contrast.name;
     const labels = free ? free.labels : observed.labels;
-    folder.write(
-      `${name}/edges.tsv`,
-      edgesTable(prepared.pairs, prepared.regions, statistics.statistic, statistics.estimate, observed.pUncorrected, observed.qFdr, labels, extra),
-    );
+    // With edge rules, the analysis saw the kept edges only; the table lists every edge, the others empty with their reason.
+    const rules = prepared.edgeRules;
+    const pairs = rules ? rules.allPairs : prepared.pairs;
+    const float = (values: Float64Array) => (rules ? allEdgesFloat(values, rules) : values);
+    const columns = [float(statistics.statistic), float(statistics.estimate), float(observed.pUncorrected), float(observed.qFdr)] as const;
+    const edgeLabels = rules ? allEdgesLabels(labels, rules) : labels;
+    const edgeExtra = rules ? extra.map((c) => ({ name: c.name, values: allEdgesFloat(c.values, rules) })) : extra;
+    folder.write(`${name}/edges.tsv`, edgesTable(pairs, prepared.regions, ...columns, edgeLabels, edgeExtra, rules?.reasons));
     // The report takes this table's columns, not its text (which it would have to parse).
-    known.edges.set(
-      name,
-      edgeColumnsReadBack(prepared.pairs, statistics.statistic, statistics.estimate, observed.pUncorrected, observed.qFdr, labels, extra),
-    );
+    known.edges.set(name, edgeColumnsReadBack(pairs, ...columns, edgeLabels, edgeExtra));
     write(
       `${name}/components.tsv`,
       free

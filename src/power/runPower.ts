@@ -49,6 +49,13 @@ export function planPower(
   if (options.pilotDesign) {
     const prepared = prepareAnalysis(options.pilotDesign, { beforeMatrices: (_design, inputs) => beforeMatrices?.(inputs) });
     const { matrix, connectomes } = prepared;
+    if (prepared.edgeRules && prepared.edgeRules.kept.length < prepared.edgeRules.allPairs.edgeCount) {
+      throw new InputError(
+        `the pilot design's edge rules leave out ${prepared.edgeRules.allPairs.edgeCount - prepared.edgeRules.kept.length} edges; power planning simulates every edge of the network`,
+        { file: options.pilotDesign, key: "edges" },
+        "use a pilot design without `edges:` (or whose rules keep every edge)",
+      );
+    }
     const S = matrix.rows;
     const E = connectomes.edgeCount;
     const fit = fitAll(prepared);

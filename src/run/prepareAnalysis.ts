@@ -1,6 +1,6 @@
 import path from "node:path";
 import { InputError, inputErrors } from "../errors.js";
-import { loadConnectomes, resolveTemplate, type ConnectomeSource, type ConnectomeSubject } from "../io/connectomes.js";
+import { loadConnectomes, resolveTemplate, type ConnectomeSource, type ConnectomeSubject, type LoadedConnectomes } from "../io/connectomes.js";
 import { designKeyLocation, readDesign, type DesignSpec } from "../io/designFile.js";
 import { nearestName } from "../io/nearestName.js";
 import { factorCellProblems } from "../io/factorCells.js";
@@ -24,6 +24,7 @@ import { contrastFolderProblem } from "../output/reservedNames.js";
 import { checkRelabelings } from "../permute/exchangeability.js";
 import { checkSharedRelabelings } from "../permute/sharedRelabelings.js";
 import type { ExcludedSubject, KeptSubject, PreparedAnalysis } from "../output/preparedAnalysis.js";
+import { applyCoverage, withMissingEdgesHint } from "./coverageRules.js";
 import { checkEnhancementLevels } from "./enhancementLevels.js";
 import { applyInferenceOverrides, overrideWarning, type InferenceOverrides } from "../common/inferenceOverrides.js";
 import { chooseCohortTable } from "./cohortTableChoice.js";
@@ -269,22 +270,37 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
   const regionsPath = design.regions ? path.resolve(design.baseDir, design.regions) : undefined;
   hooks.beforeMatrices?.(design, plannedInputs(design, source, participantsPath, regionsPath, participants.ids.map((_, row) => subjectOfRow(row))));
   const regionTable = regionsPath ? readRegions(regionsPath) : undefined;
-  const connectomes = loadConnectomes(
-    source,
-    kept.map((k) => subjectOfRow(k.tableRow)),
-    {
-      symmetrize: design.symmetrize,
-      asymmetryTolerance: design.asymmetryTolerance,
-      transform: design.transform,
-      participantRowCount: participants.ids.length,
-      ...(regionTable ? { regionTable: { labels: regionTable.map((r) => r.label), file: regionsPath! } } : {}),
-    },
-  );
+  let loaded: LoadedConnectomes;
+  try {
+    loaded = loadConnectomes(
+      source,
+      kept.map((k) => subjectOfRow(k.tableRow)),
+      {
+        symmetrize: design.symmetrize,
+        asymmetryTolerance: design.asymmetryTolerance,
+        transform: design.transform,
+        ...(design.edges ? { missing: design.edges.missing } : {}),
+        participantRowCount: participants.ids.length,
+        ...(regionTable ? { regionTable: { labels: regionTable.map((r) => r.label), file: regionsPath! } } : {}),
+      },
+    );
+  } catch (error) {
+    throw withMissingEdgesHint(error, design);
+  }
+  if (loaded.regionCount < 2) {
+    throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
+  }
+  const { connectomes, pairs, edgeRules } = applyCoverage(design, loaded, edgePairs(loaded.regionCount), kept);
   if (connectomes.reading.reordered) {
     warnings.push("the matrices name their regions in another order than the regions table; their rows and columns were reordered to the table's order");
   }
-  if (connectomes.regionCount < 2) {
-    throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
+  if (edgeRules && edgeRules.kept.length < edgeRules.allPairs.edgeCount) {
+    const { missing, rare } = edgeRules.dropped;
+    const why = [
+      ...(edgeRules.missing === "drop" ? [`${missing} missing in some participant`] : []),
+      ...(edgeRules.presentIn !== undefined ? [`${rare} present in fewer than ${Number((100 * edgeRules.presentIn).toFixed(1))}% of the participants`] : []),
+    ];
+    warnings.push(`the edge rules left out ${missing + rare} of ${edgeRules.allPairs.edgeCount} edges (${why.join(", ")}); ${edgeRules.kept.length} edges are analysed`);
   }
   let fit: EdgeFit | undefined;
   if (inference.method === "threshold-free") {
@@ -304,6 +320,12 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
       ? connectomes.labels.map((label) => ({ label }))
       : defaultRegions(connectomes.regionCount);
 
+  if (edgeRules && edgeRules.regionsWithoutEdges.length > 0) {
+    const names = edgeRules.regionsWithoutEdges.map((r) => printable(regions[r].label));
+    warnings.push(
+      `${names.length === 1 ? "1 region has" : `${names.length} regions have`} no analysed edge (the edge rules left out all of ${names.length === 1 ? "its" : "their"} edges): ${names.join(", ")}`,
+    );
+  }
   const inputs = [
     { role: "design", path: path.resolve(design.file) },
     { role: "participants", path: participantsPath },
@@ -321,8 +343,9 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     matrix,
     contrasts,
     regions,
-    pairs: edgePairs(connectomes.regionCount),
+    pairs,
     connectomes,
+    ...(edgeRules ? { edgeRules } : {}),
     blocks,
     inputs,
     warnings,

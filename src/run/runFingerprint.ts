@@ -16,6 +16,9 @@ export function runFingerprint(prepared: PreparedAnalysis, inputs: InputRecord[]
     model: prepared.matrix.columns.map((c) => c.name),
     contrasts: prepared.contrasts.map((c) => [c.name, c.rows.map((r) => [...r])]),
     transform: prepared.design.transform,
+    // The coverage rules and scaling change the data the null is drawn from (absent when not set, so older fingerprints stay).
+    ...(prepared.design.scale !== "none" ? { scale: prepared.design.scale } : {}),
+    ...(prepared.design.edges ? { edges: [prepared.design.edges.missing, prepared.design.edges.presentIn ?? null] } : {}),
     symmetrize: prepared.design.symmetrize,
     inference: nullOptions(inference),
   };

@@ -1,7 +1,7 @@
 import { existsSync } from "node:fs";
 import path from "node:path";
 import { InputError } from "../errors.js";
-import type { EdgePairs } from "../edges/edgeIndex.js";
+import { edgeCountFor, edgeIndexOf, type EdgePairs } from "../edges/edgeIndex.js";
 import { nearestName } from "../io/nearestName.js";
 import type { Region } from "../io/regions.js";
 import { edgesBetweenSystems, edgesWithinSystem, systemNames, type EdgeSet } from "./edgeSets.js";
@@ -38,9 +38,28 @@ function checkSystem(name: string, known: string[], key: string): void {
   }
 }
 
+/**
+ * Edges named in the full edge order (an edge list, a results folder's component)
+ * as indices of the analysed edges `pairs`: the same when every edge is analysed;
+ * with coverage rules (`edges:` in the design), the edges left out are left out
+ * of the set too, as the strength measures see the kept edges only.
+ */
+function analysedEdges(full: Uint32Array, pairs: EdgePairs): Uint32Array {
+  if (pairs.edgeCount === edgeCountFor(pairs.regionCount)) return full;
+  const analysed = new Int32Array(edgeCountFor(pairs.regionCount)).fill(-1);
+  for (let k = 0; k < pairs.edgeCount; k++) analysed[edgeIndexOf(pairs.regionCount, pairs.regionA[k], pairs.regionB[k])] = k;
+  return Uint32Array.from(Array.from(full, (e) => analysed[e]).filter((k) => k >= 0)).sort();
+}
+
 export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pairs: EdgePairs): SelectedEdgeSets {
   const sets: EdgeSet[] = [];
   const files: SelectedEdgeSets["files"] = [];
+  // A set named in the full edge order (an edge list, a results folder's components), mapped to the analysed edges.
+  const keptOf = (set: EdgeSet): EdgeSet => {
+    const edges = analysedEdges(set.edges, pairs);
+    if (edges.length === set.edges.length) return set;
+    return { ...set, edges, description: `${set.description} (${edges.length} of its ${set.edges.length} edges analysed: the edge rules left out the others)` };
+  };
   const known = systemNames(regions);
   const add = (set: EdgeSet, key: string) => {
     if (set.edges.length === 0) {
@@ -74,11 +93,11 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
       throw new InputError(`the edge list ${selection.pairs} does not exist`, { key: OPTION.pairs }, "give a TSV with columns region_a and region_b");
     }
     add(
-      {
+      keptOf({
         name: `pairs_${path.basename(file, path.extname(file))}`,
         description: `the edges listed in ${selection.pairs}`,
         edges: readPairsFile(selection.pairs, regions),
-      },
+      }),
       OPTION.pairs,
     );
     files.push({ role: "edge_list", path: file });
@@ -90,7 +109,7 @@ export function selectEdgeSets(selection: EdgeSelection, regions: Region[], pair
       fromOption: OPTION.from,
       componentOption: OPTION.component,
     });
-    for (const set of source.sets) add(set, OPTION.from);
+    for (const set of source.sets) add(keptOf(set), OPTION.from);
     files.push(...source.files);
   }
   return { sets, source, files };

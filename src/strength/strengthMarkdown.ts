@@ -60,7 +60,9 @@ function contrastTable(prepared: PreparedAnalysis, analysis: StrengthAnalysis, r
       `${prepared.design.select.length > 0 ? `, analysed subset ${selectionText(prepared.design.select)}` : ""}. ` +
       `β is the contrast's estimate c'β̂ on the scale of the measure, SE its standard error, t = β/SE on df = N − rank(X) degrees of freedom; partial r = t/√(t² + df).`,
     `${MEASURE_TITLE[choice.measure]}: ${nodal ? analysis.descriptions[0] : analysis.names.map((n, m) => `${n}, ${analysis.descriptions[m]}`).join("; ")}` +
-      `${prepared.design.transform === "fisher-z" ? ", on the Fisher z scale" : ""}.`,
+      `${prepared.design.transform === "fisher-z" ? ", on the Fisher z scale" : prepared.design.transform === "log1p" ? ", of log(1 + x)" : ""}` +
+      `${prepared.design.scale === "total" ? ", each participant scaled to the total of its edges" : ""}` +
+      `${prepared.edgeRules ? `, over the ${prepared.edgeRules.kept.length} of ${prepared.edgeRules.allPairs.edgeCount} edges the edge rules kept` : ""}.`,
     `p: ${TAIL_TEXT[inference.tail]}, from the t distribution.` +
       (familywise
         ? ` p_FWE: ${

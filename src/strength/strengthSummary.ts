@@ -1,3 +1,4 @@
+import { edgeRulesSummary } from "../output/edgeRulesSummary.js";
 import { inferenceSummary, inputsSummary, overridesSummary, subjectsSummary } from "../output/summaryParts.js";
 import { relabelingSummary, smallestPossibleP } from "../output/relabelingSummary.js";
 import path from "node:path";
@@ -29,7 +30,9 @@ export function strengthSummary(
     inputs: inputsSummary(inputs, design.file),
     subjects: subjectsSummary(prepared),
     regions: prepared.connectomes.regionCount,
-    edges: prepared.connectomes.edgeCount,
+    edges: prepared.edgeRules?.allPairs.edgeCount ?? prepared.connectomes.edgeCount,
+    // The measures sum the kept edges only when the design has coverage rules.
+    ...(prepared.edgeRules ? { edge_rules: edgeRulesSummary(prepared.edgeRules, prepared.regions) } : {}),
     measure: {
       kind: choice.measure,
       positive_only: choice.positiveOnly,
@@ -76,6 +79,7 @@ export function strengthSummary(
     }),
     options: {
       transform: design.transform,
+      scale: design.scale,
       symmetrize: design.symmetrize,
       inference: { ...inferenceSummary(inference, { components: false }), command_line_overrides: overridesSummary(prepared.overrides) },
     },

@@ -92,6 +92,7 @@ const WEIRD_VALUES: unknown[] = [
   [[0, 1, 0, 0], [0, 0, 1, 0]], "[0, 1, 0, 0]", "1e400*age", "group[patient]", "site", "sex[M] - sex[F]",
   ["patient"], ["control", "patient"], ["east"], ["west", "east"], ["F"], "sub-03", ["sub-01", "sub-02"], ["age", "site", "sex"], ["n/a"], { group: ["patient"] },
   { by: "site", variables: ["age", "sex"] }, { by: null }, { by: "age" }, { variables: "site" },
+  "log1p", "total", "none", "drop", "error", 0.75, 1.0000001, { missing: "drop" }, { present_in: 0.75 }, { missing: "drop", present_in: 1 },
 ];
 
 const DESIGN_KEYS = [
@@ -105,6 +106,7 @@ const DESIGN_KEYS = [
   "select", "select.group", "select.site", "select.sex", "select.participant_id", "select.unknown_column",
   "cohort_table", "cohort_table.by", "cohort_table.variables", "cohort_table.unknown_key",
   "inference.across_contrasts",
+  "scale", "edges", "edges.missing", "edges.present_in", "edges.unknown_key",
 ];
 
 const CELL_VALUES = [

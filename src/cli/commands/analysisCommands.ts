@@ -15,6 +15,7 @@ import { terminalLog } from "../terminalLog.js";
 import { inferenceLine } from "../../output/summaryParts.js";
 import type { PreparedAnalysis } from "../../output/preparedAnalysis.js";
 import { selectionText } from "../../io/selectParticipants.js";
+import { edgeRulesLine } from "../../output/edgeRulesSummary.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */
 export function registerAnalysisCommands(program: Command, sink: OutputSink, argv: () => string[]): void {
@@ -33,7 +34,8 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
         `design      ${designFile}`,
         `subjects    ${prepared.kept.length} used of ${prepared.participants.ids.length}${prepared.excluded.length ? ` (${prepared.excluded.length} left out for missing values)` : ""}`,
         ...selectionLines(prepared),
-        `connectomes ${connectomes.regionCount} regions, ${connectomes.edgeCount} edges${design.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`,
+        `connectomes ${connectomes.regionCount} regions, ${prepared.edgeRules?.allPairs.edgeCount ?? connectomes.edgeCount} edges${design.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`,
+        ...[edgeRulesLine(design.transform, design.scale, prepared.edgeRules, prepared.regions)].filter((line) => line !== null).map((line) => `edges       ${line}`),
         `read        ${describeReading(connectomes.reading)}`,
         `model       ${formatFormula(prepared.formula)}`,
         `columns     ${matrix.columns.map((c) => c.name).join(", ")}`,

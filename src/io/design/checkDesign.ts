@@ -3,9 +3,9 @@ import type { BlockPermutation, EnhancementSpec, FdrVariant, InferenceMethod, Sc
 import { InputError } from "../../errors.js";
 import { checkContrasts } from "./checkContrasts.js";
 import { checkCohortTable, checkSelect } from "./checkSelection.js";
-import { CONNECTOMES_KEYS, DESIGN_KEYS, ENHANCEMENT_KEYS, INFERENCE_KEYS } from "./designKeys.js";
 import { DesignSection } from "./designSection.js";
-import type { CohortTableSpec, ContrastSpec, SelectionSpec } from "./designSpec.js";
+import { CONNECTOMES_KEYS, DESIGN_KEYS, EDGES_KEYS, ENHANCEMENT_KEYS, INFERENCE_KEYS } from "./designKeys.js";
+import type { CohortTableSpec, ContrastSpec, EdgeRulesSpec, SelectionSpec } from "./designSpec.js";
 import type { DesignYaml } from "./designYaml.js";
 
 /** The inference options the file sets, each checked; an absent one is undefined (resolveDesign.ts fills it). */
@@ -33,7 +33,9 @@ export interface CheckedDesign {
   center?: string[];
   select?: SelectionSpec[];
   cohortTable?: CohortTableSpec;
-  transform?: "none" | "fisher-z";
+  transform?: "none" | "fisher-z" | "log1p";
+  scale?: "none" | "total";
+  edges?: EdgeRulesSpec;
   symmetrize?: boolean;
   asymmetryTolerance?: number;
   inference?: CheckedInference;
@@ -49,7 +51,7 @@ export interface CheckedDesign {
  * Checks every key of a design file against its rule (designKeys.ts has the table),
  * raising the first problem as an InputError at the key and its line. The keys are
  * checked in this order (so a file with several problems reports the same one first):
- * unknown keys, contrasts, missing_values, levels, center, select, cohort_table, transform, symmetrize,
+ * unknown keys, contrasts, missing_values, levels, center, select, cohort_table, transform, scale, edges, symmetrize,
  * asymmetry_tolerance, inference, then subjects, connectomes, regions and model.
  */
 export function checkDesign(yaml: DesignYaml): CheckedDesign {
@@ -61,6 +63,8 @@ export function checkDesign(yaml: DesignYaml): CheckedDesign {
   const select = checkSelect(top);
   const cohortTable = checkCohortTable(top);
   const transform = checkTransform(top);
+  const scale = checkChoice(top, "scale", DESIGN_KEYS.scale, true);
+  const edges = checkEdges(top);
   const symmetrize = checkSymmetrize(top);
   const asymmetryTolerance = checkNumber(top, "asymmetry_tolerance", DESIGN_KEYS.asymmetry_tolerance);
   const inference = checkInference(top);
@@ -68,7 +72,7 @@ export function checkDesign(yaml: DesignYaml): CheckedDesign {
   const { path: connectomes, variable: connectomeVariable, subjectsAxis } = checkConnectomes(top);
   const regions = top.value("regions") === undefined ? undefined : checkText(top, "regions");
   const model = checkModel(top);
-  return { contrasts, missingValues, levels, center, select, cohortTable, transform, symmetrize, asymmetryTolerance, inference, subjects, connectomes, connectomeVariable, subjectsAxis, regions, model };
+  return { contrasts, missingValues, levels, center, select, cohortTable, transform, ...(scale !== undefined ? { scale } : {}), ...(edges ? { edges } : {}), symmetrize, asymmetryTolerance, inference, subjects, connectomes, connectomeVariable, subjectsAxis, regions, model };
 }
 
 /** connectomes: a path or template, or { path, variable, subjects_axis }. */
@@ -96,10 +100,10 @@ function checkNumber(
   return value;
 }
 
-/** An inference choice: one of the table's words. */
-function checkChoice<T extends string>(section: DesignSection, name: string, key: { allowed: readonly T[] }): T | undefined {
+/** An inference choice: one of the table's words (a YAML null is the default where `nullIsDefault`). */
+function checkChoice<T extends string>(section: DesignSection, name: string, key: { allowed: readonly T[]; nullIsDefault?: boolean }, nullIsDefault = false): T | undefined {
   const value = section.value(name);
-  if (value === undefined) return undefined;
+  if (value === undefined || (value === null && nullIsDefault && key.nullIsDefault)) return undefined;
   if (typeof value !== "string" || !key.allowed.includes(value as T)) {
     throw new InputError(`'${section.path(name)}' must be one of ${key.allowed.join(", ")}; found '${String(value)}'`, section.where(name));
   }
@@ -189,15 +193,36 @@ function checkCenter(top: DesignSection): string[] | undefined {
   throw new InputError("'center' lists numeric columns to centre, e.g. [age]", top.where("center"));
 }
 
-/** transform: none or fisher-z. */
-function checkTransform(top: DesignSection): "none" | "fisher-z" | undefined {
+/** transform: none, fisher-z or log1p. */
+function checkTransform(top: DesignSection): "none" | "fisher-z" | "log1p" | undefined {
   const value = top.value("transform");
   const { allowed, nullIsDefault } = DESIGN_KEYS.transform;
   if (value === undefined || (value === null && nullIsDefault)) return undefined;
   if (!allowed.includes(value as (typeof allowed)[number])) {
-    throw new InputError(`'transform' must be ${allowed.join(" or ")}, found '${String(value)}'`, top.where("transform"));
+    throw new InputError(`'transform' must be ${allowed.slice(0, -1).join(", ")} or ${allowed[allowed.length - 1]}, found '${String(value)}'`, top.where("transform"));
   }
   return value as (typeof allowed)[number];
+}
+
+/** edges: { missing: error | drop, present_in: a fraction in (0, 1] }. */
+function checkEdges(top: DesignSection): EdgeRulesSpec | undefined {
+  const node = top.node("edges");
+  if (node === undefined) return undefined;
+  if (!isMap(node)) {
+    throw new InputError("'edges' must be a mapping of coverage rules", top.where("edges"), "e.g. edges: { missing: drop, present_in: 0.75 }");
+  }
+  const section = new DesignSection(top.yaml, node, EDGES_KEYS, "edges");
+  const missing = checkChoice(section, "missing", EDGES_KEYS.missing) ?? EDGES_KEYS.missing.default;
+  const value = section.value("present_in");
+  if (value === undefined) return { missing };
+  if (typeof value !== "number" || !Number.isFinite(value) || !(value > 0 && value <= 1)) {
+    throw new InputError(
+      `'edges.present_in' must be a fraction in (0, 1]; found '${section.yaml.written(section.node("present_in"))}'`,
+      section.where("present_in"),
+      "e.g. present_in: 0.75 keeps the edges non-zero in at least 75% of the analysed participants",
+    );
+  }
+  return { missing, presentIn: value };
 }
 
 /** symmetrize: true or false. */

@@ -104,6 +104,13 @@ export const COHORT_TABLE_KEYS = {
   variables: { kind: "columns", limit: COHORT_VARIABLES_LIMIT },
 } as const;
 
+/** `edges`: which edges enter the analysis when some are missing or rarely present (coverage rules). */
+export const EDGES_KEYS = {
+  missing: choice(["error", "drop"] as const, "error"),
+  /** A fraction in (0, 1]; no default (no prevalence rule). */
+  present_in: { kind: "fraction" },
+} as const;
+
 /** The top level of a design file. */
 export const DESIGN_KEYS = {
   subjects: { kind: "text", required: true },
@@ -126,7 +133,9 @@ export const DESIGN_KEYS = {
   select: { kind: "selection", limit: SELECT_VALUES_LIMIT },
   cohort_table: { kind: "section", keys: COHORT_TABLE_KEYS },
   contrasts: { kind: "contrasts", required: true, limit: CONTRASTS_LIMIT },
-  transform: choice(["none", "fisher-z"] as const, "none", true),
+  transform: choice(["none", "fisher-z", "log1p"] as const, "none", true),
+  scale: choice(["none", "total"] as const, "none", true),
+  edges: { kind: "section", keys: EDGES_KEYS },
   symmetrize: { kind: "boolean", default: false, nullIsDefault: true },
   asymmetry_tolerance: number((v) => v >= 0, "a finite number ≥ 0", 1e-6, true),
   inference: { kind: "section", keys: INFERENCE_KEYS },

@@ -26,6 +26,13 @@ export interface CohortTableSpec {
   variables?: string[];
 }
 
+/** `edges: { missing, present_in }`. */
+export interface EdgeRulesSpec {
+  missing: "error" | "drop";
+  /** Keep only edges non-zero (and not missing) in at least this fraction of the analysed participants. */
+  presentIn?: number;
+}
+
 /** A design file read and checked for shape; columns and files are checked later against the data. */
 export interface DesignSpec {
   file: string;
@@ -47,7 +54,11 @@ export interface DesignSpec {
   /** `cohort_table` as written (defaults resolved in preparation, where the contrasts are known). */
   cohortTable: CohortTableSpec;
   contrasts: ContrastSpec[];
-  transform: "none" | "fisher-z";
+  transform: "none" | "fisher-z" | "log1p";
+  /** `scale`: each participant's kept edges divided by their sum (`total`), after the edge rules. */
+  scale: "none" | "total";
+  /** `edges`: the coverage rules; absent when the design has no `edges:` key. */
+  edges?: EdgeRulesSpec;
   symmetrize: boolean;
   asymmetryTolerance: number;
   inference: InferenceSpec;

@@ -50,6 +50,8 @@ export function resolveDesign(checked: CheckedDesign, file: string, lines: Map<s
     cohortTable: checked.cohortTable ?? {},
     contrasts: checked.contrasts,
     transform: checked.transform ?? DESIGN_KEYS.transform.default,
+    scale: checked.scale ?? DESIGN_KEYS.scale.default,
+    ...(checked.edges ? { edges: checked.edges } : {}),
     symmetrize: checked.symmetrize ?? DESIGN_KEYS.symmetrize.default,
     asymmetryTolerance: checked.asymmetryTolerance ?? DESIGN_KEYS.asymmetry_tolerance.default,
     inference: resolveInference(checked.inference),

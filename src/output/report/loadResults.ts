@@ -59,8 +59,21 @@ export interface ResultsSummary {
   contrasts: ContrastSummary[];
   /** What effect sizes the edge tables hold, and how they were computed (output/effectSizeColumns.ts); absent in older results. */
   effect_sizes?: EffectSizesSummary | null;
+  /** The coverage rules, when the design has `edges:` (src/output/edgeRulesSummary.ts). */
+  edge_rules?: {
+    missing: "error" | "drop";
+    present_in: number | null;
+    edges: number;
+    kept: number;
+    dropped: number;
+    dropped_missing: number;
+    dropped_present_in: number;
+    regions_without_edges: string[];
+  };
   options: {
     transform: string;
+    /** Absent in results written before `scale` existed. */
+    scale?: "none" | "total";
     symmetrize: boolean;
     asymmetry_tolerance: number;
     inference: {

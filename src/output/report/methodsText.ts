@@ -1,6 +1,7 @@
 import { acrossContrastsSentence } from "./acrossContrastsText.js";
 import { cohortVariables } from "./cohortVariables.js";
 import { effectSizesMethods } from "./effectSizesMethods.js";
+import { coverageMethods } from "./coverageMethods.js";
 import { escapeHtml } from "./escapeHtml.js";
 import type { LoadedResults } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
@@ -77,6 +78,8 @@ export function methodsText(results: LoadedResults): MethodsText {
   if (options.transform === "fisher-z") {
     model.push(` Correlations were Fisher z-transformed (z = atanh r; ${cite("fisherZ", "Fisher 1915")}) before analysis.`);
   }
+  const coverage = coverageMethods(summary);
+  model.push(...coverage.segments);
   model.push(" At every edge, the general linear model ", { user: design.model });
   model.push(design.intercept ? " (with an intercept)" : " (without an intercept)");
   model.push(" was fitted by ordinary least squares");
@@ -253,7 +256,7 @@ export function methodsText(results: LoadedResults): MethodsText {
     }
   }
 
-  const references = [...new Set([...[...cited].map((key) => REFERENCES[key]), ...effectSizes.references, ...acrossContrasts.references])].sort();
+  const references = [...new Set([...[...cited].map((key) => REFERENCES[key]), ...effectSizes.references, ...acrossContrasts.references, ...coverage.references])].sort();
   return { paragraphs, references };
 }
 

@@ -68,7 +68,7 @@ export function reportContent(results: LoadedResults, options: CohortOptions = {
     figures.push({
       file: `figures/${name}-matrix.svg`,
       caption: "The t-statistic of every edge (both triangles), regions grouped by hemisphere and system when the regions table gives them; the edges of the significant finding are outlined. Colour scale: cividis, dark blue (most negative) to yellow (most positive), lightness increasing throughout.",
-      svg: matrixFigure(contrast, results.regions, finding),
+      svg: matrixFigure(contrast, results.regions, finding, results.summary.edge_rules?.dropped ?? 0),
     });
     const networkSvg = networkFigure(contrast, results.regions, finding, alpha);
     if (networkSvg) {

@@ -1,4 +1,5 @@
 import { acrossContrastsRow } from "./acrossContrastsText.js";
+import { coverageRow } from "./coverageRow.js";
 import { escapeHtml } from "./escapeHtml.js";
 import { selectionText } from "./cohortTable.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
@@ -36,6 +37,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     ...(summary.subjects.selection ? ([["Subset (select)", `${h(selectionText(summary.subjects.selection))}; ${summary.subjects.not_selected ?? 0} not selected`]] as [string, string][]) : []),
     ...(summary.cohort_table ? ([["Table 1", cohortTableLine(summary.cohort_table, code)]] as [string, string][]) : []),
     ["Network", `${summary.regions} regions, ${summary.edges} edges${summary.options.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`],
+    ...[coverageRow(summary, h)].filter((row): row is [string, string] => row !== null),
     ["Residual df", String(summary.df)],
     [
       "Inference",

@@ -1,4 +1,5 @@
 import { acrossContrastsTableNote } from "./acrossContrastsText.js";
+import { coverageTableNote } from "./coverageRow.js";
 import { thresholdRule } from "../summaryParts.js";
 import type { Cell } from "../tsvWriter.js";
 import { hubRegions } from "./hubRegions.js";
@@ -146,6 +147,8 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
   );
   const acrossNote = acrossContrastsTableNote(results.summary);
   if (acrossNote && permuted.length > 0) subnetworkNotes.push(acrossNote);
+  const coverageNote = coverageTableNote(results.summary);
+  if (coverageNote) subnetworkNotes.push(coverageNote);
   const subnetworks: ReportTable | null =
     permuted.length === 0
       ? null

@@ -271,7 +271,7 @@ describe("parseDesign: unknown keys (line and a did-you-mean hint)", () => {
       file: FILE,
       line: 6,
       key: "zzzzzzzzzz",
-      hint: /valid keys: subjects, connectomes, regions, model, missing_values, levels, center, select, cohort_table, contrasts, transform, symmetrize, asymmetry_tolerance, inference/,
+      hint: /valid keys: subjects, connectomes, regions, model, missing_values, levels, center, select, cohort_table, contrasts, transform, scale, edges, symmetrize, asymmetry_tolerance, inference/,
     });
     expectInputError(() => parseDesign(withBase("inference:", "  qqqqqqqqqqqq: 1"), FILE), {
       file: FILE,
@@ -289,7 +289,7 @@ describe("parseDesign: unknown keys (line and a did-you-mean hint)", () => {
 
 describe("parseDesign: bad values (InputError at the key and its line)", () => {
   const bad: Array<[string, string, number, RegExp]> = [
-    ["transform: log", "transform", 6, /'transform' must be none or fisher-z, found 'log'/],
+    ["transform: log", "transform", 6, /'transform' must be none, fisher-z or log1p, found 'log'/],
     ["symmetrize: 1", "symmetrize", 6, /true or false/],
     ["asymmetry_tolerance: -1", "asymmetry_tolerance", 6, /number ≥ 0/],
     ["asymmetry_tolerance: small", "asymmetry_tolerance", 6, /number ≥ 0/],

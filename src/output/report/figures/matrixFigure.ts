@@ -18,7 +18,8 @@ import { clip, line, n, rect, svgDocument, text } from "./svgElements.js";
 const LEVELS = 41;
 const TARGET = 560;
 
-export function matrixFigure(contrast: ContrastResults, regions: Region[], finding: SignificantEdges): string {
+/** `leftOut`: edges the design's edge rules left out (no statistic, white, but not for zero variance). */
+export function matrixFigure(contrast: ContrastResults, regions: Region[], finding: SignificantEdges, leftOut = 0): string {
   const count = regions.length;
   const cell = Math.max(1.5, Math.min(14, TARGET / Math.max(count, 1)));
   const size = cell * count;
@@ -142,8 +143,13 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
 
   const barWidth = Math.min(260, Math.max(160, size * 0.6));
   body.push(...colourBar(left + (size - barWidth) / 2, top + size + 30, barWidth, 10, limit, `${stat}-statistic`, signed));
+  const zeroVariance = missing - leftOut;
   if (missing > 0) {
-    body.push(text(left, top + size + 18, `white: ${missing} edge${missing > 1 ? "s" : ""} with no statistic (zero variance)`, { size: 9, fill: "#444444" }));
+    const parts = [
+      ...(leftOut > 0 ? [`${leftOut} edge${leftOut > 1 ? "s" : ""} left out by the edge rules`] : []),
+      ...(zeroVariance > 0 ? [`${zeroVariance} edge${zeroVariance > 1 ? "s" : ""} with no statistic (zero variance)`] : []),
+    ];
+    body.push(text(left, top + size + 18, `white: ${parts.join("; ")}`, { size: 9, fill: "#444444" }));
   }
   return svgDocument(width, height, `Edge-statistic matrix for ${contrast.summary.name}`, body);
 }
