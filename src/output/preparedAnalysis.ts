@@ -25,6 +25,26 @@ export interface KeptSubject {
   tableRow: number;
 }
 
+/**
+ * A design with several scans per person (`repeated:`): "paired differences"
+ * (two levels: each person's difference is analysed) or "repeated measures"
+ * (three or more: person effects, relabelings within each person).
+ */
+export interface RepeatedDesign {
+  participant: string;
+  within: string;
+  /** The within factor's levels in order. */
+  levels: string[];
+  design: "paired differences" | "repeated measures";
+  /** People and scans analysed. */
+  people: number;
+  scans: number;
+  /** Paired differences: which difference each person contributes, e.g. "post - pre". */
+  difference?: string;
+  /** Paired differences: the mean subtracted from each between-person column of the change model. */
+  centred?: Record<string, number>;
+}
+
 /** Everything a run needs, validated: the `check` command stops here. */
 export interface PreparedAnalysis {
   design: DesignSpec;
@@ -45,6 +65,8 @@ export interface PreparedAnalysis {
    */
   inputs: { role: string; path: string; sha256?: string }[];
   warnings: string[];
+  /** Several scans per person: the design and its counts (`kept` then lists scans, the design matrix's rows people or scans). */
+  repeated?: RepeatedDesign;
   /** The fit of every edge, when preparation needed it (threshold-free: the step's bound); the run reuses it. */
   fit?: EdgeFit;
 }

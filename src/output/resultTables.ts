@@ -147,6 +147,7 @@ export function subjectsTable(prepared: PreparedAnalysis): string {
   const columns = formulaVariables(prepared.formula);
   const blockColumn = prepared.blocks?.column;
   if (blockColumn !== undefined && blockColumn !== "participant_id" && !columns.includes(blockColumn)) columns.push(blockColumn);
+  if (prepared.repeated && !columns.includes(prepared.repeated.participant)) columns.unshift(prepared.repeated.participant);
   const excluded = new Map(prepared.excluded.map((x) => [x.id, x.reason]));
   const { participants } = prepared;
   const rows: Cell[][] = participants.ids.map((id, row) => [

@@ -5,6 +5,7 @@ import { VERSION } from "../version.js";
 import type { AnalysisResults } from "./analysisResults.js";
 import { relabelingSummary, smallestPossibleP } from "./relabelingSummary.js";
 import { inferenceSummary, inputsSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
+import { repeatedSummary } from "./repeatedSummary.js";
 
 /**
  * summary.json of a results folder: the tool and command, the inputs with
@@ -27,6 +28,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
     inputs: inputsSummary(inputs, design.file),
     matrices_read: readingSummary(connectomes.reading),
     subjects: subjectsSummary(prepared),
+    ...(prepared.repeated ? { repeated: repeatedSummary(prepared.repeated) } : {}),
     regions: connectomes.regionCount,
     edges: connectomes.edgeCount,
     design: {

@@ -23,6 +23,9 @@ import { contrastFolderProblem } from "../output/reservedNames.js";
 import { checkRelabelings } from "../permute/exchangeability.js";
 import type { ExcludedSubject, KeptSubject, PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { checkEnhancementLevels } from "./enhancementLevels.js";
+import { scanDifferences } from "../edges/scanDifferences.js";
+import { sharedFloat64 } from "../permute/nullContext.js";
+import { checkPersonColumns, checkRepeatedColumns, fittedDesign, groupScans, repeatedContrast, repeatedRecord, type ScanGroups } from "./repeatedScans.js";
 
 
 /**
@@ -99,6 +102,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   for (const name of design.center) {
     if (!needed.includes(name)) throw new InputError(`'center' names '${name}', which is not in the model`, where("center"));
   }
+  if (design.repeated) checkRepeatedColumns(design, participants, needed);
   const blockColumn = design.inference.blocks;
   if (blockColumn === PARTICIPANT_ID) {
     throw new InputError(
@@ -117,9 +121,9 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   }
 
   // Listwise deletion over the model and block columns.
-  const checked = blockColumn ? [...needed, blockColumn] : needed;
-  const kept: KeptSubject[] = [];
-  const excluded: ExcludedSubject[] = [];
+  const checked = blockColumn ? [...needed, blockColumn] : design.repeated ? [...needed, design.repeated.participant] : needed;
+  let kept: KeptSubject[] = [];
+  let excluded: ExcludedSubject[] = [];
   participants.ids.forEach((id, row) => {
     const missing = checked.filter((name) => participants.columns.get(name)![row] === null);
     if (missing.length > 0) excluded.push({ id, line: participants.lines[row], reason: `missing ${missing.join(", ")}` });
@@ -155,6 +159,21 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
         .join("; ")}`,
     );
   }
+  // Several scans per person: group them, leave out people without the scans the design needs.
+  let scans: ScanGroups | undefined;
+  if (design.repeated) {
+    scans = groupScans(design, participants, kept);
+    checkPersonColumns(design, participants, scans, needed);
+    kept = scans.kept;
+    excluded = [...excluded, ...scans.excluded].sort((a, b) => a.line - b.line);
+    if (scans.excluded.length > 0) {
+      warnings.push(
+        `${scans.excluded.length} scan${scans.excluded.length > 1 ? "s" : ""} left out because the person lacks a scan the design needs: ${scans.excluded
+          .map((x) => `${printable(x.id)} (${x.reason})`)
+          .join("; ")}`,
+      );
+    }
+  }
 
   const variables = new Map<string, Variable>();
   for (const name of needed) {
@@ -169,7 +188,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
           file: participants.file,
         },
         {
-          levels: design.levels[name],
+          levels: scans && name === design.repeated!.within ? scans.levels : design.levels[name],
           center: design.center.includes(name),
           levelsKey: where("levels"),
           centerKey: where("center"),
@@ -186,9 +205,13 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
       design.missingValues,
     ),
   );
-  const matrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
+  const longMatrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
+  const fitted = scans ? fittedDesign(design, longMatrix, scans) : undefined;
+  const matrix = fitted ? fitted.matrix : longMatrix;
   const contrasts = design.contrasts.map((spec) =>
-    parseContrast(spec.name, spec.expression, matrix, { file: design.file, key: spec.key, line: spec.line }),
+    fitted
+      ? repeatedContrast(spec.name, spec.expression, longMatrix, fitted, design, scans!, { file: design.file, key: spec.key, line: spec.line })
+      : parseContrast(spec.name, spec.expression, matrix, { file: design.file, key: spec.key, line: spec.line }),
   );
   for (const contrast of contrasts) if (contrast.note) warnings.push(contrast.note);
   for (const [k, contrast] of contrasts.entries()) {
@@ -209,6 +232,17 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     const labels = [...new Set(values)];
     blocks = { column: blockColumn, codes: Int32Array.from(values, (v) => labels.indexOf(v)), labels };
   }
+  if (scans && !scans.first) {
+    // Repeated measures: each person's scans are one exchangeability block, permuted within (Winkler et al. 2015).
+    if (inference.scheme === "sign-flip") {
+      throw new InputError(
+        "with three or more levels of the within factor the scans of a person are not independent, so their signs cannot be flipped one by one",
+        where("inference.scheme"),
+        "use `scheme: auto` (relabelings within each person) or analyse two levels (paired differences, tested by sign flips)",
+      );
+    }
+    blocks = { column: design.repeated!.participant, codes: scans.person, labels: scans.labels };
+  }
   if (inference.method !== "fdr") {
     checkRelabelings({
       matrix,
@@ -228,7 +262,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   const regionsPath = design.regions ? path.resolve(design.baseDir, design.regions) : undefined;
   hooks.beforeMatrices?.(design, plannedInputs(design, source, participantsPath, regionsPath, participants.ids.map((_, row) => subjectOfRow(row))));
   const regionTable = regionsPath ? readRegions(regionsPath) : undefined;
-  const connectomes = loadConnectomes(
+  const loaded = loadConnectomes(
     source,
     kept.map((k) => subjectOfRow(k.tableRow)),
     {
@@ -239,6 +273,15 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
       ...(regionTable ? { regionTable: { labels: regionTable.map((r) => r.label), file: regionsPath! } } : {}),
     },
   );
+  // Paired differences: each person's second scan minus the first, edge by edge (after any transform, e.g. of z values).
+  const connectomes =
+    scans?.first
+      ? {
+          ...loaded,
+          subjectCount: scans.labels.length,
+          data: scanDifferences(loaded.data, loaded.subjectCount, loaded.edgeCount, scans.first, scans.second!, sharedFloat64(scans.labels.length * loaded.edgeCount)),
+        }
+      : loaded;
   if (connectomes.reading.reordered) {
     warnings.push("the matrices name their regions in another order than the regions table; their rows and columns were reordered to the table's order");
   }
@@ -283,6 +326,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     blocks,
     inputs,
     warnings,
+    ...(scans && fitted ? { repeated: repeatedRecord(design, scans, fitted) } : {}),
     ...(fit ? { fit } : {}),
   };
 }

@@ -12,6 +12,7 @@ import type { OutputSink } from "../outputSink.js";
 import { parseShard, parseThreads } from "../options.js";
 import { terminalLog } from "../terminalLog.js";
 import { inferenceLine } from "../../output/summaryParts.js";
+import { repeatedCheckLine } from "../../output/repeatedSummary.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */
 export function registerAnalysisCommands(program: Command, sink: OutputSink, argv: () => string[]): void {
@@ -25,7 +26,8 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
       const { matrix, connectomes, design } = prepared;
       const lines = [
         `design      ${designFile}`,
-        `subjects    ${prepared.kept.length} used of ${prepared.participants.ids.length}${prepared.excluded.length ? ` (${prepared.excluded.length} left out for missing values)` : ""}`,
+        `subjects    ${prepared.kept.length} used of ${prepared.participants.ids.length}${prepared.excluded.length ? ` (${prepared.excluded.length} left out${prepared.repeated ? "" : " for missing values"})` : ""}`,
+        ...(prepared.repeated ? [repeatedCheckLine(prepared)!] : []),
         `connectomes ${connectomes.regionCount} regions, ${connectomes.edgeCount} edges${design.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`,
         `read        ${describeReading(connectomes.reading)}`,
         `model       ${formatFormula(prepared.formula)}`,
