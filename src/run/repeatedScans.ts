@@ -259,3 +259,16 @@ export function repeatedRecord(design: DesignSpec, groups: ScanGroups, fitted: F
       : {}),
   };
 }
+
+/**
+ * Commands that take one row per person (strength measures, extraction, power
+ * planning from a pilot) refuse a repeated design before any matrix is read.
+ */
+export function refuseRepeated(design: DesignSpec, command: string): void {
+  if (!design.repeated) return;
+  throw new InputError(
+    `${command} does not support 'repeated' (several scans per person): it takes one matrix per participant`,
+    { file: design.file, key: "repeated", line: design.lines.get("repeated") },
+    "run `plexus run` on this design, or give this command a design with one row per participant (e.g. each person's difference computed beforehand)",
+  );
+}

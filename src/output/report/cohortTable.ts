@@ -222,7 +222,7 @@ function excludedNotes(results: LoadedResults): string[] {
   const reasons = new Map<string, number>();
   for (const x of excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
   const list = [...reasons].map(([reason, n]) => `${reason}: ${n}`).join("; ");
-  return [`Excluded from the analysis: ${excluded.length} of ${inTable} participants (${list}).`];
+  return [`Excluded from the analysis: ${excluded.length} of ${inTable} ${results.summary.repeated ? "scans" : "participants"} (${list}).`];
 }
 
 /** Excluded participants (ID, line of the participants table, reason): the print table and tables/excluded.tsv. */

@@ -1,4 +1,5 @@
 import type { LoadedResults } from "./loadResults.js";
+import { personRows } from "./personRows.js";
 
 /**
  * The participant characteristics the cohort table describes, read from
@@ -23,11 +24,12 @@ const NUMBER = /^\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*$/;
 
 export function cohortVariables(results: LoadedResults): CohortVariables {
   const { subjects, summary } = results;
-  const used = subjects.rows.map((row, k) => (row.included ? k : -1)).filter((k) => k >= 0);
+  const people = personRows(results);
+  const used = people ? people.used : subjects.rows.map((row, k) => (row.included ? k : -1)).filter((k) => k >= 0);
   const factorLevels = summary.design.levels ?? {};
   const columnValues = (c: number) => used.map((k) => subjects.rows[k].values[c]);
 
-  const groupIndex = subjects.columns.findIndex((name) => Object.hasOwn(factorLevels, name));
+  const groupIndex = subjects.columns.findIndex((name) => !people?.skip.has(name) && Object.hasOwn(factorLevels, name));
   let group: CohortVariables["group"] = null;
   if (groupIndex >= 0) {
     const column = subjects.columns[groupIndex];
@@ -38,7 +40,7 @@ export function cohortVariables(results: LoadedResults): CohortVariables {
 
   const variables: CohortVariable[] = [];
   subjects.columns.forEach((column, c) => {
-    if (c === groupIndex) return;
+    if (c === groupIndex || people?.skip.has(column)) return;
     const values = columnValues(c);
     const present = values.filter((v): v is string => v !== null);
     if (!Object.hasOwn(factorLevels, column) && present.length > 0 && present.every((v) => NUMBER.test(v))) {

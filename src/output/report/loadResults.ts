@@ -36,6 +36,18 @@ export interface ResultsSummary {
     used_ids: string[];
     excluded: { participant_id: string; line: number; reason: string }[];
   };
+  /** Several scans per person (`repeated:`); absent otherwise. */
+  repeated?: {
+    participant: string;
+    within: string;
+    levels: string[];
+    design: "paired differences" | "repeated measures";
+    people: number;
+    scans: number;
+    difference?: string;
+    scheme: string;
+    scheme_reason: string;
+  };
   regions: number;
   edges: number;
   design: {

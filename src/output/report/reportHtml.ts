@@ -1,4 +1,5 @@
 import { escapeHtml } from "./escapeHtml.js";
+import { repeatedReportRows } from "./repeatedMethods.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
 import type { LoadedResults, ResultsSummary } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
@@ -30,6 +31,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     ["Model", code(summary.design.model)],
     ["Design columns", summary.design.columns.map(code).join(", ")],
     ["Participants", `${summary.subjects.used} analysed of ${summary.subjects.in_table} listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} excluded)` : ""}`],
+    ...repeatedReportRows(summary, code),
     ["Network", `${summary.regions} regions, ${summary.edges} edges${summary.options.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`],
     ["Residual df", String(summary.df)],
     [
