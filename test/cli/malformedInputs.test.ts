@@ -90,6 +90,9 @@ const WEIRD_VALUES: unknown[] = [
   "y ~ group", "participant_id", "site", "whole", "within", "both", "lower", "max-t", "fdr", "threshold-free",
   0, -1, 1, 2, 1e400, -1e400, 1e200, -999, ["-999"], "NA", 1e-9, 0.5, 1.5, 1e9, 2 ** 31, true, false, null, [], [1, 2], ["a"], {}, { a: 1 },
   [[0, 1, 0, 0], [0, 0, 1, 0]], "[0, 1, 0, 0]", "1e400*age", "group[patient]", "site", "sex[M] - sex[F]",
+  // `repeated:` (several scans per person): whole mappings, as well as the single values above for its two keys
+  { participant: "site", within: "group" }, { participant: "sex", within: "group" }, { participant: "group", within: "group" },
+  { participant: "site" }, { within: "sex" }, { participant: "participant_id", within: "group" }, { participant: "site", within: "sex", extra: 1 },
 ];
 
 const DESIGN_KEYS = [
@@ -99,6 +102,7 @@ const DESIGN_KEYS = [
   "inference.threshold", "inference.size", "inference.tail", "inference.permutations", "inference.seed",
   "inference.alpha", "inference.fdr", "inference.scheme", "inference.blocks", "inference.block_permutation",
   "inference.enhancement", "inference.enhancement.step", "inference.enhancement.extent_exponent", "missing_values", "unknown_key",
+  "repeated", "repeated.participant", "repeated.within",
 ];
 
 const CELL_VALUES = [
