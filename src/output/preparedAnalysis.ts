@@ -39,6 +39,8 @@ export interface RepeatedDesign {
   /** People and scans analysed. */
   people: number;
   scans: number;
+  /** Repeated measures: scans permuted within each person (within-person contrasts) or whole people exchanged (between-person contrasts). */
+  exchange?: "within each person" | "whole people";
   /** Paired differences: which difference each person contributes, e.g. "post - pre". */
   difference?: string;
   /** Paired differences: the mean subtracted from each between-person column of the change model. */

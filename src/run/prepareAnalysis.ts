@@ -25,7 +25,17 @@ import type { ExcludedSubject, KeptSubject, PreparedAnalysis } from "../output/p
 import { checkEnhancementLevels } from "./enhancementLevels.js";
 import { scanDifferences } from "../edges/scanDifferences.js";
 import { sharedFloat64 } from "../permute/nullContext.js";
-import { checkPersonColumns, checkRepeatedColumns, fittedDesign, groupScans, repeatedContrast, repeatedRecord, type ScanGroups } from "./repeatedScans.js";
+import {
+  checkPersonColumns,
+  checkRepeatedColumns,
+  completePeople,
+  exchangeWholePeople,
+  fittedDesign,
+  groupScans,
+  repeatedContrast,
+  repeatedRecord,
+  type ScanGroups,
+} from "./repeatedScans.js";
 
 
 /**
@@ -175,27 +185,31 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     }
   }
 
-  const variables = new Map<string, Variable>();
-  for (const name of needed) {
-    const column = participants.columns.get(name)!;
-    variables.set(
-      name,
-      codeVariable(
+  const codeVariables = (rows: KeptSubject[]): Map<string, Variable> => {
+    const coded = new Map<string, Variable>();
+    for (const name of needed) {
+      const column = participants.columns.get(name)!;
+      coded.set(
         name,
-        {
-          values: kept.map((k) => column[k.tableRow]!),
-          lines: kept.map((k) => participants.lines[k.tableRow]),
-          file: participants.file,
-        },
-        {
-          levels: scans && name === design.repeated!.within ? scans.levels : design.levels[name],
-          center: design.center.includes(name),
-          levelsKey: where("levels"),
-          centerKey: where("center"),
-        },
-      ),
-    );
-  }
+        codeVariable(
+          name,
+          {
+            values: rows.map((k) => column[k.tableRow]!),
+            lines: rows.map((k) => participants.lines[k.tableRow]),
+            file: participants.file,
+          },
+          {
+            levels: scans && name === design.repeated!.within ? scans.levels : design.levels[name],
+            center: design.center.includes(name),
+            levelsKey: where("levels"),
+            centerKey: where("center"),
+          },
+        ),
+      );
+    }
+    return coded;
+  };
+  let variables = codeVariables(kept);
   const factorColumns = [...variables.values()].filter((v) => v.kind === "factor").map((v) => v.name);
   warnings.push(
     ...missingCodeLevelWarnings(
@@ -205,7 +219,26 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
       design.missingValues,
     ),
   );
-  const longMatrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
+  let longMatrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
+  if (scans && !scans.first && exchangeWholePeople(design, longMatrix, scans)) {
+    // Between-person contrasts with three or more levels: whole people are exchanged, so each needs a scan at every level.
+    const complete = completePeople(participants, scans);
+    if (complete.excluded.length > 0) {
+      warnings.push(
+        `${complete.excluded.length} scan${complete.excluded.length > 1 ? "s" : ""} left out because the person lacks a scan at some level (people are exchanged as units, so each needs every level): ${complete.excluded
+          .map((x) => `${printable(x.id)} (${x.reason})`)
+          .join("; ")}`,
+      );
+      excluded = [...excluded, ...complete.excluded].sort((a, b) => a.line - b.line);
+      kept = complete.kept;
+      variables = codeVariables(kept);
+      longMatrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
+    }
+    scans = complete;
+    warnings.push(
+      "the contrasts compare people, so whole people are exchanged as units; the edges' uncorrected p-values and q-values treat scans as independent and ignore the correlation of a person's scans: rely on the permutation p-values (p_fwe)",
+    );
+  }
   const fitted = scans ? fittedDesign(design, longMatrix, scans) : undefined;
   const matrix = fitted ? fitted.matrix : longMatrix;
   const contrasts = design.contrasts.map((spec) =>
@@ -233,8 +266,9 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     blocks = { column: blockColumn, codes: Int32Array.from(values, (v) => labels.indexOf(v)), labels };
   }
   if (scans && !scans.first) {
-    // Repeated measures: each person's scans are one exchangeability block, permuted within (Winkler et al. 2015).
-    if (inference.scheme === "sign-flip") {
+    // Repeated measures: each person's scans are one exchangeability block, permuted within (Winkler et al. 2015),
+    // or whole people exchanged as units for between-person contrasts (scans.whole).
+    if (inference.scheme === "sign-flip" && !scans.whole) {
       throw new InputError(
         "with three or more levels of the within factor the scans of a person are not independent, so their signs cannot be flipped one by one",
         where("inference.scheme"),
@@ -243,12 +277,14 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     }
     blocks = { column: design.repeated!.participant, codes: scans.person, labels: scans.labels };
   }
+  // Whole people exchanged as units (repeated measures, between-person contrasts): the run's block rule.
+  const runDesign: DesignSpec = scans?.whole ? { ...design, inference: { ...design.inference, blockPermutation: "whole" } } : design;
   if (inference.method !== "fdr") {
     checkRelabelings({
       matrix,
       contrasts,
       contrastWhere: design.contrasts.map((spec) => ({ file: design.file, key: spec.key, line: spec.line })),
-      inference,
+      inference: runDesign.inference,
       blocks: blocks?.codes,
       where,
     });
@@ -313,7 +349,7 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
     ...connectomes.files.map((file, k) => ({ role: "connectome", path: file, ...(connectomes.sha256 ? { sha256: connectomes.sha256[k] } : {}) })),
   ];
   return {
-    design,
+    design: runDesign,
     formula,
     participants,
     kept,

@@ -6,7 +6,7 @@ import { printable } from "../io/printable.js";
 import { changeDesign, mapContrastRow, type FittedDesign } from "../model/changeDesign.js";
 import { parseContrast, type Contrast, type ContrastExpression } from "../model/contrast.js";
 import type { DesignMatrix } from "../model/designMatrix.js";
-import { personEffectsDesign } from "../model/personEffectsDesign.js";
+import { constantWithinPersons, personEffectsDesign } from "../model/personEffectsDesign.js";
 import { compareLevels, isNumericText } from "../model/variables.js";
 import type { ExcludedSubject, KeptSubject, RepeatedDesign } from "../output/preparedAnalysis.js";
 
@@ -49,6 +49,13 @@ export function checkRepeatedColumns(design: DesignSpec, participants: Participa
       `remove '${spec.participant}' from the model`,
     );
   }
+  if (design.lines.has("inference.block_permutation")) {
+    throw new InputError(
+      "'inference.block_permutation' cannot be combined with 'repeated': plexus chooses it (scans permuted within each person for within-person contrasts, whole people exchanged for contrasts between people)",
+      where("inference.block_permutation"),
+      "remove `block_permutation:`",
+    );
+  }
   if (design.inference.blocks !== undefined) {
     throw new InputError(
       "'inference.blocks' cannot be combined with 'repeated': the relabelings are built from the participants (each person's scans are one block, or each person's difference is one unit)",
@@ -75,9 +82,13 @@ export interface ScanGroups {
   /** Per kept scan, its person (0-based, in order of first appearance). */
   person: Int32Array;
   labels: string[];
+  /** The within column's cells, by row of the participants table. */
+  levelColumn: (string | null)[];
   /** Two levels: per person, the position among the kept scans of the first and of the second level's scan. */
   first?: Int32Array;
   second?: Int32Array;
+  /** Three or more levels, between-person contrasts: whole people are exchanged (each has a scan at every level). */
+  whole?: boolean;
 }
 
 /**
@@ -141,7 +152,7 @@ export function groupScans(design: DesignSpec, participants: ParticipantsTable, 
       `check the columns '${participant}' and '${within}' of ${participants.file}`,
     );
   }
-  const groups: ScanGroups = { kept: keptScans, excluded, levels, person: Int32Array.from(person), labels };
+  const groups: ScanGroups = { kept: keptScans, excluded, levels, person: Int32Array.from(person), labels, levelColumn };
   if (two) {
     groups.first = new Int32Array(labels.length);
     groups.second = new Int32Array(labels.length);
@@ -182,11 +193,94 @@ export function checkPersonColumns(design: DesignSpec, participants: Participant
   if (error) throw error;
 }
 
-/** The design fitted: the change model (two levels) or the person-effects model (three or more). */
+/**
+ * Three or more levels: whether the contrasts compare people (every column
+ * they weight is constant over each person's scans, the intercept included),
+ * so whole people must be exchanged (Winkler et al. 2015), rather than scans
+ * within people. A contrast, or a design, that mixes the two is refused: the
+ * two need different models and different relabelings.
+ */
+export function exchangeWholePeople(design: DesignSpec, long: DesignMatrix, groups: ScanGroups): boolean {
+  const { within } = design.repeated!;
+  const persons = groups.labels.length;
+  const betweenColumn = long.columns.map((column, j) => column.parts.length === 0 || constantWithinPersons(long, j, groups.person, persons));
+  const kinds = new Map<string, "between" | "within">();
+  for (const spec of design.contrasts) {
+    if (isNumericRows(spec.expression)) continue;
+    const where: InputLocation = { file: design.file, key: spec.key, line: spec.line };
+    const contrast = parseContrast(spec.name, spec.expression, long, where);
+    const weighted = new Set<boolean>();
+    for (const row of contrast.rows) row.forEach((w, j) => w !== 0 && weighted.add(betweenColumn[j]));
+    if (weighted.size > 1) {
+      throw new InputError(
+        `'${spec.name}' weights both columns that compare people and columns that vary within people: with three or more levels of '${within}' the two are tested with different models and relabelings (scans permuted within each person, or whole people exchanged)`,
+        where,
+        "split it into a within-person contrast and a between-person contrast, in two design files",
+      );
+    }
+    kinds.set(spec.name, weighted.has(true) ? "between" : "within");
+  }
+  const values = new Set(kinds.values());
+  if (values.size > 1) {
+    const named = (kind: string) => [...kinds].filter(([, k]) => k === kind).map(([name]) => `'${name}'`).join(", ");
+    throw new InputError(
+      `with three or more levels of '${within}', contrasts on the within factor (${named("within")}) and contrasts between people (${named("between")}) need different models and relabelings (scans permuted within each person, or whole people exchanged as units)`,
+      { file: design.file, key: "contrasts", line: design.lines.get("contrasts") },
+      "put the within-person contrasts and the between-person contrasts in two design files",
+    );
+  }
+  return values.has("between");
+}
+
+/** The scan groups restricted to people with a scan at every level (whole people are exchanged: their blocks must match). */
+export function completePeople(participants: ParticipantsTable, groups: ScanGroups): ScanGroups {
+  const count = new Array<number>(groups.labels.length).fill(0);
+  for (const p of groups.person) count[p]++;
+  const keepPerson = count.map((n) => n === groups.levels.length);
+  const index = new Map<number, number>();
+  const labels: string[] = [];
+  keepPerson.forEach((keep, p) => {
+    if (!keep) return;
+    index.set(p, labels.length);
+    labels.push(groups.labels[p]);
+  });
+  // Each person's scans in level order, so that exchanging two people maps scan to scan at the same level
+  // (the relabelings exchange blocks position by position).
+  const order = groups.kept
+    .map((scan, i) => ({ scan, p: groups.person[i], level: groups.levels.indexOf(groups.levelColumn[scan.tableRow]!) }))
+    .filter((entry) => keepPerson[entry.p])
+    .sort((a, b) => index.get(a.p)! - index.get(b.p)! || a.level - b.level);
+  const kept: KeptSubject[] = order.map((entry) => entry.scan);
+  const person: number[] = order.map((entry) => index.get(entry.p)!);
+  const excluded: ExcludedSubject[] = [];
+  const levelsOf = new Map<number, Set<string>>();
+  const withinColumn = groups.levelColumn;
+  groups.kept.forEach((scan, i) => {
+    const p = groups.person[i];
+    (levelsOf.get(p) ?? levelsOf.set(p, new Set()).get(p)!).add(withinColumn[scan.tableRow]!);
+  });
+  groups.kept.forEach((scan, i) => {
+    const p = groups.person[i];
+    if (keepPerson[p]) return;
+    const missing = groups.levels.filter((level) => !levelsOf.get(p)!.has(level));
+    excluded.push({ id: scan.id, line: participants.lines[scan.tableRow], reason: `no ${missing.join(", ")} scan` });
+  });
+  if (labels.length < 2) {
+    throw new InputError(
+      `fewer than two participants have a scan at every level (${groups.levels.join(", ")}), which exchanging whole people needs`,
+      { file: participants.file },
+      "test within-person contrasts, or complete the table",
+    );
+  }
+  return { ...groups, kept, excluded, person: Int32Array.from(person), labels, whole: true };
+}
+
+/** The design fitted: the change model (two levels), the person-effects model (three or more), or the long-form model when whole people are exchanged. */
 export function fittedDesign(design: DesignSpec, long: DesignMatrix, groups: ScanGroups): FittedDesign {
   const modelKey: InputLocation = { file: design.file, key: "model", line: design.lines.get("model") };
   const { participant, within } = design.repeated!;
   if (groups.first) return changeDesign(long, groups.first, groups.second!, within, groups.levels as [string, string], modelKey);
+  if (groups.whole) return { matrix: long, target: Int32Array.from(long.columns, (_, j) => j), centres: long.columns.map(() => 0) };
   return personEffectsDesign(long, groups.person, groups.labels, participant, modelKey);
 }
 
@@ -251,6 +345,7 @@ export function repeatedRecord(design: DesignSpec, groups: ScanGroups, fitted: F
     design: two ? "paired differences" : "repeated measures",
     people: groups.labels.length,
     scans: groups.kept.length,
+    ...(two ? {} : { exchange: groups.whole ? "whole people" : "within each person" }),
     ...(two
       ? {
           difference: `${groups.levels[1]} - ${groups.levels[0]}`,

@@ -45,6 +45,7 @@ export interface ResultsSummary {
     people: number;
     scans: number;
     difference?: string;
+    exchange?: "within each person" | "whole people";
     scheme: string;
     scheme_reason: string;
   };

@@ -47,6 +47,17 @@ export function repeatedDesignText(summary: ResultsSummary, cite: Cite, list: Li
       ` The within-person contrast became the intercept of this change model, the mean change (its between-person columns were centred at their means over participants, so the intercept is the change of an average participant), tested by flipping the sign of each participant's difference; between-person terms tested differences in change (group × time), by permuting the participants' differences (${cite("winkler", "Winkler et al. 2014")}).`,
     ];
   }
+  if (r.exchange === "whole people") {
+    return [
+      ` Each participant was scanned at every one of the ${r.levels.length} levels of `,
+      { user: r.within },
+      " (",
+      ...levels,
+      "; participants identified by ",
+      { user: r.participant },
+      `), and the contrasts compared participants: the model below was fitted to the ${r.scans} scans, and relabelings exchanged whole participants as units, so that each participant's scans stayed together (one exchangeability block per participant, all of equal size; ${cite("winkler2015", "Winkler et al. 2015")}). The edge statistic is the ordinary least-squares t, whose parametric p-value ignores the correlation between a participant's scans; the permutation p-values do not rely on it.`,
+    ];
+  }
   return [
     ` Each participant was scanned at up to ${r.levels.length} levels of `,
     { user: r.within },
@@ -65,6 +76,8 @@ export function repeatedReportRows(summary: ResultsSummary, code: (text: string)
   const design =
     r.design === "paired differences"
       ? `paired differences of ${code(r.within)} (${code(r.difference ?? "")} per person); within contrasts by sign flips, between-person contrasts (difference in change) by permutation`
-      : `repeated measures over ${r.levels.length} levels of ${code(r.within)}, participant effects; relabelings within each participant`;
+      : r.exchange === "whole people"
+        ? `repeated measures over ${r.levels.length} levels of ${code(r.within)}, contrasts between participants; whole participants exchanged as units`
+        : `repeated measures over ${r.levels.length} levels of ${code(r.within)}, participant effects; relabelings within each participant`;
   return [["Repeated scans", `${design}; ${r.people} participants (${code(r.participant)}), ${r.scans} scans`]];
 }

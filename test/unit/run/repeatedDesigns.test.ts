@@ -125,14 +125,27 @@ describe("repeated, three levels: person effects, relabelings within each person
     expect(new Set(prepared.blocks?.codes).size).toBe(8);
   });
 
-  it("refuses a between-person contrast and sign flips, explaining why", () => {
-    const withGroup = join(scratch.dir, "participants-group.tsv");
-    const text = readFileSync(join(MEASURES, "participants.tsv"), "utf8").split("\n");
-    writeFileSync(withGroup, text.map((line, k) => (line === "" ? line : `${line}\t${k === 0 ? "group" : Number(line.split("\t")[1].slice(1)) % 2 ? "a" : "b"}`)).join("\n"));
-    const attempt = (extra: string[]) => () => prepareAnalysis(design(MEASURES, extra, withGroup));
-    expect(attempt(["model: session + group", "levels: { session: [base, mid, end] }", "contrasts:", "  g: group[b] - group[a]"])).toThrow(/compares people/);
+  it("tests a between-person contrast by exchanging whole people, as lm(y ~ session + group) on complete people (R)", () => {
+    const { prepared, byName } = statistics(design(MEASURES, ["model: session + group", "levels: { session: [base, mid, end] }", "contrasts:", "  g: group[b] - group[a]"]));
+    expectEdges(byName.g.statistic, r.t_group, "group b − a t vs R lm(y ~ session + group)");
+    expectEdges(byName.g.estimate, r.estimate_group, "group b − a estimate vs R lm");
+    expect(byName.g.df).toBe(r.df_group[0]);
+    expect(prepared.repeated).toMatchObject({ design: "repeated measures", exchange: "whole people", people: 7, scans: 21 });
+    expect(prepared.design.inference.blockPermutation).toBe("whole");
+    expect(prepared.excluded.map((x) => [x.id, x.reason])).toEqual([["p8-base", "no end scan"], ["p8-mid", "no end scan"], ["p9-base", "one scan only"]]);
+  });
+
+  it("refuses a design mixing within-person and between-person contrasts, sign flips of single scans, and block_permutation", () => {
+    const attempt = (extra: string[]) => () => prepareAnalysis(design(MEASURES, extra));
+    expect(attempt(["model: session + group", "levels: { session: [base, mid, end] }", "contrasts:", "  g: group[b] - group[a]", "  e: session[end] - session[base]"])).toThrow(
+      /need different models and relabelings/,
+    );
+    expect(attempt(["model: session + group", "levels: { session: [base, mid, end] }", "contrasts:", "  m: group[b] + session[end]"])).toThrow(/weights both/);
     const flips = join(scratch.dir, "flips.yaml");
     writeFileSync(flips, readFileSync(design(MEASURES, lines), "utf8").replace("inference: { method: fdr }", "inference: { scheme: sign-flip, permutations: 100 }"));
     expect(() => prepareAnalysis(flips)).toThrow(/signs cannot be flipped/);
+    const whole = join(scratch.dir, "whole.yaml");
+    writeFileSync(whole, readFileSync(design(MEASURES, lines), "utf8").replace("inference: { method: fdr }", "inference: { block_permutation: whole, permutations: 100 }"));
+    expect(() => prepareAnalysis(whole)).toThrow(/'inference.block_permutation' cannot be combined with 'repeated'/);
   });
 });
