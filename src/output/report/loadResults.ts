@@ -245,6 +245,14 @@ function readSummary(files: FolderFiles, file: string): ResultsSummary {
   const inference = options.inference as Record<string, unknown>;
   for (const key of ["threshold", "alpha"]) expect(inference[key], `options.inference.${key}`, "number");
   for (const key of ["method", "size", "tail", "fdr"]) expect(inference[key], `options.inference.${key}`, "string");
+  if (root.repeated !== undefined) {
+    expect(root.repeated, "repeated", "object");
+    const repeated = root.repeated as Record<string, unknown>;
+    for (const key of ["participant", "within", "design"]) expect(repeated[key], `repeated.${key}`, "string");
+    for (const key of ["people", "scans"]) expect(repeated[key], `repeated.${key}`, "number");
+    expect(repeated.levels, "repeated.levels", "array");
+    if (!(repeated.levels as unknown[]).every((level) => typeof level === "string")) throw new InputError("expected level names in summary.json", { file, key: "repeated.levels" });
+  }
   (root.contrasts as unknown[]).forEach((contrast, k) => {
     expect(contrast, `contrasts[${k}]`, "object");
     const c = contrast as Record<string, unknown>;
