@@ -26,6 +26,7 @@ import { checkEnhancementLevels } from "./enhancementLevels.js";
 import { scanDifferences } from "../edges/scanDifferences.js";
 import { sharedFloat64 } from "../permute/nullContext.js";
 import {
+  absorbedColumns,
   checkPersonColumns,
   checkRepeatedColumns,
   completePeople,
@@ -241,6 +242,12 @@ export function prepareFromDesign(design: DesignSpec, hooks: PrepareHooks = {}):
   }
   const fitted = scans ? fittedDesign(design, longMatrix, scans) : undefined;
   const matrix = fitted ? fitted.matrix : longMatrix;
+  const absorbed = fitted && scans ? absorbedColumns(longMatrix, fitted, scans) : [];
+  if (absorbed.length > 0) {
+    warnings.push(
+      `the person effects absorb the between-person column${absorbed.length > 1 ? "s" : ""} ${absorbed.join(", ")} (constant over each person's scans): ${absorbed.length > 1 ? "they are" : "it is"} not fitted, and only contrasts within people are tested`,
+    );
+  }
   const contrasts = design.contrasts.map((spec) =>
     fitted
       ? repeatedContrast(spec.name, spec.expression, longMatrix, fitted, design, scans!, { file: design.file, key: spec.key, line: spec.line })

@@ -334,6 +334,12 @@ export function repeatedContrast(
   return { ...rest, kind: rows.length === 1 ? "t" : "F", expression: onLong.expression, ...(onLong.note ? { note: onLong.note } : {}) };
 }
 
+/** The long-form columns the person effects absorb (between-person terms of a within-person design), for a warning; empty otherwise. */
+export function absorbedColumns(long: DesignMatrix, fitted: FittedDesign, groups: ScanGroups): string[] {
+  if (groups.first || groups.whole) return [];
+  return long.columns.filter((column, j) => column.parts.length > 0 && fitted.target[j] < 0).map((column) => column.name);
+}
+
 /** The `repeated` record of a prepared analysis (summary.json, methods, report). */
 export function repeatedRecord(design: DesignSpec, groups: ScanGroups, fitted: FittedDesign): RepeatedDesign {
   const { participant, within } = design.repeated!;

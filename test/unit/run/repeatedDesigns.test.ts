@@ -125,6 +125,14 @@ describe("repeated, three levels: person effects, relabelings within each person
     expect(new Set(prepared.blocks?.codes).size).toBe(8);
   });
 
+  it("tests a session × group interaction within people, as lm(y ~ factor(person) + session + mid_b + end_b) does (R)", () => {
+    const { prepared, byName } = statistics(design(MEASURES, ["model: session * group", "levels: { session: [base, mid, end] }", "contrasts:", "  i: session[end]:group[b]"]));
+    expectEdges(byName.i.statistic, r.t_interaction, "session end × group b t vs R lm with person effects");
+    expectEdges(byName.i.estimate, r.estimate_interaction, "session end × group b estimate vs R lm");
+    expect(prepared.warnings.some((w) => w.includes("absorb the between-person column group[b]"))).toBe(true);
+    expect(prepared.repeated).toMatchObject({ exchange: "within each person", people: 8 });
+  });
+
   it("tests a between-person contrast by exchanging whole people, as lm(y ~ session + group) on complete people (R)", () => {
     const { prepared, byName } = statistics(design(MEASURES, ["model: session + group", "levels: { session: [base, mid, end] }", "contrasts:", "  g: group[b] - group[a]"]));
     expectEdges(byName.g.statistic, r.t_group, "group b − a t vs R lm(y ~ session + group)");
