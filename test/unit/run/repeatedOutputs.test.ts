@@ -76,3 +76,26 @@ describe("repeated designs in the results folder", () => {
     expect(cohort.find((row) => row[0] === "participants")?.[3]).toBe("8");
   });
 });
+
+describe("commands that take one matrix per person refuse a repeated design", () => {
+  it("strength, extract and power --pilot exit 2 naming the key", async () => {
+    const data = join(ROOT, "test/fixtures/repeated/paired");
+    const designFile = join(scratch.dir, "refused.yaml");
+    writeFileSync(
+      designFile,
+      [`subjects: ${data}/participants.tsv`, `connectomes: ${data}/matrices/{person}_{session}.tsv`, "repeated: { participant: person, within: session }", "model: session", "contrasts:", "  c: session[post] - session[pre]", ""].join("\n"),
+    );
+    const { runCli } = await import("../strength/strengthTestFiles.js");
+    const cases = [
+      ["strength", designFile, "--out", join(scratch.dir, "s")],
+      ["extract", designFile, "--from", join(scratch.dir, "nowhere", "c"), "--out", join(scratch.dir, "e.tsv")],
+      ["power", "--pilot", designFile, "--out", join(scratch.dir, "p"), "--cohorts", "2"],
+    ];
+    for (const argv of cases) {
+      const result = await runCli(argv);
+      expect(result.code, `${argv[0]}: ${result.stderr}`).toBe(2);
+      expect(result.stderr).toMatch(/does not support 'repeated'/);
+      expect(result.stderr).toContain("key 'repeated'");
+    }
+  });
+});
