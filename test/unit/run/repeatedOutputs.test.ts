@@ -99,3 +99,16 @@ describe("commands that take one matrix per person refuse a repeated design", ()
     }
   });
 });
+
+describe("the worked repeated designs", () => {
+  it("designs/prepost-group-by-time.yaml and designs/three-sessions.yaml prepare on their invented cohorts", async () => {
+    const { prepareAnalysis } = await import("../../../src/run/prepareAnalysis.js");
+    const prepost = prepareAnalysis(join(ROOT, "designs", "prepost-group-by-time.yaml"));
+    expect(prepost.repeated).toMatchObject({ design: "paired differences", people: 19, scans: 38, difference: "post - pre" });
+    expect(prepost.excluded).toEqual([{ id: "p14-pre", line: 28, reason: "no post scan" }]);
+    expect(prepost.contrasts.map((c) => [c.name, [...c.vector]])).toEqual([["change", [1, 0, 0]], ["treated_gain", [0, 1, 0]]]);
+    const sessions = prepareAnalysis(join(ROOT, "designs", "three-sessions.yaml"));
+    expect(sessions.repeated).toMatchObject({ design: "repeated measures", exchange: "within each person", people: 15, scans: 44 });
+    expect(sessions.excluded.map((x) => [x.id, x.reason])).toEqual([["t12-baseline", "one scan only"]]);
+  });
+});
