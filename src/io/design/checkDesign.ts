@@ -64,10 +64,7 @@ export function checkDesign(yaml: DesignYaml): CheckedDesign {
   const regions = top.value("regions") === undefined ? undefined : checkText(top, "regions");
   const model = checkModel(top);
   const repeated = checkRepeated(top);
-  return {
-    contrasts, missingValues, levels, center, transform, symmetrize, asymmetryTolerance, inference, subjects, connectomes, connectomeVariable, subjectsAxis, regions, model,
-    ...(repeated ? { repeated } : {}),
-  };
+  return { contrasts, missingValues, levels, center, transform, symmetrize, asymmetryTolerance, inference, subjects, connectomes, connectomeVariable, subjectsAxis, regions, model, ...(repeated ? { repeated } : {}) };
 }
 
 /** repeated: { participant: <column>, within: <column> }, two different column names. */
