@@ -172,8 +172,9 @@ export function methodsText(results: LoadedResults): MethodsText {
         );
       }
     }
+    // With repeated scans the blocks are the people, described with the design (repeatedMethods.ts).
     const blocks = permuted.find((c) => c.exchangeability_blocks)?.exchangeability_blocks;
-    if (blocks) {
+    if (blocks && !summary.repeated) {
       inferenceText.push(" Relabelings respected exchangeability blocks given by ", { user: blocks.column }, ` (${blocks.count} blocks; `);
       inferenceText.push(blocks.permutation === "whole" ? "whole blocks were exchanged as units" : "participants were exchanged only within their block");
       inferenceText.push(`; ${cite("winkler", "Winkler et al. 2014")}).`);
