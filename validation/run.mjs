@@ -32,6 +32,13 @@ const nullConditions = [
   { name: "extent, blocks (site), Freedman–Lane", simulation: { ...base, effect: null }, design: withCovariates, inference: { thresholds: [2.5], size: "extent" }, blocks: true },
   { name: "extent, two-tailed", simulation: { ...base, effect: null }, design: groupOnly, inference: { thresholds: [2.5], size: "extent", tail: "both" } },
   { name: "threshold-free, Freedman–Lane (age, sex)", simulation: { ...base, effect: null }, design: withCovariates, inference: { method: "threshold-free" } },
+  // Several scans per person (`repeated:`): 16 people, correlated scans (person SD 1, scan SD 1), no effect.
+  ...[
+    ["repeated: paired differences, change (sign flips)", "paired-change"],
+    ["repeated: paired differences, group × time with age", "paired-gain"],
+    ["repeated: 3 sessions, within-person contrast", "within"],
+    ["repeated: 3 sessions, between people (whole people)", "between"],
+  ].map(([name, kind]) => ({ name, simulation: base, design: groupOnly, inference: { threshold: 2.5, size: "extent" }, repeated: { kind, people: 16, regions: 16, personSd: 1 } })),
 ];
 
 const started = Date.now();

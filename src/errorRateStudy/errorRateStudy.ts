@@ -7,6 +7,7 @@ import { observeContrastOn } from "../run/analyzeContrasts.js";
 import { familywiseInference, thresholdFreeInference, wholeNullInMemory } from "../run/permutationInference.js";
 import type { SimulationOptions } from "../simulate/simulateCohort.js";
 import { studyCohort, type StudyDesign } from "./studyCohort.js";
+import { repeatedStudyCohort, type RepeatedStudyOptions } from "./repeatedStudyCohort.js";
 
 /**
  * Simulation studies of the error rates and power of the inference methods,
@@ -22,6 +23,8 @@ export interface StudyCondition {
   inference: Partial<InferenceSpec>;
   /** Use the site column as exchangeability blocks. */
   blocks?: boolean;
+  /** Several scans per person (`repeated:`): the cohort comes from repeatedStudyCohort.ts instead of the simulator. */
+  repeated?: RepeatedStudyOptions;
 }
 
 export interface CohortOutcome {
@@ -39,8 +42,10 @@ export interface CohortOutcome {
 }
 
 export function analyseStudyCohort(condition: StudyCondition, seed: number, permutations: number): CohortOutcome {
-  const inference: InferenceSpec = { ...DEFAULT_INFERENCE, ...condition.inference, permutations, seed };
-  const cohort = studyCohort(condition.simulation, condition.design, seedrandom(`plexus-study/${condition.name}/${seed}`));
+  const random = seedrandom(`plexus-study/${condition.name}/${seed}`);
+  const cohort = condition.repeated ? repeatedStudyCohort(condition.repeated, random) : studyCohort(condition.simulation, condition.design, random);
+  const wholeBlocks = "wholeBlocks" in cohort && cohort.wholeBlocks === true;
+  const inference: InferenceSpec = { ...DEFAULT_INFERENCE, ...condition.inference, permutations, seed, ...(wholeBlocks ? { blockPermutation: "whole" as const } : {}) };
   const { matrix, contrast, data, pairs } = cohort;
   const S = matrix.rows;
   const E = pairs.edgeCount;
@@ -53,7 +58,7 @@ export function analyseStudyCohort(condition: StudyCondition, seed: number, perm
     pairs,
     observed,
     inference,
-    blocks: condition.blocks ? cohort.blocks : undefined,
+    blocks: condition.blocks || condition.repeated ? cohort.blocks : undefined,
     where: { key: condition.name },
   });
   const fwe = familywiseInference({ ...inference, method: "max-t" }, observed, rows, exact);

@@ -37,6 +37,28 @@ export interface CohortTableChoice {
   variables: string[];
 }
 
+/**
+ * A design with several scans per person (`repeated:`): "paired differences"
+ * (two levels: each person's difference is analysed) or "repeated measures"
+ * (three or more: person effects, relabelings within each person).
+ */
+export interface RepeatedDesign {
+  participant: string;
+  within: string;
+  /** The within factor's levels in order. */
+  levels: string[];
+  design: "paired differences" | "repeated measures";
+  /** People and scans analysed. */
+  people: number;
+  scans: number;
+  /** Repeated measures: scans permuted within each person (within-person contrasts) or whole people exchanged (between-person contrasts). */
+  exchange?: "within each person" | "whole people";
+  /** Paired differences: which difference each person contributes, e.g. "post - pre". */
+  difference?: string;
+  /** Paired differences: the mean subtracted from each between-person column of the change model. */
+  centred?: Record<string, number>;
+}
+
 /** Everything a run needs, validated: the `check` command stops here. */
 export interface PreparedAnalysis {
   design: DesignSpec;
@@ -63,6 +85,8 @@ export interface PreparedAnalysis {
   warnings: string[];
   /** The coverage rules as applied, when the design has `edges:`. */
   edgeRules?: AppliedEdgeRules;
+  /** Several scans per person: the design and its counts (`kept` then lists scans, the design matrix's rows people or scans). */
+  repeated?: RepeatedDesign;
   /** The fit of every edge, when preparation needed it (threshold-free: the step's bound); the run reuses it. */
   fit?: EdgeFit;
   /** `--permutations`/`--seed` that replaced the design's values (already applied to `design.inference`). */

@@ -157,10 +157,11 @@ export function componentsTable(components: ComponentSummary[], inference: Compo
 export function subjectsTable(prepared: PreparedAnalysis): string {
   const columns = formulaVariables(prepared.formula);
   const blockColumn = prepared.blocks?.column;
-  // Then the columns of `select` and of the cohort table, so the report can describe them.
+  // Then the columns of `select` and of the cohort table, so the report can describe them; a repeated design's person column first.
   const { cohortTable } = prepared;
   const more = [blockColumn, ...prepared.design.select.map((s) => s.column), cohortTable.by, ...cohortTable.variables];
   for (const name of more) if (name !== undefined && name !== null && name !== "participant_id" && !columns.includes(name)) columns.push(name);
+  if (prepared.repeated && !columns.includes(prepared.repeated.participant)) columns.unshift(prepared.repeated.participant);
   const excluded = new Map([...prepared.excluded, ...prepared.notSelected].map((x) => [x.id, x.reason]));
   const { participants } = prepared;
   const rows: Cell[][] = participants.ids.map((id, row) => [

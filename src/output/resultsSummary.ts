@@ -8,6 +8,7 @@ import { effectSizesSummary } from "./effectSizeColumns.js";
 import { acrossContrastsSummary, familywiseNullFile } from "./acrossContrastsSummary.js";
 import { relabelingSummary, smallestPossibleP } from "./relabelingSummary.js";
 import { cohortTableSummary, inferenceSummary, inputsSummary, overridesSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
+import { repeatedSummary } from "./repeatedSummary.js";
 
 /**
  * summary.json of a results folder: the tool and command, the inputs with
@@ -31,6 +32,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
     matrices_read: readingSummary(connectomes.reading),
     subjects: subjectsSummary(prepared),
     cohort_table: cohortTableSummary(prepared),
+    ...(prepared.repeated ? { repeated: repeatedSummary(prepared.repeated) } : {}),
     regions: connectomes.regionCount,
     edges: prepared.edgeRules?.allPairs.edgeCount ?? connectomes.edgeCount,
     ...(prepared.edgeRules ? { edge_rules: edgeRulesSummary(prepared.edgeRules, prepared.regions) } : {}),

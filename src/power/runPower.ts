@@ -11,6 +11,7 @@ import { ResultsFolder } from "../output/resultsFolder.js";
 import { formatTsv } from "../output/tsvWriter.js";
 import { fitAll } from "../run/analyzeContrasts.js";
 import { prepareAnalysis } from "../run/prepareAnalysis.js";
+import { refuseRepeated } from "../run/repeatedScans.js";
 import { plantedEdges } from "./powerCohort.js";
 import { analysePowerCohort, POWER_METHODS, sampleSizeFor, summarizePower, type CohortDetections, type PowerEstimate, type PowerPlan } from "./powerStudy.js";
 import { powerCurveSvg } from "./powerCurve.js";
@@ -47,7 +48,12 @@ export function planPower(
   let pilot: PowerPlan["pilot"] = null;
   let pilotNote: string | null = null;
   if (options.pilotDesign) {
-    const prepared = prepareAnalysis(options.pilotDesign, { beforeMatrices: (_design, inputs) => beforeMatrices?.(inputs) });
+    const prepared = prepareAnalysis(options.pilotDesign, {
+      beforeMatrices: (design, inputs) => {
+        refuseRepeated(design, "plexus power (--pilot)");
+        beforeMatrices?.(inputs);
+      },
+    });
     const { matrix, connectomes } = prepared;
     if (prepared.edgeRules && prepared.edgeRules.kept.length < prepared.edgeRules.allPairs.edgeCount) {
       throw new InputError(

@@ -26,6 +26,8 @@ export function chooseCohortTable(options: {
   matrix: DesignMatrix;
   contrasts: readonly Contrast[];
   defaultVariables: readonly string[];
+  /** A repeated design's person and within-person columns: Table 1 describes people, so it never groups by these or lists them by default. */
+  personColumns?: readonly string[];
   where: (key: string) => InputLocation;
 }): CohortTableChoice {
   const { spec, participants, rows, matrix, contrasts, where } = options;
@@ -61,10 +63,11 @@ export function chooseCohortTable(options: {
     }
   } else {
     by = comparedFactor(matrix, contrasts);
+    if (by !== null && options.personColumns?.includes(by)) by = null;
     byFrom = by === null ? "none" : "first contrast";
   }
   if (spec.variables) for (const name of spec.variables) column(name, "cohort_table.variables");
-  const variables = (spec.variables ?? options.defaultVariables).filter((name) => name !== by && name !== PARTICIPANT_ID);
+  const variables = (spec.variables ?? options.defaultVariables.filter((name) => !options.personColumns?.includes(name))).filter((name) => name !== by && name !== PARTICIPANT_ID);
   return { by, byFrom, variables: [...new Set(variables)] };
 }
 

@@ -28,6 +28,20 @@ import { applyCoverage, withMissingEdgesHint } from "./coverageRules.js";
 import { checkEnhancementLevels } from "./enhancementLevels.js";
 import { applyInferenceOverrides, overrideWarning, type InferenceOverrides } from "../common/inferenceOverrides.js";
 import { chooseCohortTable } from "./cohortTableChoice.js";
+import { scanDifferences } from "../edges/scanDifferences.js";
+import { sharedFloat64 } from "../permute/nullContext.js";
+import {
+  absorbedColumns,
+  checkPersonColumns,
+  checkRepeatedColumns,
+  completePeople,
+  exchangeWholePeople,
+  fittedDesign,
+  groupScans,
+  repeatedContrast,
+  repeatedRecord,
+  type ScanGroups,
+} from "./repeatedScans.js";
 
 
 /**
@@ -112,6 +126,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
   for (const name of design.center) {
     if (!needed.includes(name)) throw new InputError(`'center' names '${name}', which is not in the model`, where("center"));
   }
+  if (design.repeated) checkRepeatedColumns(design, participants, needed);
   const blockColumn = design.inference.blocks;
   if (blockColumn === PARTICIPANT_ID) {
     throw new InputError(
@@ -129,12 +144,13 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     );
   }
 
-  // The design's subset first (`select`), then listwise deletion over the model and block columns within it.
+  // The design's subset first (`select`), then listwise deletion over the model and block columns within it
+  // (and the person column of a repeated design).
   const selection = selectParticipants(participants, design.select, where);
   const notSelected: ExcludedSubject[] = selection.notSelected.map(({ row, reason }) => ({ id: participants.ids[row], line: participants.lines[row], reason }));
-  const checked = blockColumn ? [...needed, blockColumn] : needed;
-  const kept: KeptSubject[] = [];
-  const excluded: ExcludedSubject[] = [];
+  const checked = [...needed, ...(blockColumn ? [blockColumn] : []), ...(design.repeated ? [design.repeated.participant] : [])];
+  let kept: KeptSubject[] = [];
+  let excluded: ExcludedSubject[] = [];
   selection.rows.forEach((row) => {
     const id = participants.ids[row];
     const missing = checked.filter((name) => participants.columns.get(name)![row] === null);
@@ -185,27 +201,47 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
   }
 
   selectedFactorCheck(design, needed, kept.map((k) => k.tableRow), participants, where);
-  const variables = new Map<string, Variable>();
-  for (const name of needed) {
-    const column = participants.columns.get(name)!;
-    variables.set(
-      name,
-      codeVariable(
-        name,
-        {
-          values: kept.map((k) => column[k.tableRow]!),
-          lines: kept.map((k) => participants.lines[k.tableRow]),
-          file: participants.file,
-        },
-        {
-          levels: design.levels[name],
-          center: design.center.includes(name),
-          levelsKey: where("levels"),
-          centerKey: where("center"),
-        },
-      ),
-    );
+  // Several scans per person: group them, leave out people without the scans the design needs.
+  let scans: ScanGroups | undefined;
+  if (design.repeated) {
+    scans = groupScans(design, participants, kept);
+    checkPersonColumns(design, participants, scans, needed);
+    kept = scans.kept;
+    excluded = [...excluded, ...scans.excluded].sort((a, b) => a.line - b.line);
+    if (scans.excluded.length > 0) {
+      warnings.push(
+        `${scans.excluded.length} scan${scans.excluded.length > 1 ? "s" : ""} left out because the person lacks a scan the design needs: ${scans.excluded
+          .map((x) => `${printable(x.id)} (${x.reason})`)
+          .join("; ")}`,
+      );
+    }
   }
+
+  const codeVariables = (rows: KeptSubject[]): Map<string, Variable> => {
+    const coded = new Map<string, Variable>();
+    for (const name of needed) {
+      const column = participants.columns.get(name)!;
+      coded.set(
+        name,
+        codeVariable(
+          name,
+          {
+            values: rows.map((k) => column[k.tableRow]!),
+            lines: rows.map((k) => participants.lines[k.tableRow]),
+            file: participants.file,
+          },
+          {
+            levels: scans && name === design.repeated!.within ? scans.levels : design.levels[name],
+            center: design.center.includes(name),
+            levelsKey: where("levels"),
+            centerKey: where("center"),
+          },
+        ),
+      );
+    }
+    return coded;
+  };
+  let variables = codeVariables(kept);
   const factorColumns = [...variables.values()].filter((v) => v.kind === "factor").map((v) => v.name);
   warnings.push(
     ...missingCodeLevelWarnings(
@@ -215,9 +251,38 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
       design.missingValues,
     ),
   );
-  const matrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
+  let longMatrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
+  if (scans && !scans.first && exchangeWholePeople(design, longMatrix, scans)) {
+    // Between-person contrasts with three or more levels: whole people are exchanged, so each needs a scan at every level.
+    const complete = completePeople(participants, scans);
+    if (complete.excluded.length > 0) {
+      warnings.push(
+        `${complete.excluded.length} scan${complete.excluded.length > 1 ? "s" : ""} left out because the person lacks a scan at some level (people are exchanged as units, so each needs every level): ${complete.excluded
+          .map((x) => `${printable(x.id)} (${x.reason})`)
+          .join("; ")}`,
+      );
+      excluded = [...excluded, ...complete.excluded].sort((a, b) => a.line - b.line);
+      kept = complete.kept;
+      variables = codeVariables(kept);
+      longMatrix = buildDesignMatrix(formula, variables, kept.length, where("model"));
+    }
+    scans = complete;
+    warnings.push(
+      "the contrasts compare people, so whole people are exchanged as units; the edges' uncorrected p-values and q-values treat scans as independent and ignore the correlation of a person's scans: rely on the permutation p-values (p_fwe)",
+    );
+  }
+  const fitted = scans ? fittedDesign(design, longMatrix, scans) : undefined;
+  const matrix = fitted ? fitted.matrix : longMatrix;
+  const absorbed = fitted && scans ? absorbedColumns(longMatrix, fitted, scans) : [];
+  if (absorbed.length > 0) {
+    warnings.push(
+      `the person effects absorb the between-person column${absorbed.length > 1 ? "s" : ""} ${absorbed.join(", ")} (constant over each person's scans): ${absorbed.length > 1 ? "they are" : "it is"} not fitted, and only contrasts within people are tested`,
+    );
+  }
   const contrasts = design.contrasts.map((spec) =>
-    parseContrast(spec.name, spec.expression, matrix, { file: design.file, key: spec.key, line: spec.line }),
+    fitted
+      ? repeatedContrast(spec.name, spec.expression, longMatrix, fitted, design, scans!, { file: design.file, key: spec.key, line: spec.line })
+      : parseContrast(spec.name, spec.expression, matrix, { file: design.file, key: spec.key, line: spec.line }),
   );
   for (const contrast of contrasts) if (contrast.note) warnings.push(contrast.note);
   for (const [k, contrast] of contrasts.entries()) {
@@ -238,6 +303,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     matrix,
     contrasts,
     defaultVariables: blockColumn ? [...needed, blockColumn] : needed,
+    ...(design.repeated ? { personColumns: [design.repeated.participant, design.repeated.within] } : {}),
     where,
   });
 
@@ -249,12 +315,26 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     blocks = { column: blockColumn, codes: Int32Array.from(values, (v) => labels.indexOf(v)), labels };
   }
   let relabelings: PreparedAnalysis["relabelings"];
+  if (scans && !scans.first) {
+    // Repeated measures: each person's scans are one exchangeability block, permuted within (Winkler et al. 2015),
+    // or whole people exchanged as units for between-person contrasts (scans.whole).
+    if (inference.scheme === "sign-flip" && !scans.whole) {
+      throw new InputError(
+        "with three or more levels of the within factor the scans of a person are not independent, so their signs cannot be flipped one by one",
+        where("inference.scheme"),
+        "use `scheme: auto` (relabelings within each person) or analyse two levels (paired differences, tested by sign flips)",
+      );
+    }
+    blocks = { column: design.repeated!.participant, codes: scans.person, labels: scans.labels };
+  }
+  // Whole people exchanged as units (repeated measures, between-person contrasts): the run's block rule.
+  const runDesign: DesignSpec = scans?.whole ? { ...design, inference: { ...design.inference, blockPermutation: "whole" } } : design;
   if (inference.method !== "fdr") {
     relabelings = checkRelabelings({
       matrix,
       contrasts,
       contrastWhere: design.contrasts.map((spec) => ({ file: design.file, key: spec.key, line: spec.line })),
-      inference,
+      inference: runDesign.inference,
       blocks: blocks?.codes,
       where,
     });
@@ -290,7 +370,24 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
   if (loaded.regionCount < 2) {
     throw new InputError("connectivity matrices must have at least 2 regions", where("connectomes"));
   }
-  const { connectomes, pairs, edgeRules } = applyCoverage(design, loaded, edgePairs(loaded.regionCount), kept);
+  // The edge rules and scaling apply to every scan; then, for paired differences, each person's second scan minus
+  // the first, edge by edge over the kept edges (after any transform, e.g. of z values).
+  const covered = applyCoverage(design, loaded, edgePairs(loaded.regionCount), kept);
+  const { pairs, edgeRules } = covered;
+  const connectomes: LoadedConnectomes = scans?.first
+    ? {
+        ...covered.connectomes,
+        subjectCount: scans.labels.length,
+        data: scanDifferences(
+          covered.connectomes.data,
+          covered.connectomes.subjectCount,
+          covered.connectomes.edgeCount,
+          scans.first,
+          scans.second!,
+          sharedFloat64(scans.labels.length * covered.connectomes.edgeCount),
+        ),
+      }
+    : covered.connectomes;
   if (connectomes.reading.reordered) {
     warnings.push("the matrices name their regions in another order than the regions table; their rows and columns were reordered to the table's order");
   }
@@ -333,7 +430,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     ...connectomes.files.map((file, k) => ({ role: "connectome", path: file, ...(connectomes.sha256 ? { sha256: connectomes.sha256[k] } : {}) })),
   ];
   return {
-    design,
+    design: runDesign,
     formula,
     participants,
     kept,
@@ -349,6 +446,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     blocks,
     inputs,
     warnings,
+    ...(scans && fitted ? { repeated: repeatedRecord(design, scans, fitted) } : {}),
     ...(fit ? { fit } : {}),
     ...(overrides ? { overrides } : {}),
     ...(relabelings ? { relabelings } : {}),

@@ -4,6 +4,7 @@ import { hashInputs } from "../output/provenance.js";
 import { checkResultFile, writeResultFile } from "../output/resultFile.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { prepareAnalysis } from "../run/prepareAnalysis.js";
+import { refuseRepeated } from "../run/repeatedScans.js";
 import type { EdgeSet } from "./edgeSets.js";
 import { edgeSetMean } from "./measures.js";
 import { circularityWarning, sampleOverlap, type SampleOverlap } from "./sampleOverlap.js";
@@ -56,7 +57,8 @@ export function runExtract(options: ExtractOptions, log: StrengthLog): ExtractRe
   let target = "";
   // The output is checked (not an input, not among them, the --force rule) before any matrix is read.
   const prepared = prepareAnalysis(options.designFile, {
-    beforeMatrices: (_design, inputs) => {
+    beforeMatrices: (design, inputs) => {
+      refuseRepeated(design, "plexus extract");
       target = checkResultFile(options.out, { force: options.force ?? false, inputs: withSelectionInputs(inputs, selection), key: OPTION.out });
     },
   });

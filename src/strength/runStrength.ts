@@ -9,6 +9,7 @@ import { ResultsFolder } from "../output/resultsFolder.js";
 import { pValue } from "../output/report/printNumbers.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { prepareAnalysis } from "../run/prepareAnalysis.js";
+import { refuseRepeated } from "../run/repeatedScans.js";
 import { circularityWarning, sampleOverlap, type SampleOverlap } from "./sampleOverlap.js";
 import { selectEdgeSets } from "./selectEdgeSets.js";
 import { analyzeStrength, type StrengthAnalysis } from "./strengthAnalysis.js";
@@ -47,7 +48,8 @@ export async function runStrength(options: StrengthOptions, log: StrengthLog, pr
     // The output is checked (inputs, lock, --force rule) before any matrix is read.
     const prepared = prepareAnalysis(options.designFile, {
       ...(options.overrides ? { overrides: options.overrides } : {}),
-      beforeMatrices: (_design, inputs) => {
+      beforeMatrices: (design, inputs) => {
+        refuseRepeated(design, "plexus strength");
         opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs: withSelectionInputs(inputs, options.selection), warn: log.warn });
       },
     });

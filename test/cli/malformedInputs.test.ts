@@ -93,6 +93,9 @@ const WEIRD_VALUES: unknown[] = [
   ["patient"], ["control", "patient"], ["east"], ["west", "east"], ["F"], "sub-03", ["sub-01", "sub-02"], ["age", "site", "sex"], ["n/a"], { group: ["patient"] },
   { by: "site", variables: ["age", "sex"] }, { by: null }, { by: "age" }, { variables: "site" },
   "log1p", "total", "none", "drop", "error", 0.75, 1.0000001, { missing: "drop" }, { present_in: 0.75 }, { missing: "drop", present_in: 1 },
+  // `repeated:` (several scans per person): whole mappings, as well as the single values above for its two keys
+  { participant: "site", within: "group" }, { participant: "sex", within: "group" }, { participant: "group", within: "group" },
+  { participant: "site" }, { within: "sex" }, { participant: "participant_id", within: "group" }, { participant: "site", within: "sex", extra: 1 },
 ];
 
 const DESIGN_KEYS = [
@@ -107,6 +110,7 @@ const DESIGN_KEYS = [
   "cohort_table", "cohort_table.by", "cohort_table.variables", "cohort_table.unknown_key",
   "inference.across_contrasts",
   "scale", "edges", "edges.missing", "edges.present_in", "edges.unknown_key",
+  "repeated", "repeated.participant", "repeated.within",
 ];
 
 const CELL_VALUES = [

@@ -36,6 +36,21 @@ describe("error control by simulation (reduced form)", () => {
     expectRateNear(outcomes.filter((o) => o.edgeRejected).length, cohorts, 0.05, "max-t, two-tailed, blocks");
   });
 
+  it("max-t holds the FWER under the null with several scans per person (within each person, and whole people)", () => {
+    for (const kind of ["within", "between", "paired-gain"] as const) {
+      const condition: StudyCondition = {
+        name: `ci-null-repeated-${kind}`,
+        simulation: { ...base, effect: null },
+        design,
+        inference: { thresholds: [2.5], tail: "both" },
+        repeated: { kind, people: 12, regions: 10, personSd: 1 },
+      };
+      const cohorts = 300;
+      const outcomes = runCondition(condition, cohorts, 99);
+      expectRateNear(outcomes.filter((o) => o.edgeRejected).length, cohorts, 0.05, `max-t, two-tailed, repeated ${kind}`);
+    }
+  });
+
   it("threshold-free enhancement holds the FWER under the null (Freedman–Lane)", () => {
     const condition: StudyCondition = {
       name: "ci-null-enhanced",

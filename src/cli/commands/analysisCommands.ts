@@ -16,6 +16,7 @@ import { inferenceLine } from "../../output/summaryParts.js";
 import type { PreparedAnalysis } from "../../output/preparedAnalysis.js";
 import { selectionText } from "../../io/selectParticipants.js";
 import { edgeRulesLine } from "../../output/edgeRulesSummary.js";
+import { repeatedCheckLine } from "../../output/repeatedSummary.js";
 
 /** `plexus check DESIGN` and `plexus run DESIGN --out DIR`. */
 export function registerAnalysisCommands(program: Command, sink: OutputSink, argv: () => string[]): void {
@@ -32,8 +33,9 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
       const { matrix, connectomes, design } = prepared;
       const lines = [
         `design      ${designFile}`,
-        `subjects    ${prepared.kept.length} used of ${prepared.participants.ids.length}${prepared.excluded.length ? ` (${prepared.excluded.length} left out for missing values)` : ""}`,
+        `subjects    ${prepared.kept.length} used of ${prepared.participants.ids.length}${prepared.excluded.length ? ` (${prepared.excluded.length} left out${prepared.repeated ? "" : " for missing values"})` : ""}`,
         ...selectionLines(prepared),
+        ...(prepared.repeated ? [repeatedCheckLine(prepared)!] : []),
         `connectomes ${connectomes.regionCount} regions, ${prepared.edgeRules?.allPairs.edgeCount ?? connectomes.edgeCount} edges${design.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`,
         ...[edgeRulesLine(design.transform, design.scale, prepared.edgeRules, prepared.regions)].filter((line) => line !== null).map((line) => `edges       ${line}`),
         `read        ${describeReading(connectomes.reading)}`,

@@ -4,8 +4,8 @@ import { InputError } from "../../errors.js";
 import { checkContrasts } from "./checkContrasts.js";
 import { checkCohortTable, checkSelect } from "./checkSelection.js";
 import { DesignSection } from "./designSection.js";
-import { CONNECTOMES_KEYS, DESIGN_KEYS, EDGES_KEYS, ENHANCEMENT_KEYS, INFERENCE_KEYS } from "./designKeys.js";
-import type { CohortTableSpec, ContrastSpec, EdgeRulesSpec, SelectionSpec } from "./designSpec.js";
+import { CONNECTOMES_KEYS, DESIGN_KEYS, EDGES_KEYS, ENHANCEMENT_KEYS, INFERENCE_KEYS, REPEATED_KEYS } from "./designKeys.js";
+import type { CohortTableSpec, ContrastSpec, EdgeRulesSpec, RepeatedSpec, SelectionSpec } from "./designSpec.js";
 import type { DesignYaml } from "./designYaml.js";
 
 /** The inference options the file sets, each checked; an absent one is undefined (resolveDesign.ts fills it). */
@@ -45,6 +45,7 @@ export interface CheckedDesign {
   subjectsAxis?: "first" | "last";
   regions?: string;
   model: string;
+  repeated?: RepeatedSpec;
 }
 
 /**
@@ -52,7 +53,7 @@ export interface CheckedDesign {
  * raising the first problem as an InputError at the key and its line. The keys are
  * checked in this order (so a file with several problems reports the same one first):
  * unknown keys, contrasts, missing_values, levels, center, select, cohort_table, transform, scale, edges, symmetrize,
- * asymmetry_tolerance, inference, then subjects, connectomes, regions and model.
+ * asymmetry_tolerance, inference, then subjects, connectomes, regions, model and repeated.
  */
 export function checkDesign(yaml: DesignYaml): CheckedDesign {
   const top = new DesignSection(yaml, yaml.root, DESIGN_KEYS, "");
@@ -72,7 +73,31 @@ export function checkDesign(yaml: DesignYaml): CheckedDesign {
   const { path: connectomes, variable: connectomeVariable, subjectsAxis } = checkConnectomes(top);
   const regions = top.value("regions") === undefined ? undefined : checkText(top, "regions");
   const model = checkModel(top);
-  return { contrasts, missingValues, levels, center, select, cohortTable, transform, ...(scale !== undefined ? { scale } : {}), ...(edges ? { edges } : {}), symmetrize, asymmetryTolerance, inference, subjects, connectomes, connectomeVariable, subjectsAxis, regions, model };
+  const repeated = checkRepeated(top);
+  return { contrasts, missingValues, levels, center, select, cohortTable, transform, ...(scale !== undefined ? { scale } : {}), ...(edges ? { edges } : {}), symmetrize, asymmetryTolerance, inference, subjects, connectomes, connectomeVariable, subjectsAxis, regions, model, ...(repeated ? { repeated } : {}) };
+}
+
+/** repeated: { participant: <column>, within: <column> }, two different column names. */
+function checkRepeated(top: DesignSection): RepeatedSpec | undefined {
+  const node = top.node("repeated");
+  if (node === undefined) return undefined;
+  const example = "e.g. `repeated: { participant: person, within: session }` (one row per scan)";
+  if (!isMap(node)) throw new InputError("'repeated' must be a mapping naming the person's column and the within-person factor", top.where("repeated"), example);
+  const section = new DesignSection(top.yaml, node, REPEATED_KEYS, "repeated");
+  const column = (name: "participant" | "within"): string => {
+    const value = section.value(name);
+    if (value === undefined) throw new InputError(`'repeated' needs '${name}'`, top.where("repeated"), example);
+    if (typeof value !== "string" || value.trim() === "") {
+      throw new InputError(`'repeated.${name}' names a column of the participants table`, section.where(name), example);
+    }
+    return value.trim();
+  };
+  const participant = column("participant");
+  const within = column("within");
+  if (participant === within) {
+    throw new InputError("'repeated.participant' and 'repeated.within' name the same column", section.where("within"), example);
+  }
+  return { participant, within };
 }
 
 /** connectomes: a path or template, or { path, variable, subjects_axis }. */

@@ -111,6 +111,14 @@ export const EDGES_KEYS = {
   present_in: { kind: "fraction" },
 } as const;
 
+/** `repeated`: several scans per person in a long-form participants table (one row per scan). */
+export const REPEATED_KEYS = {
+  /** The column naming the person each scan belongs to. */
+  participant: { kind: "column", required: true },
+  /** The column naming the session or condition of each scan (a factor of the model). */
+  within: { kind: "column", required: true },
+} as const;
+
 /** The top level of a design file. */
 export const DESIGN_KEYS = {
   subjects: { kind: "text", required: true },
@@ -139,6 +147,7 @@ export const DESIGN_KEYS = {
   symmetrize: { kind: "boolean", default: false, nullIsDefault: true },
   asymmetry_tolerance: number((v) => v >= 0, "a finite number ≥ 0", 1e-6, true),
   inference: { kind: "section", keys: INFERENCE_KEYS },
+  repeated: { kind: "section", keys: REPEATED_KEYS },
 } as const;
 
 /** The names a section allows, in the table's order. */

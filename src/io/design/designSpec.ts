@@ -33,6 +33,12 @@ export interface EdgeRulesSpec {
   presentIn?: number;
 }
 
+/** `repeated: { participant, within }`: column names of the participants table. */
+export interface RepeatedSpec {
+  participant: string;
+  within: string;
+}
+
 /** A design file read and checked for shape; columns and files are checked later against the data. */
 export interface DesignSpec {
   file: string;
@@ -62,6 +68,8 @@ export interface DesignSpec {
   symmetrize: boolean;
   asymmetryTolerance: number;
   inference: InferenceSpec;
+  /** `repeated`: the person and the within-person factor of a long-form table (one row per scan). */
+  repeated?: RepeatedSpec;
   /** 1-based line of each key path (`inference.threshold`), for located errors later. */
   lines: Map<string, number>;
 }

@@ -55,6 +55,7 @@ export function resolveDesign(checked: CheckedDesign, file: string, lines: Map<s
     symmetrize: checked.symmetrize ?? DESIGN_KEYS.symmetrize.default,
     asymmetryTolerance: checked.asymmetryTolerance ?? DESIGN_KEYS.asymmetry_tolerance.default,
     inference: resolveInference(checked.inference),
+    ...(checked.repeated ? { repeated: checked.repeated } : {}),
     lines,
   };
 }

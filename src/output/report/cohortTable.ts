@@ -232,7 +232,9 @@ function excludedNotes(results: LoadedResults): string[] {
   const reasons = new Map<string, number>();
   for (const x of excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
   const list = [...reasons].map(([reason, n]) => `${reason}: ${n}`).join("; ");
-  return [`Excluded from the analysis: ${excluded.length} of ${inTable - notSelected} ${notSelected > 0 ? "selected " : ""}participants (${list}).`];
+  return [
+    `Excluded from the analysis: ${excluded.length} of ${inTable - notSelected} ${notSelected > 0 ? "selected " : ""}${results.summary.repeated ? "scans" : "participants"} (${list}).`,
+  ];
 }
 
 /** "Analysed subset (select): group = patient (30 of the 60 participants listed)." or nothing. */

@@ -1,5 +1,6 @@
 import { InputError } from "../../errors.js";
 import type { LoadedResults } from "./loadResults.js";
+import { personRows } from "./personRows.js";
 
 /**
  * The participant characteristics the cohort table (Table 1) describes, read
@@ -30,7 +31,8 @@ const NUMBER = /^\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*$/;
 
 export function cohortVariables(results: LoadedResults): CohortVariables {
   const { subjects, summary } = results;
-  const used = subjects.rows.map((row, k) => (row.included ? k : -1)).filter((k) => k >= 0);
+  const people = personRows(results);
+  const used = people ? people.used : subjects.rows.map((row, k) => (row.included ? k : -1)).filter((k) => k >= 0);
   const factorLevels = summary.design.levels ?? {};
   const columnValues = (c: number) => used.map((k) => subjects.rows[k].values[c]);
   const indexOf = (name: string): number => {
@@ -46,7 +48,7 @@ export function cohortVariables(results: LoadedResults): CohortVariables {
     ? chosen.by === null
       ? -1
       : indexOf(chosen.by)
-    : subjects.columns.findIndex((name) => Object.hasOwn(factorLevels, name));
+    : subjects.columns.findIndex((name) => !people?.skip.has(name) && Object.hasOwn(factorLevels, name));
   let group: CohortVariables["group"] = null;
   if (groupIndex >= 0) {
     const column = subjects.columns[groupIndex];
@@ -58,8 +60,8 @@ export function cohortVariables(results: LoadedResults): CohortVariables {
   const described = chosen ? chosen.variables.map(indexOf) : subjects.columns.map((_, c) => c);
   const variables: CohortVariable[] = [];
   for (const c of described) {
-    if (c === groupIndex) continue;
     const column = subjects.columns[c];
+    if (c === groupIndex || people?.skip.has(column)) continue;
     const values = columnValues(c);
     const present = values.filter((v): v is string => v !== null);
     if (!Object.hasOwn(factorLevels, column) && present.length > 0 && present.every((v) => NUMBER.test(v))) {

@@ -44,6 +44,19 @@ export interface ResultsSummary {
   };
   /** Table 1's grouping and variables (absent in folders written before it: the first factor of the model, every column). */
   cohort_table?: { by: string | null; by_from: "design" | "first contrast" | "none"; variables: string[] };
+  /** Several scans per person (`repeated:`); absent otherwise. */
+  repeated?: {
+    participant: string;
+    within: string;
+    levels: string[];
+    design: "paired differences" | "repeated measures";
+    people: number;
+    scans: number;
+    difference?: string;
+    exchange?: "within each person" | "whole people";
+    scheme: string;
+    scheme_reason: string;
+  };
   regions: number;
   edges: number;
   design: {
@@ -294,6 +307,14 @@ function readSummary(files: FolderFiles, file: string): ResultsSummary {
   const inference = options.inference as Record<string, unknown>;
   for (const key of ["threshold", "alpha"]) expect(inference[key], `options.inference.${key}`, "number");
   for (const key of ["method", "size", "tail", "fdr"]) expect(inference[key], `options.inference.${key}`, "string");
+  if (root.repeated !== undefined) {
+    expect(root.repeated, "repeated", "object");
+    const repeated = root.repeated as Record<string, unknown>;
+    for (const key of ["participant", "within", "design"]) expect(repeated[key], `repeated.${key}`, "string");
+    for (const key of ["people", "scans"]) expect(repeated[key], `repeated.${key}`, "number");
+    expect(repeated.levels, "repeated.levels", "array");
+    if (!(repeated.levels as unknown[]).every((level) => typeof level === "string")) throw new InputError("expected level names in summary.json", { file, key: "repeated.levels" });
+  }
   (root.contrasts as unknown[]).forEach((contrast, k) => {
     expect(contrast, `contrasts[${k}]`, "object");
     const c = contrast as Record<string, unknown>;

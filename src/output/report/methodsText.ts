@@ -8,6 +8,7 @@ import { contrastRows } from "./loadResults.js";
 import { count, plain, significant } from "./printNumbers.js";
 import { overridesSentence } from "./overridesText.js";
 import { exclusionDenominator, selectionSentence } from "./selectionMethods.js";
+import { repeatedDesignText, repeatedOpening } from "./repeatedMethods.js";
 
 /**
  * The methods paragraph: every choice in force, read from summary.json, in
@@ -36,6 +37,7 @@ const REFERENCES = {
   welch1951: "Welch BL (1951). Biometrika 38:330–336.",
   westfallYoung: "Westfall PH, Young SS (1993). Resampling-Based Multiple Testing. New York: Wiley.",
   winkler: "Winkler AM, Ridgway GR, Webster MA, Smith SM, Nichols TE (2014). NeuroImage 92:381–397.",
+  winkler2015: "Winkler AM, Webster MA, Vidaurre D, Nichols TE, Smith SM (2015). NeuroImage 123:253–268.",
   zalesky: "Zalesky A, Fornito A, Bullmore ET (2010). NeuroImage 53:1197–1207.",
   smithNichols: "Smith SM, Nichols TE (2009). NeuroImage 44:83–98.",
   baggio: "Baggio HC, et al. (2018). Human Brain Mapping 39:2289–2302.",
@@ -64,8 +66,10 @@ export function methodsText(results: LoadedResults): MethodsText {
   // 1. Participants, data and model.
   const model: Segment[] = [];
   const excluded = subjects.excluded.length;
-  model.push(...selectionSentence(subjects), `Connectivity matrices of ${subjects.used} participants were analysed`);
-  if (excluded > 0) {
+  model.push(...selectionSentence(subjects));
+  if (summary.repeated) model.push(...repeatedOpening(summary, list));
+  else model.push(`Connectivity matrices of ${subjects.used} participants were analysed`);
+  if (excluded > 0 && !summary.repeated) {
     const reasons = new Map<string, number>();
     for (const x of subjects.excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
     model.push(` (${excluded} of the ${exclusionDenominator(subjects)} were excluded: `);
@@ -80,6 +84,7 @@ export function methodsText(results: LoadedResults): MethodsText {
   }
   const coverage = coverageMethods(summary);
   model.push(...coverage.segments);
+  if (summary.repeated) model.push(...repeatedDesignText(summary, cite, list));
   model.push(" At every edge, the general linear model ", { user: design.model });
   model.push(design.intercept ? " (with an intercept)" : " (without an intercept)");
   model.push(" was fitted by ordinary least squares");
@@ -177,8 +182,9 @@ export function methodsText(results: LoadedResults): MethodsText {
         );
       }
     }
+    // With repeated scans the blocks are the people, described with the design (repeatedMethods.ts).
     const blocks = permuted.find((c) => c.exchangeability_blocks)?.exchangeability_blocks;
-    if (blocks) {
+    if (blocks && !summary.repeated) {
       inferenceText.push(" Relabelings respected exchangeability blocks given by ", { user: blocks.column }, ` (${blocks.count} blocks; `);
       inferenceText.push(blocks.permutation === "whole" ? "whole blocks were exchanged as units" : "participants were exchanged only within their block");
       inferenceText.push(`; ${cite("winkler", "Winkler et al. 2014")}).`);

@@ -2,6 +2,7 @@ import { acrossContrastsRow } from "./acrossContrastsText.js";
 import { coverageRow } from "./coverageRow.js";
 import { escapeHtml } from "./escapeHtml.js";
 import { selectionText } from "./cohortTable.js";
+import { repeatedReportRows } from "./repeatedMethods.js";
 import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
 import type { LoadedResults, ResultsSummary } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
@@ -36,6 +37,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     ["Participants", `${summary.subjects.used} analysed of ${summary.subjects.in_table} listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} excluded)` : ""}`],
     ...(summary.subjects.selection ? ([["Subset (select)", `${h(selectionText(summary.subjects.selection))}; ${summary.subjects.not_selected ?? 0} not selected`]] as [string, string][]) : []),
     ...(summary.cohort_table ? ([["Table 1", cohortTableLine(summary.cohort_table, code)]] as [string, string][]) : []),
+    ...repeatedReportRows(summary, code),
     ["Network", `${summary.regions} regions, ${summary.edges} edges${summary.options.transform === "fisher-z" ? ", Fisher z-transformed" : ""}`],
     ...[coverageRow(summary, h)].filter((row): row is [string, string] => row !== null),
     ["Residual df", String(summary.df)],

@@ -9,8 +9,8 @@ import { runSimulation } from "../../../src/simulate/runSimulation.js";
 
 const ROOT = resolve(dirname(fileURLToPath(import.meta.url)), "../../..");
 const DEMO = join(ROOT, "demo-cohort");
-/** Files and folders in demo-cohort/ that are not written by the simulator (formats/ is written from the cohort by its own script; coverage/ is a second invented cohort with its own script). */
-const NOT_GENERATED = new Set(["README.md", "make.sh", "formats", "coverage"]);
+/** Files and folders in demo-cohort/ that are not written by the simulator (formats/ is written from the cohort by its own script; coverage/, prepost/ and sessions/ are further invented cohorts, each made by its own script). */
+const NOT_GENERATED = new Set(["README.md", "make.sh", "formats", "coverage", "prepost", "sessions"]);
 
 function treeDigest(dir: string): Record<string, string> {
   const out: Record<string, string> = {};
