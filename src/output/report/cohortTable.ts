@@ -257,9 +257,9 @@ export function excludedTables(results: LoadedResults): { print: ReportTable; ts
   return {
     print: {
       id: "excluded",
-      title: "Participants excluded from the analysis",
+      title: results.summary.repeated ? "Scans excluded from the analysis" : "Participants excluded from the analysis",
       columns: [
-        { header: "Participant", align: "left" },
+        { header: results.summary.repeated ? "Scan" : "Participant", align: "left" },
         { header: "Line", align: "right" },
         { header: "Reason", align: "left" },
       ],

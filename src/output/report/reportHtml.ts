@@ -34,7 +34,12 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   const summaryRows: [string, string][] = [
     ["Model", code(summary.design.model)],
     ["Design columns", summary.design.columns.map(code).join(", ")],
-    ["Participants", `${summary.subjects.used} analysed of ${summary.subjects.in_table} listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} excluded)` : ""}`],
+    summary.repeated
+      ? [
+          "Participants",
+          `${summary.repeated.people} people (${summary.subjects.used} scans) analysed of ${summary.subjects.in_table} scans listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} scans excluded)` : ""}`,
+        ]
+      : ["Participants", `${summary.subjects.used} analysed of ${summary.subjects.in_table} listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} excluded)` : ""}`],
     ...(summary.subjects.selection ? ([["Subset (select)", `${h(selectionText(summary.subjects.selection))}; ${summary.subjects.not_selected ?? 0} not selected`]] as [string, string][]) : []),
     ...(summary.cohort_table ? ([["Table 1", cohortTableLine(summary.cohort_table, code)]] as [string, string][]) : []),
     ...repeatedReportRows(summary, code),
@@ -52,9 +57,13 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   ];
   if (permuted.length > 0) {
     const c = permuted[0];
+    const schemeName = (scheme: string | undefined) => (scheme === "sign-flip" ? "sign-flipping" : "Freedman–Lane permutation");
+    const schemes = new Set(permuted.map((p) => p.scheme));
+    const schemeText =
+      schemes.size > 1 ? permuted.map((p) => `${h(p.name)}: ${schemeName(p.scheme)}`).join(", ") : schemeName(c.scheme);
     summaryRows.push([
       "Relabelings",
-      `${c.mode === "exact" ? `all ${c.permutations} (exact)` : `${c.permutations} Monte Carlo, seed ${c.seed}`}; ${c.scheme === "sign-flip" ? "sign-flipping" : "Freedman–Lane permutation"}` +
+      `${c.mode === "exact" ? `all ${c.permutations} (exact)` : `${c.permutations} Monte Carlo, seed ${c.seed}`}; ${schemeText}` +
         (c.exchangeability_blocks ? `; blocks ${code(c.exchangeability_blocks.column)} (${c.exchangeability_blocks.count}, ${h(c.exchangeability_blocks.permutation)})` : ""),
     ]);
   }
@@ -76,7 +85,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   const warnings: string[] = summary.warnings.map((w) => `<li>${h(w)}</li>`);
   if (summary.subjects.excluded.length > 0) {
     warnings.push(
-      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table - (summary.subjects.not_selected ?? 0)} ${summary.subjects.selection ? "selected " : ""}participants were excluded from the analysis.` +
+      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table - (summary.subjects.not_selected ?? 0)} ${summary.subjects.selection ? "selected " : ""}${summary.repeated ? "scans" : "participants"} were excluded from the analysis.` +
         `<details><summary>Show the excluded participants</summary>${htmlTable({ ...content.excluded, id: "excluded-list" }, 0)}</details></li>`,
     );
   }
@@ -146,7 +155,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     "<body>",
     "<header>",
     "<h1>plexus results</h1>",
-    `<p class="subtitle">Model ${code(summary.design.model)} · ${summary.subjects.used} participants · ${summary.regions} regions · plexus ${h(summary.tool.version)}</p>`,
+    `<p class="subtitle">Model ${code(summary.design.model)} · ${summary.repeated ? `${summary.repeated.people} participants (${summary.subjects.used} scans)` : `${summary.subjects.used} participants`} · ${summary.regions} regions · plexus ${h(summary.tool.version)}</p>`,
     "</header>",
     `<aside class="notice" role="note"><strong>Research use only.</strong> ${h(RESEARCH_NOTICE)}</aside>`,
     "<nav><h2>Contents</h2><ol>",
