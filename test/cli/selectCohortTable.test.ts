@@ -228,7 +228,7 @@ describe("cohort_table defaults and limits", () => {
     ]);
     const result = await runCli(["check", file]);
     expect(result.code).toBe(0);
-    expect(result.stdout).toContain("table 1     by group (the factor the first contrast compares); variables age, site");
+    expect(result.stdout).toContain("table 1     by group (the factor compared by the first contrast between its levels); variables age, site");
     const slopeOnly = design("slope-only", ["model: age + site + group", "contrasts: { age_up: age }", "inference: { method: fdr }"]);
     expect((await runCli(["check", slopeOnly])).stdout).toContain("table 1     by none (all analysed participants) (no factor compared); variables age, site, group");
   });

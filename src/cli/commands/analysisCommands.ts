@@ -120,7 +120,7 @@ function selectionLines(prepared: PreparedAnalysis): string[] {
   const { select } = prepared.design;
   const selected = prepared.participants.ids.length - prepared.notSelected.length;
   const { by, byFrom, variables } = prepared.cohortTable;
-  const source = byFrom === "design" ? "cohort_table.by" : byFrom === "first contrast" ? "the factor the first contrast compares" : "no factor compared";
+  const source = byFrom === "design" ? "cohort_table.by" : byFrom === "first contrast" ? "the factor compared by the first contrast between its levels" : "no factor compared";
   return [
     ...(select.length > 0 ? [`select      ${selectionText(select)}: ${selected} of ${prepared.participants.ids.length} selected, ${prepared.notSelected.length} not selected (not analysed by design)`] : []),
     `table 1     by ${by ?? "none (all analysed participants)"} (${source}); variables ${variables.length > 0 ? variables.join(", ") : "none"}`,

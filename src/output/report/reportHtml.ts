@@ -224,5 +224,5 @@ function matricesRead(read: NonNullable<ResultsSummary["matrices_read"]>): strin
 /** The report's Table 1 row: its grouping and where it came from. */
 function cohortTableLine(table: NonNullable<ResultsSummary["cohort_table"]>, code: (text: string) => string): string {
   if (table.by === null) return table.by_from === "design" ? "all analysed participants in one column (cohort_table.by: ~)" : "all analysed participants in one column (no contrast compares a factor)";
-  return `by ${code(table.by)} (${table.by_from === "design" ? "cohort_table.by" : "the factor the first contrast compares"})`;
+  return `by ${code(table.by)} (${table.by_from === "design" ? "cohort_table.by" : "the factor compared by the first contrast between its levels"})`;
 }
