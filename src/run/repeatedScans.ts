@@ -65,13 +65,24 @@ export function checkRepeatedColumns(design: DesignSpec, participants: Participa
   }
 }
 
-/** The within factor's levels: the design's `levels:` order, else numeric order when every value is a number, else code-point order. */
+/**
+ * The within factor's levels: the design's `levels:` order, else numeric order when every value is a number.
+ * Text levels need `levels:`: their order sets the direction of the change (second minus first) that
+ * between-person contrasts test, and an alphabetical order (post before pre) would reverse it silently.
+ */
 export function withinLevels(design: DesignSpec, participants: ParticipantsTable, rows: number[]): string[] {
-  const given = design.levels[design.repeated!.within];
+  const within = design.repeated!.within;
+  const given = design.levels[within];
   if (given) return given;
-  const column = participants.columns.get(design.repeated!.within)!;
+  const column = participants.columns.get(within)!;
   const distinct = [...new Set(rows.map((row) => column[row]!))];
-  return distinct.every(isNumericText) ? distinct.sort((a, b) => compareLevels(a, b) || (a < b ? -1 : a > b ? 1 : 0)) : distinct.sort((a, b) => (a < b ? -1 : a > b ? 1 : 0));
+  if (distinct.every(isNumericText)) return distinct.sort((a, b) => compareLevels(a, b) || (a < b ? -1 : a > b ? 1 : 0));
+  const shown = distinct.slice(0, 6).map(printable);
+  throw new InputError(
+    `the levels of the within factor '${printable(within)}' (${shown.join(", ")}${distinct.length > 6 ? ", …" : ""}) need an order under 'levels:': the first is the reference, and with two levels each person's change is the second minus the first`,
+    { file: design.file, key: "levels", line: design.lines.get("levels") ?? design.lines.get("repeated") },
+    `e.g. \`levels: { ${within}: [${shown.join(", ")}] }\`, listed from the first session (baseline) on`,
+  );
 }
 
 export interface ScanGroups {

@@ -60,9 +60,9 @@ describe("repeated, two levels: paired differences", () => {
   });
 
   it("reads the contrast by its levels, whatever the level order (R t.test)", () => {
-    // Default level order is by code point (post, pre): the fitted difference is pre − post, and the contrast still means post − pre.
-    const { byName } = statistics(design(PAIRED, ["model: session", "contrasts:", "  change: session[post] - session[pre]", "  loss: session[pre] - session[post]"]));
-    expectEdges(byName.change.statistic, r.t_paired, "paired t vs R t.test (default level order)");
+    // Levels given in reverse (post, pre): the fitted difference is pre − post, and the contrast still means post − pre.
+    const { byName } = statistics(design(PAIRED, ["model: session", "levels: { session: [post, pre] }", "contrasts:", "  change: session[post] - session[pre]", "  loss: session[pre] - session[post]"]));
+    expectEdges(byName.change.statistic, r.t_paired, "paired t vs R t.test (reversed level order)");
     expectEdges(byName.loss.statistic, r.t_paired.map((t) => -t), "reversed contrast vs −(R t.test)");
   });
 
@@ -90,7 +90,11 @@ describe("repeated, two levels: paired differences", () => {
       }
       throw new Error("expected an InputError");
     };
-    expect(refused(["model: session", "contrasts:", "  level: intercept"]).message).toMatch(/removes/);
+    // Text levels without an order under levels: would make the change's direction alphabetical (post before pre).
+    const unordered = refused(["model: session", "contrasts:", "  c: session[post] - session[pre]"]);
+    expect(unordered.location.key).toBe("levels");
+    expect(unordered.message).toMatch(/need an order under 'levels:'/);
+    expect(refused(["model: session", "levels: { session: [pre, post] }", "contrasts:", "  level: intercept"]).message).toMatch(/removes/);
     expect(refused(["model: arm", "contrasts:", "  a: arm[treated] - arm[waitlist]"]).location.key).toBe("model");
     const blocked = join(scratch.dir, "blocked.yaml");
     writeFileSync(blocked, readFileSync(design(PAIRED, ["model: session", "contrasts:", "  c: session[post] - session[pre]"]), "utf8").replace("inference: { method: fdr }", "inference: { method: fdr, blocks: arm }"));
@@ -99,12 +103,12 @@ describe("repeated, two levels: paired differences", () => {
     const table = readFileSync(join(PAIRED, "participants.tsv"), "utf8").replace("p1-post\tp1\tpost\ttreated\t31", "p1-post\tp1\tpost\ttreated\t32");
     const changed = join(scratch.dir, "participants-age.tsv");
     writeFileSync(changed, table);
-    const error = refused(["model: session + age", "contrasts:", "  c: session[post] - session[pre]"], changed);
+    const error = refused(["model: session + age", "levels: { session: [pre, post] }", "contrasts:", "  c: session[post] - session[pre]"], changed);
     expect(error.message).toMatch(/'age' differs between the two scans of person 'p1'/);
     // two scans of p2 at pre
     const twice = join(scratch.dir, "participants-twice.tsv");
     writeFileSync(twice, readFileSync(join(PAIRED, "participants.tsv"), "utf8").replace("p2-post\tp2\tpost", "p2-post\tp2\tpre"));
-    expect(refused(["model: session", "contrasts:", "  c: session[post] - session[pre]"], twice).message).toMatch(/two scans at session 'pre'/);
+    expect(refused(["model: session", "levels: { session: [pre, post] }", "contrasts:", "  c: session[post] - session[pre]"], twice).message).toMatch(/two scans at session 'pre'/);
   });
 });
 

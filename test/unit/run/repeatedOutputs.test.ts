@@ -83,7 +83,7 @@ describe("commands that take one matrix per person refuse a repeated design", ()
     const designFile = join(scratch.dir, "refused.yaml");
     writeFileSync(
       designFile,
-      [`subjects: ${data}/participants.tsv`, `connectomes: ${data}/matrices/{person}_{session}.tsv`, "repeated: { participant: person, within: session }", "model: session", "contrasts:", "  c: session[post] - session[pre]", ""].join("\n"),
+      [`subjects: ${data}/participants.tsv`, `connectomes: ${data}/matrices/{person}_{session}.tsv`, "repeated: { participant: person, within: session }", "model: session", "levels: { session: [pre, post] }", "contrasts:", "  c: session[post] - session[pre]", ""].join("\n"),
     );
     const { runCli } = await import("../strength/strengthTestFiles.js");
     const cases = [
