@@ -31,7 +31,7 @@ export function coverageMethods(summary: LoadedResults["summary"]): { segments: 
     if (parts.length > 0) {
       segments.push(
         ` Edges were then selected by coverage: ${parts.join(" and ")} ${rules.dropped === 1 ? "was" : "were"} left out, and the remaining ${rules.kept} of ${rules.edges} edges ` +
-          "entered the model, the permutation inference and the false discovery rate.",
+          (summary.options.inference.method === "fdr" ? "entered the model and the false discovery rate." : "entered the model, the permutation inference and the false discovery rate."),
       );
     }
     const bare = rules.regions_without_edges;

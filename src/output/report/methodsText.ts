@@ -72,7 +72,7 @@ export function methodsText(results: LoadedResults): MethodsText {
   if (excluded > 0 && !summary.repeated) {
     const reasons = new Map<string, number>();
     for (const x of subjects.excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
-    model.push(` (${excluded} of the ${exclusionDenominator(subjects)} were excluded: `);
+    model.push(` (${excluded} of the ${exclusionDenominator(subjects)} ${excluded === 1 ? "was" : "were"} excluded: `);
     model.push(...list([...reasons], ([reason, count]) => [{ user: reason }, ` (${count})`]));
     model.push(")");
   }
@@ -86,7 +86,14 @@ export function methodsText(results: LoadedResults): MethodsText {
   model.push(...coverage.segments);
   if (summary.repeated) model.push(...repeatedDesignText(summary, cite, list));
   model.push(" At every edge, the general linear model ", { user: design.model });
-  model.push(design.intercept ? " (with an intercept)" : " (without an intercept)");
+  const personEffects = summary.repeated?.design === "repeated measures" && summary.repeated.exchange !== "whole people";
+  model.push(
+    personEffects
+      ? " (with one indicator column per participant in place of an intercept; any column constant over a participant's scans is absorbed by them and was not fitted)"
+      : design.intercept
+        ? " (with an intercept)"
+        : " (without an intercept)",
+  );
   model.push(" was fitted by ordinary least squares");
   const factors = Object.entries(design.levels ?? {});
   if (factors.length > 0) {

@@ -37,7 +37,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     summary.repeated
       ? [
           "Participants",
-          `${summary.repeated.people} people (${summary.subjects.used} scans) analysed of ${summary.subjects.in_table} scans listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} scans excluded)` : ""}`,
+          `${summary.repeated.people} people (${summary.subjects.used} scans) analysed of ${summary.subjects.in_table} scans listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} scan${summary.subjects.excluded.length === 1 ? "" : "s"} excluded)` : ""}`,
         ]
       : ["Participants", `${summary.subjects.used} analysed of ${summary.subjects.in_table} listed${summary.subjects.excluded.length ? ` (${summary.subjects.excluded.length} excluded)` : ""}`],
     ...(summary.subjects.selection ? ([["Subset (select)", `${h(selectionText(summary.subjects.selection))}; ${summary.subjects.not_selected ?? 0} not selected`]] as [string, string][]) : []),
@@ -85,7 +85,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   const warnings: string[] = summary.warnings.map((w) => `<li>${h(w)}</li>`);
   if (summary.subjects.excluded.length > 0) {
     warnings.push(
-      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table - (summary.subjects.not_selected ?? 0)} ${summary.subjects.selection ? "selected " : ""}${summary.repeated ? "scans" : "participants"} were excluded from the analysis.` +
+      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table - (summary.subjects.not_selected ?? 0)} ${summary.subjects.selection ? "selected " : ""}${summary.repeated ? "scans" : "participants"} ${summary.subjects.excluded.length === 1 ? "was" : "were"} excluded from the analysis.` +
         `<details><summary>Show the excluded participants</summary>${htmlTable({ ...content.excluded, id: "excluded-list" }, 0)}</details></li>`,
     );
   }
