@@ -52,7 +52,7 @@ export function selectParticipants(
       const near = nearestName(value, present);
       const shown = present.length <= 20 ? present.map((v) => `'${printable(v)}'`).join(", ") : `${present.length} different values`;
       throw new InputError(
-        `'${key}' keeps '${printable(value)}', which no row of ${table.file} has in '${printable(spec.column)}'`,
+        `no row of ${table.file} has '${printable(value)}' in '${printable(spec.column)}', which the selection keeps`,
         where(key),
         near && near !== value
           ? `did you mean '${printable(near)}'? (values are compared as the cells' text, case-sensitive; a number as written)`
