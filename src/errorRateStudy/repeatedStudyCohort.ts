@@ -1,6 +1,6 @@
 import { edgePairs } from "../edges/edgeIndex.js";
 import { scanDifferences } from "../edges/scanDifferences.js";
-import { changeDesign } from "../model/changeDesign.js";
+import { changeDesign, mapContrastRow } from "../model/changeDesign.js";
 import { parseContrast } from "../model/contrast.js";
 import { buildDesignMatrix } from "../model/designMatrix.js";
 import { formulaVariables, parseFormula } from "../model/formula.js";
@@ -68,8 +68,7 @@ export function repeatedStudyCohort(options: RepeatedStudyOptions, random: () =>
     const first = Int32Array.from(labels, (_, p) => p * 2);
     const second = Int32Array.from(labels, (_, p) => p * 2 + 1);
     const fitted = changeDesign(longMatrix, first, second, "session", ["s1", "s2"], { key: "model" });
-    const vector = new Float64Array(fitted.matrix.cols);
-    onLong.vector.forEach((w, j) => w !== 0 && (vector[fitted.target[j]] += w));
+    const { vector } = mapContrastRow(onLong.vector, fitted.target, fitted.matrix.cols);
     const data = scanDifferences(long, S, E, first, second, new Float64Array(new SharedArrayBuffer(people * E * 8)));
     return { matrix: fitted.matrix, contrast: parseContrast("study", Array.from(vector), fitted.matrix, { key: "contrast" }), data, pairs, planted: new Set(), wholeBlocks: false };
   }
@@ -77,7 +76,6 @@ export function repeatedStudyCohort(options: RepeatedStudyOptions, random: () =>
   data.set(long);
   if (options.kind === "between") return { matrix: longMatrix, contrast: onLong, data, pairs, planted: new Set(), blocks: person, wholeBlocks: true };
   const fitted = personEffectsDesign(longMatrix, person, labels, "person", { key: "model" });
-  const vector = new Float64Array(fitted.matrix.cols);
-  onLong.vector.forEach((w, j) => w !== 0 && (vector[fitted.target[j]] += w));
+  const { vector } = mapContrastRow(onLong.vector, fitted.target, fitted.matrix.cols);
   return { matrix: fitted.matrix, contrast: parseContrast("study", Array.from(vector), fitted.matrix, { key: "contrast" }), data, pairs, planted: new Set(), blocks: person, wholeBlocks: false };
 }
