@@ -1,7 +1,5 @@
 import type { LoadedResults } from "./loadResults.js";
-
-/** A piece of the methods text (methodsText.ts's Segment): plain text, or text from the user's files. */
-type Segment = string | { user: string };
+import type { Segment } from "./methodsSegment.js";
 
 const DE_REUS = "de Reus MA, van den Heuvel MP (2013). Estimating false positives and negatives in brain networks. NeuroImage 70:402–409.";
 

@@ -1,8 +1,6 @@
 import type { ResultsSummary } from "./loadResults.js";
 import { plain } from "./printNumbers.js";
-
-/** A piece of the methods text: plexus's wording, or text from the user's files (methodsText.ts Segment). */
-type Segment = string | { user: string };
+import type { Segment } from "./methodsSegment.js";
 
 const REFERENCES = {
   cohen: "Cohen J (1988). Statistical Power Analysis for the Behavioral Sciences, 2nd edition. Hillsdale, NJ: Lawrence Erlbaum.",

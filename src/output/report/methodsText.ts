@@ -9,6 +9,9 @@ import { count, plain, significant } from "./printNumbers.js";
 import { overridesSentence } from "./overridesText.js";
 import { exclusionDenominator, selectionSentence } from "./selectionMethods.js";
 import { repeatedDesignText, repeatedOpening } from "./repeatedMethods.js";
+import type { Segment } from "./methodsSegment.js";
+
+export type { Segment };
 
 /**
  * The methods paragraph: every choice in force, read from summary.json, in
@@ -17,8 +20,6 @@ import { repeatedDesignText, repeatedOpening } from "./repeatedMethods.js";
  * names and expressions, levels) is kept apart as `user` segments, so each
  * writer can quote it safely (a Markdown code span, an HTML <code>).
  */
-export type Segment = string | { user: string };
-
 export interface MethodsText {
   paragraphs: Segment[][];
   references: string[];

@@ -1,7 +1,5 @@
 import type { ResultsSummary } from "./loadResults.js";
-
-/** A piece of methods text: plexus's words, or text from the user's files (the same shape as methodsText.ts's). */
-type Segment = string | { user: string };
+import type { Segment } from "./methodsSegment.js";
 
 type Cite = (key: "winkler" | "winkler2015", text: string) => string;
 type List = <T>(items: T[], render: (item: T) => Segment[]) => Segment[];

@@ -1,7 +1,5 @@
 import type { ResultsSummary } from "./loadResults.js";
-
-/** A piece of the methods text: plexus's words, or text from the user's files (methodsText.ts's Segment). */
-type Segment = string | { user: string };
+import type { Segment } from "./methodsSegment.js";
 
 /**
  * The methods' sentence on the design's `select`: "Analyses were restricted to
