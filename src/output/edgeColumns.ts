@@ -1,3 +1,9 @@
+/** Extra per-edge columns after the contract columns, in order. */
+export interface ExtraEdgeColumn {
+  name: string;
+  values: ArrayLike<number>;
+}
+
 /** One contrast's edge table as columns in the fixed edge order (i < j, row-major). */
 export interface EdgeColumns {
   regionA: Uint32Array;

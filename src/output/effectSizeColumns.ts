@@ -1,12 +1,6 @@
 import { MAX_INTERVAL_STATISTIC } from "../edges/effectSizes.js";
 import type { ObservedContrast } from "./contrastResults.js";
-import type { EdgeColumns } from "./edgeColumns.js";
-
-/** An extra edge column (resultTables.ts ExtraEdgeColumn has the same shape). */
-interface ExtraEdgeColumn {
-  name: string;
-  values: ArrayLike<number>;
-}
+import type { EdgeColumns, ExtraEdgeColumn } from "./edgeColumns.js";
 
 /** The effect-size columns of a t contrast's edges.tsv, in order, after partial_r and standard_error. */
 export const EFFECT_SIZE_COLUMNS = ["ci_low", "ci_high", "cohens_d", "cohens_d_ci_low", "cohens_d_ci_high"] as const;

@@ -3,15 +3,11 @@ import { formulaVariables } from "../model/formula.js";
 import type { PreparedAnalysis } from "./preparedAnalysis.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import type { ComponentSummary } from "../network/components.js";
-import type { EdgeColumns } from "./edgeColumns.js";
+import type { EdgeColumns, ExtraEdgeColumn } from "./edgeColumns.js";
 import { readEffectSizeColumns } from "./effectSizeColumns.js";
 import { formatCell, formatNumber, formatTsv, NumberTexts, TsvBytes, utf8Field, type Cell } from "./tsvWriter.js";
 
-/** Extra per-edge columns after the contract columns, in order. */
-export interface ExtraEdgeColumn {
-  name: string;
-  values: ArrayLike<number>;
-}
+export type { ExtraEdgeColumn };
 
 export const EDGE_COLUMNS = ["region_a", "region_b", "statistic", "estimate", "p_unc", "q_fdr", "component"] as const;
 /** The last column of edges.tsv when the design has `edges:`: why the edge was left out (empty when analysed). */
