@@ -17,7 +17,7 @@ import { writeReport } from "../output/report/writeReport.js";
 import type { RunLog } from "./runAnalysis.js";
 import { runFingerprint } from "./runFingerprint.js";
 import { overrideFlags, type InferenceOverrides } from "../common/inferenceOverrides.js";
-import { PERMUTATIONS_LIMIT } from "../io/design/designKeys.js";
+import { INFERENCE_KEYS, PERMUTATIONS_LIMIT } from "../io/design/designKeys.js";
 
 /**
  * Merges shard folders into the results of an unsharded run: checks that
@@ -148,11 +148,12 @@ function manifestOverrides(folder: string, manifest: ShardManifest): InferenceOv
   const file = path.join(folder, SHARD_MANIFEST);
   if (typeof recorded !== "object" || recorded === null) throw new InputError("command_line_overrides is not an object", { file });
   const { permutations, seed } = recorded as Record<string, unknown>;
-  const whole = (value: unknown, low: number, high: number) => typeof value === "number" && Number.isInteger(value) && value >= low && value <= high;
-  if (permutations !== undefined && !whole(permutations, 1, PERMUTATIONS_LIMIT)) {
+  // The design keys' own rules, as the command line applies them (cli/options.ts).
+  const valid = (value: unknown, key: { test: (v: number) => boolean }) => typeof value === "number" && key.test(value);
+  if (permutations !== undefined && !valid(permutations, INFERENCE_KEYS.permutations)) {
     throw new InputError(`command_line_overrides.permutations is not a whole number from 1 to ${PERMUTATIONS_LIMIT}`, { file });
   }
-  if (seed !== undefined && !whole(seed, 0, Number.MAX_SAFE_INTEGER)) throw new InputError("command_line_overrides.seed is not a whole number ≥ 0", { file });
+  if (seed !== undefined && !valid(seed, INFERENCE_KEYS.seed)) throw new InputError("command_line_overrides.seed is not a whole number ≥ 0", { file });
   return {
     ...(permutations !== undefined ? { permutations: permutations as number } : {}),
     ...(seed !== undefined ? { seed: seed as number } : {}),
