@@ -1,9 +1,7 @@
 import { InputError, type InputLocation } from "../errors.js";
 import type { InferenceSpec } from "../common/inferenceOptions.js";
 import type { Contrast } from "../model/contrast.js";
-import type { DesignMatrix } from "../model/designMatrix.js";
-import { chooseScheme, contrastPartition } from "./exchangeability.js";
-import type { RelabelingPlan } from "./relabelings.js";
+import type { RelabelingPlan, SchemeKind } from "./relabelings.js";
 
 // Error control across contrasts (`inference.across_contrasts`) takes, for each relabeling k, the maxima
 // of every contrast (Winkler et al. 2016, Hum. Brain Mapp. 37:1486, the joint null of the maxima). That
@@ -19,9 +17,9 @@ import type { RelabelingPlan } from "./relabelings.js";
  * a note (returned) when there is one contrast only.
  */
 export function checkSharedRelabelings(options: {
-  matrix: DesignMatrix;
   contrasts: Contrast[];
-  contrastWhere: InputLocation[];
+  /** Each contrast's scheme, as checkRelabelings (exchangeability.ts) chose it; read only when permutations are drawn. */
+  schemes: readonly SchemeKind[];
   inference: InferenceSpec;
   where: (key: string) => InputLocation;
 }): string | undefined {
@@ -43,7 +41,7 @@ export function checkSharedRelabelings(options: {
       "split the F contrast into t contrasts, or test it in a design of its own",
     );
   }
-  const schemes = contrasts.map((contrast, k) => chooseScheme(contrastPartition(options.matrix, contrast), inference.scheme, options.contrastWhere[k]).scheme);
+  const { schemes } = options;
   if (new Set(schemes).size > 1) {
     const named = (scheme: string) => contrasts.filter((_, k) => schemes[k] === scheme).map((c) => `'${c.name}'`).join(", ");
     throw new InputError(

@@ -339,7 +339,8 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
       where,
     });
   }
-  const acrossNote = checkSharedRelabelings({ matrix, contrasts, contrastWhere: design.contrasts.map((spec) => ({ file: design.file, key: spec.key, line: spec.line })), inference, where });
+  // The schemes checkRelabelings just chose (none under method fdr, which checkSharedRelabelings refuses first).
+  const acrossNote = checkSharedRelabelings({ contrasts, schemes: relabelings?.map((r) => r.scheme) ?? [], inference, where });
   if (acrossNote) warnings.push(acrossNote);
 
   const subjectOfRow = (row: number): ConnectomeSubject => ({
