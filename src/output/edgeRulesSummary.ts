@@ -1,6 +1,11 @@
 import type { Region } from "../io/regions.js";
 import type { AppliedEdgeRules } from "./preparedAnalysis.js";
 
+/** `edges.present_in` as a percentage, e.g. 0.75 → "75%", 2/3 → "66.7%" (one decimal at most). */
+export function presentInPercent(fraction: number): string {
+  return `${Number((100 * fraction).toFixed(1))}%`;
+}
+
 /** summary.json's `edge_rules`: the coverage rules of the design and what they kept and left out. */
 export function edgeRulesSummary(rules: AppliedEdgeRules, regions: readonly Region[]): Record<string, unknown> {
   return {
@@ -22,7 +27,7 @@ export function edgeRulesLine(transform: string, scale: string, rules: AppliedEd
   if (rules) {
     const why: string[] = [];
     if (rules.missing === "drop") why.push(`${rules.dropped.missing} missing in some participant`);
-    if (rules.presentIn !== undefined) why.push(`${rules.dropped.rare} present in fewer than ${Number((100 * rules.presentIn).toFixed(1))}%`);
+    if (rules.presentIn !== undefined) why.push(`${rules.dropped.rare} present in fewer than ${presentInPercent(rules.presentIn)}`);
     parts.push(`${rules.kept.length} of ${rules.allPairs.edgeCount} kept${why.length ? ` (dropped: ${why.join(", ")})` : ""}`);
     if (rules.regionsWithoutEdges.length > 0) parts.push(`no kept edge: ${rules.regionsWithoutEdges.map((r) => regions[r].label).join(", ")}`);
   }

@@ -5,6 +5,7 @@ import { designKeyLocation, type DesignSpec } from "../io/designFile.js";
 import { printable } from "../io/printable.js";
 import type { EdgePairs } from "../edges/edgeIndex.js";
 import { applyEdgeRules, compactEdges, EDGE_MISSING, EDGE_RARE, keptPairs, regionsWithoutKeptEdge, scaleToTotal } from "../edges/edgeRules.js";
+import { presentInPercent } from "../output/edgeRulesSummary.js";
 import type { AppliedEdgeRules, KeptSubject } from "../output/preparedAnalysis.js";
 
 /**
@@ -27,10 +28,9 @@ export function applyCoverage(
   if (design.edges) {
     const rules = design.edges;
     const counts = applyEdgeRules(data, S, pairs.edgeCount, { dropMissing: rules.missing === "drop", presentIn: rules.presentIn });
-    const percent = (x: number) => `${Number((100 * x).toFixed(1))}%`;
     const reasons = Array.from(counts.reason, (reason, e) => {
       if (reason === EDGE_MISSING) return `missing in ${counts.missing[e]} participant${counts.missing[e] === 1 ? "" : "s"}`;
-      if (reason === EDGE_RARE) return `present in ${percent(counts.present[e] / S)} < ${percent(rules.presentIn!)}`;
+      if (reason === EDGE_RARE) return `present in ${presentInPercent(counts.present[e] / S)} < ${presentInPercent(rules.presentIn!)}`;
       return "";
     });
     let missing = 0;
@@ -42,7 +42,7 @@ export function applyCoverage(
     if (counts.kept.length === 0) {
       throw new InputError(
         `the edge rules leave no edge to analyse: ${missing} of ${pairs.edgeCount} edges are missing in some participant` +
-          (rules.presentIn !== undefined ? `, ${rare} are present in fewer than ${percent(rules.presentIn)} of the ${S} participants` : ""),
+          (rules.presentIn !== undefined ? `, ${rare} are present in fewer than ${presentInPercent(rules.presentIn)} of the ${S} participants` : ""),
         designKeyLocation(design, "edges"),
         rules.presentIn !== undefined ? "lower `edges.present_in`" : undefined,
       );

@@ -42,6 +42,7 @@ import {
   repeatedRecord,
   type ScanGroups,
 } from "./repeatedScans.js";
+import { presentInPercent } from "../output/edgeRulesSummary.js";
 
 
 /**
@@ -396,7 +397,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
     const { missing, rare } = edgeRules.dropped;
     const why = [
       ...(edgeRules.missing === "drop" ? [`${missing} missing in some participant`] : []),
-      ...(edgeRules.presentIn !== undefined ? [`${rare} present in fewer than ${Number((100 * edgeRules.presentIn).toFixed(1))}% of the participants`] : []),
+      ...(edgeRules.presentIn !== undefined ? [`${rare} present in fewer than ${presentInPercent(edgeRules.presentIn)} of the participants`] : []),
     ];
     warnings.push(`the edge rules left out ${missing + rare} of ${edgeRules.allPairs.edgeCount} edges (${why.join(", ")}); ${edgeRules.kept.length} edges are analysed`);
   }

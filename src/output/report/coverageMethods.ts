@@ -1,5 +1,6 @@
 import type { LoadedResults } from "./loadResults.js";
 import type { Segment } from "./methodsSegment.js";
+import { presentInPercent } from "../edgeRulesSummary.js";
 
 const DE_REUS = "de Reus MA, van den Heuvel MP (2013). Estimating false positives and negatives in brain networks. NeuroImage 70:402–409.";
 
@@ -21,7 +22,7 @@ export function coverageMethods(summary: LoadedResults["summary"]): { segments: 
     if (rules.missing === "drop") parts.push(`${edges(rules.dropped_missing)} missing (NaN) in at least one participant`);
     if (rules.present_in !== null) {
       parts.push(
-        `${edges(rules.dropped_present_in)} ${rules.missing === "drop" ? "otherwise " : ""}non-zero in fewer than ${Number((100 * rules.present_in).toFixed(1))}% of the participants ` +
+        `${edges(rules.dropped_present_in)} ${rules.missing === "drop" ? "otherwise " : ""}non-zero in fewer than ${presentInPercent(rules.present_in)} of the participants ` +
           `(a prevalence rule, common practice for streamline counts; de Reus & van den Heuvel 2013)`,
       );
       references.push(DE_REUS);

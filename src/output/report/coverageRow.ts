@@ -1,4 +1,5 @@
 import type { LoadedResults } from "./loadResults.js";
+import { presentInPercent } from "../edgeRulesSummary.js";
 
 /**
  * The report's summary row on the edges' path (`edges:`, `scale`, `transform: log1p`):
@@ -12,7 +13,7 @@ export function coverageRow(summary: LoadedResults["summary"], h: (text: string)
   if (rules) {
     const why: string[] = [];
     if (rules.missing === "drop") why.push(`${rules.dropped_missing} missing`);
-    if (rules.present_in !== null) why.push(`${rules.dropped_present_in} present in < ${Number((100 * rules.present_in).toFixed(1))}% of participants`);
+    if (rules.present_in !== null) why.push(`${rules.dropped_present_in} present in < ${presentInPercent(rules.present_in)} of participants`);
     steps.push(`${rules.kept} of ${rules.edges} edges analysed${why.length ? ` (left out: ${why.join(", ")})` : ""}`);
     if (rules.regions_without_edges.length > 0) steps.push(`no edge kept for ${rules.regions_without_edges.map(h).join(", ")}`);
   }
@@ -26,6 +27,6 @@ export function coverageTableNote(summary: LoadedResults["summary"]): string | n
   if (!rules) return null;
   const why: string[] = [];
   if (rules.missing === "drop") why.push(`${rules.dropped_missing} missing in some participant`);
-  if (rules.present_in !== null) why.push(`${rules.dropped_present_in} non-zero in fewer than ${Number((100 * rules.present_in).toFixed(1))}% of the participants`);
+  if (rules.present_in !== null) why.push(`${rules.dropped_present_in} non-zero in fewer than ${presentInPercent(rules.present_in)} of the participants`);
   return `Edges analysed: ${rules.kept} of ${rules.edges}${why.length ? ` (left out by the edge rules: ${why.join("; ")})` : ""}; subnetworks, p_FWE and q_FDR concern the analysed edges only.`;
 }
