@@ -8,6 +8,7 @@ import { describe } from "../../statistics/describe.js";
 import { fisherExact2x2 } from "../../statistics/fisherExact2x2.js";
 import { welchAnova } from "../../statistics/welchAnova.js";
 import { welchTTest } from "../../statistics/welchTTest.js";
+import { selectionText as selectionWords } from "../../io/selectParticipants.js";
 
 /**
  * The cohort table (participant characteristics by group): n; mean ± SD (and
@@ -244,11 +245,9 @@ function selectionNotes(results: LoadedResults): string[] {
   return [`Analysed subset: ${selectionText(selection)} (${inTable - notSelected} of the ${inTable} participants listed).`];
 }
 
-/** A selection as words: "group = patient", "site = north or south and group = patient". */
+/** summary.json's `subjects.selection` in words, as `plexus check` prints it: "site = north or south and group = patient". */
 export function selectionText(selection: Record<string, string[]>): string {
-  return Object.entries(selection)
-    .map(([column, values]) => `${column} = ${values.join(" or ")}`)
-    .join(" and ");
+  return selectionWords(Object.entries(selection).map(([column, values]) => ({ column, values })));
 }
 
 /** Excluded participants (ID, line of the participants table, reason): the print table and tables/excluded.tsv. */
