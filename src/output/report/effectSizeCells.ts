@@ -1,10 +1,11 @@
 import type { EdgeEffectColumns } from "../edgeColumns.js";
+import { EFFECT_SIZE_COLUMNS } from "../effectSizeColumns.js";
 import type { Cell } from "../tsvWriter.js";
 import { fixed, MISSING, significant } from "./printNumbers.js";
 import type { TableColumn } from "./reportTable.js";
 
 /** The effect-size columns of tables/subnetwork_edges.tsv, after its other columns (one table for every contrast, so the levels are named in cells). */
-export const EFFECT_SIZE_TSV_COLUMNS = ["ci_low", "ci_high", "cohens_d", "cohens_d_ci_low", "cohens_d_ci_high", "level_1", "r_level_1", "level_2", "r_level_2"] as const;
+export const EFFECT_SIZE_TSV_COLUMNS = [...EFFECT_SIZE_COLUMNS, "level_1", "r_level_1", "level_2", "r_level_2"] as const;
 
 /** An edge's effect-size cells for subnetwork_edges.tsv (empty for an F contrast or where they do not apply). */
 export function effectSizeCells(effects: EdgeEffectColumns | undefined, e: number): Cell[] {
