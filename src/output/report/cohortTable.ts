@@ -3,6 +3,7 @@ import { cohortVariables, type CohortVariable, type CohortVariables } from "./co
 import type { LoadedResults } from "./loadResults.js";
 import { decimalsFor, fixed, MISSING, percent, pValue } from "./printNumbers.js";
 import type { ReportTable, TableRow, TsvTable } from "./reportTable.js";
+import { selectedCount } from "./selectionMethods.js";
 import { chiSquareIndependence } from "../../statistics/chiSquareIndependence.js";
 import { describe } from "../../statistics/describe.js";
 import { fisherExact2x2 } from "../../statistics/fisherExact2x2.js";
@@ -228,21 +229,21 @@ function testRow(variable: string, test: GroupTest): Cell[] {
  * were not analysed by design, see selectionNotes).
  */
 function excludedNotes(results: LoadedResults): string[] {
-  const { excluded, in_table: inTable, not_selected: notSelected = 0 } = results.summary.subjects;
+  const { excluded, not_selected: notSelected = 0 } = results.summary.subjects;
   if (excluded.length === 0) return [];
   const reasons = new Map<string, number>();
   for (const x of excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
   const list = [...reasons].map(([reason, n]) => `${reason}: ${n}`).join("; ");
   return [
-    `Excluded from the analysis: ${excluded.length} of ${inTable - notSelected} ${notSelected > 0 ? "selected " : ""}${results.summary.repeated ? "scans" : "participants"} (${list}).`,
+    `Excluded from the analysis: ${excluded.length} of ${selectedCount(results.summary.subjects)} ${notSelected > 0 ? "selected " : ""}${results.summary.repeated ? "scans" : "participants"} (${list}).`,
   ];
 }
 
 /** "Analysed subset (select): group = patient (30 of the 60 participants listed)." or nothing. */
 function selectionNotes(results: LoadedResults): string[] {
-  const { selection, in_table: inTable, not_selected: notSelected = 0 } = results.summary.subjects;
+  const { selection, in_table: inTable } = results.summary.subjects;
   if (!selection) return [];
-  return [`Analysed subset: ${selectionText(selection)} (${inTable - notSelected} of the ${inTable} participants listed).`];
+  return [`Analysed subset: ${selectionText(selection)} (${selectedCount(results.summary.subjects)} of the ${inTable} participants listed).`];
 }
 
 /** summary.json's `subjects.selection` in words, as `plexus check` prints it: "site = north or south and group = patient". */

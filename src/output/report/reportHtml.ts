@@ -13,6 +13,7 @@ import { REPORT_STYLE } from "./reportStyle.js";
 import { thresholdRule } from "../summaryParts.js";
 import { htmlTable } from "./tables/htmlTable.js";
 import { overridesRow } from "./overridesText.js";
+import { selectedCount } from "./selectionMethods.js";
 
 /**
  * report.html: one self-contained page (inline CSS and SVG; no script, no
@@ -85,7 +86,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   const warnings: string[] = summary.warnings.map((w) => `<li>${h(w)}</li>`);
   if (summary.subjects.excluded.length > 0) {
     warnings.push(
-      `<li>${summary.subjects.excluded.length} of ${summary.subjects.in_table - (summary.subjects.not_selected ?? 0)} ${summary.subjects.selection ? "selected " : ""}${summary.repeated ? "scans" : "participants"} ${summary.subjects.excluded.length === 1 ? "was" : "were"} excluded from the analysis.` +
+      `<li>${summary.subjects.excluded.length} of ${selectedCount(summary.subjects)} ${summary.subjects.selection ? "selected " : ""}${summary.repeated ? "scans" : "participants"} ${summary.subjects.excluded.length === 1 ? "was" : "were"} excluded from the analysis.` +
         `<details><summary>Show the excluded participants</summary>${htmlTable({ ...content.excluded, id: "excluded-list" }, 0)}</details></li>`,
     );
   }

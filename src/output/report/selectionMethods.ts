@@ -10,7 +10,7 @@ import type { Segment } from "./methodsSegment.js";
 export function selectionSentence(subjects: ResultsSummary["subjects"]): Segment[] {
   const { selection } = subjects;
   if (!selection) return [];
-  const selected = subjects.in_table - (subjects.not_selected ?? 0);
+  const selected = selectedCount(subjects);
   const segments: Segment[] = ["Analyses were restricted to participants with "];
   Object.entries(selection).forEach(([column, values], k) => {
     if (k > 0) segments.push(" and ");
@@ -26,5 +26,10 @@ export function selectionSentence(subjects: ResultsSummary["subjects"]): Segment
 
 /** Whom the missing-value exclusions are counted among: the selected participants, or everyone listed. */
 export function exclusionDenominator(subjects: ResultsSummary["subjects"]): string {
-  return subjects.selection ? `${subjects.in_table - (subjects.not_selected ?? 0)} selected participants` : `${subjects.in_table} participants listed`;
+  return subjects.selection ? `${selectedCount(subjects)} selected participants` : `${subjects.in_table} participants listed`;
+}
+
+/** Rows of the participants table inside the design's `select` (every row listed when there is none). */
+export function selectedCount(subjects: ResultsSummary["subjects"]): number {
+  return subjects.in_table - (subjects.not_selected ?? 0);
 }
