@@ -64,7 +64,7 @@ export function checkDesign(yaml: DesignYaml): CheckedDesign {
   const select = checkSelect(top);
   const cohortTable = checkCohortTable(top);
   const transform = checkTransform(top);
-  const scale = checkChoice(top, "scale", DESIGN_KEYS.scale, true);
+  const scale = checkChoice(top, "scale", DESIGN_KEYS.scale);
   const edges = checkEdges(top);
   const symmetrize = checkSymmetrize(top);
   const asymmetryTolerance = checkNumber(top, "asymmetry_tolerance", DESIGN_KEYS.asymmetry_tolerance);
@@ -125,10 +125,10 @@ function checkNumber(
   return value;
 }
 
-/** An inference choice: one of the table's words (a YAML null is the default where `nullIsDefault`). */
-function checkChoice<T extends string>(section: DesignSection, name: string, key: { allowed: readonly T[]; nullIsDefault?: boolean }, nullIsDefault = false): T | undefined {
+/** A choice: one of the table's words (a YAML null is the default where the key table says `nullIsDefault`). */
+function checkChoice<T extends string>(section: DesignSection, name: string, key: { allowed: readonly T[]; nullIsDefault?: boolean }): T | undefined {
   const value = section.value(name);
-  if (value === undefined || (value === null && nullIsDefault && key.nullIsDefault)) return undefined;
+  if (value === undefined || (value === null && key.nullIsDefault)) return undefined;
   if (typeof value !== "string" || !key.allowed.includes(value as T)) {
     throw new InputError(`'${section.path(name)}' must be one of ${key.allowed.join(", ")}; found '${String(value)}'`, section.where(name));
   }
