@@ -22,9 +22,13 @@ export function fitAll(prepared: PreparedAnalysis): EdgeFit {
 /** Confidence level of the effect sizes' intervals (README: Effect sizes). */
 export const EFFECT_SIZE_LEVEL = 0.95;
 
-export function observeContrast(prepared: PreparedAnalysis, fit: EdgeFit, contrast: Contrast): ObservedContrast {
+/**
+ * A contrast's edge statistics, FDR and observed components, and (t contrasts) its effect sizes. A shard
+ * writes no edge table, so it asks for none (`effectSizes: false`): the merge computes them once.
+ */
+export function observeContrast(prepared: PreparedAnalysis, fit: EdgeFit, contrast: Contrast, options: { effectSizes?: boolean } = {}): ObservedContrast {
   const observed = observeContrastOn(fit, contrast, prepared.pairs, prepared.design.inference);
-  if (contrast.kind === "t") {
+  if (contrast.kind === "t" && options.effectSizes !== false) {
     // Effect sizes of a t contrast: the estimate's interval; Cohen's d when it compares two levels of a factor;
     // the two levels' means back on the correlation scale when the edges were Fisher z-transformed.
     const comparison = levelComparison(contrast, prepared.matrix);

@@ -93,7 +93,7 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
       removeInterruptNote = onInterrupt(() => (checkpoint?.hasChunks() ? "the finished permutations are kept: add --resume to continue" : undefined));
     }
     const fit = fitAll(prepared);
-    const contrasts = prepared.contrasts.map((contrast) => observeContrast(prepared, fit, contrast));
+    const contrasts = prepared.contrasts.map((contrast) => observeContrast(prepared, fit, contrast, { effectSizes: !options.shard }));
     const nulls: (ContrastNull | undefined)[] = [];
     for (const [index, observed] of contrasts.entries()) {
       if (!permutations) {
