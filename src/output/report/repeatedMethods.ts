@@ -17,7 +17,9 @@ export function repeatedOpening(summary: ResultsSummary, list: List): Segment[] 
   if (excluded.length > 0) {
     const reasons = new Map<string, number>();
     for (const x of excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
-    out.push(` (${excluded.length} of the ${summary.subjects.in_table} scans listed ${excluded.length > 1 ? "were" : "was"} excluded: `);
+    const { selection, in_table: inTable, not_selected: notSelected = 0 } = summary.subjects;
+    const denominator = selection ? `${inTable - notSelected} selected scans` : `${inTable} scans listed`;
+    out.push(` (${excluded.length} of the ${denominator} ${excluded.length > 1 ? "were" : "was"} excluded: `);
     out.push(...list([...reasons], ([reason, n]) => [{ user: reason }, ` (${n})`]));
     out.push(")");
   }

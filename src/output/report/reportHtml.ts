@@ -87,7 +87,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   if (summary.subjects.excluded.length > 0) {
     warnings.push(
       `<li>${summary.subjects.excluded.length} of ${selectedCount(summary.subjects)} ${summary.subjects.selection ? "selected " : ""}${summary.repeated ? "scans" : "participants"} ${summary.subjects.excluded.length === 1 ? "was" : "were"} excluded from the analysis.` +
-        `<details><summary>Show the excluded participants</summary>${htmlTable({ ...content.excluded, id: "excluded-list" }, 0)}</details></li>`,
+        `<details><summary>Show the excluded ${summary.repeated ? "scans" : "participants"}</summary>${htmlTable({ ...content.excluded, id: "excluded-list" }, 0)}</details></li>`,
     );
   }
   for (const c of summary.contrasts) {
