@@ -25,6 +25,7 @@ export const REPORT_SCRIPT = String.raw`
 
   function fixed(v, d) { if (v === null) return "\u2014"; var s = v.toFixed(d); return /^-0(\.0*)?$/.test(s) ? s.slice(1) : s; }
   function pText(v) { return v === null ? "\u2014" : v < 0.001 ? "< 0.001" : v.toFixed(3); }
+  function pIs(name, v) { return name + (v !== null && v < 0.001 ? " " : " = ") + pText(v); }
   function sig(v) { return v === null ? "\u2014" : String(Number(v.toPrecision(3))); }
 
   // Tooltip over edges.
@@ -45,7 +46,7 @@ export const REPORT_SCRIPT = String.raw`
     while (tip.firstChild) tip.removeChild(tip.firstChild);
     tip.appendChild(line(data.regions[data.a[edge]] + " \u2013 " + data.regions[data.b[edge]], true));
     tip.appendChild(line(c.statistic + " = " + fixed(c.t[edge], 2) + (c.statistic === "t" ? ", estimate = " + sig(c.estimate[edge]) : "")));
-    tip.appendChild(line("p (unc.) = " + pText(c.p[edge]) + ", q_FDR = " + pText(c.q[edge])));
+    tip.appendChild(line(pIs("p (unc.)", c.p[edge]) + ", " + pIs("q_FDR", c.q[edge])));
     tip.hidden = false;
     var x = event.pageX + 14, y = event.pageY + 14;
     var room = document.documentElement.clientWidth + window.scrollX - tip.offsetWidth - 8;
@@ -157,7 +158,7 @@ export const REPORT_SCRIPT = String.raw`
     choices.forEach(function (choice, i) {
       var option = document.createElement("option");
       option.value = String(i);
-      option.textContent = data.contrasts[choice.k].name + ", subnetwork " + choice.s.id + " (" + choice.s.extent + " edges, " + choice.s.nodes + " regions, p_FWE = " + pText(choice.s.p) + ")";
+      option.textContent = data.contrasts[choice.k].name + ", subnetwork " + choice.s.id + " (" + choice.s.extent + " edges, " + choice.s.nodes + " regions, " + pIs("p_FWE", choice.s.p) + ")";
       select.appendChild(option);
     });
     select.addEventListener("change", function () { highlight(select.value); });
