@@ -22,6 +22,7 @@ export const REPORT_SCRIPT = String.raw`
   var pairs = new Map();
   for (var e = 0; e < data.a.length; e++) pairs.set(Math.min(data.a[e], data.b[e]) * R + Math.max(data.a[e], data.b[e]), e);
   var SVG = "http://www.w3.org/2000/svg";
+  document.documentElement.classList.add("plx-js");
 
   function fixed(v, d) { if (v === null) return "\u2014"; var s = v.toFixed(d); return /^-0(\.0*)?$/.test(s) ? s.slice(1) : s; }
   function pText(v) { return v === null ? "\u2014" : v < 0.001 ? "< 0.001" : v.toFixed(3); }
@@ -233,6 +234,8 @@ export const REPORT_SCRIPT = String.raw`
 
 /** The styles the script's additions use (inert without it). */
 export const REPORT_SCRIPT_STYLE = `
+html.plx-js { scroll-padding-top: 3.2rem; }
+figure[data-figure] svg text { pointer-events: none; }
 .plx-bar { position: sticky; top: 0; z-index: 5; background: #ffffff; border-bottom: 1px solid #d9d9d9; padding: 6px 0; font-size: 0.9rem; }
 .plx-bar select { font: inherit; max-width: 100%; }
 .plx-tip { position: absolute; z-index: 10; pointer-events: none; background: #1a1a1a; color: #ffffff; font-size: 0.82rem; padding: 6px 9px; border-radius: 4px; max-width: 24rem; line-height: 1.35; }
