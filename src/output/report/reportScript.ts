@@ -250,6 +250,7 @@ tr.plx-on { background: #ffe8cc; }
 svg.plx-focus path[data-edge]:not(.plx-on) { opacity: 0.12; }
 svg.plx-focus path[data-casing].plx-on { stroke: #d55e00; }
 .plx-mark { fill: none; stroke: #d55e00; stroke-width: 2.5px; vector-effect: non-scaling-stroke; }
+@media print { .plx-bar, .plx-tip, .plx-mark-sort { display: none; } }
 `;
 
 /** The Content-Security-Policy source that lets exactly this script run (its SHA-256, base64). */
