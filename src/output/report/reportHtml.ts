@@ -14,12 +14,17 @@ import { thresholdRule } from "../summaryParts.js";
 import { htmlTable } from "./tables/htmlTable.js";
 import { overridesRow } from "./overridesText.js";
 import { selectedCount } from "./selectionMethods.js";
+import { reportData, scriptJson } from "./reportData.js";
+import { REPORT_SCRIPT, REPORT_SCRIPT_STYLE, reportScriptSource } from "./reportScript.js";
 
 /**
- * report.html: one self-contained page (inline CSS and SVG; no script, no
- * external resource, and a Content-Security-Policy that forbids both), to
- * open offline or send to a co-author. Every string that came from the
- * user's files is escaped.
+ * report.html: one self-contained page (inline CSS, SVG and one inline script,
+ * no external resource, and a Content-Security-Policy that lets only that
+ * script run and forbids any request), to open offline or send to a
+ * co-author. Every string that came from the user's files is escaped; the
+ * script's data are JSON escaped for a script element (reportData.ts), and the
+ * page shows everything without the script (reportScript.ts adds tooltips,
+ * subnetwork highlighting and sortable tables).
  */
 export const RESEARCH_NOTICE =
   "plexus is a research tool for group statistics on brain networks. It is not a medical device: its results describe groups and must not be used to diagnose, treat or make decisions about any individual. Use it, and share this report, only as your ethics approval, data-protection rules and local practice allow.";
@@ -98,11 +103,22 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     }
   }
 
+  // Rows of the edge tables carry their edge's index, rows of the subnetworks table their contrast and component.
+  const edgeRows = (table: { id: string }) => {
+    const k = content.contrasts.findIndex((c) => table.id === `edges-${c.name}`);
+    return k < 0 ? undefined : (row: number) => ({ edge: String(content.contrasts[k].finding.edges[row]) });
+  };
   const tablesFor = (contrast?: string) =>
-    content.tables.filter((t) => t.contrast === contrast).map(({ table, number }) => htmlTable(table, number));
+    content.tables.filter((t) => t.contrast === contrast).map(({ table, number }) => htmlTable(table, number, edgeRows(table)));
   const general = content.tables.filter((t) => t.contrast === undefined);
   const cohortTables = general.filter((t) => t.table.id === "cohort" || t.table.id === "excluded").map(({ table, number }) => htmlTable(table, number));
-  const subnetworkTable = general.filter((t) => t.table.id === "subnetworks").map(({ table, number }) => htmlTable(table, number));
+  const subnetworkRow = (table: { rows: { cells: string[] }[] }) => (row: number) => {
+    const [name, subnetwork] = table.rows[row].cells;
+    const k = summary.contrasts.findIndex((c) => c.name === name);
+    const id = Number.parseInt(subnetwork, 10);
+    return k >= 0 && Number.isInteger(id) ? { contrast: String(k), component: String(id) } : undefined;
+  };
+  const subnetworkTable = general.filter((t) => t.table.id === "subnetworks").map(({ table, number }) => htmlTable(table, number, subnetworkRow(table)));
 
   // Sections and figures are lists of lines, joined once with the whole page: a matrix figure
   // of a few hundred regions is megabytes of text, copied at every join.
@@ -111,7 +127,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     const figures = contrast.figures.flatMap((figure) => {
       figureNumber += 1;
       return [
-        `<figure>`,
+        `<figure data-contrast="${k}" data-figure="${h(figure.file.slice(figure.file.lastIndexOf("-") + 1).replace(/\.svg$/, ""))}">`,
         `<div class="svg">${figure.svg.trim()}</div>`,
         `<figcaption><strong>Figure ${figureNumber}.</strong> ${h(figure.caption)} <span class="file">(${h(figure.file)})</span></figcaption>`,
         `</figure>`,
@@ -122,7 +138,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
         ? `<p class="none">No ${contrast.finding.kind === "components" ? "subnetwork reached" : "edge reached"} ${contrast.finding.kind === "components" ? "p_FWE" : "q_FDR"} ≤ ${plain(inference.alpha)} for this contrast.</p>`
         : "";
     return [
-      `<section id="contrast-${k + 1}">`,
+      `<section id="contrast-${k + 1}" data-contrast="${k}">`,
       `<h2>Contrast ${h(c.name)}</h2>`,
       c.statistic === "F"
         ? `<p>${code(c.expression)}, C = [${contrastRows(c).map((row) => row.map((v) => plain(v)).join(", ")).join("; ")}], df = ${plain(c.df1 ?? contrastRows(c).length)} and ${plain(c.df)}.</p>`
@@ -149,9 +165,9 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     "<head>",
     '<meta charset="utf-8">',
     '<meta name="viewport" content="width=device-width, initial-scale=1">',
-    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:">`,
+    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:; script-src ${reportScriptSource()}">`,
     `<title>plexus report: ${h(summary.design.model)}</title>`,
-    `<style>\n${REPORT_STYLE}</style>`,
+    `<style>\n${REPORT_STYLE}${REPORT_SCRIPT_STYLE}</style>`,
     "</head>",
     "<body>",
     "<header>",
@@ -205,6 +221,8 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     "</section>",
     "</main>",
     `<footer>${h(RESEARCH_NOTICE)}</footer>`,
+    `<script type="application/json" id="plexus-data">${scriptJson(reportData(results, content))}</script>`,
+    `<script>${REPORT_SCRIPT}</script>`,
     "</body>",
     "</html>",
     "",

@@ -8,10 +8,12 @@
 import ttest2 from "@stdlib/stats-ttest2";
 import jStat from "jstat";
 import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { createHash } from "node:crypto";
 import { dirname, join, relative } from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { parseTsv } from "../../../src/io/tsv.js";
+import { scriptJson } from "../../../src/output/report/reportData.js";
 import { writeReport } from "../../../src/output/report/writeReport.js";
 import { expectClose } from "../../helpers/close.js";
 import { analysedCohort, FORMULA_ID, FORMULA_SITE, GOLDEN_DESIGN, HTML_LABEL, type AnalysedCohort } from "./reportCohort.js";
@@ -166,11 +168,30 @@ describe("cohort table against references outside plexus", () => {
 });
 
 describe("hostile strings from the user's files come out harmless", () => {
-  it("report.html shows the HTML label escaped and contains no script element", () => {
+  it("report.html shows the HTML label escaped and has only its own two script elements, the label inert in the JSON", () => {
     const html = files.get("report.html")!;
     expect(html).toContain("&lt;script&gt;alert(1)&lt;/script&gt;");
-    expect(html.toLowerCase()).not.toContain("<script");
+    expect(html).not.toContain(HTML_LABEL);
+    expect(html.toLowerCase().split("<script").length - 1).toBe(2);
+    expect(html.toLowerCase().split("</script").length - 1).toBe(2);
     expect(html).toContain(FORMULA_ID);
+    // The JSON element: the label is escaped for a script context (\u003c…) and reads back unchanged.
+    const json = /<script type="application\/json" id="plexus-data">([^<]*)<\/script>/.exec(html);
+    expect(json).not.toBeNull();
+    expect(json![1]).toContain("\\u003cscript\\u003ealert(1)\\u003c/script\\u003e");
+    expect(JSON.parse(json![1]).regions).toContain(HTML_LABEL);
+    // The Content-Security-Policy lets exactly the inline script run (its SHA-256) and nothing else.
+    const script = /<script>([\s\S]*?)<\/script>/.exec(html)![1];
+    const hash = createHash("sha256").update(script, "utf8").digest("base64");
+    expect(html).toContain(`script-src 'sha256-${hash}'`);
+    expect(html).not.toMatch(/script-src[^"]*unsafe-inline/);
+  });
+
+  it("scriptJson keeps a label that closes the script element inert and reads back unchanged", () => {
+    const hostile = "</script><script>alert(1)</script>\u2028&<!--";
+    const text = scriptJson({ label: hostile });
+    expect(text).not.toMatch(/[<>&\u2028\u2029]/);
+    expect(JSON.parse(text)).toEqual({ label: hostile });
   });
 
   it("the SVG figures escape the label too", () => {

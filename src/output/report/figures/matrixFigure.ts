@@ -72,7 +72,8 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
     ),
   );
   body.push(rect(left, top, size, size, "#ffffff", 'stroke="#999999" stroke-width="0.5"'));
-  body.push(`<g transform="translate(${n(left)} ${n(top)}) scale(${n(cell)})" shape-rendering="crispEdges">`);
+  // data-cells: the grid of unit cells (row and column = drawing position), for report.html's script.
+  body.push(`<g transform="translate(${n(left)} ${n(top)}) scale(${n(cell)})" shape-rendering="crispEdges" data-cells="${count}">`);
   for (const level of [...paths.keys()].sort((a, b) => a - b)) {
     const colour = scaleColour(level / (LEVELS - 1));
     body.push(`<path fill="${colour}" d="${paths.get(level)!.text()}"/>`);

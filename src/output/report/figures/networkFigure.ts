@@ -85,8 +85,9 @@ export function networkFigure(contrast: ContrastResults, regions: Region[], find
     };
     for (const e of drawOrder) {
       const d = segment(edges.regionA[e], edges.regionB[e]);
-      body.push(`<path d="${d}" fill="none" stroke="#262626" stroke-width="3.4" stroke-linecap="round"/>`);
-      body.push(`<path d="${d}" fill="none" stroke="${statisticColour(edges.statistic[e], limit, signed)}" stroke-width="2" stroke-linecap="round"/>`);
+      // data-edge: the edge's row in edges.tsv, for report.html's script; data-casing marks the dark under-stroke.
+      body.push(`<path d="${d}" fill="none" stroke="#262626" stroke-width="3.4" stroke-linecap="round" data-edge="${e}" data-casing=""/>`);
+      body.push(`<path d="${d}" fill="none" stroke="${statisticColour(edges.statistic[e], limit, signed)}" stroke-width="2" stroke-linecap="round" data-edge="${e}"/>`);
     }
     const nodes = [...degree.keys()].sort((a, b) => degree.get(a)! - degree.get(b)! || a - b);
     for (const region of nodes) {

@@ -1,0 +1,49 @@
+// Writes the README's screenshots of report.html (docs/report-*.png): runs the worked design
+// designs/clinic-contrast.yaml on the invented demo cohort into a temporary folder, opens its
+// report in headless Chromium (/usr/bin/chromium through playwright-core, every non-file request
+// refused) and captures the tooltip, a highlighted subnetwork and a sorted table.
+// Run after `npm run build`:  node docs/report-screenshots.mjs
+import { execFileSync } from "node:child_process";
+import { mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { dirname, join } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+import { chromium } from "playwright-core";
+
+const root = join(dirname(fileURLToPath(import.meta.url)), "..");
+const work = mkdtempSync(join(tmpdir(), "plexus-screenshots-"));
+const browser = await chromium.launch({ executablePath: "/usr/bin/chromium", headless: true, args: ["--no-sandbox", "--disable-gpu"] });
+try {
+  const out = join(work, "results");
+  execFileSync(process.execPath, [join(root, "bin", "plexus.js"), "run", join(root, "designs", "clinic-contrast.yaml"), "--out", out, "--threads", "1", "--quiet"], { stdio: "inherit" });
+  const page = await browser.newPage({ viewport: { width: 1100, height: 760 } });
+  await page.route("**/*", (route) => (route.request().url().startsWith("file:") ? route.continue() : route.abort()));
+  await page.goto(pathToFileURL(join(out, "report.html")).href);
+
+  // The tooltip over the strongest edge of the network figure.
+  const figure = page.locator('figure[data-figure="network"]').first();
+  await figure.scrollIntoViewIfNeeded();
+  const paths = figure.locator("path[data-edge]:not([data-casing])");
+  const lengths = await paths.evaluateAll((list) => list.map((path) => path.getTotalLength()));
+  await paths.nth(lengths.indexOf(Math.max(...lengths))).hover();
+  await page.locator("#plexus-tooltip").waitFor({ state: "visible" });
+  await figure.screenshot({ path: join(root, "docs", "report-tooltip.png") });
+
+  // The first significant subnetwork, chosen by a click on its row, marked in the matrix.
+  await page.mouse.move(0, 0);
+  await page.locator("tr[data-component]").first().click();
+  const matrix = page.locator('figure[data-figure="matrix"]').first();
+  await matrix.scrollIntoViewIfNeeded();
+  await matrix.screenshot({ path: join(root, "docs", "report-highlight.png") });
+
+  // The first contrast's edge table sorted by t, descending (two clicks on its header).
+  const table = page.locator('section[data-contrast] .table-wrap[id^="table-edges-"]').first();
+  const t = table.locator("thead th button").filter({ hasText: /^t\s*[↕▲▼]$/ });
+  await t.click();
+  await t.click();
+  await table.scrollIntoViewIfNeeded();
+  await table.screenshot({ path: join(root, "docs", "report-sorted.png") });
+} finally {
+  await browser.close();
+  rmSync(work, { recursive: true, force: true });
+}
