@@ -20,7 +20,7 @@ export function repeatedOpening(summary: ResultsSummary, list: List): Segment[] 
     const reasons = new Map<string, number>();
     for (const x of excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
     out.push(` (${excluded.length} of the ${summary.subjects.in_table} scans listed ${excluded.length > 1 ? "were" : "was"} excluded: `);
-    out.push(...list([...reasons], ([reason, n]) => [{ user: reason }, ` (${n})`]));
+    out.push(...list([...reasons], ([reason, n]) => (reasons.size === 1 ? [{ user: reason }] : [{ user: reason }, ` (${n})`])));
     out.push(")");
   }
   return out;
