@@ -154,7 +154,7 @@ describe("plexus report on other inference settings", () => {
     if (summary.contrasts[0].significant_components > 0) expect(tables).toContain("p\\_FWE (edge)");
     const methods = readFileSync(join(maxT.results, "methods.md"), "utf8");
     expect(methods).toContain("(Westfall & Young 1993)");
-    expect(methods).toContain("exchangeability blocks given by `site`");
+    expect(methods).toContain("exchangeability blocks given by site");
     expect(methods).toContain("whose |t| exceeded 3 (positive and negative edges separately)");
     expect(methods).toContain("measured by its mass");
     expect(existsSync(join(maxT.results, "figures", "patient_vs_control-null.svg"))).toBe(true);
