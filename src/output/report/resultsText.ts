@@ -137,6 +137,10 @@ function involvement(results: LoadedResults, contrast: ContrastResults, edges: n
     const ranked = [...systems].sort((x, y) => y[1] - x[1] || (x[0] < y[0] ? -1 : x[0] > y[0] ? 1 : 0)).slice(0, 3);
     if (ranked.length > 0) {
       const whose = within === "in it" ? "its" : "their";
+      if (systems.size === 1 && ranked[0][1] === hubs.length) {
+        out.push(`; ${hubs.length === 1 ? `${whose} region` : `all ${hubs.length} of ${whose} regions`} belonged to the `, { user: ranked[0][0] }, " system");
+        return out;
+      }
       out.push(
         systems.size <= 3
           ? `; ${whose} ${plural(hubs.length, "region")} belonged to the `
