@@ -92,7 +92,7 @@ describe("plexus report DIR", () => {
     const { code, sink } = await report(components.results);
     expect(sink.stderr).toBe("");
     expect(code).toBe(0);
-    expect(sink.stdout).toMatch(/^plexus report: wrote 15 files to /);
+    expect(sink.stdout).toMatch(/^plexus report: wrote 16 files to /);
     const expected = reportFiles(loadResults(components.results));
     for (const [name, text] of expected) expect(readFileSync(join(components.results, name), "utf8"), name).toBe(text);
     expect(readdirSync(components.results).filter((name) => name.startsWith("."))).toEqual([]);
