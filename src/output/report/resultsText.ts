@@ -1,5 +1,5 @@
 import { hubRegions } from "./hubRegions.js";
-import type { ContrastResults, ContrastSummary, LoadedResults, ResultsSummary } from "./loadResults.js";
+import type { ComponentRow, ContrastResults, ContrastSummary, LoadedResults, ResultsSummary } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
 import { plural, segmentsHtml, segmentsMarkdown, type Segment } from "./methodsText.js";
 import { count, plain, pValue, significant } from "./printNumbers.js";
@@ -181,20 +181,32 @@ export function resultsText(results: LoadedResults): ResultsText {
       const across = c.corrected_across_contrasts ? ` (corrected across the ${NUMBER_WORDS[summary.contrasts.length] ?? summary.contrasts.length} contrasts)` : "";
       const size = (x: { extent: number; nodes: number; mass: number }) =>
         `${plural(x.extent, "edge")} among ${plural(x.nodes, "region")}${inference.size === "mass" ? `, mass ${count(x.mass)}` : ""}`;
+      // Threshold-free enhancement is inferred edge by edge: components.tsv holds the components the
+      // significant edges form, each with the smallest edge p_FWE among them (and mass = Σ|enhanced|).
+      const enhanced = inference.method === "threshold-free";
+      const sizeOf = (x: { extent: number; nodes: number; mass: number }) =>
+        enhanced ? `${plural(x.extent, "edge")} among ${plural(x.nodes, "region")}` : size(x);
+      const pOf = (x: ComponentRow) => (enhanced ? `smallest edge ${familywise(x, exact)}` : familywise(x, exact));
       if (finding.components.length === 0) {
-        out.push(`no subnetwork reached p_FWE ≤ ${alpha}${across} in this sample`);
+        out.push(enhanced ? `no edge reached p_FWE ≤ ${alpha}${across} after threshold-free enhancement in this sample` : `no subnetwork reached p_FWE ≤ ${alpha}${across} in this sample`);
         const largest = contrast.components[0];
-        if (largest) {
+        if (enhanced) {
+          out.push(".");
+        } else if (largest) {
           out.push("; the largest component above the primary threshold, in which ", ...clause(largest.sign), `, had ${size(largest)} (${familywise(largest, exact)}).`);
         } else {
           out.push("; no edge passed the primary threshold.");
         }
       } else {
-        out.push(`${counted(finding.components.length, "subnetwork")} reached p_FWE ≤ ${alpha}${across} in this sample.`);
+        if (enhanced) {
+          out.push(`${edgeCount(finding.edges.length)} reached p_FWE ≤ ${alpha}${across} after threshold-free enhancement in this sample, forming ${counted(finding.components.length, "connected component")}.`);
+        } else {
+          out.push(`${counted(finding.components.length, "subnetwork")} reached p_FWE ≤ ${alpha}${across} in this sample.`);
+        }
         finding.components.forEach((component, k) => {
           const edges = finding.edges.filter((e) => contrast.edges.component[e] === component.id);
           const lead: Segment[] = finding.components.length === 1 ? ["In it, "] : [`In the ${ORDINALS[k] ?? `${k + 1}th`}, `];
-          out.push(" ", ...lead, ...clause(component.sign), ` (${size(component)}; ${familywise(component, exact)})`);
+          out.push(" ", ...lead, ...clause(component.sign), ` (${sizeOf(component)}; ${pOf(component)})`);
           const involved = involvement(results, contrast, edges, "in it");
           out.push(...(involved.length > 0 ? ["; ", ...involved] : []), ".");
         });
