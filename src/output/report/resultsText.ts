@@ -173,7 +173,7 @@ export function resultsText(results: LoadedResults): ResultsText {
     const direction = contrastDirection(summary, c);
     const clause = (sign: number): Segment[] =>
       direction ? (sign > 0 ? direction.positive : direction.negative) : ["connectivity showed an effect of ", { user: c.expression }, " (F test)"];
-    const out: Segment[] = ["For the contrast ", { user: c.name }, " (", { user: c.expression }, "), "];
+    const out: Segment[] = c.name === c.expression ? ["For the contrast ", { user: c.name }, ", "] : ["For the contrast ", { user: c.name }, " (", { user: c.expression }, "), "];
     const finding = significantEdges(contrast, inference.alpha);
     const fdrCount = c.significant_edges_fdr;
     if (finding.kind === "components") {
