@@ -115,6 +115,39 @@ export function summarizePower(perGroup: number, outcomes: CohortDetections[]): 
   });
 }
 
+/**
+ * The smallest sample size per group whose whole 95% interval of power (Clopper–Pearson lower bound)
+ * reaches the target, per method (null when none does): where the simulation shows the target is met,
+ * not only estimated to be.
+ */
+export function sampleSizeWithInterval(estimates: PowerEstimate[], target = 0.8): Record<PowerMethod, number | null> {
+  const out = {} as Record<PowerMethod, number | null>;
+  for (const method of POWER_METHODS) {
+    const reaching = estimates.filter((e) => e.method === method && e.low >= target).map((e) => e.perGroup);
+    out[method] = reaching.length > 0 ? Math.min(...reaching) : null;
+  }
+  return out;
+}
+
+/**
+ * power.md's line for one method: a sample size is said to reach the target only when its interval
+ * does; a point estimate that reaches it is said to be one, with its interval.
+ */
+export function sampleSizeSentence(method: PowerMethod, estimates: PowerEstimate[], target: number): string {
+  const percent = (x: number) => `${(100 * x).toFixed(1)}%`;
+  const point = sampleSizeFor(estimates, target)[method];
+  const sure = sampleSizeWithInterval(estimates, target)[method];
+  const at = (n: number) => estimates.find((e) => e.method === method && e.perGroup === n)!;
+  const interval = (n: number) => `${percent(at(n).power)}, 95% interval ${percent(at(n).low)}–${percent(at(n).high)}`;
+  if (point === null) return `- ${method}: no sample size in the grid reaches ${percent(target)} power, even as a point estimate.`;
+  if (sure === point) {
+    return `- ${method}: ${point} participants per group (${2 * point} in all) reach ${percent(target)} power, with the whole 95% interval at or above it (${interval(point)}).`;
+  }
+  const pointText = `the point estimate of power first reaches ${percent(target)} at ${point} participants per group (${2 * point} in all; ${interval(point)}), but the interval still includes lower power there`;
+  if (sure === null) return `- ${method}: ${pointText}; no sample size in the grid reaches ${percent(target)} with its whole interval.`;
+  return `- ${method}: ${pointText}; ${sure} participants per group (${2 * sure} in all) reach ${percent(target)} with the whole interval at or above it (${interval(sure)}).`;
+}
+
 /** The smallest sample size per group whose estimated power reaches the target, per method (null when none does). */
 export function sampleSizeFor(estimates: PowerEstimate[], target = 0.8): Record<PowerMethod, number | null> {
   const out = {} as Record<PowerMethod, number | null>;

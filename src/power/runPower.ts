@@ -13,7 +13,7 @@ import { fitAll } from "../run/analyzeContrasts.js";
 import { prepareAnalysis } from "../run/prepareAnalysis.js";
 import { refuseRepeated } from "../run/repeatedScans.js";
 import { plantedEdges } from "./powerCohort.js";
-import { analysePowerCohort, POWER_METHODS, sampleSizeFor, summarizePower, type CohortDetections, type PowerEstimate, type PowerPlan } from "./powerStudy.js";
+import { analysePowerCohort, POWER_METHODS, sampleSizeFor, sampleSizeSentence, sampleSizeWithInterval, summarizePower, type CohortDetections, type PowerEstimate, type PowerPlan } from "./powerStudy.js";
 import { powerCurveSvg } from "./powerCurve.js";
 
 export interface PowerOptions {
@@ -199,6 +199,7 @@ export async function runPower(
           pilot: options.pilotDesign ? path.resolve(options.pilotDesign) : null,
           target_power: target,
           per_group_for_target: sampleSize,
+          per_group_for_target_with_interval: sampleSizeWithInterval(estimates, target),
         },
         null,
         2,
@@ -238,13 +239,9 @@ function powerMarkdown(
         " |",
     ),
     "",
-    ...POWER_METHODS.map((m) =>
-      sampleSize[m] === null
-        ? `- ${m}: no sample size in the grid reaches ${percent(target)} power.`
-        : `- ${m}: ${sampleSize[m]} participants per group (${2 * sampleSize[m]!} in all) reach ${percent(target)} power.`,
-    ),
+    ...POWER_METHODS.map((m) => sampleSizeSentence(m, estimates, target)),
     "",
-    "`uncorrected` tests the planted edges without any correction for the other edges; it is shown for reference only.",
+    "The uncorrected column tests the planted edges without any correction for the other edges; it is shown for reference only.",
     "",
     "![Power by sample size](power.svg)",
     "",

@@ -130,7 +130,7 @@ describe("select + cohort_table: Table 1 of a subset against R", () => {
 
   it("says which subset was analysed in the methods and the tables, and counts no one as excluded", () => {
     const methods = readFileSync(path.join(out, "methods.md"), "utf8");
-    expect(methods).toContain("Analyses were restricted to participants with `site` = `north` or `south` (n = 19 of the 26 listed).");
+    expect(methods).toContain("Analyses were restricted to participants with site = north or south (n = 19 of the 26 listed).");
     expect(methods).not.toMatch(/(were|was) excluded/);
     const tables = readFileSync(path.join(out, "tables.md"), "utf8");
     expect(tables).toContain("Participant characteristics by group");
@@ -169,7 +169,7 @@ describe("select: a symptom score within patients", () => {
     // No contrast compares a factor: Table 1 describes every analysed participant in one column.
     expect(summary.cohort_table).toEqual({ by: null, by_from: "none", variables: ["symptom", "age"] });
     const methods = readFileSync(path.join(out, "methods.md"), "utf8");
-    expect(methods).toContain("(n = 13 of the 26 listed). Connectivity matrices of 12 participants were analysed (1 of the 13 selected participants was excluded: `missing symptom` (1))");
+    expect(methods).toContain("(n = 13 of the 26 listed). Connectivity matrices of 12 participants were analysed (1 of the 13 selected participants was excluded: missing symptom)");
     const tables = readFileSync(path.join(out, "tables.md"), "utf8");
     expect(tables).toContain("Excluded from the analysis: 1 of 13 selected participants (missing symptom: 1).");
     expect(tables).toContain("All (n = 12)");

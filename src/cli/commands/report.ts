@@ -22,6 +22,6 @@ export function registerReport(program: Command, sink: OutputSink): void {
         () => reportFiles(loadResults(dir), { median: flags.median }),
         (warning) => sink.err(`plexus: warning: ${warning}\n`),
       );
-      sink.out(`plexus report: wrote ${files.size} files to ${dir} (report.html, tables.md, tables.tex, methods.md, tables/, figures/)\n`);
+      sink.out(`plexus report: wrote ${files.size} files to ${dir} (report.html, tables.md, tables.tex, methods.md, results.md, tables/, figures/)\n`);
     });
 }

@@ -1,7 +1,8 @@
 import type { ResultsSummary } from "./loadResults.js";
 import { plain } from "./printNumbers.js";
 
-export const WINKLER_2016 = "Winkler AM, Webster MA, Brooks JC, Tracey I, Smith SM, Nichols TE (2016). Human Brain Mapping 37:1486–1511.";
+export const WINKLER_2016 =
+  "Winkler AM, Webster MA, Brooks JC, Tracey I, Smith SM, Nichols TE (2016). Non-parametric combination and related permutation tests for neuroimaging. Human Brain Mapping 37:1486–1511.";
 
 const NUMBER_WORDS = ["zero", "one", "two", "three", "four", "five", "six", "seven", "eight", "nine", "ten"];
 

@@ -2,10 +2,13 @@ import type { ResultsSummary } from "./loadResults.js";
 import { plain } from "./printNumbers.js";
 import type { Segment } from "./methodsSegment.js";
 
+// Full references, from memory of these well-known works.
 const REFERENCES = {
   cohen: "Cohen J (1988). Statistical Power Analysis for the Behavioral Sciences, 2nd edition. Hillsdale, NJ: Lawrence Erlbaum.",
-  steigerFouladi: "Steiger JH, Fouladi RT (1997). In: Harlow LL, Mulaik SA, Steiger JH (eds), What If There Were No Significance Tests? Mahwah, NJ: Lawrence Erlbaum, 221–257.",
-  cummingFinch: "Cumming G, Finch S (2001). Educational and Psychological Measurement 61:532–574.",
+  steigerFouladi:
+    "Steiger JH, Fouladi RT (1997). Noncentrality interval estimation and the evaluation of statistical models. In: Harlow LL, Mulaik SA, Steiger JH (eds), What If There Were No Significance Tests? Mahwah, NJ: Lawrence Erlbaum, 221–257.",
+  cummingFinch:
+    "Cumming G, Finch S (2001). A primer on the understanding, use, and calculation of confidence intervals that are based on central and noncentral distributions. Educational and Psychological Measurement 61:532–574.",
 } as const;
 
 /**

@@ -18,30 +18,38 @@ export type { Segment };
  * sentences a user can paste into a manuscript and edit, with the references
  * they rely on. Text from the user's files (formula, column names, contrast
  * names and expressions, levels) is kept apart as `user` segments, so each
- * writer can quote it safely (a Markdown code span, an HTML <code>).
+ * writer can escape it for its format; it is shown as plain words (no code
+ * formatting), so the text pastes into a manuscript as it reads.
  */
 export interface MethodsText {
   paragraphs: Segment[][];
   references: string[];
 }
 
+// Full references (authors, year, title, journal, volume, pages), written from memory of these
+// well-known papers and books; the in-text citations name the same authors and years.
 const REFERENCES = {
-  benjaminiHochberg: "Benjamini Y, Hochberg Y (1995). Journal of the Royal Statistical Society, Series B 57:289–300.",
-  benjaminiYekutieli: "Benjamini Y, Yekutieli D (2001). The Annals of Statistics 29:1165–1188.",
-  clopperPearson: "Clopper CJ, Pearson ES (1934). Biometrika 26:404–413.",
-  fisherExact: "Fisher RA (1935). Journal of the Royal Statistical Society 98:39–82.",
-  fisherZ: "Fisher RA (1915). Biometrika 10:507–521.",
-  freedmanLane: "Freedman D, Lane D (1983). Journal of Business & Economic Statistics 1:292–298.",
-  pearson: "Pearson K (1900). Philosophical Magazine, Series 5, 50:157–175.",
-  phipsonSmyth: "Phipson B, Smyth GK (2010). Statistical Applications in Genetics and Molecular Biology 9:39.",
-  welch1947: "Welch BL (1947). Biometrika 34:28–35.",
-  welch1951: "Welch BL (1951). Biometrika 38:330–336.",
-  westfallYoung: "Westfall PH, Young SS (1993). Resampling-Based Multiple Testing. New York: Wiley.",
-  winkler: "Winkler AM, Ridgway GR, Webster MA, Smith SM, Nichols TE (2014). NeuroImage 92:381–397.",
-  winkler2015: "Winkler AM, Webster MA, Vidaurre D, Nichols TE, Smith SM (2015). NeuroImage 123:253–268.",
-  zalesky: "Zalesky A, Fornito A, Bullmore ET (2010). NeuroImage 53:1197–1207.",
-  smithNichols: "Smith SM, Nichols TE (2009). NeuroImage 44:83–98.",
-  baggio: "Baggio HC, et al. (2018). Human Brain Mapping 39:2289–2302.",
+  benjaminiHochberg:
+    "Benjamini Y, Hochberg Y (1995). Controlling the false discovery rate: a practical and powerful approach to multiple testing. Journal of the Royal Statistical Society, Series B 57:289–300.",
+  benjaminiYekutieli: "Benjamini Y, Yekutieli D (2001). The control of the false discovery rate in multiple testing under dependency. The Annals of Statistics 29:1165–1188.",
+  clopperPearson: "Clopper CJ, Pearson ES (1934). The use of confidence or fiducial limits illustrated in the case of the binomial. Biometrika 26:404–413.",
+  fisherExact: "Fisher RA (1935). The logic of inductive inference. Journal of the Royal Statistical Society 98:39–82.",
+  fisherZ: "Fisher RA (1915). Frequency distribution of the values of the correlation coefficient in samples from an indefinitely large population. Biometrika 10:507–521.",
+  freedmanLane: "Freedman D, Lane D (1983). A nonstochastic interpretation of reported significance levels. Journal of Business & Economic Statistics 1:292–298.",
+  pearson:
+    "Pearson K (1900). On the criterion that a given system of deviations from the probable in the case of a correlated system of variables is such that it can be reasonably supposed to have arisen from random sampling. Philosophical Magazine, Series 5, 50:157–175.",
+  phipsonSmyth:
+    "Phipson B, Smyth GK (2010). Permutation P-values should never be zero: calculating exact P-values when permutations are randomly drawn. Statistical Applications in Genetics and Molecular Biology 9: article 39.",
+  welch1947: "Welch BL (1947). The generalization of ‘Student’s’ problem when several different population variances are involved. Biometrika 34:28–35.",
+  welch1951: "Welch BL (1951). On the comparison of several mean values: an alternative approach. Biometrika 38:330–336.",
+  westfallYoung: "Westfall PH, Young SS (1993). Resampling-Based Multiple Testing: Examples and Methods for p-Value Adjustment. New York: Wiley.",
+  winkler: "Winkler AM, Ridgway GR, Webster MA, Smith SM, Nichols TE (2014). Permutation inference for the general linear model. NeuroImage 92:381–397.",
+  winkler2015: "Winkler AM, Webster MA, Vidaurre D, Nichols TE, Smith SM (2015). Multi-level block permutation. NeuroImage 123:253–268.",
+  zalesky: "Zalesky A, Fornito A, Bullmore ET (2010). Network-based statistic: identifying differences in brain networks. NeuroImage 53:1197–1207.",
+  smithNichols:
+    "Smith SM, Nichols TE (2009). Threshold-free cluster enhancement: addressing problems of smoothing, threshold dependence and localisation in cluster inference. NeuroImage 44:83–98.",
+  // From memory: the author list beyond the first three is not repeated here.
+  baggio: "Baggio HC, Abos A, Segura B, et al. (2018). Statistical inference in brain graphs using threshold-free network-based statistics. Human Brain Mapping 39:2289–2302.",
 } as const;
 
 type ReferenceKey = keyof typeof REFERENCES;
@@ -69,15 +77,15 @@ export function methodsText(results: LoadedResults): MethodsText {
   const excluded = subjects.excluded.length;
   model.push(...selectionSentence(subjects));
   if (summary.repeated) model.push(...repeatedOpening(summary, list));
-  else model.push(`Connectivity matrices of ${subjects.used} participants were analysed`);
+  else model.push(`Connectivity matrices of ${plural(subjects.used, "participant")} were analysed`);
   if (excluded > 0 && !summary.repeated) {
     const reasons = new Map<string, number>();
     for (const x of subjects.excluded) reasons.set(x.reason, (reasons.get(x.reason) ?? 0) + 1);
     model.push(` (${excluded} of the ${exclusionDenominator(subjects)} ${excluded === 1 ? "was" : "were"} excluded: `);
-    model.push(...list([...reasons], ([reason, count]) => [{ user: reason }, ` (${count})`]));
+    model.push(...list([...reasons], ([reason, count]) => (reasons.size === 1 ? [{ user: reason }] : [{ user: reason }, ` (${count})`])));
     model.push(")");
   }
-  model.push(` with plexus ${summary.tool.version}. Each matrix described ${summary.regions} regions and ${summary.edges} edges`);
+  model.push(` with plexus ${summary.tool.version}. Each matrix described ${plural(summary.regions, "region")} and ${plural(summary.edges, "edge")}`);
   if (options.symmetrize) model.push("; each edge was the mean of its two entries in the matrix");
   model.push(".");
   if (options.transform === "fisher-z") {
@@ -86,20 +94,29 @@ export function methodsText(results: LoadedResults): MethodsText {
   const coverage = coverageMethods(summary);
   model.push(...coverage.segments);
   if (summary.repeated) model.push(...repeatedDesignText(summary, cite, list));
-  model.push(" At every edge, the general linear model ", { user: design.model });
   const personEffects = summary.repeated?.design === "repeated measures" && summary.repeated.exchange !== "whole people";
-  model.push(
-    personEffects
-      ? " (with one indicator column per participant in place of an intercept; any column constant over a participant's scans is absorbed by them and was not fitted)"
-      : design.intercept
-        ? " (with an intercept)"
-        : " (without an intercept)",
-  );
-  model.push(" was fitted by ordinary least squares");
+  const paired = summary.repeated?.design === "paired differences";
+  const oneSample = !summary.repeated && design.intercept && design.columns.length === 1;
+  if (oneSample) {
+    model.push(" At every edge, a one-sample model (an intercept alone, the mean over participants) was fitted by ordinary least squares");
+  } else {
+    model.push(" At every edge, the general linear model ", { user: design.model });
+    model.push(
+      personEffects
+        ? " (with one indicator column per participant in place of an intercept; any column constant over a participant's scans is absorbed by them and was not fitted)"
+        : paired
+          ? " (its within-person term as the intercept of the change model)"
+          : design.intercept
+            ? " (with an intercept)"
+            : " (without an intercept)",
+    );
+    model.push(paired ? " was fitted to the differences by ordinary least squares" : " was fitted by ordinary least squares");
+  }
   const factors = Object.entries(design.levels ?? {});
   if (factors.length > 0) {
-    model.push(design.coding.startsWith("treatment") ? ", with categorical variables in treatment coding (reference level: " : `, with categorical variables coded as ${design.coding} (reference level: `);
-    model.push(...list(factors, ([name, levels]) => [{ user: name }, " ", { user: levels[0] ?? "" }]));
+    const reference = factors.length === 1 ? "reference level" : "reference levels";
+    model.push(design.coding.startsWith("treatment") ? `, with categorical variables in treatment coding (${reference}: ` : `, with categorical variables coded as ${design.coding} (${reference}: `);
+    model.push(...list(factors, ([name, levels]) => [{ user: levels[0] ?? "" }, " for ", { user: name }]));
     model.push(")");
   }
   const centred = Object.entries(design.centered ?? {});
@@ -109,9 +126,9 @@ export function methodsText(results: LoadedResults): MethodsText {
     model.push(...list(centred, ([name, centre]) => [{ user: name }, ` at ${significant(centre, 4)}`]));
     model.push(")");
   }
-  model.push(`. The design matrix had ${design.rank} columns (`);
+  model.push(`. The design matrix had ${plural(design.rank, "column")} (`);
   model.push(...list(design.columns, (column) => [{ user: column }]));
-  model.push(`), leaving ${summary.df} residual degrees of freedom.`);
+  model.push(`), leaving ${summary.df} residual ${summary.df === 1 ? "degree" : "degrees"} of freedom.`);
 
   // 2. Contrasts.
   const contrasts: Segment[] = [];
@@ -126,7 +143,7 @@ export function methodsText(results: LoadedResults): MethodsText {
   contrasts.push(
     ...list(summary.contrasts, (c) =>
       c.statistic === "F"
-        ? [{ user: c.name }, mixed ? " (F, " : " (", { user: c.expression }, `, C = ${matrix(contrastRows(c))}, ${c.df1 ?? c.rows?.length ?? 1} and ${plain(c.df)} degrees of freedom)`]
+        ? [{ user: c.name }, mixed ? " (F, " : " (", { user: c.expression }, `, C = ${matrix(contrastRows(c))}, ${c.df1 ?? c.rows?.length ?? 1} and ${plain(c.df)} ${c.df === 1 ? "degree" : "degrees"} of freedom)`]
         : [{ user: c.name }, mixed ? " (t, " : " (", { user: c.expression }, `, c = [${contrastRows(c)[0].map((v) => plain(v)).join(", ")}])`],
     ),
   );
@@ -193,7 +210,7 @@ export function methodsText(results: LoadedResults): MethodsText {
     // With repeated scans the blocks are the people, described with the design (repeatedMethods.ts).
     const blocks = permuted.find((c) => c.exchangeability_blocks)?.exchangeability_blocks;
     if (blocks && !summary.repeated) {
-      inferenceText.push(" Relabelings respected exchangeability blocks given by ", { user: blocks.column }, ` (${blocks.count} blocks; `);
+      inferenceText.push(" Relabelings respected exchangeability blocks given by ", { user: blocks.column }, ` (${plural(blocks.count, "block")}; `);
       inferenceText.push(blocks.permutation === "whole" ? "whole blocks were exchanged as units" : "participants were exchanged only within their block");
       inferenceText.push(`; ${cite("winkler", "Winkler et al. 2014")}).`);
     }
@@ -218,7 +235,7 @@ export function methodsText(results: LoadedResults): MethodsText {
     const critical = permuted.filter((c) => c.critical_size !== null && c.critical_size !== undefined && Number.isFinite(c.critical_size));
     if (critical.length > 0 && !enhancedOnly) {
       const mass = inference.size === "mass";
-      const value = (c: (typeof critical)[number]) => (mass ? `a mass above ${count(c.critical_size!)}` : `more than ${count(c.critical_size!)} edges`);
+      const value = (c: (typeof critical)[number]) => (mass ? `a mass above ${count(c.critical_size!)}` : `more than ${count(c.critical_size!)} ${c.critical_size === 1 ? "edge" : "edges"}`);
       inferenceText.push("; at this level a subnetwork needed ");
       if (new Set(critical.map((c) => c.critical_size)).size === 1) {
         inferenceText.push(value(critical[0]));
@@ -285,19 +302,38 @@ function capitalised(text: string): string {
   return text.charAt(0).toUpperCase() + text.slice(1);
 }
 
-/** A Markdown code span that survives backticks inside the text. */
-function codeSpan(text: string): string {
-  const clean = text.replace(/[\r\n]+/g, " ");
-  const runs = clean.match(/`+/g) ?? [];
-  const fence = "`".repeat(Math.max(0, ...runs.map((r) => r.length)) + 1);
-  const pad = clean.startsWith("`") || clean.endsWith("`") ? " " : "";
-  return `${fence}${pad}${clean}${pad}${fence}`;
+/** "1 column", "4 columns": a count with its noun in the right number (regular plurals only). */
+export function plural(value: number, noun: string, pluralNoun = `${noun}s`): string {
+  return `${value} ${value === 1 ? noun : pluralNoun}`;
 }
 
-/** methods.md: a heading, the paragraphs (user text as code spans) and the references. */
+/**
+ * User text inside a Markdown paragraph, shown as plain words: only what
+ * Markdown would otherwise act on is backslash-escaped (backslash, backtick,
+ * asterisk, angle brackets, ampersand, and an underscore at a word's edge; an
+ * underscore inside a word, as in recall_score, is text to CommonMark), so
+ * the rendered and the raw text read alike.
+ */
+export function plainMarkdown(text: string): string {
+  return text
+    .replace(/[\r\n]+/g, " ")
+    .replace(/[\\`*<>&]/g, (c) => `\\${c}`)
+    .replace(/_/g, (c, at: number, whole: string) => (/[\p{L}\p{N}]/u.test(whole[at - 1] ?? "") && /[\p{L}\p{N}]/u.test(whole[at + 1] ?? "") ? c : `\\${c}`));
+}
+
+/** Segments as one Markdown paragraph (plexus's own wording has no markup; user text is escaped). */
+export function segmentsMarkdown(segments: Segment[]): string {
+  return segments.map((s) => (typeof s === "string" ? s : plainMarkdown(s.user))).join("");
+}
+
+/** Segments as HTML text, everything escaped, user text as plain words like the rest. */
+export function segmentsHtml(segments: Segment[]): string {
+  return segments.map((s) => escapeHtml(typeof s === "string" ? s : s.user)).join("");
+}
+
+/** methods.md: a heading, the paragraphs and the references. */
 export function methodsMarkdown(methods: MethodsText): string {
-  // Plain segments are plexus's own wording (no markup); only user text needs quoting.
-  const render = (segments: Segment[]) => segments.map((s) => (typeof s === "string" ? s : codeSpan(s.user))).join("");
+  const render = segmentsMarkdown;
   return [
     "## Statistical analysis",
     "",
@@ -309,9 +345,9 @@ export function methodsMarkdown(methods: MethodsText): string {
   ].join("\n");
 }
 
-/** The paragraphs and references as HTML (user text in <code>, everything escaped). */
+/** The paragraphs and references as HTML (everything escaped; user text as plain words). */
 export function methodsHtml(methods: MethodsText): string {
-  const render = (segments: Segment[]) => segments.map((s) => (typeof s === "string" ? escapeHtml(s) : `<code>${escapeHtml(s.user)}</code>`)).join("");
+  const render = segmentsHtml;
   return [
     ...methods.paragraphs.map((p) => `<p>${render(p)}</p>`),
     `<h3>References</h3>`,

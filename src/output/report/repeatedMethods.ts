@@ -20,7 +20,7 @@ export function repeatedOpening(summary: ResultsSummary, list: List): Segment[] 
     const { selection, in_table: inTable, not_selected: notSelected = 0 } = summary.subjects;
     const denominator = selection ? `${inTable - notSelected} selected scans` : `${inTable} scans listed`;
     out.push(` (${excluded.length} of the ${denominator} ${excluded.length > 1 ? "were" : "was"} excluded: `);
-    out.push(...list([...reasons], ([reason, n]) => [{ user: reason }, ` (${n})`]));
+    out.push(...list([...reasons], ([reason, n]) => (reasons.size === 1 ? [{ user: reason }] : [{ user: reason }, ` (${n})`])));
     out.push(")");
   }
   return out;

@@ -6,6 +6,7 @@ import { nullFigure } from "./figures/nullFigure.js";
 import { robustnessFigure } from "./figures/robustnessFigure.js";
 import type { LoadedResults } from "./loadResults.js";
 import { methodsText, type MethodsText } from "./methodsText.js";
+import { resultsText, type ResultsText } from "./resultsText.js";
 import type { ReportTable, TsvTable } from "./reportTable.js";
 import type { SignificantEdges } from "./significantEdges.js";
 import { subnetworkTables } from "./subnetworkTables.js";
@@ -21,6 +22,8 @@ export interface ReportContent {
   tsv: TsvTable[];
   contrasts: ContrastContent[];
   methods: MethodsText;
+  /** The draft results paragraphs (results.md). */
+  results: ResultsText;
   /** Excluded participants, for the report's warnings (always listed there in full). */
   excluded: ReportTable;
 }
@@ -96,6 +99,7 @@ export function reportContent(results: LoadedResults, options: CohortOptions = {
     tsv: [...cohort.tsv, excluded.tsv, ...subnetworks.tsv],
     contrasts,
     methods: methodsText(results),
+    results: resultsText(results),
     excluded: excluded.print,
   };
 }

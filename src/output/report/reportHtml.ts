@@ -7,6 +7,7 @@ import { COLOUR_SCALE_NAME } from "./figures/colourScale.js";
 import type { LoadedResults, ResultsSummary } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
 import { methodsHtml } from "./methodsText.js";
+import { resultsHtml } from "./resultsText.js";
 import { plain } from "./printNumbers.js";
 import type { ReportContent } from "./reportContent.js";
 import { REPORT_STYLE } from "./reportStyle.js";
@@ -181,6 +182,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     '<li><a href="#cohort">Cohort</a></li>',
     ...(subnetworkTable.length > 0 ? ['<li><a href="#subnetworks">Significant subnetworks</a></li>'] : []),
     ...summary.contrasts.map((c, k) => `<li><a href="#contrast-${k + 1}">Contrast ${h(c.name)}</a></li>`),
+    '<li><a href="#results-text">Results (draft)</a></li>',
     '<li><a href="#methods">Methods</a></li>',
     '<li><a href="#provenance">Provenance</a></li>',
     "</ol></nav>",
@@ -200,6 +202,11 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     "</section>",
     ...(subnetworkTable.length > 0 ? ['<section id="subnetworks">', "<h2>Significant subnetworks</h2>", ...subnetworkTable, "</section>"] : []),
     ...contrastSections.flat(),
+    '<section id="results-text">',
+    "<h2>Results (draft)</h2>",
+    '<p class="hint">The same text is in results.md, a draft to check and edit.</p>',
+    resultsHtml(content.results),
+    "</section>",
     '<section id="methods">',
     "<h2>Methods</h2>",
     '<p class="hint">The same text is in methods.md, ready to paste and edit.</p>',
@@ -217,7 +224,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     connectomeInputs.length > 0
       ? `<details><summary>${connectomeInputs.length} connectome file${connectomeInputs.length > 1 ? "s" : ""} with their SHA-256</summary>${inputTable(connectomeInputs)}</details>`
       : "",
-    `<p class="hint">Figures use the ${h(COLOUR_SCALE_NAME)} colour scale, whose lightness rises steadily from dark blue to yellow, so they read in grayscale and for colour-blind readers. The tables, figures and methods are also in this folder as tables.md, tables.tex, tables/*.tsv, figures/*.svg and methods.md; <code>plexus report</code> rewrites them from the results without recomputing.</p>`,
+    `<p class="hint">Figures use the ${h(COLOUR_SCALE_NAME)} colour scale, whose lightness rises steadily from dark blue to yellow, so they read in grayscale and for colour-blind readers. The tables, figures and methods are also in this folder as tables.md, tables.tex, tables/*.tsv, figures/*.svg, methods.md and results.md; <code>plexus report</code> rewrites them from the results without recomputing.</p>`,
     "</section>",
     "</main>",
     `<footer>${h(RESEARCH_NOTICE)}</footer>`,

@@ -4,6 +4,7 @@ import type { KnownResults } from "../writeResults.js";
 import { loadResults, type LoadedResults } from "./loadResults.js";
 import { methodsMarkdown } from "./methodsText.js";
 import { reportContent } from "./reportContent.js";
+import { resultsMarkdown } from "./resultsText.js";
 import { reportHtml } from "./reportHtml.js";
 import { tablesLatex, tablesMarkdown } from "./tablesDocuments.js";
 
@@ -12,6 +13,7 @@ import { tablesLatex, tablesMarkdown } from "./tablesDocuments.js";
  *   tables.md, tables.tex        the print tables (Markdown; LaTeX booktabs)
  *   tables/<name>.tsv            the same at full precision
  *   methods.md                   the methods paragraph and its references
+ *   results.md                   a draft results paragraph per contrast
  *   figures/<contrast>-null.svg, -matrix.svg, -network.svg
  *   report.html                  all of it in one self-contained page
  * Pure: built from the loaded results alone.
@@ -25,6 +27,7 @@ export function reportFiles(results: LoadedResults, options: ReportOptions = {})
   files.set("tables.tex", tablesLatex(content, results.summary));
   for (const table of content.tsv) files.set(`tables/${table.name}.tsv`, formatTsv(table.header, table.rows));
   files.set("methods.md", methodsMarkdown(content.methods));
+  files.set("results.md", resultsMarkdown(content.results));
   for (const contrast of content.contrasts) for (const figure of contrast.figures) files.set(figure.file, figure.svg);
   files.set("report.html", reportHtml(results, content));
   return files;

@@ -1,7 +1,7 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { clopperPearson } from "../../../src/inference/familywiseP.js";
-import { analysePowerCohort, sampleSizeFor, summarizePower, type PowerPlan } from "../../../src/power/powerStudy.js";
+import { analysePowerCohort, sampleSizeFor, sampleSizeSentence, sampleSizeWithInterval, summarizePower, type PowerPlan } from "../../../src/power/powerStudy.js";
 import { plantedEdges } from "../../../src/power/powerCohort.js";
 
 // Reference: the power of a one-sided two-sample t test on a single edge with
@@ -44,6 +44,24 @@ describe("power planning", () => {
     expect(a).toEqual(b);
     const estimates = [...summarizePower(10, a.map((o) => ({ ...o, components: false }))), ...summarizePower(20, a.map((o) => ({ ...o, components: true })))];
     expect(sampleSizeFor(estimates, 0.8).components).toBe(20);
+  });
+
+  it("says a sample size reaches the target only when its interval does, and names a point estimate as one", () => {
+    // 17/20 = 85% (Clopper–Pearson lower bound below 80%), 60/60 = 100% (lower bound above 80%): intervals from
+    // clopperPearson, itself checked against R's binom.test elsewhere (test/unit/inference).
+    const detections = (n: number, of: number) => Array.from({ length: of }, (_, k) => ({ components: k < n, "max-t": false, fdr: false, uncorrected: false }));
+    const estimates = [...summarizePower(10, detections(17, 20)), ...summarizePower(20, detections(60, 60))];
+    const low = clopperPearson(17, 20, 0.95).low;
+    expect(low).toBeLessThan(0.8);
+    expect(sampleSizeFor(estimates, 0.8).components).toBe(10);
+    expect(sampleSizeWithInterval(estimates, 0.8).components).toBe(20);
+    const line = sampleSizeSentence("components", estimates, 0.8);
+    expect(line).toContain("the point estimate of power first reaches 80.0% at 10 participants per group");
+    expect(line).toContain("but the interval still includes lower power there");
+    expect(line).toContain("20 participants per group (40 in all) reach 80.0% with the whole interval at or above it");
+    const only = summarizePower(10, detections(17, 20));
+    expect(sampleSizeSentence("components", only, 0.8)).toContain("no sample size in the grid reaches 80.0% with its whole interval");
+    expect(sampleSizeSentence("fdr", only, 0.8)).toBe("- fdr: no sample size in the grid reaches 80.0% power, even as a point estimate.");
   });
 
   it("plants every edge among the k regions nearest the seed region (coordinates)", () => {
