@@ -38,7 +38,7 @@ describe.skipIf(!available && !mustRun)("report.html in headless Chromium", () =
   beforeAll(async () => {
     if (!available) throw new Error(`${CHROMIUM} is missing: CI must install Chromium (see .ci/run)`);
     cohort = await analysedCohort({ design: GOLDEN_DESIGN });
-    writeReport(cohort.results, (path, text) => {
+    await writeReport(cohort.results, (path, text) => {
       mkdirSync(dirname(join(cohort.results, path)), { recursive: true });
       writeFileSync(join(cohort.results, path), text);
     });
