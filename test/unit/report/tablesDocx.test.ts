@@ -6,6 +6,10 @@
 // checked as plain text: no HTML entity, no backslash before an underscore inside a word.
 import { XMLValidator } from "fast-xml-parser";
 import { unzipSync } from "fflate";
+import { createHash } from "node:crypto";
+import { readFileSync } from "node:fs";
+import { dirname, join } from "node:path";
+import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { parseTsv } from "../../../src/io/tsv.js";
 import { loadResults } from "../../../src/output/report/loadResults.js";
@@ -46,7 +50,19 @@ async function open(cohort: AnalysedCohort): Promise<Opened> {
   const files = await allReportFiles(results);
   const docx = files.get("tables.docx");
   expect(docx).toBeInstanceOf(Uint8Array);
-  const entries = unzipSync(docx as Uint8Array);
+  const tables = readTables(docx as Uint8Array);
+  const tsv = (name: string) => {
+    const table = parseTsv(files.get(`tables/${name}.tsv`) as string, `${name}.tsv`);
+    // A cell that a spreadsheet would run as a formula is written with a leading apostrophe.
+    const plain = (cell: string) => (/^'[=+\-@]/.test(cell) ? cell.slice(1) : cell);
+    return { header: table.header, rows: table.rows.map((row) => row.map(plain)) };
+  };
+  return { files, content: reportContent(results), tables, tsv };
+}
+
+/** The tables of a .docx package as this test reads them: unzip, check the XML, walk the body's paragraphs and tables. */
+function readTables(docx: Uint8Array): Opened["tables"] {
+  const entries = unzipSync(docx);
   expect(Object.keys(entries)).toEqual(expect.arrayContaining(["[Content_Types].xml", "_rels/.rels", "word/document.xml", "word/styles.xml"]));
   const xml = new TextDecoder().decode(entries["word/document.xml"]);
   expect(XMLValidator.validate(xml)).toBe(true);
@@ -64,13 +80,7 @@ async function open(cohort: AnalysedCohort): Promise<Opened> {
     }
     tables.push({ caption: runText(blocks[k - 1]), rows, after });
   });
-  const tsv = (name: string) => {
-    const table = parseTsv(files.get(`tables/${name}.tsv`) as string, `${name}.tsv`);
-    // A cell that a spreadsheet would run as a formula is written with a leading apostrophe.
-    const plain = (cell: string) => (/^'[=+\-@]/.test(cell) ? cell.slice(1) : cell);
-    return { header: table.header, rows: table.rows.map((row) => row.map(plain)) };
-  };
-  return { files, content: reportContent(results), tables, tsv };
+  return tables;
 }
 
 /** The printed number is the value rounded to the digits printed ("< 0.001": below 0.001; "—": no value). */
@@ -292,6 +302,30 @@ describe.each([
     } else {
       expect(md).toContain("q_FDR");
     }
+  });
+});
+
+describe("the golden tables.docx read by python-docx (test/fixtures/docx/read_tables_docx.py, Debian python3-docx)", () => {
+  const here = dirname(fileURLToPath(import.meta.url));
+  const golden = readFileSync(join(here, "..", "..", "golden", "report", "tables.docx"));
+  const reference = JSON.parse(readFileSync(join(here, "..", "..", "fixtures", "docx", "golden_tables_docx.json"), "utf8")) as {
+    sha256: string;
+    created: string;
+    modified: string;
+    captions: string[];
+    tables: string[][][];
+  };
+
+  it("the fixture was read from the golden file as it is now (else rerun the script)", () => {
+    expect(createHash("sha256").update(golden).digest("hex"), "rerun /usr/bin/python3 test/fixtures/docx/read_tables_docx.py").toBe(reference.sha256);
+  });
+
+  it("python-docx opens it and finds the same captions and every cell this test's zip + XML reader finds; the dates are the fixed ones", () => {
+    const ours = readTables(golden);
+    expect(ours.map((t) => t.caption)).toEqual(reference.captions);
+    expect(ours.map((t) => t.rows)).toEqual(reference.tables);
+    expect(reference.created).toBe("1980-01-01T00:00:00");
+    expect(reference.modified).toBe("1980-01-01T00:00:00");
   });
 });
 
