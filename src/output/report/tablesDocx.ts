@@ -1,7 +1,5 @@
 import { AlignmentType, BorderStyle, Document, Packer, PageOrientation, Paragraph, Table, TableCell, TableRow, TextRun, WidthType, type IBorderOptions } from "docx";
 import { unzipSync, zipSync } from "fflate";
-import type { ResultsSummary } from "./loadResults.js";
-import type { ReportContent } from "./reportContent.js";
 import type { ReportTable } from "./reportTable.js";
 
 /** Tables wider than this many columns turn the page to landscape (the whole document, so tables keep one orientation). */
@@ -32,20 +30,22 @@ const NO_RULE: IBorderOptions = { style: BorderStyle.NONE, size: 0, color: "FFFF
  * below the table and under the header, no vertical rules), numbers aligned
  * right, levels of a categorical variable indented, notes in small type below.
  * The same ReportTable structures feed tables.md and tables.tex, so numbers
- * and wording agree. The bytes depend on the tables alone (fixed timestamps).
+ * and wording agree; any writer of numbered ReportTables (a results folder's
+ * report, `plexus strength`) can call it. The bytes depend on the tables and
+ * the version alone (fixed timestamps).
  */
-export async function tablesDocx(content: ReportContent, summary: ResultsSummary): Promise<Uint8Array> {
-  const landscape = content.tables.some(({ table }) => table.columns.length > PORTRAIT_COLUMNS);
+export async function tablesDocx(tables: readonly { number: number; table: ReportTable }[], version: string): Promise<Uint8Array> {
+  const landscape = tables.some(({ table }) => table.columns.length > PORTRAIT_COLUMNS);
   const children: (Paragraph | Table)[] = [
     new Paragraph({ children: [new TextRun({ text: "Tables", bold: true, size: 28 })], spacing: { after: 120 } }),
-    paragraph(`Written by plexus ${summary.tool.version} from this results folder. Numbers are rounded for print; tables/*.tsv hold the same tables at full precision.`, BODY_SIZE),
+    paragraph(`Written by plexus ${version} from this results folder. Numbers are rounded for print; tables/*.tsv hold the same tables at full precision.`, BODY_SIZE),
   ];
-  for (const { table, number } of content.tables) children.push(...wordTable(table, number));
+  for (const { table, number } of tables) children.push(...wordTable(table, number));
   const document = new Document({
     creator: "plexus",
     lastModifiedBy: "plexus",
     title: "Tables",
-    description: `Print tables written by plexus ${summary.tool.version}`,
+    description: `Print tables written by plexus ${version}`,
     styles: { default: { document: { run: { font: "Calibri", size: BODY_SIZE } } } },
     sections: [
       {

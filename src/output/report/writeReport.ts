@@ -33,7 +33,7 @@ export function reportFiles(results: LoadedResults, options: ReportOptions = {},
 
 /** The report's binary files (tables.docx), whose writer is asynchronous; from the same content as reportFiles. */
 export async function reportDocuments(results: LoadedResults, content: ReportContent): Promise<Map<string, Uint8Array>> {
-  return new Map([["tables.docx", await tablesDocx(content, results.summary)]]);
+  return new Map([["tables.docx", await tablesDocx(content.tables, results.summary.tool.version)]]);
 }
 
 /** Every report file: reportFiles' text and reportDocuments' bytes, from one ReportContent. */
