@@ -19,6 +19,7 @@ export const RESERVED_TOP_LEVEL_NAMES: readonly string[] = [
   "methods.md",
   "tables.md",
   "tables.tex",
+  "tables.docx",
   "tables",
   "figures",
   SHARD_MANIFEST,

@@ -98,17 +98,28 @@ export class ResultsFolder {
    * of the temporary staging folder.
    */
   readingBack<T>(work: () => T): T {
-    try {
-      return work();
-    } catch (error) {
+    const located = (error: unknown): unknown => {
       const file = isInputError(error) ? error.location.file : undefined;
-      if (!isInputError(error) || file === undefined || !(file === this.staging || file.startsWith(this.staging + path.sep))) throw error;
-      throw new InputError(
+      if (!isInputError(error) || file === undefined || !(file === this.staging || file.startsWith(this.staging + path.sep))) return error;
+      return new InputError(
         `${error.message} (while reading back the results being written; nothing was written)`,
         { ...error.location, file: this.target + file.slice(this.staging.length) },
         error.hint,
       );
+    };
+    let result: T;
+    try {
+      result = work();
+    } catch (error) {
+      throw located(error);
     }
+    // An asynchronous reader (the report, whose Word writer is asynchronous): the same, when its promise fails.
+    if (result instanceof Promise) {
+      return result.catch((error: unknown) => {
+        throw located(error);
+      }) as T;
+    }
+    return result;
   }
 
   /** Writes the record of the files written, then moves the complete results into place, replacing an earlier folder only now. */

@@ -15,7 +15,11 @@ import { readRecord, recordText, REPORT_STAGING_PREFIX, WRITTEN_RECORD } from ".
  * are they renamed into place, and the record (updated with the new files)
  * last, so a failure leaves the earlier files as they were.
  */
-export function rewriteResultsFolder(dir: string, produce: () => Map<string, string>, warn: (text: string) => void = () => {}): Map<string, string> {
+export async function rewriteResultsFolder(
+  dir: string,
+  produce: () => Map<string, string | Uint8Array> | Promise<Map<string, string | Uint8Array>>,
+  warn: (text: string) => void = () => {},
+): Promise<Map<string, string | Uint8Array>> {
   const root = path.resolve(dir);
   if (!existsSync(root) || !statSync(root).isDirectory()) return produce();
   const lock = OutputLock.acquire(root, warn);
@@ -26,7 +30,7 @@ export function rewriteResultsFolder(dir: string, produce: () => Map<string, str
     return `the files of ${dir} are as they were`;
   });
   try {
-    const files = produce();
+    const files = await produce();
     const record = readRecord(root);
     if (!record) {
       throw new InputError(

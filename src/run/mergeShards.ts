@@ -25,11 +25,11 @@ import { INFERENCE_KEYS, PERMUTATIONS_LIMIT } from "../io/design/designKeys.js";
  * is missing or repeated and that every file still has the SHA-256 its
  * manifest recorded, then writes the same outputs a single run writes.
  */
-export function mergeShards(
+export async function mergeShards(
   shardFolders: string[],
   options: { out: string; force?: boolean; quiet?: boolean; commandLine?: string[] },
   log: RunLog,
-): string {
+): Promise<string> {
   if (shardFolders.length === 0) throw new InputError("name the shard folders to merge");
   const manifests = shardFolders.map((folder) => ({ folder, manifest: readShardManifest(folder) }));
   const first = manifests[0].manifest;
@@ -131,7 +131,7 @@ export function mergeShards(
     });
     const { inferred, familyNull } = inferContrasts(prepared, contrasts, nulls);
     writeResults(folder, { prepared, contrasts, nulls, inferred, familyNull, inputs, commandLine: options.commandLine ?? null });
-    folder.readingBack(() => writeReport(folder.staging, (relative, content) => folder.write(relative, content)));
+    await folder.readingBack(() => writeReport(folder.staging, (relative, content) => folder.write(relative, content)));
     folder.commit();
     if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);
     return folder.target;

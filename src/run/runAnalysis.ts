@@ -122,7 +122,7 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
       const family = inferContrasts(prepared, contrasts, nulls);
       inferred = family.inferred;
       const written = writeResults(output, { prepared, contrasts, nulls, inferred, familyNull: family.familyNull, inputs, commandLine: options.commandLine ?? null });
-      output.readingBack(() => writeReport(output.staging, (relative, content) => output.write(relative, content), {}, written));
+      await output.readingBack(() => writeReport(output.staging, (relative, content) => output.write(relative, content), {}, written));
     }
     output.commit();
     checkpoint?.remove();

@@ -51,7 +51,7 @@ describe.skipIf(!available && !mustRun)("report.html in headless Chromium", () =
     expect(system).toBeGreaterThanOrEqual(0);
     const relabelled = lines.map((line, i) => line.split("\t").map((cell, k) => (k === system ? (i % 2 === 0 ? "even" : "odd") : cell)).join("\t"));
     writeFileSync(regionsFile, [header, ...relabelled, ""].join("\n"));
-    writeReport(cohort.results, (path, text) => {
+    await writeReport(cohort.results, (path, text) => {
       mkdirSync(dirname(join(cohort.results, path)), { recursive: true });
       writeFileSync(join(cohort.results, path), text);
     });

@@ -113,7 +113,7 @@ describe("plexus strength", () => {
     ]);
     expect(summary.inputs.filter((i: { role: string }) => i.role === "connectome")).toHaveLength(rows.length);
     const markdown = readFileSync(path.join(out, "results.md"), "utf8");
-    expect(markdown).toContain("| Region | β | SE | t | df | p | p\\_FWE | q\\_FDR | partial r |");
+    expect(markdown).toContain("| Region | β | SE | t | df | p | p_FWE | q_FDR | partial r |");
     expect(markdown.match(/^\| /gm)?.length).toBe(2 * (REGIONS + 2));
   });
 
@@ -156,7 +156,7 @@ describe("plexus strength", () => {
     expectAllClose(column(measures, "partial_r"), reference.partialR, { ...INDEPENDENT, label: "measures.tsv partial_r" });
     expect(column(measures, "df")).toEqual([reference.df, reference.df, reference.df]);
     const markdown = readFileSync(path.join(out, "results.md"), "utf8");
-    expect(markdown).toContain("| Measure | Edges | β | SE | t | df | p | p\\_FWE | partial r |");
+    expect(markdown).toContain("| Measure | Edges | β | SE | t | df | p | p_FWE | partial r |");
   });
 
   it("global with --positive-only and a design without permutations (method fdr): p_fwe is empty", async () => {

@@ -90,8 +90,8 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
     .requiredOption("-o, --out <dir>", "results folder (must not exist or be empty, unless --force)")
     .option("-f, --force", "replace an existing results folder", false)
     .option("-q, --quiet", "print nothing but warnings and errors", false)
-    .action((shards: string[], flags: { out: string; force: boolean; quiet: boolean }) => {
-      mergeShards(shards, { out: flags.out, force: flags.force, quiet: flags.quiet, commandLine: ["plexus", ...argv()] }, log);
+    .action(async (shards: string[], flags: { out: string; force: boolean; quiet: boolean }) => {
+      await mergeShards(shards, { out: flags.out, force: flags.force, quiet: flags.quiet, commandLine: ["plexus", ...argv()] }, log);
     });
 }
 

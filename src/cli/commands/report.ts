@@ -1,7 +1,7 @@
 import type { Command } from "commander";
 import { rewriteResultsFolder } from "../../output/rewriteResultsFolder.js";
 import { loadResults } from "../../output/report/loadResults.js";
-import { reportFiles } from "../../output/report/writeReport.js";
+import { allReportFiles } from "../../output/report/writeReport.js";
 import type { OutputSink } from "../outputSink.js";
 
 /**
@@ -13,15 +13,15 @@ import type { OutputSink } from "../outputSink.js";
 export function registerReport(program: Command, sink: OutputSink): void {
   program
     .command("report")
-    .description("rewrite the tables, methods paragraph, figures and report.html of a results folder (no recomputation)")
+    .description("rewrite the tables (Markdown, LaTeX, Word), methods paragraph, figures and report.html of a results folder (no recomputation)")
     .argument("<dir>", "results folder written by `plexus run`")
     .option("--median", "add a median [IQR] row under each numeric characteristic of the cohort table", false)
-    .action((dir: string, flags: { median: boolean }) => {
-      const files = rewriteResultsFolder(
+    .action(async (dir: string, flags: { median: boolean }) => {
+      const files = await rewriteResultsFolder(
         dir,
-        () => reportFiles(loadResults(dir), { median: flags.median }),
+        () => allReportFiles(loadResults(dir), { median: flags.median }),
         (warning) => sink.err(`plexus: warning: ${warning}\n`),
       );
-      sink.out(`plexus report: wrote ${files.size} files to ${dir} (report.html, tables.md, tables.tex, methods.md, results.md, tables/, figures/)\n`);
+      sink.out(`plexus report: wrote ${files.size} files to ${dir} (report.html, tables.md, tables.tex, tables.docx, methods.md, results.md, tables/, figures/)\n`);
     });
 }

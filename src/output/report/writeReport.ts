@@ -3,14 +3,16 @@ import type { CohortOptions } from "./cohortTable.js";
 import type { KnownResults } from "../writeResults.js";
 import { loadResults, type LoadedResults } from "./loadResults.js";
 import { methodsMarkdown } from "./methodsText.js";
-import { reportContent } from "./reportContent.js";
+import { reportContent, type ReportContent } from "./reportContent.js";
 import { resultsMarkdown } from "./resultsText.js";
 import { reportHtml } from "./reportHtml.js";
 import { tablesLatex, tablesMarkdown } from "./tablesDocuments.js";
+import { tablesDocx } from "./tablesDocx.js";
 
 /**
  * The report files of a results folder, by path relative to it:
  *   tables.md, tables.tex        the print tables (Markdown; LaTeX booktabs)
+ *   tables.docx                  the same as a Word document (bytes; see reportDocuments)
  *   tables/<name>.tsv            the same at full precision
  *   methods.md                   the methods paragraph and its references
  *   results.md                   a draft results paragraph per contrast
@@ -20,8 +22,7 @@ import { tablesLatex, tablesMarkdown } from "./tablesDocuments.js";
  */
 export type ReportOptions = CohortOptions;
 
-export function reportFiles(results: LoadedResults, options: ReportOptions = {}): Map<string, string> {
-  const content = reportContent(results, options);
+export function reportFiles(results: LoadedResults, options: ReportOptions = {}, content: ReportContent = reportContent(results, options)): Map<string, string> {
   const files = new Map<string, string>();
   files.set("tables.md", tablesMarkdown(content, results.summary));
   files.set("tables.tex", tablesLatex(content, results.summary));
@@ -33,16 +34,33 @@ export function reportFiles(results: LoadedResults, options: ReportOptions = {})
   return files;
 }
 
+/** The report's binary files (tables.docx), whose writer is asynchronous; from the same content as reportFiles. */
+export async function reportDocuments(results: LoadedResults, content: ReportContent): Promise<Map<string, Uint8Array>> {
+  return new Map([["tables.docx", await tablesDocx(content.tables, results.summary.tool.version)]]);
+}
+
+/** Every report file: reportFiles' text and reportDocuments' bytes, from one ReportContent. */
+export async function allReportFiles(results: LoadedResults, options: ReportOptions = {}): Promise<Map<string, string | Uint8Array>> {
+  const content = reportContent(results, options);
+  const files = new Map<string, string | Uint8Array>(reportFiles(results, options, content));
+  for (const [file, bytes] of await reportDocuments(results, content)) files.set(file, bytes);
+  return files;
+}
+
 /**
  * Reads the results folder at `resultsDir` and writes every report file through
  * `write`; `known` is what the writer of the folder still holds of it (see
  * loadResults), so that nothing is read back from disk.
  */
-export function writeReport(
+export async function writeReport(
   resultsDir: string,
-  write: (relativePath: string, content: string) => void,
+  write: (relativePath: string, content: string | Uint8Array) => void,
   options: ReportOptions = {},
   known?: KnownResults,
-): void {
-  for (const [file, text] of reportFiles(loadResults(resultsDir, known), options)) write(file, text);
+): Promise<void> {
+  // The caller awaits this before it commits the folder, so nothing is moved into place half-written.
+  const results = loadResults(resultsDir, known);
+  const content = reportContent(results, options);
+  for (const [file, text] of reportFiles(results, options, content)) write(file, text);
+  for (const [file, bytes] of await reportDocuments(results, content)) write(file, bytes);
 }

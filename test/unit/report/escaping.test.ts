@@ -20,11 +20,11 @@ describe("escapeHtml", () => {
 });
 
 describe("escapeMarkdown", () => {
-  it("escapeMarkdown turns HTML into character references and escapes table pipes", () => {
-    expect(escapeMarkdown("<b>x</b> | y")).toBe("&lt;b&gt;x&lt;/b&gt; \\| y");
+  it("escapeMarkdown backslash-escapes a < that could start a tag (no character references) and escapes table pipes in a cell", () => {
+    expect(escapeMarkdown("<b>x</b> | y", "cell")).toBe("\\<b>x\\</b> \\| y");
   });
   it("escapeMarkdown escapes emphasis, code and link characters and joins lines", () => {
-    expect(escapeMarkdown("*a*_b_`c`[d](e)\nf")).toBe("\\*a\\*\\_b\\_\\`c\\`\\[d\\](e) f");
+    expect(escapeMarkdown("*a*_b_`c`[d](e)\nf")).toBe("\\*a\\*\\_b\\_\\`c\\`[d\\](e) f");
   });
   it("escapeMarkdown escapes $ so a viewer that renders $…$ as maths shows the text", () => {
     expect(escapeMarkdown("cost $5 to $10")).toBe("cost \\$5 to \\$10");

@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { OutputSink } from "../../../src/cli/outputSink.js";
 import { main } from "../../../src/cli/main.js";
 import { loadResults } from "../../../src/output/report/loadResults.js";
-import { reportFiles } from "../../../src/output/report/writeReport.js";
+import { allReportFiles } from "../../../src/output/report/writeReport.js";
 import { analysedCohort, GOLDEN_DESIGN, HTML_LABEL, type AnalysedCohort } from "./reportCohort.js";
 
 interface Captured extends OutputSink {
@@ -92,9 +92,10 @@ describe("plexus report DIR", () => {
     const { code, sink } = await report(components.results);
     expect(sink.stderr).toBe("");
     expect(code).toBe(0);
-    expect(sink.stdout).toMatch(/^plexus report: wrote 16 files to /);
-    const expected = reportFiles(loadResults(components.results));
-    for (const [name, text] of expected) expect(readFileSync(join(components.results, name), "utf8"), name).toBe(text);
+    expect(sink.stdout).toMatch(/^plexus report: wrote 17 files to /);
+    const expected = await allReportFiles(loadResults(components.results));
+    expect(expected.has("tables.docx")).toBe(true);
+    for (const [name, written] of expected) expect(readFileSync(join(components.results, name)).equals(Buffer.from(written)), name).toBe(true);
     expect(readdirSync(components.results).filter((name) => name.startsWith("."))).toEqual([]);
   });
 
@@ -108,7 +109,7 @@ describe("plexus report DIR", () => {
 
   it("--median adds a median [IQR] row under each numeric characteristic", async () => {
     expect((await report(components.results, "--median")).code).toBe(0);
-    expect(readFileSync(join(components.results, "tables.md"), "utf8")).toContain("| age, median \\[IQR\\] |");
+    expect(readFileSync(join(components.results, "tables.md"), "utf8")).toContain("| age, median [IQR] |");
     expect((await report(components.results)).code).toBe(0);
     expect(readFileSync(join(components.results, "tables.md"), "utf8")).not.toContain("median");
   });
@@ -122,7 +123,7 @@ describe("plexus report DIR", () => {
     const network = readFileSync(join(fdr.results, "figures", "patient_gt_control-network.svg"), "utf8");
     expect(network).toContain("regions on a circle");
     const tables = readFileSync(join(fdr.results, "tables.md"), "utf8");
-    expect(tables).toContain("Edges with q\\_FDR ≤ 0.05: patient\\_gt\\_control");
+    expect(tables).toContain("Edges with q_FDR ≤ 0.05: patient_gt_control");
     expect(tables).not.toContain("Significant subnetworks");
     const methods = readFileSync(join(fdr.results, "methods.md"), "utf8");
     expect(methods).toContain("Benjamini–Yekutieli");
@@ -148,10 +149,10 @@ describe("plexus report on other inference settings", () => {
   it("max-t, two-sided, mass, exchangeability blocks: the rule, the edge-level p_FWE and the methods say so", async () => {
     expect((await report(maxT.results)).code).toBe(0);
     const tables = readFileSync(join(maxT.results, "tables.md"), "utf8");
-    expect(tables).toContain("\\|t\\| &gt; 3");
+    expect(tables).toContain("\\|t\\| > 3");
     expect(tables).toContain("| mass |");
     const summary = JSON.parse(readFileSync(join(maxT.results, "summary.json"), "utf8"));
-    if (summary.contrasts[0].significant_components > 0) expect(tables).toContain("p\\_FWE (edge)");
+    if (summary.contrasts[0].significant_components > 0) expect(tables).toContain("p_FWE (edge)");
     const methods = readFileSync(join(maxT.results, "methods.md"), "utf8");
     expect(methods).toContain("(Westfall & Young 1993)");
     expect(methods).toContain("exchangeability blocks given by site");

@@ -22,11 +22,13 @@ const GOLDEN = join(dirname(fileURLToPath(import.meta.url)), "..", "..", "golden
 const UPDATE = process.env.UPDATE_GOLDEN === "1";
 
 let cohort: AnalysedCohort;
-const files = new Map<string, string>();
+/** Text files as strings; tables.docx as bytes (deterministic: fixed timestamps, see tablesDocx.ts). */
+const files = new Map<string, string | Uint8Array>();
+const text = (name: string) => files.get(name) as string;
 
 beforeAll(async () => {
   cohort = await analysedCohort({ design: GOLDEN_DESIGN });
-  writeReport(cohort.results, (path, text) => {
+  await writeReport(cohort.results, (path, text) => {
     files.set(path, text);
     const full = join(cohort.results, path);
     mkdirSync(dirname(full), { recursive: true });
@@ -62,6 +64,7 @@ describe("report golden files (test/golden/report, UPDATE_GOLDEN=1 to rewrite)",
       "methods.md",
       "report.html",
       "results.md",
+      "tables.docx",
       "tables.md",
       "tables.tex",
       "tables/cohort.tsv",
@@ -75,13 +78,18 @@ describe("report golden files (test/golden/report, UPDATE_GOLDEN=1 to rewrite)",
 
   for (const name of goldenFiles(GOLDEN)) {
     it(`${name} matches the golden file`, () => {
-      expect(files.get(name), `${name} differs from test/golden/report/${name}`).toBe(readFileSync(join(GOLDEN, name), "utf8"));
+      const written = files.get(name);
+      if (written instanceof Uint8Array) {
+        expect(Buffer.from(written).equals(readFileSync(join(GOLDEN, name))), `${name} differs from test/golden/report/${name} (bytes)`).toBe(true);
+      } else {
+        expect(written, `${name} differs from test/golden/report/${name}`).toBe(readFileSync(join(GOLDEN, name), "utf8"));
+      }
     });
   }
 
-  it("writing the report twice gives identical files (no clock, no randomness)", () => {
-    const again = new Map<string, string>();
-    writeReport(cohort.results, (path, text) => again.set(path, text));
+  it("writing the report twice gives identical files (no clock, no randomness)", async () => {
+    const again = new Map<string, string | Uint8Array>();
+    await writeReport(cohort.results, (path, text) => again.set(path, text));
     expect(again).toEqual(files);
   });
 });
@@ -98,7 +106,7 @@ describe("cohort table against references outside plexus", () => {
     }));
   };
   const tests = () => {
-    const table = parseTsv(files.get("tables/cohort_tests.tsv")!, "cohort_tests.tsv");
+    const table = parseTsv(text("tables/cohort_tests.tsv"), "cohort_tests.tsv");
     return new Map(table.rows.map((row) => [row[0], Object.fromEntries(table.header.map((h, k) => [h, row[k]]))]));
   };
 
@@ -157,7 +165,7 @@ describe("cohort table against references outside plexus", () => {
 
   it("counts and percentages in tables/cohort.tsv match the participants table", () => {
     const people = participants();
-    const table = parseTsv(files.get("tables/cohort.tsv")!, "cohort.tsv");
+    const table = parseTsv(text("tables/cohort.tsv"), "cohort.tsv");
     const col = (name: string) => table.header.indexOf(name);
     for (const row of table.rows.filter((r) => r[col("variable")] === "sex")) {
       const inGroup = people.filter((p) => p.group === row[col("group")]);
@@ -170,7 +178,7 @@ describe("cohort table against references outside plexus", () => {
 
 describe("hostile strings from the user's files come out harmless", () => {
   it("report.html shows the HTML label escaped and has only its own two script elements, the label inert in the JSON", () => {
-    const html = files.get("report.html")!;
+    const html = text("report.html");
     expect(html).toContain("&lt;script&gt;alert(1)&lt;/script&gt;");
     expect(html).not.toContain(HTML_LABEL);
     expect(html.toLowerCase().split("<script").length - 1).toBe(2);
@@ -196,22 +204,23 @@ describe("hostile strings from the user's files come out harmless", () => {
   });
 
   it("the SVG figures escape the label too", () => {
-    const network = files.get("figures/patient_gt_control-network.svg")!;
+    const network = text("figures/patient_gt_control-network.svg");
     expect(network).toContain("&lt;script&gt;");
-    for (const [name, text] of files) if (name.endsWith(".svg")) expect(text.toLowerCase(), name).not.toContain("<script");
+    for (const name of files.keys()) if (name.endsWith(".svg")) expect(text(name).toLowerCase(), name).not.toContain("<script");
   });
 
   it("Markdown and LaTeX tables escape it", () => {
-    expect(files.get("tables.md")).toContain("&lt;script&gt;alert(1)&lt;/script&gt;");
+    // Markdown: a backslash before each < that a letter or / follows, so no tag starts; no HTML entity.
+    expect(files.get("tables.md")).toContain("\\<script>alert(1)\\</script>");
     expect(files.get("tables.md")).not.toContain(HTML_LABEL);
     expect(files.get("tables.tex")).toContain("\\textless{}script\\textgreater{}alert(1)\\textless{}/script\\textgreater{}");
   });
 
   it("no cell of any TSV starts like a spreadsheet formula unless it is a plain number", () => {
     let neutralised = 0;
-    for (const [name, text] of files) {
+    for (const name of files.keys()) {
       if (!name.endsWith(".tsv")) continue;
-      const table = parseTsv(text, name);
+      const table = parseTsv(text(name), name);
       for (const cell of [...table.header, ...table.rows.flat()]) {
         const raw = cell.startsWith('"') ? cell.slice(1) : cell;
         if (/^[=+\-@\t\r]/.test(raw)) expect(raw, `${name}: '${cell}'`).toMatch(/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/);
