@@ -22,11 +22,24 @@ const TAIL_TEXT = {
 
 const MEASURE_TITLE = { nodal: "Nodal strength", global: "Global strength", subnetwork: "Subnetwork strength" } as const;
 
-function contrastTable(prepared: PreparedAnalysis, analysis: StrengthAnalysis, result: StrengthContrast, number: number): string {
+/**
+ * The order of a table's rows: regions by p, smallest first (a region without
+ * a statistic last; ties in matrix order), so the regions that matter lead;
+ * global and subnetwork measures as computed. nodes.tsv keeps matrix order.
+ */
+export function printOrder(analysis: StrengthAnalysis, result: StrengthContrast): number[] {
+  const order = analysis.names.map((_, m) => m);
+  if (analysis.choice.measure !== "nodal") return order;
+  const key = (m: number) => (Number.isFinite(result.statistics.statistic[m]) && Number.isFinite(result.pUncorrected[m]) ? result.pUncorrected[m] : Infinity);
+  return order.sort((a, b) => key(a) - key(b) || a - b);
+}
+
+function contrastTable(prepared: PreparedAnalysis, analysis: StrengthAnalysis, result: StrengthContrast): ReportTable {
   const { choice } = analysis;
   const nodal = choice.measure === "nodal";
   const { statistics, pUncorrected, qFdr, familywise } = result;
-  const rows = analysis.names.map((name, m) => {
+  const rows = printOrder(analysis, result).map((m) => {
+    const name = analysis.names[m];
     const finite = Number.isFinite(statistics.statistic[m]);
     const cells = [
       name,
@@ -77,20 +90,25 @@ function contrastTable(prepared: PreparedAnalysis, analysis: StrengthAnalysis, r
         : " No permutations were drawn (the design's method is fdr), so p_FWE is not given.") +
       (nodal ? ` q_FDR: ${inference.fdr === "by" ? "Benjamini–Yekutieli (2001)" : "Benjamini–Hochberg (1995)"} adjusted p across the regions.` : "") +
       (familywise && prepared.overrides ? ` ${overridesSentence(prepared.overrides)}` : ""),
+    ...(nodal ? ["Regions are listed by p, smallest first (ties in matrix order); nodes.tsv lists them in matrix order at full precision."] : []),
   ];
-  const table: ReportTable = {
+  return {
     id: `strength-${result.contrast.name}`,
     title: `${MEASURE_TITLE[choice.measure]}, ${result.contrast.name} (${String(result.contrast.expression)})`,
     columns: headers.map((header, k) => ({ header, align: k === 0 ? "left" : "right" })),
     rows,
     notes,
   };
-  return markdownTable(table, number);
+}
+
+/** The print tables of `plexus strength`, one per contrast, numbered from 1: results.md and tables.docx show these. */
+export function strengthPrintTables(prepared: PreparedAnalysis, analysis: StrengthAnalysis): { number: number; table: ReportTable }[] {
+  return analysis.contrasts.map((result, k) => ({ number: k + 1, table: contrastTable(prepared, analysis, result) }));
 }
 
 export function strengthMarkdown(prepared: PreparedAnalysis, analysis: StrengthAnalysis, warnings: string[]): string {
   const parts = ["# Network strength", ""];
   for (const warning of warnings) parts.push(`> **Caution.** ${escapeMarkdown(warning.charAt(0).toUpperCase() + warning.slice(1))}`, "");
-  analysis.contrasts.forEach((result, k) => parts.push(contrastTable(prepared, analysis, result, k + 1).trimEnd(), ""));
+  for (const { table, number } of strengthPrintTables(prepared, analysis)) parts.push(markdownTable(table, number).trimEnd(), "");
   return `${parts.join("\n").trimEnd()}\n`;
 }

@@ -115,6 +115,20 @@ describe("plexus strength", () => {
     const markdown = readFileSync(path.join(out, "results.md"), "utf8");
     expect(markdown).toContain("| Region | β | SE | t | df | p | p_FWE | q_FDR | partial r |");
     expect(markdown.match(/^\| /gm)?.length).toBe(2 * (REGIONS + 2));
+    // The printed tables list regions by p (ties in matrix order); nodes.tsv keeps matrix order.
+    const printed = markdown
+      .split(/^\*\*Table \d+\. /m)
+      .slice(1)
+      .map((part) => part.split("\n").filter((line) => line.startsWith("| ")).slice(2).map((line) => line.split(" | ")[0].slice(2)));
+    expect(printed).toHaveLength(2);
+    ["patient_gt_control", "age_down"].forEach((name, k) => {
+      const nodes = readTable(path.join(out, name, "nodes.tsv"));
+      const p = column(nodes, "p_unc");
+      const byP = labels.map((_, i) => i).sort((a, b) => (Number.isFinite(p[a]) ? p[a] : Infinity) - (Number.isFinite(p[b]) ? p[b] : Infinity) || a - b);
+      expect(printed[k], `${name}: table rows by p`).toEqual(byP.map((i) => labels[i]));
+      if (k === 0) expect(byP, "the planted effect moves regions off matrix order").not.toEqual(labels.map((_, i) => i));
+    });
+    expect(markdown).toContain("Regions are listed by p, smallest first (ties in matrix order)");
   });
 
   it("subnetwork: one measure per system, pair of systems and edge list, each the mean of its cells", async () => {
