@@ -16,6 +16,7 @@ import { fileURLToPath } from "node:url";
 import padjust from "@stdlib/stats-padjust";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { expectAllClose } from "../helpers/close.js";
+import { expectRounded, readTables } from "../helpers/docxTables.js";
 import {
   clinicDesign,
   groupDesignLines,
@@ -61,6 +62,38 @@ afterAll(() => {
 
 const raw = () => readFisherCohort(path.join(root, "cohort"));
 
+/** Which TSV column each printed column of tables.docx shows (nodes.tsv, measures.tsv). */
+const DOCX_SOURCES: Record<string, Record<string, string>> = {
+  nodes: { β: "estimate", SE: "standard_error", t: "statistic", p: "p_unc", p_FWE: "p_fwe", q_FDR: "q_fdr", "partial r": "partial_r" },
+  measures: { Edges: "edges", β: "beta", SE: "se", t: "t", df: "df", p: "p_unc", p_FWE: "p_fwe", "partial r": "partial_r" },
+};
+
+/**
+ * tables.docx opened as a zip of XML (test/helpers/docxTables.ts): one table per contrast under
+ * "Table n. …", every printed number the TSV twin's value rounded to the digits shown, rows in the
+ * order given. Returns the tables' notes.
+ */
+function checkDocx(out: string, contrasts: string[], twin: "nodes" | "measures", df: number, order: (name: string) => string[]): string[][] {
+  const tables = readTables(readFileSync(path.join(out, "tables.docx")));
+  expect(tables).toHaveLength(contrasts.length);
+  return contrasts.map((name, k) => {
+    const table = tables[k];
+    expect(table.caption).toMatch(new RegExp(`^Table ${k + 1}\\. \\w+ strength, ${name} \\(`));
+    const tsv = readTable(path.join(out, name, `${twin}.tsv`));
+    const [header, ...body] = table.rows;
+    expect(body.map((cells) => cells[0]), `${name}: docx row order`).toEqual(order(name));
+    for (const cells of body) {
+      const row = tsv.rows.find((r) => r[0] === cells[0])!;
+      header.forEach((column, c) => {
+        const label = `${name} ${cells[0]} ${column}`;
+        if (column === "df" && twin === "nodes") expect(cells[c], label).toBe(String(df));
+        else if (c > 0) expectRounded(cells[c], row[tsv.header.indexOf(DOCX_SOURCES[twin][column])], label);
+      });
+    }
+    return table.after;
+  });
+}
+
 /** Upper-tail statistics per measure by OLS on X = [1, patient, age, male]. */
 const ols = (rows: string[][], measures: number[][], contrast: number[]) => olsReference(clinicDesign(rows), measures, contrast, "upper");
 
@@ -70,7 +103,7 @@ describe("plexus strength", () => {
     const result = await runCli(["strength", design, "--out", out, "--threads", "1"]);
     expect(result.stderr).not.toContain("error");
     expect(result.code).toBe(0);
-    expect(readdirSync(out).sort()).toEqual(["age_down", "patient_gt_control", "plexus-files.json", "results.md", "strength_values.tsv", "summary.json"]);
+    expect(readdirSync(out).sort()).toEqual(["age_down", "patient_gt_control", "plexus-files.json", "results.md", "strength_values.tsv", "summary.json", "tables.docx"]);
     const { rows, labels, matrices } = raw();
     const strength = rowSums(matrices);
 
@@ -129,6 +162,10 @@ describe("plexus strength", () => {
       if (k === 0) expect(byP, "the planted effect moves regions off matrix order").not.toEqual(labels.map((_, i) => i));
     });
     expect(markdown).toContain("Regions are listed by p, smallest first (ties in matrix order)");
+    // tables.docx: the same tables, same order, every cell the nodes.tsv value rounded as printed.
+    const notes = checkDocx(out, ["patient_gt_control", "age_down"], "nodes", rows.length - 4, (name) => printed[name === "age_down" ? 1 : 0]);
+    for (const after of notes) expect(after.join(" ")).toContain("Regions are listed by p, smallest first");
+    expect(readFileSync(path.join(out, "plexus-files.json"), "utf8")).toContain("tables.docx");
   });
 
   it("subnetwork: one measure per system, pair of systems and edge list, each the mean of its cells", async () => {
@@ -171,6 +208,7 @@ describe("plexus strength", () => {
     expect(column(measures, "df")).toEqual([reference.df, reference.df, reference.df]);
     const markdown = readFileSync(path.join(out, "results.md"), "utf8");
     expect(markdown).toContain("| Measure | Edges | β | SE | t | df | p | p_FWE | partial r |");
+    checkDocx(out, ["patient_gt_control", "age_down"], "measures", reference.df, () => names);
   });
 
   it("global with --positive-only and a design without permutations (method fdr): p_fwe is empty", async () => {

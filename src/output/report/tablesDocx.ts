@@ -32,13 +32,14 @@ const NO_RULE: IBorderOptions = { style: BorderStyle.NONE, size: 0, color: "FFFF
  * The same ReportTable structures feed tables.md and tables.tex, so numbers
  * and wording agree; any writer of numbered ReportTables (a results folder's
  * report, `plexus strength`) can call it. The bytes depend on the tables and
- * the version alone (fixed timestamps).
+ * the version alone (fixed timestamps). `twins` names the full-precision
+ * files in the opening sentence.
  */
-export async function tablesDocx(tables: readonly { number: number; table: ReportTable }[], version: string): Promise<Uint8Array> {
+export async function tablesDocx(tables: readonly { number: number; table: ReportTable }[], version: string, twins = "tables/*.tsv hold the same tables"): Promise<Uint8Array> {
   const landscape = tables.some(({ table }) => table.columns.length > PORTRAIT_COLUMNS);
   const children: (Paragraph | Table)[] = [
     new Paragraph({ children: [new TextRun({ text: "Tables", bold: true, size: 28 })], spacing: { after: 120 } }),
-    paragraph(`Written by plexus ${version} from this results folder. Numbers are rounded for print; tables/*.tsv hold the same tables at full precision.`, BODY_SIZE),
+    paragraph(`Written by plexus ${version} from this results folder. Numbers are rounded for print; ${twins} at full precision.`, BODY_SIZE),
   ];
   for (const { table, number } of tables) children.push(...wordTable(table, number));
   const document = new Document({
