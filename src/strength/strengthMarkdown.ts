@@ -106,9 +106,18 @@ export function strengthPrintTables(prepared: PreparedAnalysis, analysis: Streng
   return analysis.contrasts.map((result, k) => ({ number: k + 1, table: contrastTable(prepared, analysis, result) }));
 }
 
+/**
+ * A terminal message as words for the results text: a code span's backticks
+ * go (its content, a command or a name, reads as it is); the rest is escaped
+ * as plain text by escapeMarkdown, like every user text here.
+ */
+function plainWords(text: string): string {
+  return text.replace(/`([^`\n]+)`/g, "$1");
+}
+
 export function strengthMarkdown(prepared: PreparedAnalysis, analysis: StrengthAnalysis, warnings: string[]): string {
   const parts = ["# Network strength", ""];
-  for (const warning of warnings) parts.push(`> **Caution.** ${escapeMarkdown(warning.charAt(0).toUpperCase() + warning.slice(1))}`, "");
+  for (const warning of warnings) parts.push(`> **Caution.** ${escapeMarkdown(plainWords(warning.charAt(0).toUpperCase() + warning.slice(1)))}`, "");
   for (const { table, number } of strengthPrintTables(prepared, analysis)) parts.push(markdownTable(table, number).trimEnd(), "");
   return `${parts.join("\n").trimEnd()}\n`;
 }

@@ -211,6 +211,18 @@ describe("plexus strength", () => {
     checkDocx(out, ["patient_gt_control", "age_down"], "measures", reference.df, () => names);
   });
 
+  it("results.md says the terminal's warnings in plain words, without code spans", async () => {
+    const joint = path.join(root, "joint.yaml");
+    writeFileSync(joint, readFileSync(design, "utf8").replace("method: components", "method: components\n  across_contrasts: true"));
+    const out = path.join(root, "joint");
+    const result = await runCli(["strength", joint, "--out", out, "--threads", "1"]);
+    expect(result.code).toBe(0);
+    expect(result.stderr).toContain("applies to `plexus run`");
+    const markdown = readFileSync(path.join(out, "results.md"), "utf8");
+    expect(markdown).toContain("> **Caution.** 'inference.across_contrasts' applies to plexus run; the p_FWE of plexus strength are corrected over the measures within each contrast");
+    expect(markdown).not.toContain("`");
+  });
+
   it("global with --positive-only and a design without permutations (method fdr): p_fwe is empty", async () => {
     const fdrDesign = path.join(root, "fdr.yaml");
     writeFileSync(fdrDesign, readFileSync(design, "utf8").replace("method: components", "method: fdr"));
