@@ -14,7 +14,7 @@ import { refuseRepeated } from "../run/repeatedScans.js";
 import { circularityWarning, sampleOverlap, type SampleOverlap } from "./sampleOverlap.js";
 import { selectEdgeSets } from "./selectEdgeSets.js";
 import { analyzeStrength, type StrengthAnalysis } from "./strengthAnalysis.js";
-import { strengthMarkdown, strengthPrintTables } from "./strengthMarkdown.js";
+import { strengthLatex, strengthMarkdown, strengthPrintTables } from "./strengthMarkdown.js";
 import { resolveMeasure, type EdgeSelection, type StrengthOptions } from "./strengthOptions.js";
 import { strengthSummary } from "./strengthSummary.js";
 import { VERSION } from "../version.js";
@@ -26,7 +26,7 @@ import { measuresTable, nodesTable, valuesTable } from "./strengthTables.js";
  * computes the measures, fits the contrasts, draws the permutations and
  * writes the results folder atomically:
  *   <contrast>/nodes.tsv     (nodal)  or  <contrast>/measures.tsv (global, subnetwork)
- *   strength_values.tsv, results.md, tables.docx (the same print tables), summary.json
+ *   strength_values.tsv, results.md, tables.tex and tables.docx (the same print tables), summary.json
  */
 export interface StrengthLog {
   info(text: string): void;
@@ -100,7 +100,10 @@ export async function runStrength(options: StrengthOptions, log: StrengthLog, pr
     }
     folder.write("strength_values.tsv", valuesTable(prepared.kept.map((k) => k.id), [], analysis.names, analysis.values));
     folder.write("results.md", strengthMarkdown(prepared, analysis, warnings));
-    folder.write("tables.docx", await tablesDocx(strengthPrintTables(prepared, analysis), VERSION, `<contrast>/${measure === "nodal" ? "nodes" : "measures"}.tsv hold the same values`));
+    const printTables = strengthPrintTables(prepared, analysis);
+    const twins = `<contrast>/${measure === "nodal" ? "nodes" : "measures"}.tsv hold the same values`;
+    folder.write("tables.tex", strengthLatex(printTables, VERSION, twins));
+    folder.write("tables.docx", await tablesDocx(printTables, VERSION, twins));
     const summary = strengthSummary(prepared, analysis, inputs, options.commandLine ?? null, source, warnings);
     folder.write("summary.json", `${JSON.stringify(summary, null, 2)}\n`);
     folder.commit();

@@ -4,6 +4,7 @@ import { selectionText } from "../io/selectParticipants.js";
 import { escapeMarkdown } from "../output/report/escapeMarkdown.js";
 import { fixed, MISSING, pValue, significant } from "../output/report/printNumbers.js";
 import type { ReportTable } from "../output/report/reportTable.js";
+import { latexTable } from "../output/report/tables/latexTable.js";
 import { markdownTable } from "../output/report/tables/markdownTable.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import type { StrengthAnalysis, StrengthContrast } from "./strengthAnalysis.js";
@@ -120,4 +121,14 @@ export function strengthMarkdown(prepared: PreparedAnalysis, analysis: StrengthA
   for (const warning of warnings) parts.push(`> **Caution.** ${escapeMarkdown(plainWords(warning.charAt(0).toUpperCase() + warning.slice(1)))}`, "");
   for (const { table, number } of strengthPrintTables(prepared, analysis)) parts.push(markdownTable(table, number).trimEnd(), "");
   return `${parts.join("\n").trimEnd()}\n`;
+}
+
+/** tables.tex: the print tables as booktabs floats, to \input into a manuscript. */
+export function strengthLatex(tables: readonly { table: ReportTable }[], version: string, twins: string): string {
+  return [
+    `% Tables written by plexus ${version} (plexus strength); numbers rounded for print (${twins} at full precision).`,
+    "% Needs \\usepackage{booktabs} and \\usepackage{graphicx} in the preamble; include with \\input{tables.tex}.",
+    "",
+    ...tables.map(({ table }) => latexTable(table)),
+  ].join("\n");
 }

@@ -103,7 +103,7 @@ describe("plexus strength", () => {
     const result = await runCli(["strength", design, "--out", out, "--threads", "1"]);
     expect(result.stderr).not.toContain("error");
     expect(result.code).toBe(0);
-    expect(readdirSync(out).sort()).toEqual(["age_down", "patient_gt_control", "plexus-files.json", "results.md", "strength_values.tsv", "summary.json", "tables.docx"]);
+    expect(readdirSync(out).sort()).toEqual(["age_down", "patient_gt_control", "plexus-files.json", "results.md", "strength_values.tsv", "summary.json", "tables.docx", "tables.tex"]);
     const { rows, labels, matrices } = raw();
     const strength = rowSums(matrices);
 
@@ -166,6 +166,13 @@ describe("plexus strength", () => {
     const notes = checkDocx(out, ["patient_gt_control", "age_down"], "nodes", rows.length - 4, (name) => printed[name === "age_down" ? 1 : 0]);
     for (const after of notes) expect(after.join(" ")).toContain("Regions are listed by p, smallest first");
     expect(readFileSync(path.join(out, "plexus-files.json"), "utf8")).toContain("tables.docx");
+    // tables.tex: the same tables as booktabs floats, regions in the same order (LaTeX's escaped underscore read back).
+    const tex = readFileSync(path.join(out, "tables.tex"), "utf8");
+    const texRows = [...tex.matchAll(/\\midrule\n([\s\S]*?)\\bottomrule/g)].map((m) =>
+      m[1].trim().split("\n").map((line) => line.split(" & ")[0].replace(/\\_/g, "_")),
+    );
+    expect(texRows).toEqual(printed);
+    expect(tex.match(/\\begin\{table\}/g)).toHaveLength(2);
   });
 
   it("subnetwork: one measure per system, pair of systems and edge list, each the mean of its cells", async () => {
