@@ -1,6 +1,6 @@
 import { InputError, type InputLocation } from "../errors.js";
 import { columnName, type DesignColumn, type DesignMatrix } from "./designMatrix.js";
-import { rankReport } from "./rank.js";
+import { collinearColumnNames, rankReport } from "./rank.js";
 
 /**
  * The change model of a two-level repeated design (paired differences): the
@@ -88,9 +88,7 @@ export function assemble(long: DesignMatrix, columns: DesignColumn[], data: Floa
   for (let j = 0; j < cols; j++) for (let i = 0; i < rows; i++) values[i * cols + j] = data[j][i];
   const report = rankReport(values, rows, cols);
   if (report.rank < cols) {
-    const named = report.collinearSets.filter((set) => set.length > 0);
-    if (named.length === 0) named.push(columns.map((_, j) => j));
-    const sets = named.map((set) => set.map((j) => columns[j].name).join(", "));
+    const sets = collinearColumnNames(report, columns.map((column) => column.name));
     throw new InputError(
       `the model fitted to the repeated scans is rank-deficient (rank ${report.rank} of ${cols} columns): ${sets
         .map((s) => (s.includes(",") ? `columns ${s} are collinear` : `column ${s} is zero or constant`))

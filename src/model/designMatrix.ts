@@ -1,6 +1,6 @@
 import { InputError, type InputLocation } from "../errors.js";
 import type { Formula } from "./formula.js";
-import { rankReport } from "./rank.js";
+import { collinearColumnNames, rankReport } from "./rank.js";
 import type { Variable } from "./variables.js";
 
 /** One factor of a design column's name: a numeric variable, or a factor at one level. */
@@ -117,9 +117,7 @@ export function buildDesignMatrix(
   }
   const report = rankReport(values, rows, cols);
   if (report.rank < cols) {
-    const named = report.collinearSets.filter((set) => set.length > 0);
-    if (named.length === 0) named.push(columns.map((_, j) => j));
-    const sets = named.map((set) => set.map((j) => columns[j].name).join(", "));
+    const sets = collinearColumnNames(report, columns.map((column) => column.name));
     throw new InputError(
       `the design is rank-deficient (rank ${report.rank} of ${cols} columns): ${sets
         .map((s) => (s.includes(",") ? `columns ${s} are collinear` : `column ${s} is zero or constant-duplicate`))

@@ -48,3 +48,10 @@ export function rankReport(x: Float64Array, rows: number, cols: number): RankRep
   }
   return { rank, singularValues: [...values], tolerance, collinearSets };
 }
+
+/** The collinear sets of a rank-deficient design as column names ("a, b"); every column when no set could be named. */
+export function collinearColumnNames(report: RankReport, names: readonly string[]): string[] {
+  const named = report.collinearSets.filter((set) => set.length > 0);
+  if (named.length === 0) named.push(names.map((_, j) => j));
+  return named.map((set) => set.map((j) => names[j]).join(", "));
+}
