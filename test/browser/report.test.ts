@@ -110,7 +110,7 @@ describe.skipIf(!available && !mustRun)("report.html in headless Chromium", () =
   });
 
   it("shows every figure as an inline SVG with a size, and one per file under figures/", async () => {
-    const files = readdirSync(join(cohort.results, "figures")).filter((name) => name.endsWith(".svg"));
+    const files = readdirSync(join(cohort.results, "figures")).filter((name) => name.endsWith("-180mm.svg"));
     const figures = page.locator("figure .svg > svg");
     expect(await figures.count()).toBe(files.length);
     for (let k = 0; k < files.length; k++) {

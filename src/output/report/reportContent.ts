@@ -4,6 +4,7 @@ import { matrixFigure } from "./figures/matrixFigure.js";
 import { networkFigure } from "./figures/networkFigure.js";
 import { nullFigure } from "./figures/nullFigure.js";
 import { robustnessFigure } from "./figures/robustnessFigure.js";
+import { PRINT_WIDTHS, widthSuffix, type PrintWidth } from "./figures/printSize.js";
 import type { LoadedResults } from "./loadResults.js";
 import { methodsText, type MethodsText } from "./methodsText.js";
 import { resultsText, type ResultsText } from "./resultsText.js";
@@ -31,8 +32,34 @@ export interface ReportContent {
 export interface ContrastContent {
   name: string;
   finding: SignificantEdges;
-  /** Figures as SVG text, with their file names under figures/. */
-  figures: { file: string; caption: string; svg: string }[];
+  /** Figures in print order. */
+  figures: ReportFigure[];
+}
+
+/**
+ * One figure, drawn at both print widths. Its files are `<file>-180mm.svg`,
+ * `<file>-85mm.svg` and the PNG of each (see figureFiles); report.html shows
+ * the two-column drawing.
+ */
+export interface ReportFigure {
+  /** The path without width or extension, e.g. `figures/patient_gt_control-null`. */
+  file: string;
+  /** What the figure shows, one word: null, matrix, network, robustness, data, nodal. */
+  kind: string;
+  caption: string;
+  svg: Record<PrintWidth, string>;
+}
+
+/** Draws a figure at both widths, or returns null when it has nothing to show. */
+export function drawnFigure(file: string, kind: string, caption: string, draw: (width: PrintWidth) => string | null): ReportFigure | null {
+  const double = draw("double");
+  const single = draw("single");
+  return double === null || single === null ? null : { file, kind, caption, svg: { double, single } };
+}
+
+/** The file names of a figure: each width as SVG and PNG. */
+export function figureFileNames(figure: ReportFigure): { width: PrintWidth; svg: string; png: string }[] {
+  return PRINT_WIDTHS.map((width) => ({ width, svg: `${figure.file}${widthSuffix(width)}.svg`, png: `${figure.file}${widthSuffix(width)}.png` }));
 }
 
 /** The excluded-participants table is printed in tables.md/.tex only up to this many rows. */
@@ -59,38 +86,44 @@ export function reportContent(results: LoadedResults, options: CohortOptions = {
   const contrasts: ContrastContent[] = results.contrasts.map((contrast, k) => {
     const finding = subnetworks.perContrast[k].finding;
     const name = contrast.summary.name;
-    const figures: ContrastContent["figures"] = [];
-    const nullSvg = nullFigure(contrast, summary);
-    if (nullSvg) {
-      figures.push({
-        file: `figures/${name}-null.svg`,
-        caption: `Permutation distribution of the largest component ${summary.options.inference.size} (grey bars), the critical value at α = ${alpha} (dashed line) and the observed components (solid lines, dark when p_FWE ≤ α).${familyNullCaption(summary)}`,
-        svg: nullSvg,
-      });
-    }
-    figures.push({
-      file: `figures/${name}-matrix.svg`,
-      caption: "The t-statistic of every edge (both triangles), regions grouped by hemisphere and system when the regions table gives them; the edges of the significant finding are outlined. Colour scale: cividis, dark blue (most negative) to yellow (most positive), lightness increasing throughout.",
-      svg: matrixFigure(contrast, results.regions, finding, results.summary.edge_rules?.dropped ?? 0),
-    });
-    const networkSvg = networkFigure(contrast, results.regions, finding, alpha);
-    if (networkSvg) {
-      figures.push({
-        file: `figures/${name}-network.svg`,
-        caption: results.regions.every((r) => r.x !== undefined)
+    const figures: ReportFigure[] = [];
+    const add = (figure: ReportFigure | null) => {
+      if (figure) figures.push(figure);
+    };
+    add(
+      drawnFigure(
+        `figures/${name}-null`,
+        "null",
+        `Permutation distribution of the largest component ${summary.options.inference.size} (grey bars), the critical value at α = ${alpha} (dashed line) and the observed components (solid lines, dark when p_FWE ≤ α).${familyNullCaption(summary)}`,
+        (width) => nullFigure(contrast, summary, width),
+      ),
+    );
+    add(
+      drawnFigure(
+        `figures/${name}-matrix`,
+        "matrix",
+        "The t-statistic of every edge (both triangles), regions grouped by hemisphere and system when the regions table gives them; the edges of the significant finding are outlined. Colour scale: cividis, dark blue (most negative) to yellow (most positive), lightness increasing throughout.",
+        (width) => matrixFigure(contrast, results.regions, finding, results.summary.edge_rules?.dropped ?? 0, width),
+      ),
+    );
+    add(
+      drawnFigure(
+        `figures/${name}-network`,
+        "network",
+        results.regions.every((r) => r.x !== undefined)
           ? "The significant edges on three orthogonal projections of the region coordinates; edge colour: t (cividis scale); node size: degree within the finding; grey dots: all other regions."
           : "The significant edges on a circle of regions (no coordinates were given), ordered by hemisphere and system; edge colour: t (cividis scale); node size: degree within the finding.",
-        svg: networkSvg,
-      });
-    }
-    const robustnessSvg = robustnessFigure(contrast);
-    if (robustnessSvg) {
-      figures.push({
-        file: `figures/${name}-robustness.svg`,
-        caption: `Which edges stay in a significant subnetwork as the primary threshold changes (a sweep over the same relabelings): a filled square where the edge lies in a component with p_FWE ≤ ${alpha} at that threshold; the most robust edges first.`,
-        svg: robustnessSvg,
-      });
-    }
+        (width) => networkFigure(contrast, results.regions, finding, alpha, width),
+      ),
+    );
+    add(
+      drawnFigure(
+        `figures/${name}-robustness`,
+        "robustness",
+        `Which edges stay in a significant subnetwork as the primary threshold changes (a sweep over the same relabelings): a filled square where the edge lies in a component with p_FWE ≤ ${alpha} at that threshold; the most robust edges first.`,
+        (width) => robustnessFigure(contrast, width),
+      ),
+    );
     return { name, finding, figures };
   });
 

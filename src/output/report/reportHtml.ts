@@ -128,9 +128,9 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     const figures = contrast.figures.flatMap((figure) => {
       figureNumber += 1;
       return [
-        `<figure data-contrast="${k}" data-figure="${h(figure.file.slice(figure.file.lastIndexOf("-") + 1).replace(/\.svg$/, ""))}">`,
-        `<div class="svg">${figure.svg.trim()}</div>`,
-        `<figcaption><strong>Figure ${figureNumber}.</strong> ${h(figure.caption)} <span class="file">(${h(figure.file)})</span></figcaption>`,
+        `<figure data-contrast="${k}" data-figure="${h(figure.kind)}">`,
+        `<div class="svg">${figure.svg.double.trim()}</div>`,
+        `<figcaption><strong>Figure ${figureNumber}.</strong> ${h(figure.caption)} <span class="file">(${h(figure.file)}-180mm.svg; also at 85 mm, and as PNG)</span></figcaption>`,
         `</figure>`,
       ];
     });

@@ -3,7 +3,8 @@ import type { CohortOptions } from "./cohortTable.js";
 import type { KnownResults } from "../writeResults.js";
 import { loadResults, type LoadedResults } from "./loadResults.js";
 import { methodsMarkdown } from "./methodsText.js";
-import { reportContent, type ReportContent } from "./reportContent.js";
+import { figureFileNames, reportContent, type ReportContent } from "./reportContent.js";
+import { rasterise } from "./figures/rasterise.js";
 import { resultsMarkdown } from "./resultsText.js";
 import { reportHtml } from "./reportHtml.js";
 import { tablesLatex, tablesMarkdown } from "./tablesDocuments.js";
@@ -16,7 +17,7 @@ import { tablesDocx } from "./tablesDocx.js";
  *   tables/<name>.tsv            the same at full precision
  *   methods.md                   the methods paragraph and its references
  *   results.md                   a draft results paragraph per contrast
- *   figures/<contrast>-null.svg, -matrix.svg, -network.svg
+ *   figures/<contrast>-<kind>-180mm.svg, -85mm.svg and .png  each figure at two print widths
  *   report.html                  all of it in one self-contained page
  * Pure: built from the loaded results alone.
  */
@@ -29,14 +30,20 @@ export function reportFiles(results: LoadedResults, options: ReportOptions = {},
   for (const table of content.tsv) files.set(`tables/${table.name}.tsv`, formatTsv(table.header, table.rows));
   files.set("methods.md", methodsMarkdown(content.methods));
   files.set("results.md", resultsMarkdown(content.results));
-  for (const contrast of content.contrasts) for (const figure of contrast.figures) files.set(figure.file, figure.svg);
+  for (const contrast of content.contrasts) {
+    for (const figure of contrast.figures) for (const names of figureFileNames(figure)) files.set(names.svg, figure.svg[names.width]);
+  }
   files.set("report.html", reportHtml(results, content));
   return files;
 }
 
-/** The report's binary files (tables.docx), whose writer is asynchronous; from the same content as reportFiles. */
+/** The report's binary files (tables.docx, the figures' PNGs), whose writer is asynchronous; from the same content as reportFiles. */
 export async function reportDocuments(results: LoadedResults, content: ReportContent): Promise<Map<string, Uint8Array>> {
-  return new Map([["tables.docx", await tablesDocx(content.tables, results.summary.tool.version)]]);
+  const files = new Map<string, Uint8Array>([["tables.docx", await tablesDocx(content.tables, results.summary.tool.version)]]);
+  for (const contrast of content.contrasts) {
+    for (const figure of contrast.figures) for (const names of figureFileNames(figure)) files.set(names.png, rasterise(figure.svg[names.width], names.width));
+  }
+  return files;
 }
 
 /** Every report file: reportFiles' text and reportDocuments' bytes, from one ReportContent. */

@@ -92,7 +92,7 @@ describe("plexus report DIR", () => {
     const { code, sink } = await report(components.results);
     expect(sink.stderr).toBe("");
     expect(code).toBe(0);
-    expect(sink.stdout).toMatch(/^plexus report: wrote 17 files to /);
+    expect(sink.stdout).toMatch(/^plexus report: wrote 32 files to /);
     const expected = await allReportFiles(loadResults(components.results));
     expect(expected.has("tables.docx")).toBe(true);
     for (const [name, written] of expected) expect(readFileSync(join(components.results, name)).equals(Buffer.from(written)), name).toBe(true);
@@ -117,10 +117,10 @@ describe("plexus report DIR", () => {
   it("a method-fdr design without coordinates: FDR edge tables (Benjamini–Yekutieli), a circular network, no null figure, an F contrast", async () => {
     expect((await report(fdr.results)).code).toBe(0);
     const figures = readdirSync(join(fdr.results, "figures")).sort();
-    expect(figures.some((name) => name.endsWith("-null.svg"))).toBe(false);
-    expect(figures).toContain("patient_gt_control-matrix.svg");
-    expect(figures).toContain("site_any-matrix.svg");
-    const network = readFileSync(join(fdr.results, "figures", "patient_gt_control-network.svg"), "utf8");
+    expect(figures.some((name) => name.endsWith("-null-180mm.svg"))).toBe(false);
+    expect(figures).toContain("patient_gt_control-matrix-180mm.svg");
+    expect(figures).toContain("site_any-matrix-180mm.svg");
+    const network = readFileSync(join(fdr.results, "figures", "patient_gt_control-network-180mm.svg"), "utf8");
     expect(network).toContain("regions on a circle");
     const tables = readFileSync(join(fdr.results, "tables.md"), "utf8");
     expect(tables).toContain("Edges with q_FDR ≤ 0.05: patient_gt_control");
@@ -158,7 +158,7 @@ describe("plexus report on other inference settings", () => {
     expect(methods).toContain("exchangeability blocks given by site");
     expect(methods).toContain("whose |t| exceeded 3 (positive and negative edges separately)");
     expect(methods).toContain("measured by its mass");
-    expect(existsSync(join(maxT.results, "figures", "patient_vs_control-null.svg"))).toBe(true);
+    expect(existsSync(join(maxT.results, "figures", "patient_vs_control-null-180mm.svg"))).toBe(true);
   });
 });
 
@@ -171,7 +171,7 @@ describe("plexus report warns about edges without a statistic", () => {
     const html = readFileSync(join(counts.results, "report.html"), "utf8");
     expect(html).toContain(`up: ${missing} edges have zero residual variance`);
     expect(readFileSync(join(counts.results, "methods.md"), "utf8")).toContain(`${missing} edges had zero residual variance`);
-    expect(readFileSync(join(counts.results, "figures", "up-matrix.svg"), "utf8")).toContain(`white: ${missing} edges with no statistic`);
+    expect(readFileSync(join(counts.results, "figures", "up-matrix-180mm.svg"), "utf8")).toContain(`white: ${missing} edges with no statistic`);
   });
 });
 

@@ -16,6 +16,7 @@ describe("threshold robustness figure", () => {
         { regionA: "a", regionB: "b", statistic: 2.7, significant: [true, false, false] },
         { regionA: "c", regionB: "d", statistic: 4.1, significant: [true, true, true] },
       ]),
+      "double",
     )!;
     expect((svg.match(/fill="#1f2a44"/g) ?? []).length).toBe(4);
     expect(svg.indexOf("c – d")).toBeLessThan(svg.indexOf("a – b"));
@@ -24,9 +25,9 @@ describe("threshold robustness figure", () => {
   });
 
   it("escapes region labels and draws nothing without a sweep", () => {
-    const svg = robustnessFigure(contrast([{ regionA: "<script>x</script>", regionB: "b", statistic: 3, significant: [true, true, false] }]))!;
+    const svg = robustnessFigure(contrast([{ regionA: "<script>x</script>", regionB: "b", statistic: 3, significant: [true, true, false] }]), "double")!;
     expect(svg).not.toContain("<script>");
     expect(svg).toContain("&lt;script&gt;");
-    expect(robustnessFigure({ summary: { name: "up" } } as unknown as ContrastResults)).toBeNull();
+    expect(robustnessFigure({ summary: { name: "up" } } as unknown as ContrastResults, "double")).toBeNull();
   });
 });

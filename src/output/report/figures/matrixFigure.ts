@@ -1,4 +1,5 @@
 import { Buffer } from "node:buffer";
+import type { PrintWidth } from "./printSize.js";
 import type { Region } from "../../../io/regions.js";
 import type { ContrastResults } from "../loadResults.js";
 import type { SignificantEdges } from "../significantEdges.js";
@@ -19,7 +20,8 @@ const LEVELS = 41;
 const TARGET = 560;
 
 /** `leftOut`: edges the design's edge rules left out (no statistic, white, but not for zero variance). */
-export function matrixFigure(contrast: ContrastResults, regions: Region[], finding: SignificantEdges, leftOut = 0): string {
+export function matrixFigure(contrast: ContrastResults, regions: Region[], finding: SignificantEdges, leftOut: number, printWidth: PrintWidth): string {
+  void printWidth; // drawn at one size until this figure is laid out for print
   const count = regions.length;
   const cell = Math.max(1.5, Math.min(14, TARGET / Math.max(count, 1)));
   const size = cell * count;

@@ -1,4 +1,5 @@
 import type { Region } from "../../../io/regions.js";
+import type { PrintWidth } from "./printSize.js";
 import { hubRegions } from "../hubRegions.js";
 import type { ContrastResults } from "../loadResults.js";
 import { plain } from "../printNumbers.js";
@@ -37,7 +38,8 @@ interface Layout {
   decorations: string[];
 }
 
-export function networkFigure(contrast: ContrastResults, regions: Region[], finding: SignificantEdges, alpha: number): string | null {
+export function networkFigure(contrast: ContrastResults, regions: Region[], finding: SignificantEdges, alpha: number, width: PrintWidth): string | null {
+  void width; // drawn at one size until this figure is laid out for print
   if (finding.edges.length === 0) return null;
   const { edges } = contrast;
   const limit = statisticLimit(edges.statistic);

@@ -1,4 +1,5 @@
 import type { ContrastResults, ResultsSummary } from "../loadResults.js";
+import type { PrintWidth } from "./printSize.js";
 import { count, plain } from "../printNumbers.js";
 import { halo, line, n, niceTicks, rect, svgDocument, text, tickLabel } from "./svgElements.js";
 
@@ -15,7 +16,8 @@ const WIDTH = 640;
 const HEIGHT = 380;
 const MARGIN = { left: 62, right: 24, top: 56, bottom: 76 };
 
-export function nullFigure(contrast: ContrastResults, summary: ResultsSummary): string | null {
+export function nullFigure(contrast: ContrastResults, summary: ResultsSummary, width: PrintWidth): string | null {
+  void width; // drawn at one size until this figure is laid out for print
   const rows = contrast.nullDistribution;
   if (!rows || rows.maxExtent.length === 0) return null;
   const { inference } = summary.options;

@@ -1,4 +1,5 @@
 import type { ContrastResults } from "../loadResults.js";
+import type { PrintWidth } from "./printSize.js";
 import { clip, rect, svgDocument, text } from "./svgElements.js";
 
 /**
@@ -8,7 +9,8 @@ import { clip, rect, svgDocument, text } from "./svgElements.js";
  * Rows run from the most robust (significant at most thresholds, then the
  * largest |t|) down; at most `limit` rows are drawn and the rest counted.
  */
-export function robustnessFigure(contrast: ContrastResults, limit = 40): string | null {
+export function robustnessFigure(contrast: ContrastResults, printWidth: PrintWidth, limit = 40): string | null {
+  void printWidth; // drawn at one size until this figure is laid out for print
   const table = contrast.robustness;
   if (!table || table.rows.length === 0) return null;
   const rows = [...table.rows].sort(
