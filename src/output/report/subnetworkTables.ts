@@ -2,6 +2,7 @@ import { acrossContrastsTableNote } from "./acrossContrastsText.js";
 import { coverageTableNote } from "./coverageRow.js";
 import { thresholdRule } from "../summaryParts.js";
 import type { Cell } from "../tsvWriter.js";
+import { contrastDirection } from "./contrastDirection.js";
 import { hubRegions } from "./hubRegions.js";
 import type { ContrastResults, LoadedResults } from "./loadResults.js";
 import { fixed, MISSING, plain, pValue, significant } from "./printNumbers.js";
@@ -50,6 +51,8 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
     const { summary } = contrast;
     const finding = significantEdges(contrast, alpha);
     const exact = summary.mode === "exact";
+    const direction = contrastDirection(results.summary, summary);
+    const directionLabel = (sign: number): string | null => (direction ? (sign > 0 ? direction.label.positive : direction.label.negative) : null);
     if (finding.kind === "components") {
       const permutations = summary.permutations === undefined ? MISSING : exact ? `${summary.permutations} (all)` : String(summary.permutations);
       if (finding.components.length === 0) {
@@ -65,7 +68,7 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
         subnetworkRows.push({
           cells: [
             summary.name,
-            `${c.id} (${c.sign > 0 ? "positive" : "negative"})`,
+            directionLabel(c.sign) === null ? String(c.id) : `${c.id} (${directionLabel(c.sign)})`,
             rule,
             inference.size,
             String(c.extent),
@@ -81,6 +84,7 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
           summary.name,
           c.id,
           c.sign > 0 ? "positive" : "negative",
+          directionLabel(c.sign),
           inference.threshold,
           inference.tail,
           inference.size,
@@ -141,7 +145,8 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
     subnetworkNotes.push("Contrasts without permutations have no subnetwork test; their edges are selected by q_FDR.");
   }
   subnetworkNotes.push(
-    "Threshold: the primary (edge) threshold on the t-statistic. Extent: edges in the subnetwork; nodes: regions it touches; mass: the sum of (|t| − threshold) over its edges. " +
+    "Subnetwork: its number in components.tsv and, in parentheses, the direction of its edges' effect in the contrast's terms (components.tsv's sign column). " +
+      "Threshold: the primary (edge) threshold on the t-statistic. Extent: edges in the subnetwork; nodes: regions it touches; mass: the sum of (|t| − threshold) over its edges. " +
       "p_FWE: family-wise error-corrected p-value of the subnetwork's size (" +
       `${inference.size}) against the permutation distribution of the largest size, with its 95% Clopper–Pearson interval for Monte Carlo permutations, or exact when every distinct relabeling was enumerated.`,
   );
@@ -176,7 +181,7 @@ export function subnetworkTables(results: LoadedResults): SubnetworkTables {
     tsv: [
       {
         name: "subnetworks",
-        header: ["contrast", "component", "sign", "threshold", "tail", "size_measure", "extent", "nodes", "mass", "p_fwe", "p_fwe_low", "p_fwe_high", "mode", "permutations", "alpha"],
+        header: ["contrast", "component", "sign", "direction", "threshold", "tail", "size_measure", "extent", "nodes", "mass", "p_fwe", "p_fwe_low", "p_fwe_high", "mode", "permutations", "alpha"],
         rows: subnetworkTsv,
       },
       {

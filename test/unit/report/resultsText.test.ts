@@ -9,7 +9,8 @@ import { parseTsv } from "../../../src/io/tsv.js";
 import { loadResults, type ContrastSummary, type LoadedResults, type ResultsSummary } from "../../../src/output/report/loadResults.js";
 import { methodsMarkdown, methodsText, plainMarkdown, segmentsMarkdown } from "../../../src/output/report/methodsText.js";
 import { pValue, significant } from "../../../src/output/report/printNumbers.js";
-import { contrastDirection, resultsMarkdown, resultsText } from "../../../src/output/report/resultsText.js";
+import { resultsMarkdown, resultsText } from "../../../src/output/report/resultsText.js";
+import { contrastDirection } from "../../../src/output/report/contrastDirection.js";
 import { reportFiles } from "../../../src/output/report/writeReport.js";
 import { analysedCohort, GOLDEN_DESIGN, HTML_LABEL, type AnalysedCohort } from "./reportCohort.js";
 

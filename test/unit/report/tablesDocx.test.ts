@@ -117,7 +117,7 @@ function checkSubnetworks(opened: Opened, table: Opened["tables"][number]): numb
   let checked = 0;
   for (const cells of body.filter((row) => row[1] !== "none")) {
     const at = (name: string) => cells[header.indexOf(name)];
-    const row = twin.rows.find((r) => r[col("contrast")] === at("Contrast") && `${r[col("component")]} (${r[col("sign")]})` === at("Subnetwork"));
+    const row = twin.rows.find((r) => r[col("contrast")] === at("Contrast") && (r[col("direction")] === "" ? `${r[col("component")]}` : `${r[col("component")]} (${r[col("direction")]})`) === at("Subnetwork"));
     expect(row, `subnetwork ${at("Contrast")} ${at("Subnetwork")} in subnetworks.tsv`).toBeDefined();
     expect(at("Threshold")).toContain(row![col("threshold")]);
     expect(at("Size measure")).toBe(row![col("size_measure")]);
