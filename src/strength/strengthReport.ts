@@ -2,7 +2,6 @@ import { coverageRow } from "../output/report/coverageRow.js";
 import type { CoverageSummary } from "../output/report/coverageMethods.js";
 import { edgeRulesSummary } from "../output/edgeRulesSummary.js";
 import { escapeHtml } from "../output/report/escapeHtml.js";
-import { COLOUR_SCALE_NAME } from "../output/report/figures/colourScale.js";
 import { nodalFigure, type NodalValues } from "../output/report/figures/nodalFigure.js";
 import type { PrintWidth } from "../output/report/figures/printSize.js";
 import { rasterise } from "../output/report/figures/rasterise.js";
@@ -285,7 +284,7 @@ export function strengthReportHtml(input: StrengthReportInput, content: Strength
     connectomeInputs.length > 0
       ? `<details><summary>${connectomeInputs.length} connectome file${connectomeInputs.length > 1 ? "s" : ""} with their SHA-256</summary>${inputTable(connectomeInputs)}</details>`
       : "",
-    `<p class="hint">The tables are also in this folder as results.md, tables.tex and tables.docx (full precision in ${analysis.choice.measure === "nodal" ? "&lt;contrast&gt;/nodes.tsv" : "&lt;contrast&gt;/measures.tsv"}), each participant's values in strength_values.tsv, the methods in methods.md${content.figures.some((f) => f.length > 0) ? `, and the figures in figures/ (SVG and PNG; ${h(COLOUR_SCALE_NAME)} colour scale, readable in grayscale and by colour-blind readers)` : ""}.</p>`,
+    `<p class="hint">The tables are also in this folder as results.md, tables.tex and tables.docx (full precision in ${analysis.choice.measure === "nodal" ? "&lt;contrast&gt;/nodes.tsv" : "&lt;contrast&gt;/measures.tsv"}), each participant's values in strength_values.tsv${content.figures.some((f) => f.length > 0) ? ", the methods in methods.md and the figures in figures/ (SVG and PNG at 180 mm and 85 mm)" : " and the methods in methods.md"}.</p>`,
     "</section>",
     "</main>",
     `<footer>${h(RESEARCH_NOTICE)}</footer>`,
