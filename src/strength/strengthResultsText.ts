@@ -79,9 +79,9 @@ export function strengthResultsText(prepared: PreparedAnalysis, analysis: Streng
         const bySign = [1, -1].map((sign) => significantOnes.filter((m) => Math.sign(statistics.statistic[m]) === sign)).filter((list) => list.length > 0);
         if (significantOnes.length === 1) {
           const m = significantOnes[0];
-          out.push(`one of the ${counted(M, nouns)} reached ${level} in this sample: in `, { user: analysis.names[m] }, ", ", ...clause(statistics.statistic[m]), ` (${numbers(m, true)}).`);
+          out.push(`one of the ${numberWord(M)} ${nouns.many} reached ${level} in this sample: in `, { user: analysis.names[m] }, ", ", ...clause(statistics.statistic[m]), ` (${numbers(m, true)}).`);
         } else {
-          out.push(`${numberWord(significantOnes.length)} of the ${counted(M, nouns)} reached ${level} in this sample.`);
+          out.push(`${numberWord(significantOnes.length)} of the ${numberWord(M)} ${nouns.many} reached ${level} in this sample.`);
           let named = 0;
           for (const list of bySign) {
             const lead =
@@ -103,30 +103,32 @@ export function strengthResultsText(prepared: PreparedAnalysis, analysis: Streng
     }
 
     // Global strength, or one or more subnetworks.
-    const name = (m: number): Segment[] =>
-      analysis.choice.measure === "global" ? ["global strength"] : [{ user: analysis.names[m] }, ` (${analysis.edgeCounts[m]} ${analysis.edgeCounts[m] === 1 ? "edge" : "edges"})`];
+    const edgesOf = (m: number) => `${analysis.edgeCounts[m]} ${analysis.edgeCounts[m] === 1 ? "edge" : "edges"}`;
+    const item = (m: number, withBeta: boolean): Segment[] => [{ user: analysis.names[m] }, ` (${edgesOf(m)}; ${numbers(m, withBeta)})`];
     if (M === 1) {
       const finite = Number.isFinite(statistics.statistic[0]);
+      const global = analysis.choice.measure === "global";
       if (!finite) {
-        out.push(analysis.choice.measure === "global" ? "global strength" : "the subnetwork's strength", " had no statistic (zero residual variance).");
+        out.push(global ? "global strength" : "the subnetwork's strength", " had no statistic (zero residual variance).");
       } else if (significantOnes.length === 1) {
-        out.push(...clause(statistics.statistic[0]), ` in this sample (${numbers(0, true)})`, ...(analysis.choice.measure === "global" ? [] : [" in ", ...name(0)]), ".");
+        if (global) out.push(...clause(statistics.statistic[0]), ` in this sample (${numbers(0, true)}).`);
+        else out.push("in ", { user: analysis.names[0] }, ` (${edgesOf(0)}), `, ...clause(statistics.statistic[0]), ` in this sample (${numbers(0, true)}).`);
+      } else if (global) {
+        out.push(`global strength did not reach ${level} in this sample (${numbers(0, true)}).`);
       } else {
-        out.push(...(analysis.choice.measure === "global" ? ["global strength"] : ["mean connectivity in ", ...name(0)]), ` did not reach ${level} in this sample (${numbers(0, true)}).`);
+        out.push("mean connectivity in ", ...item(0, true), ` did not reach ${level} in this sample.`);
       }
       return capitalisedSegments(out);
     }
-    out.push(
-      significantOnes.length === 0
-        ? `none of the ${counted(M, nouns)} reached ${level} in this sample.`
-        : `${numberWord(significantOnes.length)} of the ${counted(M, nouns)} reached ${level} in this sample.`,
-    );
-    for (const m of significantOnes) out.push(" In ", ...name(m), ", ", ...clause(statistics.statistic[m]), ` (${numbers(m, true)}).`);
     const others = analysis.names.map((_, m) => m).filter((m) => !significantOnes.includes(m) && Number.isFinite(statistics.statistic[m]));
-    if (others.length > 0) {
-      out.push(significantOnes.length === 0 ? " The measures were: " : others.length === 1 ? " The other: " : " The others: ");
-      out.push(...listed(others, (m) => [...name(m), `, ${numbers(m, false)}`]), ".");
+    if (significantOnes.length === 0) {
+      out.push(M === 2 ? `neither ${nouns.one} reached ${level} in this sample: ` : `none of the ${numberWord(M)} ${nouns.many} reached ${level} in this sample: `, ...listed(others, (m) => item(m, false)), ".");
+      return capitalisedSegments(out);
     }
+    out.push(`${numberWord(significantOnes.length)} of the ${numberWord(M)} ${nouns.many} reached ${level} in this sample.`);
+    for (const m of significantOnes) out.push(" In ", { user: analysis.names[m] }, ` (${edgesOf(m)}), `, ...clause(statistics.statistic[m]), ` (${numbers(m, true)}).`);
+    if (others.length === 1) out.push(" The other, ", ...item(others[0], false), ", did not.");
+    else if (others.length > 1) out.push(" The others did not: ", ...listed(others, (m) => item(m, false)), ".");
     return capitalisedSegments(out);
   });
 

@@ -244,8 +244,15 @@ describe("singular and plural, a single measure, an excluded participant, one co
       const measures = readTable(path.join(out, name, "measures.tsv"));
       measures.rows.forEach((row, m) => {
         const cell = (column: string) => numberColumn(measures, column)[m];
-        expect(text).toContain(`${plainMarkdown(row[0])} (${row[measures.header.indexOf("edges")]} edges)`);
-        expect(text).toContain(`t(${cell("df")}) = ${prose(fixed(cell("t"), 2))}, ${pIs("p", cell("p_unc"))}, ${pIs("p_FWE", cell("p_fwe"))}`);
+        const numbers = `t(${cell("df")}) = ${prose(fixed(cell("t"), 2))}, ${pIs("p", cell("p_unc"))}, ${pIs("p_FWE", cell("p_fwe"))}`;
+        const edges = `${row[measures.header.indexOf("edges")]} edges`;
+        // A significant measure: its name and edges, the direction, then β and the rest; any other: all in one parenthesis.
+        if (cell("p_fwe") <= ALPHA) {
+          expect(text).toMatch(new RegExp(`In ${plainMarkdown(row[0])} \\(${edges}\\), mean connectivity (was greater|decreased|increased) `));
+          expect(text).toContain(`(β = ${prose(significant(cell("beta")))}, ${numbers})`);
+        } else {
+          expect(text).toContain(`${plainMarkdown(row[0])} (${edges}; ${numbers})`);
+        }
       });
     }
   });
