@@ -3,7 +3,8 @@ import { edgeRulesSummary } from "../output/edgeRulesSummary.js";
 import { REFERENCES, type MethodsText } from "../output/report/methodsText.js";
 import type { Segment } from "../output/report/methodsSegment.js";
 import { overridesSentence } from "../output/report/overridesText.js";
-import { plain, significant } from "../output/report/printNumbers.js";
+import { plain, pValue, significant } from "../output/report/printNumbers.js";
+import { contrastDirection } from "../output/report/resultsText.js";
 import { exclusionDenominator, selectionSentence } from "../output/report/selectionMethods.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { residualDf } from "../model/designMatrix.js";
@@ -83,11 +84,7 @@ export function strengthMethods(prepared: PreparedAnalysis, analysis: StrengthAn
     data.push(` For each participant, global strength was computed as the mean of all ${analysis.edgeCounts[0]} ${weights}.`);
   } else {
     data.push(` For each participant, the strength of ${M === 1 ? "a subnetwork" : `${numberWord(M)} subnetworks`} was computed as the mean of the ${weights} over ${M === 1 ? "its" : "each one's"} edges: `);
-    data.push(...listed(analysis.names, (name) => {
-      const m = analysis.names.indexOf(name);
-      const set = choice.sets[m];
-      return [{ user: name }, " (", { user: set?.description ?? analysis.descriptions[m] }, `, ${plural(analysis.edgeCounts[m] ?? 0, "edge")})`];
-    }));
+    data.push(...listed(analysis.names.map((_, m) => m), (m) => setText(analysis, m, source)));
     data.push(".");
     if (source) data.push(...sourceSentence(source, cite));
   }
@@ -203,6 +200,29 @@ export function strengthMethods(prepared: PreparedAnalysis, analysis: StrengthAn
   return { paragraphs: [data, model, inferenceText], references: [...references].sort() };
 }
 
+/**
+ * One subnetwork in words: its name and edge count, and how it was chosen (a
+ * component of an earlier run: its direction in that contrast's words and its p_FWE there).
+ */
+function setText(analysis: StrengthAnalysis, m: number, source: StrengthSource | undefined): Segment[] {
+  const name = analysis.names[m];
+  const edges = plural(analysis.edgeCounts[m] ?? 0, "edge");
+  const component = source?.subnetworks.chosen.find((c) => `component_${c.id}` === name);
+  if (source && component) {
+    const { results, contrast } = source.subnetworks;
+    const summary = results.contrasts.find((c) => c.summary.name === contrast)?.summary;
+    const direction = summary ? contrastDirection(results.summary, summary) : null;
+    const p = pValue(component.pFwe);
+    return [
+      { user: name },
+      ` (${edges}; in the earlier analysis, `,
+      ...(direction ? (component.sign > 0 ? direction.positive : direction.negative) : ["a component of ", { user: contrast }]),
+      `, p_FWE ${p.startsWith("<") ? p : `= ${p}`})`,
+    ];
+  }
+  return [{ user: name }, " (", { user: analysis.choice.sets[m]?.description ?? analysis.descriptions[m] }, `, ${edges})`];
+}
+
 /** "1 column", "4 columns". */
 function plural(value: number, noun: string): string {
   return `${value} ${value === 1 ? noun : `${noun}s`}`;
@@ -238,13 +258,13 @@ function sourceSentence(source: StrengthSource, cite: (reference: string, text: 
   const { subnetworks, overlap } = source;
   const chosen = subnetworks.chosen.length;
   const out: Segment[] = [
-    ` The ${chosen === 1 ? "subnetwork was a component" : "subnetworks were components"} found by an earlier analysis (contrast `,
+    ` ${chosen === 1 ? "It was a connected component" : "They were connected components"} of an earlier network analysis (contrast `,
     { user: subnetworks.contrast },
-    `, family-wise significance level ${plain(subnetworks.alpha)}).`,
+    `, α = ${plain(subnetworks.alpha)}).`,
   ];
   if (overlap.sharedFiles > 0 || overlap.sharedParticipants > 0) {
     out.push(
-      ` That analysis used ${overlap.sharedParticipants} of these ${overlap.usedHere} participants${overlap.sharedFiles > 0 ? " and the same connectivity files" : ""}, so testing the subnetworks again here is circular: their effects are inflated and their p-values are not valid (${cite(STRENGTH_REFERENCES.kriegeskorte, "Kriegeskorte et al. 2009")}).`,
+      ` That analysis used ${overlap.sharedParticipants === overlap.usedHere ? `all ${overlap.usedHere}` : `${overlap.sharedParticipants} of the ${overlap.usedHere}`} of these participants${overlap.sharedFiles > 0 ? " and the same connectivity files" : ""}, so testing the subnetworks again here is circular: their effects are inflated and their p-values are not valid (${cite(STRENGTH_REFERENCES.kriegeskorte, "Kriegeskorte et al. 2009")}).`,
     );
   }
   return out;

@@ -81,7 +81,7 @@ export function strengthResultsText(prepared: PreparedAnalysis, analysis: Streng
           const m = significantOnes[0];
           out.push(`one of the ${numberWord(M)} ${nouns.many} reached ${level} in this sample: in `, { user: analysis.names[m] }, ", ", ...clause(statistics.statistic[m]), ` (${numbers(m, true)}).`);
         } else {
-          out.push(`${numberWord(significantOnes.length)} of the ${numberWord(M)} ${nouns.many} reached ${level} in this sample.`);
+          out.push(`${allOrSome(significantOnes.length, M, nouns.many)} reached ${level} in this sample.`);
           let named = 0;
           for (const list of bySign) {
             const lead =
@@ -125,7 +125,7 @@ export function strengthResultsText(prepared: PreparedAnalysis, analysis: Streng
       out.push(M === 2 ? `neither ${nouns.one} reached ${level} in this sample: ` : `none of the ${numberWord(M)} ${nouns.many} reached ${level} in this sample: `, ...listed(others, (m) => item(m, false)), ".");
       return capitalisedSegments(out);
     }
-    out.push(`${numberWord(significantOnes.length)} of the ${numberWord(M)} ${nouns.many} reached ${level} in this sample.`);
+    out.push(`${allOrSome(significantOnes.length, M, nouns.many)} reached ${level} in this sample.`);
     for (const m of significantOnes) out.push(" In ", { user: analysis.names[m] }, ` (${edgesOf(m)}), `, ...clause(statistics.statistic[m]), ` (${numbers(m, true)}).`);
     if (others.length === 1) out.push(" The other, ", ...item(others[0], false), ", did not.");
     else if (others.length > 1) out.push(" The others did not: ", ...listed(others, (m) => item(m, false)), ".");
@@ -141,6 +141,12 @@ export function strengthResultsText(prepared: PreparedAnalysis, analysis: Streng
     "Check every number against the tables before use.",
   ].join(" ");
   return { paragraphs, caution };
+}
+
+/** "two of the 60 regions", "both subnetworks", "all three subnetworks". */
+function allOrSome(count: number, total: number, many: string): string {
+  if (count < total) return `${numberWord(count)} of the ${numberWord(total)} ${many}`;
+  return total === 2 ? `both ${many}` : `all ${numberWord(total)} ${many}`;
 }
 
 function capitalisedSegments(segments: Segment[]): Segment[] {
