@@ -264,7 +264,7 @@ function sourceSentence(source: StrengthSource, cite: (reference: string, text: 
   ];
   if (overlap.sharedFiles > 0 || overlap.sharedParticipants > 0) {
     out.push(
-      ` That analysis used ${overlap.sharedParticipants === overlap.usedHere ? `all ${overlap.usedHere}` : `${overlap.sharedParticipants} of the ${overlap.usedHere}`} of these participants${overlap.sharedFiles > 0 ? " and the same connectivity files" : ""}, so testing the subnetworks again here is circular: their effects are inflated and their p-values are not valid (${cite(STRENGTH_REFERENCES.kriegeskorte, "Kriegeskorte et al. 2009")}).`,
+      ` That analysis used ${overlap.sharedParticipants === overlap.usedHere ? `all ${overlap.usedHere} of these participants` : `${overlap.sharedParticipants} of these ${overlap.usedHere} participants`}${overlap.sharedFiles > 0 ? " and the same connectivity files" : ""}, so testing the subnetworks again here is circular: their effects are inflated and their p-values are not valid (${cite(STRENGTH_REFERENCES.kriegeskorte, "Kriegeskorte et al. 2009")}).`,
     );
   }
   return out;
