@@ -73,17 +73,18 @@ export function strengthMethods(prepared: PreparedAnalysis, analysis: StrengthAn
   data.push(...coverage.segments);
   coverage.references.forEach((r) => references.add(r));
   const kept = prepared.edgeRules ? "kept " : "";
-  const weights = choice.positiveOnly ? `${kept}edge weights, with negative weights counted as zero` : `${kept}edge weights`;
+  const weights = `${kept}edge weights`;
+  const positive = choice.positiveOnly ? ", with negative weights counted as zero" : "";
   if (choice.measure === "nodal") {
     data.push(
       choice.mean
-        ? ` For each participant, the strength of each region was computed as the mean of its ${weights} over its ${prepared.connectomes.regionCount - 1} possible neighbours (weighted degree divided by the number of other regions; ${cite(STRENGTH_REFERENCES.rubinovSporns, "Rubinov & Sporns 2010")}).`
-        : ` For each participant, the strength of each region was computed as the sum of its ${weights} (weighted degree; ${cite(STRENGTH_REFERENCES.rubinovSporns, "Rubinov & Sporns 2010")}).`,
+        ? ` For each participant, the strength of each region was computed as the mean of its ${weights} over its ${prepared.connectomes.regionCount - 1} possible neighbours${positive} (weighted degree divided by the number of other regions; ${cite(STRENGTH_REFERENCES.rubinovSporns, "Rubinov & Sporns 2010")}).`
+        : ` For each participant, the strength of each region was computed as the sum of its ${weights}${positive} (weighted degree; ${cite(STRENGTH_REFERENCES.rubinovSporns, "Rubinov & Sporns 2010")}).`,
     );
   } else if (choice.measure === "global") {
-    data.push(` For each participant, global strength was computed as the mean of all ${analysis.edgeCounts[0]} ${weights}.`);
+    data.push(` For each participant, global strength was computed as the mean of all ${analysis.edgeCounts[0]} ${weights}${positive}.`);
   } else {
-    data.push(` For each participant, the strength of ${M === 1 ? "a subnetwork" : `${numberWord(M)} subnetworks`} was computed as the mean of the ${weights} over ${M === 1 ? "its" : "each one's"} edges: `);
+    data.push(` For each participant, the strength of ${M === 1 ? "a subnetwork" : `${numberWord(M)} subnetworks`} was computed as the mean of the ${weights} over ${M === 1 ? "its" : "each one's"} edges${positive}: `);
     data.push(...listed(analysis.names.map((_, m) => m), (m) => setText(analysis, m, source)));
     data.push(".");
     if (source) data.push(...sourceSentence(source, cite));

@@ -91,7 +91,7 @@ export function strengthResultsText(prepared: PreparedAnalysis, analysis: Streng
             named += shown.length;
             out.push(...listed(shown, (m) => [{ user: analysis.names[m] }, ` (${numbers(m, true)})`]));
             const rest = list.length - shown.length;
-            out.push(rest > 0 ? `, and ${rest} more (${table}).` : ".");
+            out.push(rest > 0 ? `; ${rest} more ${rest === 1 ? "is" : "are"} listed in ${table}.` : ".");
           }
         }
       }

@@ -15,6 +15,8 @@ import { printSvgDocument } from "../../../src/output/report/figures/printSize.j
 import { prepareAnalysis } from "../../../src/run/prepareAnalysis.js";
 import { analyzeStrength } from "../../../src/strength/strengthAnalysis.js";
 import { strengthReportContent, strengthReportFiles, type NodalDrawing } from "../../../src/strength/strengthReport.js";
+import { NAMED_REGIONS, strengthResultsText } from "../../../src/strength/strengthResultsText.js";
+import { segmentsMarkdown } from "../../../src/output/report/methodsText.js";
 import { numberColumn, readTable, runCli, writeDesignFile, writeSimulatedCohort, groupDesignLines } from "./strengthTestFiles.js";
 
 /** A region label that closes the data script element and opens another; it must stay text. */
@@ -285,5 +287,31 @@ describe("the nodal figure, when figures/nodalFigure.ts draws one", () => {
       expect(seen[2 * k].statistic).toEqual(Array.from(result.statistics.statistic));
       expect(seen[2 * k].significant).toEqual(Array.from(result.familywise!.pFwe, (p) => p <= ALPHA));
     });
+  });
+});
+
+describe("the nodal paragraph's wording for both directions and many regions", () => {
+  it("groups the regions by direction in words, names at most NAMED_REGIONS and counts the rest", async () => {
+    const prepared = prepareAnalysis(design);
+    const analysis = await analyzeStrength(prepared, { measure: "nodal", positiveOnly: false, mean: false, sets: [] }, { threads: 1, chunkSize: 250 });
+    const result = analysis.contrasts[0];
+    // Stand-in results (the wording is under test, not the statistics): 12 regions at p_FWE ≤ alpha,
+    // the first 9 with a positive t, the next 3 with a negative t, the t falling with the region index.
+    const statistic = Float64Array.from(result.statistics.statistic, (_, i) => (i < 9 ? 6 - 0.1 * i : i < 12 ? -(6 - 0.1 * i) : 0.5));
+    const p = Float64Array.from(statistic, (t) => (Math.abs(t) > 1 ? 0.001 : 0.6));
+    const changed = { ...result, statistics: { ...result.statistics, statistic }, pUncorrected: p, qFdr: p, familywise: { ...result.familywise!, pFwe: p } };
+    const text = strengthResultsText(prepared, { ...analysis, contrasts: [changed, analysis.contrasts[1]] });
+    const paragraph = segmentsMarkdown(text.paragraphs[0]);
+    const label = (i: number) => plainMarkdown(prepared.regions[i].label);
+    expect(paragraph).toContain("12 of the 16 regions reached p_FWE ≤ 0.05 in this sample.");
+    expect(paragraph).toContain(" In nine, strength was greater in the patient group than in the control group: ");
+    expect(paragraph).toContain(" In three, strength was greater in the control group than in the patient group: ");
+    expect(paragraph).not.toMatch(/\b(positive|negative)\b/);
+    // The first NAMED_REGIONS in order of p are named (nine up, then one down), the other two counted.
+    expect(NAMED_REGIONS).toBe(10);
+    for (let i = 0; i < 10; i++) expect(paragraph, `region ${i}`).toContain(`${label(i)} (β = `);
+    for (const i of [10, 11]) expect(paragraph).not.toContain(`${label(i)} (β = `);
+    expect(paragraph).toContain(`${label(9)} (β = ${prose(significant(result.statistics.estimate[9]))}, t(${result.statistics.df}) = −5.10, p = 0.001, p_FWE = 0.001); 2 more are listed in Table 1.`);
+    expect(paragraph).toContain("Region by region, 12 regions had q_FDR ≤ 0.05 (false discovery rate).");
   });
 });
