@@ -12,10 +12,7 @@ import { overridesRow } from "../output/report/overridesText.js";
 import { plain } from "../output/report/printNumbers.js";
 import { drawnFigure, figureFileNames, type ReportFigure } from "../output/report/reportContent.js";
 import type { ReportData } from "../output/report/reportData.js";
-import { scriptJson } from "../output/report/reportData.js";
-import { RESEARCH_NOTICE } from "../output/report/reportHtml.js";
-import { REPORT_SCRIPT, REPORT_SCRIPT_STYLE, reportScriptSource } from "../output/report/reportScript.js";
-import { REPORT_STYLE } from "../output/report/reportStyle.js";
+import { figureHtml, inputsHtml, RESEARCH_NOTICE, reportPage } from "../output/report/reportPage.js";
 import type { ReportTable } from "../output/report/reportTable.js";
 import { resultsHtml, type ResultsText } from "../output/report/resultsText.js";
 import { htmlTable } from "../output/report/tables/htmlTable.js";
@@ -195,15 +192,7 @@ export function strengthReportHtml(input: StrengthReportInput, content: Strength
 
   let figureNumber = 0;
   const sections = analysis.contrasts.map((result, k) => {
-    const figures = content.figures[k].flatMap((figure) => {
-      figureNumber += 1;
-      return [
-        `<figure data-contrast="${k}" data-figure="${h(figure.kind)}">`,
-        `<div class="svg">${figure.svg.double.trim()}</div>`,
-        `<figcaption><strong>Figure ${figureNumber}.</strong> ${h(figure.caption)} <span class="file">(${h(figure.file)}-180mm.svg; also at 85 mm, and as PNG)</span></figcaption>`,
-        `</figure>`,
-      ];
-    });
+    const figures = content.figures[k].flatMap((figure) => figureHtml(k, figure, (figureNumber += 1)));
     const { table, number } = content.tables[k];
     const { label } = criterion(analysis, result);
     const none =
@@ -219,26 +208,10 @@ export function strengthReportHtml(input: StrengthReportInput, content: Strength
     ];
   });
 
-  const mainInputs = input.inputs.filter((i) => i.role !== "connectome");
-  const connectomeInputs = input.inputs.filter((i) => i.role === "connectome");
-  const inputTable = (list: StrengthReportInput["inputs"]) =>
-    `<div class="table-wrap"><table><thead><tr><th>Role</th><th>Path (relative to the design file)</th><th>SHA-256</th></tr></thead><tbody>\n${list
-      .map((i) => `<tr><td>${h(i.role)}</td><td><code>${h(i.path)}</code></td><td class="hash"><code>${h(i.sha256)}</code></td></tr>`)
-      .join("\n")}\n</tbody></table></div>`;
   // The script needs no per-edge data here: it sorts the tables; the region labels ride along as data.
   const data: ReportData = { regions: prepared.regions.map((r) => r.label), order: regionOrder(prepared.regions).order, a: [], b: [], contrasts: [] };
 
-  return [
-    "<!DOCTYPE html>",
-    '<html lang="en">',
-    "<head>",
-    '<meta charset="utf-8">',
-    '<meta name="viewport" content="width=device-width, initial-scale=1">',
-    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:; script-src ${reportScriptSource()}">`,
-    `<title>plexus strength report: ${h(design.model)}</title>`,
-    `<style>\n${REPORT_STYLE}${REPORT_SCRIPT_STYLE}</style>`,
-    "</head>",
-    "<body>",
+  return reportPage(`plexus strength report: ${design.model}`, data, [
     "<header>",
     "<h1>plexus strength results</h1>",
     `<p class="subtitle">${h(measureTitle.charAt(0).toUpperCase() + measureTitle.slice(1))} · model ${code(design.model)} · ${used} participants · ${regions} regions · plexus ${h(VERSION)}</p>`,
@@ -280,18 +253,9 @@ export function strengthReportHtml(input: StrengthReportInput, content: Strength
     `<dt>Command line</dt><dd>${input.command ? code(input.command.join(" ")) : "not recorded (run through the library)"}</dd>`,
     `<dt>Seed</dt><dd>${h(String(inference.seed))}${permuted.length > 0 ? "" : " (no relabelings drawn)"}</dd>`,
     "</dl>",
-    inputTable(mainInputs),
-    connectomeInputs.length > 0
-      ? `<details><summary>${connectomeInputs.length} connectome file${connectomeInputs.length > 1 ? "s" : ""} with their SHA-256</summary>${inputTable(connectomeInputs)}</details>`
-      : "",
+    ...inputsHtml(input.inputs),
     `<p class="hint">The tables are also in this folder as results.md, tables.tex and tables.docx (full precision in ${analysis.choice.measure === "nodal" ? "&lt;contrast&gt;/nodes.tsv" : "&lt;contrast&gt;/measures.tsv"}), each participant's values in strength_values.tsv${content.figures.some((f) => f.length > 0) ? ", the methods in methods.md and the figures in figures/ (SVG and PNG at 180 mm and 85 mm)" : " and the methods in methods.md"}.</p>`,
     "</section>",
     "</main>",
-    `<footer>${h(RESEARCH_NOTICE)}</footer>`,
-    `<script type="application/json" id="plexus-data">${scriptJson(data)}</script>`,
-    `<script>${REPORT_SCRIPT}</script>`,
-    "</body>",
-    "</html>",
-    "",
-  ].join("\n");
+  ]);
 }
