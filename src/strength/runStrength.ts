@@ -14,7 +14,9 @@ import { refuseRepeated } from "../run/repeatedScans.js";
 import { circularityWarning, sampleOverlap, type SampleOverlap } from "./sampleOverlap.js";
 import { selectEdgeSets } from "./selectEdgeSets.js";
 import { analyzeStrength, type StrengthAnalysis } from "./strengthAnalysis.js";
-import { strengthLatex, strengthMarkdown, strengthPrintTables } from "./strengthMarkdown.js";
+import { strengthLatex, strengthMarkdown } from "./strengthMarkdown.js";
+import { strengthReportContent, strengthReportFiles, type StrengthReportInput } from "./strengthReport.js";
+import { inputsSummary } from "../output/summaryParts.js";
 import { resolveMeasure, type EdgeSelection, type StrengthOptions } from "./strengthOptions.js";
 import { strengthSummary } from "./strengthSummary.js";
 import { VERSION } from "../version.js";
@@ -26,7 +28,9 @@ import { measuresTable, nodesTable, valuesTable } from "./strengthTables.js";
  * computes the measures, fits the contrasts, draws the permutations and
  * writes the results folder atomically:
  *   <contrast>/nodes.tsv     (nodal)  or  <contrast>/measures.tsv (global, subnetwork)
- *   strength_values.tsv, results.md, tables.tex and tables.docx (the same print tables), summary.json
+ *   strength_values.tsv, results.md (draft results paragraphs and the print tables), tables.tex and
+ *   tables.docx (the same tables), methods.md, figures/<contrast>-nodal-180mm.svg, -85mm.svg and .png
+ *   (nodal, when the figure draws), report.html, summary.json
  */
 export interface StrengthLog {
   info(text: string): void;
@@ -99,12 +103,15 @@ export async function runStrength(options: StrengthOptions, log: StrengthLog, pr
       }
     }
     folder.write("strength_values.tsv", valuesTable(prepared.kept.map((k) => k.id), [], analysis.names, analysis.values));
-    folder.write("results.md", strengthMarkdown(prepared, analysis, warnings));
-    const printTables = strengthPrintTables(prepared, analysis);
-    const twins = `<contrast>/${measure === "nodal" ? "nodes" : "measures"}.tsv hold the same values`;
-    folder.write("tables.tex", strengthLatex(printTables, VERSION, twins));
-    folder.write("tables.docx", await tablesDocx(printTables, VERSION, twins));
     const summary = strengthSummary(prepared, analysis, inputs, options.commandLine ?? null, source, warnings);
+    const report: StrengthReportInput = { prepared, analysis, warnings, source, inputs: inputsSummary(inputs, prepared.design.file), command: options.commandLine ?? null };
+    const content = strengthReportContent(report);
+    folder.write("results.md", strengthMarkdown(prepared, analysis, warnings, content.results));
+    const twins = `<contrast>/${measure === "nodal" ? "nodes" : "measures"}.tsv hold the same values`;
+    folder.write("tables.tex", strengthLatex(content.tables, VERSION, twins));
+    folder.write("tables.docx", await tablesDocx(content.tables, VERSION, twins));
+    // methods.md, the figures (SVG and PNG at both widths) and report.html, into the same uncommitted folder.
+    for (const [file, text] of strengthReportFiles(report, content)) folder.write(file, text);
     folder.write("summary.json", `${JSON.stringify(summary, null, 2)}\n`);
     folder.commit();
     if (!options.quiet) {

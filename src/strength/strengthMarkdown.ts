@@ -4,13 +4,14 @@ import { selectionText } from "../io/selectParticipants.js";
 import { escapeMarkdown } from "../output/report/escapeMarkdown.js";
 import { fixed, MISSING, pValue, significant } from "../output/report/printNumbers.js";
 import type { ReportTable } from "../output/report/reportTable.js";
+import { resultsMarkdown, type ResultsText } from "../output/report/resultsText.js";
 import { latexTable } from "../output/report/tables/latexTable.js";
 import { markdownTable } from "../output/report/tables/markdownTable.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import type { StrengthAnalysis, StrengthContrast } from "./strengthAnalysis.js";
 
 /**
- * results.md: a table for the results section per contrast — β (the
+ * The print tables of results.md, tables.tex and tables.docx: a table per contrast — β (the
  * contrast's estimate c'β̂), SE, t, df, p and partial r per measure, with
  * p_FWE (and q_FDR for regions) — in the house style of printed numbers
  * (src/output/report/printNumbers.ts: p to three decimals, "< 0.001" below).
@@ -116,9 +117,14 @@ function plainWords(text: string): string {
   return text.replace(/`([^`\n]+)`/g, "$1");
 }
 
-export function strengthMarkdown(prepared: PreparedAnalysis, analysis: StrengthAnalysis, warnings: string[]): string {
+/**
+ * results.md: the warnings, the draft results paragraphs (strengthResultsText.ts) and the print
+ * tables, so the file holds the text and the numbers it quotes.
+ */
+export function strengthMarkdown(prepared: PreparedAnalysis, analysis: StrengthAnalysis, warnings: string[], results?: ResultsText): string {
   const parts = ["# Network strength", ""];
   for (const warning of warnings) parts.push(`> **Caution.** ${escapeMarkdown(plainWords(warning.charAt(0).toUpperCase() + warning.slice(1)))}`, "");
+  if (results) parts.push(resultsMarkdown(results).trimEnd(), "", "## Tables", "");
   for (const { table, number } of strengthPrintTables(prepared, analysis)) parts.push(markdownTable(table, number).trimEnd(), "");
   return `${parts.join("\n").trimEnd()}\n`;
 }

@@ -103,7 +103,19 @@ describe("plexus strength", () => {
     const result = await runCli(["strength", design, "--out", out, "--threads", "1"]);
     expect(result.stderr).not.toContain("error");
     expect(result.code).toBe(0);
-    expect(readdirSync(out).sort()).toEqual(["age_down", "patient_gt_control", "plexus-files.json", "results.md", "strength_values.tsv", "summary.json", "tables.docx", "tables.tex"]);
+    // figures/ holds the nodal figure of each contrast when figures/nodalFigure.ts draws one.
+    expect(readdirSync(out).filter((name) => name !== "figures").sort()).toEqual([
+      "age_down",
+      "methods.md",
+      "patient_gt_control",
+      "plexus-files.json",
+      "report.html",
+      "results.md",
+      "strength_values.tsv",
+      "summary.json",
+      "tables.docx",
+      "tables.tex",
+    ]);
     const { rows, labels, matrices } = raw();
     const strength = rowSums(matrices);
 

@@ -135,6 +135,11 @@ describe("plexus extract", () => {
     expect(result.code, result.stderr).toBe(0);
     expect(result.stderr).toContain("double dipping");
     expect(readFileSync(path.join(out, "results.md"), "utf8")).toContain("**Caution.**");
+    // The methods and the draft results say it too, with the reference.
+    const methods = readFileSync(path.join(out, "methods.md"), "utf8");
+    expect(methods).toContain("so testing the subnetworks again here is circular: their effects are inflated and their p-values are not valid (Kriegeskorte et al. 2009)");
+    expect(methods).toContain("Kriegeskorte N, Simmons WK, Bellgowan PSF, Baker CI (2009). Circular analysis in systems neuroscience: the dangers of double dipping. Nature Neuroscience 12:535–540.");
+    expect(readFileSync(path.join(out, "results.md"), "utf8")).toContain("The subnetworks were found in data that overlap these: their effects here are inflated");
     const summary = JSON.parse(readFileSync(path.join(out, "summary.json"), "utf8"));
     expect(summary.subnetwork_source.shared_connectome_files).toBe(24);
     expect(summary.warnings.some((w: string) => w.includes("double dipping"))).toBe(true);

@@ -20,14 +20,19 @@ const LEVEL_COLUMN = /^(.+)\[([^\]]+)\]$/;
  * (paired differences). Null for an F contrast; a contrast of another form is
  * described by its sign ("the contrast … was positive").
  */
-export function contrastDirection(summary: ResultsSummary, contrast: ContrastSummary): ContrastDirection | null {
+export function contrastDirection(
+  summary: { design: Pick<ResultsSummary["design"], "columns" | "levels" | "coding">; repeated?: ResultsSummary["repeated"] },
+  contrast: Pick<ContrastSummary, "statistic" | "vector" | "rows" | "expression">,
+  /** What the contrast compares, in words: "connectivity" (edges), "strength" (plexus strength). */
+  measured = "connectivity",
+): ContrastDirection | null {
   if (contrast.statistic === "F") return null;
   const vector = contrastRows(contrast)[0];
   const { columns, levels } = summary.design;
   const used = vector.map((v, j) => j).filter((j) => vector[j] !== 0);
   const repeated = summary.repeated;
   const paired = repeated?.design === "paired differences";
-  const quantity = paired && repeated ? `the change in connectivity from ${repeated.levels[0]} to ${repeated.levels[1]}` : "connectivity";
+  const quantity = paired && repeated ? `the change in ${measured} from ${repeated.levels[0]} to ${repeated.levels[1]}` : measured;
   const fallback: ContrastDirection = {
     positive: ["the contrast ", { user: contrast.expression }, " was positive"],
     negative: ["the contrast ", { user: contrast.expression }, " was negative"],
@@ -41,7 +46,7 @@ export function contrastDirection(summary: ResultsSummary, contrast: ContrastSum
   };
   const comparison = (variable: string, high: string, low: string): Segment[] =>
     repeated && variable === repeated.within
-      ? ["connectivity was greater at ", { user: high }, " than at ", { user: low }]
+      ? [`${measured} was greater at `, { user: high }, " than at ", { user: low }]
       : [`${quantity} was greater in the `, { user: high }, " group than in the ", { user: low }, " group"];
   const twoWay = (variable: string, first: string, second: string): ContrastDirection => ({
     positive: comparison(variable, first, second),

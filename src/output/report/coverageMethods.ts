@@ -2,6 +2,11 @@ import type { LoadedResults } from "./loadResults.js";
 import type { Segment } from "./methodsSegment.js";
 import { presentInPercent } from "../edgeRulesSummary.js";
 
+/** What the sentences read of a summary.json (a run's or plexus strength's). */
+export type CoverageSummary = Pick<LoadedResults["summary"], "edge_rules"> & {
+  options: Pick<LoadedResults["summary"]["options"], "transform" | "scale"> & { inference: Pick<LoadedResults["summary"]["options"]["inference"], "method"> };
+};
+
 const DE_REUS = "de Reus MA, van den Heuvel MP (2013). Estimating false positives and negatives in brain networks. NeuroImage 70:402–409.";
 
 /**
@@ -9,7 +14,7 @@ const DE_REUS = "de Reus MA, van den Heuvel MP (2013). Estimating false positive
  * the log1p transform (at reading), the coverage rules (`edges:`), the scaling
  * to each participant's total (`scale: total`). Empty when none is in force.
  */
-export function coverageMethods(summary: LoadedResults["summary"]): { segments: Segment[]; references: string[] } {
+export function coverageMethods(summary: CoverageSummary): { segments: Segment[]; references: string[] } {
   const segments: Segment[] = [];
   const references: string[] = [];
   if (summary.options.transform === "log1p") {

@@ -1,12 +1,13 @@
 import type { LoadedResults } from "./loadResults.js";
 import { presentInPercent } from "../edgeRulesSummary.js";
+import type { CoverageSummary } from "./coverageMethods.js";
 
 /**
  * The report's summary row on the edges' path (`edges:`, `scale`, `transform: log1p`):
  * how many edges were analysed and why the others were left out. Null when none is in force.
  * Text from the user's files (region labels) goes through `h` (HTML-escaped).
  */
-export function coverageRow(summary: LoadedResults["summary"], h: (text: string) => string): [string, string] | null {
+export function coverageRow(summary: CoverageSummary, h: (text: string) => string): [string, string] | null {
   const rules = summary.edge_rules;
   const steps: string[] = [];
   if (summary.options.transform === "log1p") steps.push("log(1 + x)");

@@ -160,7 +160,7 @@ export interface ContrastSummary {
 }
 
 /** The contrast's rows: `rows` for an F contrast, else the one vector. */
-export function contrastRows(c: ContrastSummary): number[][] {
+export function contrastRows(c: Pick<ContrastSummary, "rows" | "vector">): number[][] {
   if (c.rows) return c.rows;
   return Array.isArray(c.vector[0]) ? (c.vector as number[][]) : [c.vector as number[]];
 }

@@ -28,7 +28,8 @@ export interface MethodsText {
 
 // Full references (authors, year, title, journal, volume, pages), written from memory of these
 // well-known papers and books; the in-text citations name the same authors and years.
-const REFERENCES = {
+// Exported for the other methods writers (plexus strength) that rely on the same methods.
+export const REFERENCES = {
   benjaminiHochberg:
     "Benjamini Y, Hochberg Y (1995). Controlling the false discovery rate: a practical and powerful approach to multiple testing. Journal of the Royal Statistical Society, Series B 57:289–300.",
   benjaminiYekutieli: "Benjamini Y, Yekutieli D (2001). The control of the false discovery rate in multiple testing under dependency. The Annals of Statistics 29:1165–1188.",

@@ -10,13 +10,12 @@ import { methodsHtml } from "./methodsText.js";
 import { resultsHtml } from "./resultsText.js";
 import { plain } from "./printNumbers.js";
 import type { ReportContent } from "./reportContent.js";
-import { REPORT_STYLE } from "./reportStyle.js";
 import { thresholdRule } from "../summaryParts.js";
 import { htmlTable } from "./tables/htmlTable.js";
 import { overridesRow } from "./overridesText.js";
 import { selectedCount } from "./selectionMethods.js";
-import { reportData, scriptJson } from "./reportData.js";
-import { REPORT_SCRIPT, REPORT_SCRIPT_STYLE, reportScriptSource } from "./reportScript.js";
+import { reportData } from "./reportData.js";
+import { figureHtml, inputsHtml, RESEARCH_NOTICE, reportPage } from "./reportPage.js";
 
 /**
  * report.html: one self-contained page (inline CSS, SVG and one inline script,
@@ -27,8 +26,7 @@ import { REPORT_SCRIPT, REPORT_SCRIPT_STYLE, reportScriptSource } from "./report
  * page shows everything without the script (reportScript.ts adds tooltips,
  * subnetwork highlighting and sortable tables).
  */
-export const RESEARCH_NOTICE =
-  "plexus is a research tool for group statistics on brain networks. It is not a medical device: its results describe groups and must not be used to diagnose, treat or make decisions about any individual. Use it, and share this report, only as your ethics approval, data-protection rules and local practice allow.";
+export { RESEARCH_NOTICE } from "./reportPage.js";
 
 export function reportHtml(results: LoadedResults, content: ReportContent): string {
   const { summary } = results;
@@ -125,15 +123,7 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   // of a few hundred regions is megabytes of text, copied at every join.
   const contrastSections = content.contrasts.map((contrast, k) => {
     const c = summary.contrasts[k];
-    const figures = contrast.figures.flatMap((figure) => {
-      figureNumber += 1;
-      return [
-        `<figure data-contrast="${k}" data-figure="${h(figure.kind)}">`,
-        `<div class="svg">${figure.svg.double.trim()}</div>`,
-        `<figcaption><strong>Figure ${figureNumber}.</strong> ${h(figure.caption)} <span class="file">(${h(figure.file)}-180mm.svg; also at 85 mm, and as PNG)</span></figcaption>`,
-        `</figure>`,
-      ];
-    });
+    const figures = contrast.figures.flatMap((figure) => figureHtml(k, figure, (figureNumber += 1)));
     const none =
       contrast.finding.edges.length === 0
         ? `<p class="none">No ${contrast.finding.kind === "components" ? "subnetwork reached" : "edge reached"} ${contrast.finding.kind === "components" ? "p_FWE" : "q_FDR"} ≤ ${plain(inference.alpha)} for this contrast.</p>`
@@ -152,25 +142,9 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
   });
 
   const inputs = summary.inputs;
-  const mainInputs = inputs.filter((i) => i.role !== "connectome");
-  const connectomeInputs = inputs.filter((i) => i.role === "connectome");
-  const inputRows = (list: typeof inputs) =>
-    list.map((i) => `<tr><td>${h(i.role)}</td><td><code>${h(i.path)}</code></td><td class="hash"><code>${h(i.sha256)}</code></td></tr>`).join("\n");
-  const inputTable = (list: typeof inputs) =>
-    `<div class="table-wrap"><table><thead><tr><th>Role</th><th>Path (relative to the design file)</th><th>SHA-256</th></tr></thead><tbody>\n${inputRows(list)}\n</tbody></table></div>`;
   const seeds = [...new Set(permuted.map((c) => c.seed))];
 
-  return [
-    "<!DOCTYPE html>",
-    '<html lang="en">',
-    "<head>",
-    '<meta charset="utf-8">',
-    '<meta name="viewport" content="width=device-width, initial-scale=1">',
-    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:; script-src ${reportScriptSource()}">`,
-    `<title>plexus report: ${h(summary.design.model)}</title>`,
-    `<style>\n${REPORT_STYLE}${REPORT_SCRIPT_STYLE}</style>`,
-    "</head>",
-    "<body>",
+  return reportPage(`plexus report: ${summary.design.model}`, reportData(results, content), [
     "<header>",
     "<h1>plexus results</h1>",
     `<p class="subtitle">Model ${code(summary.design.model)} · ${summary.repeated ? `${summary.repeated.people} participants (${summary.subjects.used} scans)` : `${summary.subjects.used} participants`} · ${summary.regions} regions · plexus ${h(summary.tool.version)}</p>`,
@@ -220,20 +194,11 @@ export function reportHtml(results: LoadedResults, content: ReportContent): stri
     `<dt>Seed</dt><dd>${seeds.length > 0 ? seeds.map((s) => h(String(s))).join(", ") : `${h(String(inference.seed))} (no relabelings drawn)`}</dd>`,
     ...(summary.matrices_read ? [`<dt>Matrices read</dt><dd>${h(matricesRead(summary.matrices_read))}</dd>`] : []),
     "</dl>",
-    inputTable(mainInputs),
-    connectomeInputs.length > 0
-      ? `<details><summary>${connectomeInputs.length} connectome file${connectomeInputs.length > 1 ? "s" : ""} with their SHA-256</summary>${inputTable(connectomeInputs)}</details>`
-      : "",
+    ...inputsHtml(inputs),
     `<p class="hint">Figures use the ${h(COLOUR_SCALE_NAME)} colour scale, whose lightness rises steadily from dark blue to yellow, so they read in grayscale and for colour-blind readers. The tables, figures and methods are also in this folder as tables.md, tables.tex, tables/*.tsv, figures/*.svg, methods.md and results.md; <code>plexus report</code> rewrites them from the results without recomputing.</p>`,
     "</section>",
     "</main>",
-    `<footer>${h(RESEARCH_NOTICE)}</footer>`,
-    `<script type="application/json" id="plexus-data">${scriptJson(reportData(results, content))}</script>`,
-    `<script>${REPORT_SCRIPT}</script>`,
-    "</body>",
-    "</html>",
-    "",
-  ].join("\n");
+  ]);
 }
 
 /** How the matrices were read, e.g. "MATLAB 5 .mat, variable conn, 90 × 90 × 85, participants on the last axis; region labels from the regions table". */
