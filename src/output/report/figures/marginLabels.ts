@@ -1,0 +1,127 @@
+import { n, text } from "./svgElements.js";
+import { textWidth } from "./textWidth.js";
+
+/**
+ * Region names set in a column beside a view, each joined to its region by a
+ * thin leader line. Names keep the vertical order of their regions and sit as
+ * close to their region's height as the column allows; they never overlap,
+ * since each takes a slot of at least one line's height. When more names want
+ * a column than it has slots, the most important (lowest `rank`) are kept and
+ * the rest reported as left out.
+ */
+export interface MarginLabel {
+  /** The name to set (shortened with an ellipsis when wider than the column). */
+  label: string;
+  /** Where the leader ends: the region's position in the view. */
+  at: readonly [number, number];
+  /** Lower is kept first when the column is full. */
+  rank: number;
+}
+
+export interface MarginColumn {
+  side: "left" | "right";
+  /** The column's edge next to the view: names end here (left column) or start here (right column). */
+  edge: number;
+  /** The widest a name may be. */
+  width: number;
+  /** The vertical range the names' centres may take. */
+  top: number;
+  bottom: number;
+  size: number;
+}
+
+export interface PlacedLabels {
+  /** Leader lines first (to be drawn under the regions), then the names. */
+  leaders: string[];
+  names: string[];
+  /** Boxes of the names set, [x, y, width, height], for tests and collision checks. */
+  boxes: [number, number, number, number][];
+  /** Labels that found no slot. */
+  leftOut: MarginLabel[];
+}
+
+/** The line pitch of names in a column at a font size. */
+export function labelPitch(size: number): number {
+  return size * 1.22;
+}
+
+/** Shortens `label` with an ellipsis until it is at most `width` wide at `size`. */
+export function fitLabel(label: string, width: number, size: number): string {
+  if (textWidth(label, size) <= width) return label;
+  const characters = [...label];
+  for (let keep = characters.length - 1; keep >= 1; keep--) {
+    const candidate = `${characters.slice(0, keep).join("")}…`;
+    if (textWidth(candidate, size) <= width) return candidate;
+  }
+  return "…";
+}
+
+/**
+ * Slot centres for wanted positions (sorted ascending): as close to each as
+ * possible in the least-squares sense, at least `pitch` apart, inside
+ * [low, high]. Overlapping runs are merged into clusters centred on their
+ * members' mean wish, then shifted inside the bounds.
+ */
+export function spreadPositions(wanted: readonly number[], pitch: number, low: number, high: number): number[] {
+  interface Cluster {
+    first: number;
+    count: number;
+    start: number;
+  }
+  const clusters: Cluster[] = [];
+  const clamp = (c: Cluster) => {
+    c.start = Math.min(Math.max(c.start, low), high - (c.count - 1) * pitch);
+  };
+  wanted.forEach((want, k) => {
+    const cluster: Cluster = { first: k, count: 1, start: want };
+    clamp(cluster);
+    clusters.push(cluster);
+    while (clusters.length >= 2) {
+      const last = clusters[clusters.length - 1];
+      const before = clusters[clusters.length - 2];
+      if (before.start + before.count * pitch <= last.start + 1e-9) break;
+      clusters.pop();
+      const count = before.count + last.count;
+      let sum = 0;
+      for (let j = 0; j < count; j++) sum += wanted[before.first + j] - j * pitch;
+      before.count = count;
+      before.start = sum / count;
+      clamp(before);
+    }
+  });
+  const out: number[] = [];
+  for (const c of clusters) for (let j = 0; j < c.count; j++) out.push(c.start + j * pitch);
+  return out;
+}
+
+export function placeMarginLabels(labels: readonly MarginLabel[], column: MarginColumn): PlacedLabels {
+  const pitch = labelPitch(column.size);
+  const slots = Math.max(0, Math.floor((column.bottom - column.top) / pitch + 1e-9) + 1);
+  const byRank = [...labels].sort((a, b) => a.rank - b.rank);
+  const kept = byRank.slice(0, slots).sort((a, b) => a.at[1] - b.at[1] || a.rank - b.rank);
+  const leftOut = byRank.slice(slots);
+  const centres = spreadPositions(
+    kept.map((l) => l.at[1]),
+    pitch,
+    column.top,
+    column.bottom,
+  );
+  const leaders: string[] = [];
+  const names: string[] = [];
+  const boxes: PlacedLabels["boxes"] = [];
+  const left = column.side === "left";
+  kept.forEach((label, k) => {
+    const y = centres[k];
+    const name = fitLabel(label.label, column.width, column.size);
+    const width = textWidth(name, column.size);
+    const x = left ? column.edge - width : column.edge;
+    boxes.push([x, y - column.size * 0.6, width, column.size * 1.2]);
+    names.push(text(left ? column.edge : column.edge, y + column.size * 0.35, name, { anchor: left ? "end" : "start", size: column.size, fill: "#1a1a1a" }));
+    const start = left ? column.edge + 1.5 : column.edge - 1.5;
+    const elbow = left ? start + 3 : start - 3;
+    leaders.push(
+      `<polyline points="${n(start)},${n(y)} ${n(elbow)},${n(y)} ${n(label.at[0])},${n(label.at[1])}" fill="none" stroke="#8a8a8a" stroke-width="0.45" pointer-events="none"/>`,
+    );
+  });
+  return { leaders, names, boxes, leftOut };
+}
