@@ -1,6 +1,7 @@
 import type { Region } from "../../../io/regions.js";
 import { FONT_PT, widthPt, type PrintWidth } from "./printSize.js";
 import { roundedHull, verticalSpan, type Point } from "./outlineHull.js";
+import { placeMarginLabels } from "./marginLabels.js";
 import { regionOrder } from "./regionOrder.js";
 import { n, text } from "./svgElements.js";
 import { textWidth } from "./textWidth.js";
@@ -194,6 +195,25 @@ export function anatomyLayout(regions: readonly Region[], width: PrintWidth, top
     dotRadius: size.dot,
     hasCoordinates: coordinates,
   };
+}
+
+/** Names the chosen regions in the columns beside the first view; `rank` orders who is kept when a column is full. */
+export function nameColumns(layout: AnatomyLayout, regions: readonly Region[], chosen: readonly number[], rank: Map<number, number>) {
+  const view = layout.views[0];
+  const leaders: string[] = [];
+  const names: string[] = [];
+  const boxes: [number, number, number, number][] = [];
+  let leftOut = 0;
+  for (const side of ["left", "right"] as const) {
+    const column = layout.columns[side];
+    const labels = chosen.filter((region) => layout.sideOf(region) === side).map((region) => ({ label: regions[region].label, at: view.place(region), rank: rank.get(region) ?? 0 }));
+    const placed = placeMarginLabels(labels, { side, edge: column.edge, width: column.width, top: column.top, bottom: column.bottom, size: layout.fontSize });
+    leaders.push(...placed.leaders);
+    names.push(...placed.names);
+    boxes.push(...placed.boxes);
+    leftOut += placed.leftOut.length;
+  }
+  return { leaders, names, boxes, leftOut };
 }
 
 /** An arc from p to q bowed away from `centre` by a tenth of its length (straight when the points coincide). */

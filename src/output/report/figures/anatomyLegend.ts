@@ -31,19 +31,18 @@ export function wrapText(content: string, size: number, width: number, bold = fa
 /** A bold title and lines of smaller grey text under it, all wrapped to `width`, starting at (x, y) (the top). */
 export function header(x: number, y: number, width: number, title: string, titleSize: number, notes: string[], noteSize: number): Piece {
   const elements: string[] = [];
-  let baseline = y + titleSize;
-  for (const row of wrapText(title, titleSize, width, true)) {
-    elements.push(text(x, baseline, row, { size: titleSize, weight: "bold", fill: "#1a1a1a" }));
-    baseline += textHeight(titleSize) + 1;
+  let top = y;
+  for (const row of title ? wrapText(title, titleSize, width, true) : []) {
+    elements.push(text(x, top + titleSize * 0.95, row, { size: titleSize, weight: "bold", fill: "#1a1a1a" }));
+    top += textHeight(titleSize) + 1;
   }
-  baseline += noteSize * 0.15;
   for (const note of notes) {
     for (const row of wrapText(note, noteSize, width)) {
-      elements.push(text(x, baseline, row, { size: noteSize, fill: "#444444" }));
-      baseline += textHeight(noteSize) + 0.5;
+      elements.push(text(x, top + noteSize * 0.95, row, { size: noteSize, fill: "#444444" }));
+      top += textHeight(noteSize) + 0.5;
     }
   }
-  return { elements, height: baseline - y - noteSize * 0.6 };
+  return { elements, height: top - y };
 }
 
 /**

@@ -3,10 +3,9 @@ import { hubRegions } from "../hubRegions.js";
 import type { ContrastResults } from "../loadResults.js";
 import { plain } from "../printNumbers.js";
 import type { SignificantEdges } from "../significantEdges.js";
-import { anatomyLayout, hasCoordinates, RING_NOTE, type AnatomyLayout } from "./anatomyLayout.js";
+import { anatomyLayout, hasCoordinates, nameColumns, RING_NOTE } from "./anatomyLayout.js";
 import { colourBar, header, markerKeys } from "./anatomyLegend.js";
 import { scaleColour, statisticColour, statisticLimit } from "./colourScale.js";
-import { placeMarginLabels } from "./marginLabels.js";
 import { FONT_PT, printSvgDocument, widthPt, type PrintWidth } from "./printSize.js";
 import { circle } from "./svgElements.js";
 
@@ -114,23 +113,4 @@ export function networkFigure(contrast: ContrastResults, regions: Region[], find
   }
   const height = Math.max(layout.bottom, y) + margin;
   return printSvgDocument(width, height, `Significant edges of ${contrast.summary.name} drawn on the regions`, body);
-}
-
-/** Names the chosen regions in the columns beside the first view; `rank` orders who is kept when a column is full. */
-export function nameColumns(layout: AnatomyLayout, regions: readonly Region[], chosen: readonly number[], rank: Map<number, number>) {
-  const view = layout.views[0];
-  const leaders: string[] = [];
-  const names: string[] = [];
-  const boxes: [number, number, number, number][] = [];
-  let leftOut = 0;
-  for (const side of ["left", "right"] as const) {
-    const column = layout.columns[side];
-    const labels = chosen.filter((region) => layout.sideOf(region) === side).map((region) => ({ label: regions[region].label, at: view.place(region), rank: rank.get(region) ?? 0 }));
-    const placed = placeMarginLabels(labels, { side, edge: column.edge, width: column.width, top: column.top, bottom: column.bottom, size: layout.fontSize });
-    leaders.push(...placed.leaders);
-    names.push(...placed.names);
-    boxes.push(...placed.boxes);
-    leftOut += placed.leftOut.length;
-  }
-  return { leaders, names, boxes, leftOut };
 }
