@@ -275,13 +275,15 @@ function viewTitle(box: [number, number, number, number], name: string, font: nu
     texts.push([left, y - font * 0.9, w, font * 1.15]);
     marks.push(text(x, y, content, { anchor, size: font, weight: bold ? "bold" : undefined, fill: bold ? "#1a1a1a" : "#555555" }));
   };
-  const nameWidth = textWidth(name, font);
   const sideWidth = textWidth("L", font, true) + 3;
   if (sides) {
     add(box[0], "L", "start", true);
     add(box[0] + box[2], "R", "end", true);
   }
-  if (nameWidth <= box[2] - 2 * sideWidth) add(box[0] + box[2] / 2, name, "middle", false);
+  // The view's name, shortened to its first words when the full name does not fit between L and R.
+  const words = name.split(",")[0];
+  const fitting = [name, words, words.split(" ").slice(-1)[0]].find((candidate) => textWidth(candidate, font) <= box[2] - 2 * sideWidth);
+  if (fitting) add(box[0] + box[2] / 2, fitting, "middle", false);
   return { marks, texts };
 }
 
