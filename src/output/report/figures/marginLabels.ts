@@ -110,6 +110,19 @@ export function placeMarginLabels(labels: readonly MarginLabel[], column: Margin
   const names: string[] = [];
   const boxes: PlacedLabels["boxes"] = [];
   const left = column.side === "left";
+  const elbowAt = left ? column.edge + 4.5 : column.edge - 4.5;
+  // Neighbours whose leaders cross trade slots (a region far from the column can sit on the far side
+  // of a near one); each trade removes that crossing, and the passes stop when none is left.
+  for (let pass = 0; pass < kept.length; pass++) {
+    let traded = false;
+    for (let k = 0; k + 1 < kept.length; k++) {
+      if (segmentsCross([elbowAt, centres[k]], kept[k].at, [elbowAt, centres[k + 1]], kept[k + 1].at)) {
+        [kept[k], kept[k + 1]] = [kept[k + 1], kept[k]];
+        traded = true;
+      }
+    }
+    if (!traded) break;
+  }
   kept.forEach((label, k) => {
     const y = centres[k];
     const name = fitLabel(label.label, column.width, column.size);
@@ -124,4 +137,14 @@ export function placeMarginLabels(labels: readonly MarginLabel[], column: Margin
     );
   });
   return { leaders, names, boxes, leftOut };
+}
+
+/** Whether segments p1–p2 and q1–q2 cross at a point inside both. */
+function segmentsCross(p1: readonly [number, number], p2: readonly [number, number], q1: readonly [number, number], q2: readonly [number, number]): boolean {
+  const side = (a: readonly [number, number], b: readonly [number, number], c: readonly [number, number]) => (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0]);
+  const d1 = side(q1, q2, p1);
+  const d2 = side(q1, q2, p2);
+  const d3 = side(p1, p2, q1);
+  const d4 = side(p1, p2, q2);
+  return d1 * d2 < 0 && d3 * d4 < 0;
 }
