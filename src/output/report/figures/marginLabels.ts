@@ -45,12 +45,17 @@ export function labelPitch(size: number): number {
   return size * 1.22;
 }
 
-/** Shortens `label` with an ellipsis until it is at most `width` wide at `size`. */
+/**
+ * Shortens `label` with an ellipsis in the middle until it is at most `width`
+ * wide at `size`, keeping its start and its end (labels often differ only in
+ * a final number: "L-upper-ridge-03" becomes "L-upp…ge-03", not "L-upper-r…").
+ */
 export function fitLabel(label: string, width: number, size: number): string {
   if (textWidth(label, size) <= width) return label;
   const characters = [...label];
   for (let keep = characters.length - 1; keep >= 1; keep--) {
-    const candidate = `${characters.slice(0, keep).join("")}…`;
+    const end = Math.floor(keep / 2);
+    const candidate = `${characters.slice(0, keep - end).join("")}…${characters.slice(characters.length - end).join("")}`;
     if (textWidth(candidate, size) <= width) return candidate;
   }
   return "…";

@@ -41,13 +41,15 @@ export function nodalFigure(regions: Region[], values: NodalValues, title: strin
   const W = widthPt(width);
   const margin = 6;
   const noteSize = width === "single" ? FONT_PT.small : FONT_PT.label;
+  const measure = values.measure.charAt(0).toUpperCase() + values.measure.slice(1);
   const note =
     named.length === 0
-      ? `${values.measure}: no region significant.`
-      : `${values.measure}: ${named.length} of ${count} region${count === 1 ? "" : "s"} significant (ringed and named).`;
+      ? `${measure}: no region significant.`
+      : `${measure}: ${named.length} of ${count} region${count === 1 ? "" : "s"} significant (ringed and named).`;
   const head = header(margin, 4, W - 2 * margin, title, width === "single" ? FONT_PT.heading : FONT_PT.title, [note, ...(hasCoordinates(regions) ? [] : [RING_NOTE])], noteSize);
   const layout = anatomyLayout(regions, width, 4 + head.height + 8, named.map((region) => regions[region].label));
-  const largest = width === "single" ? 4.4 : 5.6;
+  // The largest disc: at most three quarters of the median distance between neighbouring regions in the plan, so crowded layouts stay readable.
+  const largest = Math.max(2.4, Math.min(width === "single" ? 4.4 : 5.6, 0.75 * medianNeighbourDistance(regions.map((_, region) => layout.views[0].place(region)))));
   const radius = (v: number) => largest * Math.sqrt(Math.max(Math.abs(v) / limit, 0.06));
   const labels = nameColumns(layout, regions, named, new Map(named.map((region, k) => [region, k])));
 
@@ -121,4 +123,18 @@ export function nodalFigure(regions: Region[], values: NodalValues, title: strin
   }
   const height = Math.max(layout.bottom, y) + margin;
   return printSvgDocument(width, height, title, body);
+}
+
+/** The median over points of the distance to the nearest other point (Infinity for fewer than two). */
+function medianNeighbourDistance(points: [number, number][]): number {
+  if (points.length < 2) return Infinity;
+  const nearest = points.map((p, i) => {
+    let best = Infinity;
+    points.forEach((q, j) => {
+      if (i !== j) best = Math.min(best, Math.hypot(p[0] - q[0], p[1] - q[1]));
+    });
+    return best;
+  });
+  nearest.sort((a, b) => a - b);
+  return nearest[Math.floor(nearest.length / 2)];
 }
