@@ -120,6 +120,29 @@ describe("the plan and elevation follow the coordinate convention (x to the righ
   }
 });
 
+describe("without coordinates, the ring puts the left hemisphere on the left and mirrors the right", () => {
+  const ring: Region[] = demo.map(({ label, hemisphere, system }) => ({ label, hemisphere, system }));
+  for (const width of PRINT_WIDTHS) {
+    it(`at ${width} width`, () => {
+      const layout = anatomyLayout(ring, width, 30, []);
+      expect(layout.views.map((v) => v.kind)).toEqual(["ring"]);
+      const [view] = layout.views;
+      const centre = view.box[0] + view.box[2] / 2;
+      ring.forEach((region, i) => {
+        expect(layout.sideOf(i)).toBe(region.hemisphere);
+        // Each left demo region L-x-k has a homologue R-x-k in the same position of its hemisphere's order: mirror images.
+        if (region.hemisphere === "left") {
+          const twin = ring.findIndex((r) => r.label === `R${region.label.slice(1)}`);
+          const [lx, ly] = view.place(i);
+          const [rx, ry] = view.place(twin);
+          expect(rx - centre).toBeCloseTo(centre - lx, 9);
+          expect(ry).toBeCloseTo(ly, 9);
+        }
+      });
+    });
+  }
+});
+
 /** The text elements of an SVG with estimated boxes; sizes inherit the root's font-size. */
 function textBoxes(svg: string) {
   const rootSize = Number(/<svg [^>]*font-size="([\d.]+)"/.exec(svg)![1]);
