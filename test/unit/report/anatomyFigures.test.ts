@@ -91,7 +91,7 @@ describe("name columns", () => {
 describe("the plan and elevation follow the coordinate convention (x to the right, y to the front, z up)", () => {
   for (const width of PRINT_WIDTHS) {
     it(`at ${width} width: left regions on the left, the front at the top of the plan, up at the top of the elevation, L left of R`, () => {
-      const layout = anatomyLayout(demo, width, 30, demo.map((r) => r.label));
+      const layout = anatomyLayout(demo, width, 30, demo.map((_, i) => i));
       const [plan, elevation] = layout.views;
       expect(plan.kind).toBe("plan");
       expect(elevation.kind).toBe("elevation");

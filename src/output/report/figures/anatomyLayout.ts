@@ -86,27 +86,42 @@ export function hasCoordinates(regions: readonly Region[]): boolean {
 }
 
 /**
- * The layout at a print width, below a header of `top` pt. `names` are the
- * labels that will be set beside the plan (they size the name columns).
+ * The layout at a print width, below a header of `top` pt. `named` are the
+ * regions whose names will be set beside the plan (they size the name columns).
  */
-export function anatomyLayout(regions: readonly Region[], width: PrintWidth, top: number, names: readonly string[]): AnatomyLayout {
+export function anatomyLayout(regions: readonly Region[], width: PrintWidth, top: number, named: readonly number[]): AnatomyLayout {
   const size = SIZES[width];
   const W = widthPt(width);
   const coordinates = hasCoordinates(regions);
-  const widest = Math.max(24, ...names.map((label) => textWidth(label, size.font)));
-  const nameColumn = Math.min(size.nameColumn, widest);
+  // Which column names each region: with coordinates, by the sign of x (or the middle of the x range when
+  // the regions do not straddle x = 0); on the ring, by the half it stands on.
+  let sideOf: (region: number) => "left" | "right";
+  let midline = 0;
+  const ring = coordinates ? undefined : ringAngles(regions);
+  if (coordinates) {
+    const xs = regions.map((r) => r.x!);
+    const [x0, x1] = [Math.min(...xs), Math.max(...xs)];
+    midline = x0 < 0 && x1 > 0 ? 0 : (x0 + x1) / 2;
+    sideOf = (region) => (regions[region].x! < midline ? "left" : "right");
+  } else {
+    sideOf = (region) => (Math.cos(ring!.angle[region]) < -1e-9 ? "left" : "right");
+  }
+  // Each name column as wide as its widest name, up to the width's limit.
+  const columnWidth = (side: "left" | "right") =>
+    Math.min(size.nameColumn, Math.max(0, ...named.filter((region) => sideOf(region) === side).map((region) => textWidth(regions[region].label, size.font))));
+  const leftColumn = columnWidth("left");
+  const rightColumn = columnWidth("right");
   const viewTitle = size.font + 5;
   // Horizontal bands: [names | view | names] and, on two columns, a second view or the legend to the right.
-  const side = nameColumn + LEADER_GAP;
+  const sides = leftColumn + rightColumn + 2 * LEADER_GAP;
   // Without coordinates, two columns keep a band of RING_LEGEND pt on the right for the legend.
   const mainWidth =
-    width === "single" ? W - 2 * MARGIN - 2 * side : coordinates ? (W - 2 * MARGIN - 2 * side - COLUMN_GAP) / 2 : W - 2 * MARGIN - 2 * side - COLUMN_GAP - RING_LEGEND;
-  const mainLeft = MARGIN + side;
-  const rightBand = mainLeft + mainWidth + side + COLUMN_GAP;
+    width === "single" ? W - 2 * MARGIN - sides : coordinates ? (W - 2 * MARGIN - sides - COLUMN_GAP) / 2 : W - 2 * MARGIN - sides - COLUMN_GAP - RING_LEGEND;
+  const mainLeft = MARGIN + leftColumn + LEADER_GAP;
+  const rightBand = mainLeft + mainWidth + rightColumn + LEADER_GAP + COLUMN_GAP;
   const viewTop = top + viewTitle;
 
   const views: AnatomyView[] = [];
-  let sideOf: (region: number) => "left" | "right";
   let planBottom: number;
   let secondBottom = viewTop;
   if (coordinates) {
@@ -128,8 +143,6 @@ export function anatomyLayout(regions: readonly Region[], width: PrintWidth, top
     const planHeight = yr * scale + 2 * pad;
     const elevationHeight = zr * scale + 2 * pad;
     const xAt = (left: number) => (x: number) => left + pad + (x - (x0 + x1) / 2 + xr / 2) * scale;
-    const midline = x0 < 0 && x1 > 0 ? 0 : (x0 + x1) / 2;
-    sideOf = (region) => (regions[region].x! < midline ? "left" : "right");
     const planX = xAt(planLeft);
     const planYTop = viewTop;
     const plan = anatomicalView(
@@ -165,18 +178,17 @@ export function anatomyLayout(regions: readonly Region[], width: PrintWidth, top
     );
     secondBottom = elevationTop + elevationHeight;
   } else {
-    const ring = ringView(regions, [mainLeft, viewTop, mainWidth, Math.min(mainWidth, size.planHeight)], size.font);
-    views.push(ring.view);
-    sideOf = ring.sideOf;
-    planBottom = viewTop + ring.view.box[3];
+    const view = ringView(regions, ring!, [mainLeft, viewTop, mainWidth, Math.min(mainWidth, size.planHeight)], size.font);
+    views.push(view);
+    planBottom = viewTop + view.box[3];
   }
 
   const first = views[0].box;
   const columnTop = first[1] + size.font * 0.7;
   const columnBottom = first[1] + first[3] - size.font * 0.7;
   const columns = {
-    left: { edge: mainLeft - LEADER_GAP, width: nameColumn, top: columnTop, bottom: columnBottom },
-    right: { edge: mainLeft + mainWidth + LEADER_GAP, width: nameColumn, top: columnTop, bottom: columnBottom },
+    left: { edge: mainLeft - LEADER_GAP, width: leftColumn, top: columnTop, bottom: columnBottom },
+    right: { edge: mainLeft + mainWidth + LEADER_GAP, width: rightColumn, top: columnTop, bottom: columnBottom },
   };
   const legend =
     width === "single"
@@ -297,14 +309,19 @@ const RIGHT = /^(r|rh|right)$/i;
  * hemisphere's down the right half, so homologous groups face each other;
  * otherwise the ring runs clockwise from the top.
  */
-function ringView(regions: readonly Region[], area: [number, number, number, number], font: number): { view: AnatomyView; sideOf: (region: number) => "left" | "right" } {
+interface RingAngles {
+  order: number[];
+  blocks: ReturnType<typeof regionOrder>["blocks"];
+  /** Each region's angle on the ring (radians, SVG orientation: −π/2 is the top). */
+  angle: Float64Array;
+  step: number;
+  /** Whether every region's hemisphere says left or right (then L and R are marked). */
+  sided: boolean;
+}
+
+function ringAngles(regions: readonly Region[]): RingAngles {
   const { order, blocks } = regionOrder([...regions]);
-  const count = Math.max(regions.length, 1);
-  const diameter = Math.min(area[2], area[3]);
-  const box: [number, number, number, number] = [area[0] + (area[2] - diameter) / 2, area[1], diameter, diameter];
-  const centre: Point = [box[0] + diameter / 2, box[1] + diameter / 2];
-  const radius = diameter / 2 - 8;
-  const step = (2 * Math.PI) / count;
+  const step = (2 * Math.PI) / Math.max(regions.length, 1);
   const hemispheres = new Set(regions.map((r) => r.hemisphere ?? ""));
   const sided = [...hemispheres].every((h) => LEFT.test(h) || RIGHT.test(h)) && [...hemispheres].some((h) => LEFT.test(h));
   const angle = new Float64Array(regions.length);
@@ -314,6 +331,15 @@ function ringView(regions: readonly Region[], area: [number, number, number, num
     if (sided && LEFT.test(regions[region].hemisphere ?? "")) angle[region] = -Math.PI / 2 - step * (leftCount++ + 0.5);
     else angle[region] = -Math.PI / 2 + step * (rightCount++ + 0.5);
   }
+  return { order, blocks, angle, step, sided };
+}
+
+function ringView(regions: readonly Region[], ring: RingAngles, area: [number, number, number, number], font: number): AnatomyView {
+  const { order, blocks, angle, step, sided } = ring;
+  const diameter = Math.min(area[2], area[3]);
+  const box: [number, number, number, number] = [area[0] + (area[2] - diameter) / 2, area[1], diameter, diameter];
+  const centre: Point = [box[0] + diameter / 2, box[1] + diameter / 2];
+  const radius = diameter / 2 - 8;
   const at = (a: number, r: number): Point => [centre[0] + r * Math.cos(a), centre[1] + r * Math.sin(a)];
   const place = (region: number): [number, number] => [...at(angle[region], radius)] as [number, number];
   const backdrop: string[] = [];
@@ -337,7 +363,7 @@ function ringView(regions: readonly Region[], area: [number, number, number, num
   }
   const { marks, texts } = viewTitle(box, "ring of regions", font, sided);
   backdrop.push(...marks);
-  const view: AnatomyView = {
+  return {
     kind: "ring",
     box,
     place,
@@ -353,5 +379,4 @@ function ringView(regions: readonly Region[], area: [number, number, number, num
     backdrop,
     texts,
   };
-  return { view, sideOf: (region) => (place(region)[0] < centre[0] - 1e-9 ? "left" : "right") };
 }

@@ -39,7 +39,7 @@ export function networkFigure(contrast: ContrastResults, regions: Region[], find
   const count = `${finding.edges.length} edge${finding.edges.length === 1 ? "" : "s"} among ${hubs.length} regions`;
   const bySign = signed ? ` (${positive} with t > 0, ${finding.edges.length - positive} with t < 0)` : "";
   const head = header(margin, 4, W - 2 * margin, `${contrast.summary.name}: ${what}`, width === "single" ? FONT_PT.heading : FONT_PT.title, [`${count}${bySign}.`, ...(hasCoordinates(regions) ? [] : [RING_NOTE])], noteSize);
-  const layout = anatomyLayout(regions, width, 4 + head.height + 8, hubs.map((h) => regions[h.region].label));
+  const layout = anatomyLayout(regions, width, 4 + head.height + 8, hubs.map((h) => h.region));
 
   const body: string[] = [...head.elements];
   const drawOrder = [...finding.edges].sort((a, b) => Math.abs(edges.statistic[a]) - Math.abs(edges.statistic[b]) || a - b);

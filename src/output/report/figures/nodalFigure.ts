@@ -47,7 +47,7 @@ export function nodalFigure(regions: Region[], values: NodalValues, title: strin
       ? `${measure}: no region significant.`
       : `${measure}: ${named.length} of ${count} region${count === 1 ? "" : "s"} significant (ringed and named).`;
   const head = header(margin, 4, W - 2 * margin, title, width === "single" ? FONT_PT.heading : FONT_PT.title, [note, ...(hasCoordinates(regions) ? [] : [RING_NOTE])], noteSize);
-  const layout = anatomyLayout(regions, width, 4 + head.height + 8, named.map((region) => regions[region].label));
+  const layout = anatomyLayout(regions, width, 4 + head.height + 8, named);
   // The largest disc: at most three quarters of the median distance between neighbouring regions in the plan, so crowded layouts stay readable.
   const largest = Math.max(2.4, Math.min(width === "single" ? 4.4 : 5.6, 0.75 * medianNeighbourDistance(regions.map((_, region) => layout.views[0].place(region)))));
   const radius = (v: number) => largest * Math.sqrt(Math.max(Math.abs(v) / limit, 0.06));
