@@ -25,7 +25,13 @@ try {
   await figure.scrollIntoViewIfNeeded();
   const paths = figure.locator("path[data-edge]:not([data-casing])");
   const lengths = await paths.evaluateAll((list) => list.map((path) => path.getTotalLength()));
-  await paths.nth(lengths.indexOf(Math.max(...lengths))).hover();
+  // Edges are arcs: point at the middle of the curve (the centre of its box may lie off the stroke).
+  const middle = await paths.nth(lengths.indexOf(Math.max(...lengths))).evaluate((path) => {
+    const p = path.getPointAtLength(path.getTotalLength() / 2);
+    const m = path.getScreenCTM();
+    return { x: m.a * p.x + m.c * p.y + m.e, y: m.b * p.x + m.d * p.y + m.f };
+  });
+  await page.mouse.move(middle.x, middle.y);
   await page.locator("#plexus-tooltip").waitFor({ state: "visible" });
   await figure.screenshot({ path: join(root, "docs", "report-tooltip.png") });
 

@@ -196,7 +196,14 @@ describe.skipIf(!available && !mustRun)("report.html in headless Chromium", () =
     const path = page.locator(`figure[data-figure="network"][data-contrast="${k}"] path[data-edge]:not([data-casing])`).last();
     const edge = Number(await path.getAttribute("data-edge"));
     await path.scrollIntoViewIfNeeded();
-    await path.hover();
+    // Edges are arcs, so the centre of a path's bounding box may lie off its stroke: point at the curve's midpoint.
+    type Curve = { getTotalLength(): number; getPointAtLength(at: number): { x: number; y: number }; getScreenCTM(): { a: number; b: number; c: number; d: number; e: number; f: number } };
+    const middle = await path.evaluate((element: Curve) => {
+      const p = element.getPointAtLength(element.getTotalLength() / 2);
+      const m = element.getScreenCTM();
+      return { x: m.a * p.x + m.c * p.y + m.e, y: m.b * p.x + m.d * p.y + m.f };
+    });
+    await page.mouse.move(middle.x, middle.y);
     const tip = page.locator("#plexus-tooltip");
     await tip.waitFor({ state: "visible" });
     const text = await tip.innerText();

@@ -111,8 +111,8 @@ export function reportContent(results: LoadedResults, options: CohortOptions = {
         `figures/${name}-network`,
         "network",
         results.regions.every((r) => r.x !== undefined)
-          ? "The significant edges on three orthogonal projections of the region coordinates; edge colour: t (cividis scale); node size: degree within the finding; grey dots: all other regions."
-          : "The significant edges on a circle of regions (no coordinates were given), ordered by hemisphere and system; edge colour: t (cividis scale); node size: degree within the finding.",
+          ? `The significant edges on the region coordinates: a plan (seen from above, front at the top) and an elevation (seen from behind) at one scale, the participant's left on the left (L, R) in both; the grey outline is the rounded hull of all regions in that view and the dashed line the midline (x = 0). Edge colour: ${contrast.summary.statistic === "F" ? "F" : "t"} (cividis scale); dark dots: regions of the finding, named beside the plan (left-hemisphere regions on the left); grey dots: all other regions.`
+          : `The significant edges on a circle of regions (no coordinates were given), grouped by hemisphere and system (grey arcs), the left hemisphere on the left half when the regions table says which; edge colour: ${contrast.summary.statistic === "F" ? "F" : "t"} (cividis scale); dark dots: regions of the finding, named beside the circle.`,
         (width) => networkFigure(contrast, results.regions, finding, alpha, width),
       ),
     );

@@ -121,7 +121,7 @@ describe("plexus report DIR", () => {
     expect(figures).toContain("patient_gt_control-matrix-180mm.svg");
     expect(figures).toContain("site_any-matrix-180mm.svg");
     const network = readFileSync(join(fdr.results, "figures", "patient_gt_control-network-180mm.svg"), "utf8");
-    expect(network).toContain("regions on a circle");
+    expect(network).toContain("Regions on a circle");
     const tables = readFileSync(join(fdr.results, "tables.md"), "utf8");
     expect(tables).toContain("Edges with q_FDR ≤ 0.05: patient_gt_control");
     expect(tables).not.toContain("Significant subnetworks");
