@@ -169,12 +169,13 @@ function resultLines(prepared: PreparedAnalysis, analysis: StrengthAnalysis): st
     const { familywise } = result;
     if (analysis.choice.measure === "nodal") {
       const fdr = Array.from(result.qFdr).filter((q) => q <= alpha).length;
-      const fwe = familywise ? `${Array.from(familywise.pFwe).filter((p) => p <= alpha).length} region(s) with p_fwe ≤ ${alpha}, ` : "";
-      return `${name}: ${fwe}${fdr} with q_fdr ≤ ${alpha} (of ${analysis.names.length} regions)`;
+      const regions = (count: number) => `${count} ${count === 1 ? "region" : "regions"}`;
+      const fwe = familywise ? `${regions(Array.from(familywise.pFwe).filter((p) => p <= alpha).length)} with p_FWE ≤ ${alpha}, ` : "";
+      return `${name}: ${fwe}${familywise ? fdr : regions(fdr)} with q_FDR ≤ ${alpha} (of ${analysis.names.length} regions)`;
     }
     const parts = analysis.names.map((measureName, m) => {
       const t = result.statistics.statistic[m];
-      const fwe = familywise ? `, ${pText("p_fwe", familywise.pFwe[m])}` : "";
+      const fwe = familywise ? `, ${pText("p_FWE", familywise.pFwe[m])}` : "";
       return `${measureName} t(${result.statistics.df}) = ${Number.isFinite(t) ? t.toFixed(2) : "n/a"}, ${pText("p", result.pUncorrected[m])}${fwe}`;
     });
     return `${name}: ${parts.join("; ")}`;
