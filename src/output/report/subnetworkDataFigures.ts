@@ -23,6 +23,7 @@ export function subnetworkDataFigures(contrast: ContrastResults, summary: Result
     transform: summary.options.transform,
     ...(repeated?.design === "paired differences" && repeated.difference ? { difference: repeated.difference } : {}),
     ...(repeated ? { person: repeated.participant } : {}),
+    ...(repeated?.design === "repeated measures" ? { scans: true } : {}),
   };
   const alpha = summary.options.inference.alpha;
   return values.subnetworks.map((s, k) => {
@@ -32,7 +33,7 @@ export function subnetworkDataFigures(contrast: ContrastResults, summary: Result
         ? `connected set ${s.id} of the edges with q_FDR ≤ ${alpha} (${s.edges} edges)`
         : `subnetwork ${s.id} (${s.edges} edges${component && Number.isFinite(component.pFwe) ? `, p_FWE = ${component.pFwe}` : ""})`;
     const adjusted = adjustedWords(values, context);
-    const unit = context.difference ? "person's change" : "participant's mean";
+    const unit = context.scans ? "scan's mean" : context.difference ? "person's mean change" : "participant's mean";
     const what =
       values.plot === "groups"
         ? `by ${values.variable}: points (spread sideways so they do not hide each other), box of the median and quartiles with whiskers to the furthest point within 1.5 × IQR, and the model's mean with its ${Math.round(values.level * 100)}% confidence interval (diamond)`

@@ -22,6 +22,8 @@ export interface DataFigureContext {
   difference?: string;
   /** A repeated design's person column (adjusting for it means removing each person's own level). */
   person?: string;
+  /** Repeated measures: each value is one scan. */
+  scans?: boolean;
 }
 
 const PALETTE = ["#0072B2", "#E69F00", "#009E73", "#CC79A7", "#56B4E9", "#D55E00"];
@@ -46,10 +48,25 @@ export function adjustedWords(values: SubnetworkValues, context: DataFigureConte
   return `adjusted for ${list}`;
 }
 
+/** What one point is. */
+function unitWords(context: DataFigureContext): string {
+  return context.scans ? "one scan" : context.difference ? "one person's change" : "one participant";
+}
+
 /** Deterministic jitter in [−½, ½): the fractional parts of multiples of the golden ratio (evenly spread, no randomness). */
 function jitter(rank: number): number {
   const golden = 0.6180339887498949;
   return ((rank * golden) % 1) - 0.5;
+}
+
+/** At least three round ticks inside [low, high] (more asked for until there are). */
+function ticksWithin(low: number, high: number, count: number): number[] {
+  let ticks: number[] = [];
+  for (let c = count; c <= count + 8; c++) {
+    ticks = niceTicks(low, high, c).filter((t) => t >= low && t <= high);
+    if (ticks.length >= 3) break;
+  }
+  return ticks;
 }
 
 /** Words split into lines no wider than `width` at `size`. */
@@ -94,11 +111,15 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
   low -= pad;
   high += pad;
   const plotHeight = single ? 150 : 190;
-  const ticks = niceTicks(low, high, single ? 4 : 5).filter((t) => t >= low && t <= high);
-  const step = ticks.length > 1 ? ticks[1] - ticks[0] : 1;
+  const ticks = ticksWithin(low, high, single ? 4 : 5);
+  const step = ticks.length > 1 ? ticks[1] - ticks[0] : Math.abs(ticks[0]) || 1;
   const tickTexts = ticks.map((t) => tickLabel(t, step));
   const left = 6 + Math.max(...tickTexts.map((t) => textWidth(t, small))) + 6;
-  const right = W - 8;
+  // At two columns' width the plot keeps a readable aspect and the key stands beside it.
+  const slotCount = values.plot === "groups" ? values.levels.filter((level) => rows.some((i) => values.groups[i] === level)).length : 1;
+  const plotMax = single ? Infinity : values.plot === "covariate" ? 330 : Math.max(220, slotCount * 150);
+  const right = Math.min(W - 8, left + plotMax);
+  const keyBeside = W - right >= 120;
   const bottom = top + plotHeight;
   const y = (v: number) => bottom - ((v - low) / (high - low)) * plotHeight;
 
@@ -147,9 +168,10 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
     const last = ordered[ordered.length - 1];
     body.push(line(x(values.covariate[first]), y(s.fitted[first]), x(values.covariate[last]), y(s.fitted[last]), PALETTE[0], 1.5));
     for (const i of ordered) body.push(circle(x(values.covariate[i]), y(s.adjusted[i]), radius, PALETTE[0], `fill-opacity="0.75" stroke="#ffffff" stroke-width="0.4"`));
-    const axisTitle = `${values.variable ?? ""} (as in the participants table)`;
+    const axisTitle = wrap(`${values.variable ?? ""} (in the participants table's units)`, label, right - plotLeft);
     belowAxis = bottom + 4 + small + 4 + label;
-    body.push(text((plotLeft + right) / 2, belowAxis, clip(axisTitle, Math.floor((right - plotLeft) / (0.7 * label))), { anchor: "middle", size: label, fill: INK }));
+    axisTitle.forEach((t, k) => body.push(text((plotLeft + right) / 2, belowAxis + k * lineStep, t, { anchor: "middle", size: label, fill: INK })));
+    belowAxis += (axisTitle.length - 1) * lineStep;
   } else {
     // One slot per group (or one for a mean): jittered points, the box, and the model's mean with its interval.
     const slots =
@@ -157,7 +179,7 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
         ? values.levels.filter((level) => rows.some((i) => values.groups[i] === level)).map((level) => ({ name: level, members: rows.filter((i) => values.groups[i] === level) }))
         : [{ name: context.difference ? `every person (${context.difference.replace(" - ", " − ")})` : "every participant", members: rows }];
     const span = right - left;
-    const slotWidth = Math.min(span / slots.length, single ? 110 : 150);
+    const slotWidth = Math.min(span / slots.length, 150);
     const start = left + (span - slotWidth * slots.length) / 2;
     if (values.plot === "mean") body.push(line(left, y(0), right, y(0), MUTED, 0.75, `stroke-dasharray="3 2"`));
     slots.forEach((slot, k) => {
@@ -190,34 +212,38 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
       const d = 3.2;
       const my = y(s.fitted[member]);
       body.push(`<path d="M${n(meanX)} ${n(my - d)}L${n(meanX + d)} ${n(my)}L${n(meanX)} ${n(my + d)}L${n(meanX - d)} ${n(my)}Z" fill="${INK}"/>`);
-      // The slot's name and size, clipped to the slot.
-      const name = `${slot.name} (n = ${slot.members.length})`;
-      let shown = name;
-      for (let max = name.length; max > 3 && textWidth(shown, label) > slotWidth - 6; max -= 1) shown = clip(name, max);
+      // The slot's name (clipped to the slot) over its size.
+      let shown = slot.name;
+      for (let max = slot.name.length; max > 3 && textWidth(shown, label) > slotWidth - 6; max -= 1) shown = clip(slot.name, max);
       body.push(text(centre, bottom + 4 + label, shown, { anchor: "middle", size: label, fill: INK }));
+      body.push(text(centre, bottom + 4 + label + lineStep, `n = ${slot.members.length}`, { anchor: "middle", size: small, fill: MUTED }));
     });
-    belowAxis = bottom + 4 + label;
+    belowAxis = bottom + 4 + label + lineStep;
   }
 
   // The key, flowed over lines that fit the width.
   const items: { mark: string; words: string }[] =
     values.plot === "covariate"
       ? [
-          { mark: "point", words: "one participant" },
+          { mark: "point", words: unitWords(context) },
           { mark: "line", words: `model fit with its ${Math.round(values.level * 100)}% confidence band` },
         ]
       : [
-          { mark: "point", words: values.plot === "mean" && context.difference ? "one person" : "one participant" },
+          { mark: "point", words: unitWords(context) },
           { mark: "box", words: "median, quartiles; whiskers to 1.5 × IQR" },
           { mark: "diamond", words: `model mean, ${Math.round(values.level * 100)}% CI` },
         ];
-  let keyX = 6;
-  let keyY = belowAxis + 8 + small;
-  for (const item of items) {
-    const itemWidth = 12 + textWidth(item.words, small);
-    if (keyX > 6 && keyX + itemWidth > W - 6) {
-      keyX = 6;
-      keyY += textHeight(small) + 3;
+  // Beside the plot (two columns) or below it (one), each item's words wrapped to the room left.
+  const keyLeft = keyBeside ? right + 18 : 6;
+  let keyX = keyLeft;
+  let keyY = keyBeside ? top + 10 : belowAxis + 8 + small;
+  const keyStep = textHeight(small) + 3;
+  items.forEach((item, index) => {
+    const words = wrap(item.words, small, W - 6 - keyLeft - 12);
+    const itemWidth = 12 + Math.max(...words.map((w) => textWidth(w, small)));
+    if (index > 0 && (keyBeside || keyX + itemWidth > W - 6)) {
+      keyX = keyLeft;
+      keyY += keyStep + (keyBeside ? 3 : 0);
     }
     const cy = keyY - small * 0.35;
     if (item.mark === "point") body.push(circle(keyX + 4, cy, radius, PALETTE[0], `fill-opacity="0.8"`));
@@ -226,9 +252,10 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
       body.push(line(keyX, cy, keyX + 9, cy, PALETTE[0], 1.5));
     } else if (item.mark === "box") body.push(rect(keyX + 1, cy - 3.5, 7, 7, "#ffffff", `stroke="${INK}" stroke-width="0.75"`));
     else body.push(`<path d="M${n(keyX + 4)} ${n(cy - 3.2)}L${n(keyX + 7.2)} ${n(cy)}L${n(keyX + 4)} ${n(cy + 3.2)}L${n(keyX + 0.8)} ${n(cy)}Z" fill="${INK}"/>`);
-    body.push(text(keyX + 12, keyY, item.words, { size: small, fill: MUTED }));
+    words.forEach((w, k) => body.push(text(keyX + 12, keyY + k * keyStep, w, { size: small, fill: MUTED })));
+    keyY += (words.length - 1) * keyStep;
     keyX += itemWidth + 12;
-  }
-  const height = keyY + 6;
+  });
+  const height = Math.max(keyY, belowAxis) + 6;
   return printSvgDocument(width, height, `Data behind subnetwork ${s.id}`, body);
 }
