@@ -69,6 +69,17 @@ function ticksWithin(low: number, high: number, count: number): number[] {
   return ticks;
 }
 
+/** A slot's name on at most two lines no wider than `width`, the second clipped with an ellipsis. */
+function slotNameLines(name: string, width: number, size: number): string[] {
+  const fit = (line: string) => {
+    let shown = line;
+    for (let max = line.length; max > 2 && textWidth(shown, size) > width; max -= 1) shown = clip(line, max);
+    return shown;
+  };
+  const lines = wrap(name, size, width);
+  return lines.length <= 2 ? lines.map(fit) : [fit(lines[0]), fit(lines.slice(1).join(" "))];
+}
+
 /** Words split into lines no wider than `width` at `size`. */
 function wrap(words: string, size: number, width: number, bold = false): string[] {
   const lines: string[] = [];
@@ -156,6 +167,11 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
       xTicks = niceTicks(xLow, xHigh, count).filter((t) => t >= xLow && t <= xHigh);
     }
     const xStep = xTicks.length > 1 ? xTicks[1] - xTicks[0] : 1;
+    // A tick whose label would leave the figure is left out.
+    xTicks = xTicks.filter((t) => {
+      const half = textWidth(tickLabel(t, xStep), small) / 2;
+      return x(t) - half >= 2 && x(t) + half <= W - 2;
+    });
     for (const t of xTicks) {
       body.push(line(x(t), bottom, x(t), bottom + 3, INK, 0.75));
       body.push(text(x(t), bottom + 4 + small, tickLabel(t, xStep), { anchor: "middle", size: small, fill: MUTED }));
@@ -182,6 +198,7 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
     const slotWidth = Math.min(span / slots.length, 150);
     const start = left + (span - slotWidth * slots.length) / 2;
     if (values.plot === "mean") body.push(line(left, y(0), right, y(0), MUTED, 0.75, `stroke-dasharray="3 2"`));
+    const nameRows = Math.max(...slots.map((slot) => slotNameLines(slot.name, slotWidth - 6, label).length));
     slots.forEach((slot, k) => {
       const centre = start + (k + 0.5) * slotWidth;
       const colour = PALETTE[k % PALETTE.length];
@@ -212,13 +229,12 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
       const d = 3.2;
       const my = y(s.fitted[member]);
       body.push(`<path d="M${n(meanX)} ${n(my - d)}L${n(meanX + d)} ${n(my)}L${n(meanX)} ${n(my + d)}L${n(meanX - d)} ${n(my)}Z" fill="${INK}"/>`);
-      // The slot's name (clipped to the slot) over its size.
-      let shown = slot.name;
-      for (let max = slot.name.length; max > 3 && textWidth(shown, label) > slotWidth - 6; max -= 1) shown = clip(slot.name, max);
-      body.push(text(centre, bottom + 4 + label, shown, { anchor: "middle", size: label, fill: INK }));
-      body.push(text(centre, bottom + 4 + label + lineStep, `n = ${slot.members.length}`, { anchor: "middle", size: small, fill: MUTED }));
+      // The slot's name (on up to two lines, clipped to the slot) over its size.
+      const nameLines = slotNameLines(slot.name, slotWidth - 6, label);
+      nameLines.forEach((t, line) => body.push(text(centre, bottom + 4 + label + line * lineStep, t, { anchor: "middle", size: label, fill: INK })));
+      body.push(text(centre, bottom + 4 + label + nameRows * lineStep, `n = ${slot.members.length}`, { anchor: "middle", size: small, fill: MUTED }));
     });
-    belowAxis = bottom + 4 + label + lineStep;
+    belowAxis = bottom + 4 + label + nameRows * lineStep;
   }
 
   // The key, flowed over lines that fit the width.
