@@ -1,6 +1,7 @@
 import type { PrintWidth } from "./figures/printSize.js";
 import { adjustedWords, subnetworkDataFigure, type DataFigureContext } from "./figures/subnetworkDataFigure.js";
 import type { ContrastResults, ResultsSummary } from "./loadResults.js";
+import { pValue } from "./printNumbers.js";
 
 /**
  * A contrast's data figures, one per significant subnetwork with values
@@ -31,7 +32,7 @@ export function subnetworkDataFigures(contrast: ContrastResults, summary: Result
     const which =
       values.selection === "fdr components"
         ? `connected set ${s.id} of the edges with q_FDR ≤ ${alpha} (${s.edges} edges)`
-        : `subnetwork ${s.id} (${s.edges} edges${component && Number.isFinite(component.pFwe) ? `, p_FWE = ${component.pFwe}` : ""})`;
+        : `subnetwork ${s.id} (${s.edges} edges${component && Number.isFinite(component.pFwe) ? `, p_FWE ${pValue(component.pFwe).startsWith("<") ? "" : "= "}${pValue(component.pFwe)}` : ""})`;
     const adjusted = adjustedWords(values, context);
     const unit = context.scans ? "scan's mean" : context.difference ? "person's mean change" : "participant's mean";
     const what =
