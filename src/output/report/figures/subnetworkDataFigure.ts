@@ -48,6 +48,11 @@ export function adjustedWords(values: SubnetworkValues, context: DataFigureConte
   return `adjusted for ${list}`;
 }
 
+/** A number's leading hyphen as the typographic minus sign. */
+function minusSign(label: string): string {
+  return label.replace(/^-/, "\u2212");
+}
+
 /** What one point is. */
 function unitWords(context: DataFigureContext): string {
   return context.scans ? "one scan" : context.difference ? "one person's change" : "one participant";
@@ -124,11 +129,11 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
   const plotHeight = single ? 150 : 190;
   const ticks = ticksWithin(low, high, single ? 4 : 5);
   const step = ticks.length > 1 ? ticks[1] - ticks[0] : Math.abs(ticks[0]) || 1;
-  const tickTexts = ticks.map((t) => tickLabel(t, step));
+  const tickTexts = ticks.map((t) => minusSign(tickLabel(t, step)));
   const left = 6 + Math.max(...tickTexts.map((t) => textWidth(t, small))) + 6;
   // At two columns' width the plot keeps a readable aspect and the key stands beside it.
   const slotCount = values.plot === "groups" ? values.levels.filter((level) => rows.some((i) => values.groups[i] === level)).length : 1;
-  const plotMax = single ? Infinity : values.plot === "covariate" ? 330 : Math.max(220, slotCount * 150);
+  const plotMax = single ? Infinity : values.plot === "covariate" ? 330 : Math.max(220, slotCount * 130);
   const right = Math.min(W - 8, left + plotMax);
   const keyBeside = W - right >= 120;
   const bottom = top + plotHeight;
@@ -174,7 +179,7 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
     });
     for (const t of xTicks) {
       body.push(line(x(t), bottom, x(t), bottom + 3, INK, 0.75));
-      body.push(text(x(t), bottom + 4 + small, tickLabel(t, xStep), { anchor: "middle", size: small, fill: MUTED }));
+      body.push(text(x(t), bottom + 4 + small, minusSign(tickLabel(t, xStep)), { anchor: "middle", size: small, fill: MUTED }));
     }
     const ordered = [...rows].filter((i) => Number.isFinite(values.covariate[i])).sort((a, b) => values.covariate[a] - values.covariate[b] || a - b);
     const upper = ordered.map((i) => `${n(x(values.covariate[i]))},${n(y(s.upper[i]))}`);
@@ -246,7 +251,7 @@ export function subnetworkDataFigure(values: SubnetworkValues, subnetwork: numbe
         ]
       : [
           { mark: "point", words: unitWords(context) },
-          { mark: "box", words: "median, quartiles; whiskers to 1.5 × IQR" },
+          { mark: "box", words: "median, quartiles; whiskers to 1.5\u00a0×\u00a0IQR" },
           { mark: "diamond", words: `model mean, ${Math.round(values.level * 100)}% CI` },
         ];
   // Beside the plot (two columns) or below it (one), each item's words wrapped to the room left.
