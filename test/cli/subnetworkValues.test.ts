@@ -160,5 +160,8 @@ describe("subnetwork_values.tsv", () => {
     const html = readFileSync(path.join(components, "report.html"), "utf8");
     expect(html).toContain('data-figure="data"');
     expect(html).toContain("overstates its effect");
+    const methods = readFileSync(path.join(components, "methods.md"), "utf8");
+    expect(methods).toContain("adjusted for age and site by removing their fitted contribution in the same linear model, centred at their means (partial residuals; Larsen & McCleary 1972)");
+    expect(methods).toContain("Larsen WA, McCleary SJ (1972). The use of partial residual plots in regression analysis. Technometrics 14:781–790.");
   });
 });
