@@ -37,7 +37,8 @@ export function quantityWords(values: SubnetworkValues, subnetwork: number, cont
   const scale = context.transform === "fisher-z" ? "Fisher z" : context.transform === "log1p" ? "log(1 + connectivity)" : "connectivity";
   const change = context.difference ? `change in ${scale} (${context.difference.replace(" - ", " − ")})` : scale;
   const adjusted = adjustedWords(values, context);
-  return `Mean ${change} over the subnetwork's ${edges} edge${edges === 1 ? "" : "s"}${adjusted ? `, ${adjusted}` : ""}`;
+  const owner = values.selection === "fdr components" ? "set's" : "subnetwork's";
+  return `Mean ${change} over the ${owner} ${edges} edge${edges === 1 ? "" : "s"}${adjusted ? `, ${adjusted}` : ""}`;
 }
 
 /** "adjusted for age and sex", or "" when the model has nothing to adjust for. */
