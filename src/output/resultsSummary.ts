@@ -9,6 +9,7 @@ import { acrossContrastsSummary, familywiseNullFile } from "./acrossContrastsSum
 import { relabelingSummary, smallestPossibleP } from "./relabelingSummary.js";
 import { cohortTableSummary, inferenceSummary, inputsSummary, overridesSummary, readingSummary, subjectsSummary } from "./summaryParts.js";
 import { repeatedSummary } from "./repeatedSummary.js";
+import { subnetworkValuesSummary } from "./subnetworkValues.js";
 
 /**
  * summary.json of a results folder: the tool and command, the inputs with
@@ -84,6 +85,7 @@ export function resultsSummary(results: AnalysisResults): Record<string, unknown
               },
             }
           : {}),
+        ...(results.subnetworkValues?.[i] ? { subnetwork_values: subnetworkValuesSummary(observed.contrast.name, results.subnetworkValues[i]) } : {}),
         ...(sweep
           ? {
               threshold_sweep: thresholdSweepSummary(sweep, inference.alpha),

@@ -7,6 +7,7 @@ import { componentsTable, edgeColumnsReadBack, edgesTable, regionsTable, subject
 import type { ResultsFolder } from "./resultsFolder.js";
 import { resultsSummary } from "./resultsSummary.js";
 import { thresholdSweepFiles } from "./thresholdSweepFiles.js";
+import { SUBNETWORK_VALUES_FILE, subnetworkValuesTable } from "./subnetworkValues.js";
 
 /**
  * What the writer of a results folder still holds of it, so that a report made
@@ -71,6 +72,8 @@ export function writeResults(folder: ResultsFolder, results: AnalysisResults): K
     );
     if (sweep) for (const [file, text] of thresholdSweepFiles(name, prepared, observed, sweep, { alpha: inference.alpha, exact })) write(file, text);
     if (contrastNull) write(`${name}/null.tsv`, nullTable(contrastNull.rows));
+    const values = results.subnetworkValues?.[i];
+    if (values) write(`${name}/${SUBNETWORK_VALUES_FILE}`, subnetworkValuesTable(values));
   });
   if (results.familyNull) write(FAMILY_NULL_FILE, nullTable(results.familyNull));
   write("subjects.tsv", subjectsTable(prepared));

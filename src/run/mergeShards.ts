@@ -13,6 +13,7 @@ import { writeResults } from "../output/writeResults.js";
 import { inferContrasts } from "./acrossContrasts.js";
 import { setupNull } from "./permutationInference.js";
 import { prepareAnalysis } from "./prepareAnalysis.js";
+import { captureSubnetworkEdges, subnetworkValues } from "./subnetworkValues.js";
 import { writeReport } from "../output/report/writeReport.js";
 import type { RunLog } from "./runAnalysis.js";
 import { runFingerprint } from "./runFingerprint.js";
@@ -107,6 +108,7 @@ export async function mergeShards(
     for (const warning of prepared.warnings) log.warn(warning);
     const fit = fitAll(prepared);
     const contrasts = prepared.contrasts.map((contrast) => observeContrast(prepared, fit, contrast));
+    const captured = captureSubnetworkEdges(prepared, contrasts);
     const nulls: ContrastNull[] = contrasts.map((observed, index) => {
       const setup = setupNull(prepared, observed, index === contrasts.length - 1);
       const chunks: NullChunk[] = [];
@@ -130,7 +132,8 @@ export async function mergeShards(
       return { setup, rows: concatenateChunks(chunks, 1, total + 1) };
     });
     const { inferred, familyNull } = inferContrasts(prepared, contrasts, nulls);
-    writeResults(folder, { prepared, contrasts, nulls, inferred, familyNull, inputs, commandLine: options.commandLine ?? null });
+    const values = subnetworkValues(prepared, contrasts, inferred, captured);
+    writeResults(folder, { prepared, contrasts, nulls, inferred, familyNull, inputs, subnetworkValues: values, commandLine: options.commandLine ?? null });
     await folder.readingBack(() => writeReport(folder.staging, (relative, content) => folder.write(relative, content)));
     folder.commit();
     if (!options.quiet) log.info(`merged ${first.shard.count} shards into ${folder.target}`);

@@ -16,6 +16,7 @@ import { computeNull, needsPermutations, setupNull } from "./permutationInferenc
 import { prepareAnalysis } from "./prepareAnalysis.js";
 import { resultLines } from "./resultLines.js";
 import { runFingerprint } from "./runFingerprint.js";
+import { captureSubnetworkEdges, subnetworkValues } from "./subnetworkValues.js";
 import type { InferenceOverrides } from "../common/inferenceOverrides.js";
 
 /** What the user asked for (CLI flags or library call). */
@@ -94,6 +95,8 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
     }
     const fit = fitAll(prepared);
     const contrasts = prepared.contrasts.map((contrast) => observeContrast(prepared, fit, contrast, { effectSizes: !options.shard }));
+    // The data of the edges a significant subnetwork can hold, kept before the permutations overwrite the data.
+    const captured = options.shard ? undefined : captureSubnetworkEdges(prepared, contrasts);
     const nulls: (ContrastNull | undefined)[] = [];
     for (const [index, observed] of contrasts.entries()) {
       if (!permutations) {
@@ -121,7 +124,8 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
     } else {
       const family = inferContrasts(prepared, contrasts, nulls);
       inferred = family.inferred;
-      const written = writeResults(output, { prepared, contrasts, nulls, inferred, familyNull: family.familyNull, inputs, commandLine: options.commandLine ?? null });
+      const values = captured ? subnetworkValues(prepared, contrasts, inferred, captured) : undefined;
+      const written = writeResults(output, { prepared, contrasts, nulls, inferred, familyNull: family.familyNull, inputs, subnetworkValues: values, commandLine: options.commandLine ?? null });
       await output.readingBack(() => writeReport(output.staging, (relative, content) => output.write(relative, content), {}, written));
     }
     output.commit();

@@ -11,6 +11,7 @@ import { FAMILY_NULL_FILE, parseNullTable } from "../nullTable.js";
 import type { KnownResults } from "../writeResults.js";
 import type { NullChunk } from "../../permute/nullRangeTypes.js";
 import { tsvCellText } from "./tsvCellText.js";
+import { SUBNETWORK_VALUES_COLUMNS, type SubnetworkValues } from "../subnetworkValues.js";
 import type { RecordedOverrides } from "./overridesText.js";
 
 /**
@@ -157,6 +158,17 @@ export interface ContrastSummary {
   /** The file its p_FWE come from: `<name>/null.tsv`, or the family null with `inference.across_contrasts`. */
   p_fwe_null?: string;
   corrected_across_contrasts?: boolean;
+  /** The data behind the significant subnetworks (output/subnetworkValues.ts); absent when none were written. */
+  subnetwork_values?: {
+    file: string;
+    plot: "groups" | "covariate" | "mean";
+    variable: string | null;
+    levels: string[];
+    adjusted_for: string[];
+    selection: SubnetworkValues["selection"];
+    confidence_level: number;
+    subnetworks: { subnetwork: number; edges: number }[];
+  };
 }
 
 /** The contrast's rows: `rows` for an F contrast, else the one vector. */
@@ -199,6 +211,8 @@ export interface ContrastResults {
   nullDistribution?: NullChunk;
   /** threshold_robustness.tsv of a threshold sweep: per edge, the significant component at each threshold. */
   robustness?: RobustnessTable;
+  /** subnetwork_values.tsv, when the contrast has significant subnetworks with a data view. */
+  subnetworkValues?: SubnetworkValues;
 }
 
 export interface RobustnessTable {
@@ -427,7 +441,49 @@ function readContrast(files: FolderFiles, dir: string, summary: ContrastSummary,
       })),
     };
   }
-  return { summary, edges, components, nullDistribution, robustness };
+  const subnetworkValues = summary.subnetwork_values ? readSubnetworkValues(files, path.join(dir, summary.subnetwork_values.file), summary.subnetwork_values) : undefined;
+  return { summary, edges, components, nullDistribution, robustness, ...(subnetworkValues ? { subnetworkValues } : {}) };
+}
+
+/** subnetwork_values.tsv read back (rows subnetwork by subnetwork, each in design order), with summary.json's description of it. */
+function readSubnetworkValues(files: FolderFiles, file: string, meta: NonNullable<ContrastSummary["subnetwork_values"]>): SubnetworkValues {
+  const table = files.table(file);
+  const columns = columnsOf(table, SUBNETWORK_VALUES_COLUMNS);
+  const column = (name: (typeof SUBNETWORK_VALUES_COLUMNS)[number]) => columns.get(name)!;
+  const bySubnetwork = new Map<number, number[]>();
+  table.rows.forEach((_, row) => {
+    const id = numberCell(table, row, column("subnetwork"));
+    if (!bySubnetwork.has(id)) bySubnetwork.set(id, []);
+    bySubnetwork.get(id)!.push(row);
+  });
+  const first = [...bySubnetwork.values()][0] ?? [];
+  const numbers = (rows: number[], name: (typeof SUBNETWORK_VALUES_COLUMNS)[number]) => Float64Array.from(rows, (row) => numberCell(table, row, column(name)));
+  return {
+    plot: meta.plot,
+    variable: meta.variable,
+    levels: meta.levels,
+    adjustedFor: meta.adjusted_for,
+    selection: meta.selection,
+    level: meta.confidence_level,
+    ids: first.map((row) => tsvCellText(table.rows[row][column("participant_id")])),
+    groups: first.map((row) => tsvCellText(table.rows[row][column("group")])),
+    covariate: numbers(first, "covariate"),
+    subnetworks: meta.subnetworks.map(({ subnetwork, edges }) => {
+      const rows = bySubnetwork.get(subnetwork);
+      if (!rows || rows.length !== first.length) {
+        throw new InputError(`expected ${first.length} rows of subnetwork ${subnetwork} (summary.json lists it), found ${rows?.length ?? 0}`, { file, line: table.headerLine });
+      }
+      return {
+        id: subnetwork,
+        edges,
+        mean: numbers(rows, "mean_connectivity"),
+        adjusted: numbers(rows, "adjusted_connectivity"),
+        fitted: numbers(rows, "fitted_connectivity"),
+        lower: numbers(rows, "fitted_lower"),
+        upper: numbers(rows, "fitted_upper"),
+      };
+    }),
+  };
 }
 
 function readEdges(files: FolderFiles, edgesFile: string, regions: Region[]): EdgeColumns {

@@ -2,6 +2,7 @@ import { acrossContrastsSentence } from "./acrossContrastsText.js";
 import { cohortVariables } from "./cohortVariables.js";
 import { effectSizesMethods } from "./effectSizesMethods.js";
 import { coverageMethods } from "./coverageMethods.js";
+import { subnetworkValuesMethods } from "./subnetworkValuesMethods.js";
 import { escapeHtml } from "./escapeHtml.js";
 import type { LoadedResults } from "./loadResults.js";
 import { contrastRows } from "./loadResults.js";
@@ -156,6 +157,8 @@ export function methodsText(results: LoadedResults): MethodsText {
   }
   const effectSizes = effectSizesMethods(summary);
   contrasts.push(...effectSizes.segments);
+  const dataFigures = subnetworkValuesMethods(summary);
+  contrasts.push(...dataFigures.segments);
   const degenerate = summary.contrasts.filter((c) => c.edges_without_statistic > 0);
   if (degenerate.length > 0) {
     const most = Math.max(...degenerate.map((c) => c.edges_without_statistic));
@@ -288,7 +291,7 @@ export function methodsText(results: LoadedResults): MethodsText {
     }
   }
 
-  const references = [...new Set([...[...cited].map((key) => REFERENCES[key]), ...effectSizes.references, ...acrossContrasts.references, ...coverage.references])].sort();
+  const references = [...new Set([...[...cited].map((key) => REFERENCES[key]), ...effectSizes.references, ...dataFigures.references, ...acrossContrasts.references, ...coverage.references])].sort();
   return { paragraphs, references };
 }
 

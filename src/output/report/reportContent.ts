@@ -4,6 +4,7 @@ import { matrixFigure } from "./figures/matrixFigure.js";
 import { networkFigure } from "./figures/networkFigure.js";
 import { nullFigure } from "./figures/nullFigure.js";
 import { robustnessFigure } from "./figures/robustnessFigure.js";
+import { subnetworkDataFigures } from "./subnetworkDataFigures.js";
 import { PRINT_WIDTHS, widthSuffix, type PrintWidth } from "./figures/printSize.js";
 import type { LoadedResults } from "./loadResults.js";
 import { methodsText, type MethodsText } from "./methodsText.js";
@@ -116,6 +117,7 @@ export function reportContent(results: LoadedResults, options: CohortOptions = {
         (width) => networkFigure(contrast, results.regions, finding, alpha, width),
       ),
     );
+    for (const plan of subnetworkDataFigures(contrast, summary)) add(drawnFigure(plan.file, plan.kind, plan.caption, plan.draw));
     add(
       drawnFigure(
         `figures/${name}-robustness`,

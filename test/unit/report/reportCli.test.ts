@@ -92,7 +92,8 @@ describe("plexus report DIR", () => {
     const { code, sink } = await report(components.results);
     expect(sink.stderr).toBe("");
     expect(code).toBe(0);
-    expect(sink.stdout).toMatch(/^plexus report: wrote 32 files to /);
+    // 32 files, and the data figure of its significant subnetwork at two widths as SVG and PNG.
+    expect(sink.stdout).toMatch(/^plexus report: wrote 36 files to /);
     const expected = await allReportFiles(loadResults(components.results));
     expect(expected.has("tables.docx")).toBe(true);
     for (const [name, written] of expected) expect(readFileSync(join(components.results, name)).equals(Buffer.from(written)), name).toBe(true);

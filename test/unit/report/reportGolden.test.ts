@@ -58,7 +58,7 @@ describe("report golden files (test/golden/report, UPDATE_GOLDEN=1 to rewrite)",
   it("writes exactly the golden set of files", () => {
     const printed = [...files.keys()].filter((name) => !name.endsWith(".png"));
     expect(printed.sort()).toEqual(goldenFiles(GOLDEN));
-    const figureFiles = ["control_gt_patient-matrix", "control_gt_patient-null", "patient_gt_control-matrix", "patient_gt_control-network", "patient_gt_control-null"].flatMap(
+    const figureFiles = ["control_gt_patient-matrix", "control_gt_patient-null", "patient_gt_control-matrix", "patient_gt_control-network", "patient_gt_control-null", "patient_gt_control-subnetwork1-data"].flatMap(
       (base) => ["-180mm.png", "-180mm.svg", "-85mm.png", "-85mm.svg"].map((suffix) => `figures/${base}${suffix}`),
     );
     expect([...files.keys()].sort()).toEqual([
