@@ -128,7 +128,8 @@ export function nullFigure(contrast: ContrastResults, summary: ResultsSummary, w
   const rowsUsed = rowEnds.length;
   const markPitch = linePitch(tick) + 1;
   const bandTop = subtitle.lastBaseline + DESCENT_EM * axis + 4;
-  const plotTop = bandTop + rowsUsed * markPitch + (rowsUsed > 0 ? 4 : 0);
+  // The top count label reaches half a line above the plot.
+  const plotTop = bandTop + Math.max(rowsUsed * markPitch + 4, textHeight(tick) / 2 + TEXT_GAP);
   const plotHeight = PLOT_HEIGHT[width];
   const plotBottom = plotTop + plotHeight;
   const y = (c: number) => plotBottom - (c / yTop) * plotHeight;
