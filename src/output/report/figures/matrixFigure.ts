@@ -14,7 +14,9 @@ import { ASCENT_EM, DESCENT_EM, textHeight, textWidth } from "./textWidth.js";
  * Figure: the edge-statistic matrix as a heatmap (both triangles), regions in
  * the drawing order of regionOrder (hemisphere, then system), the statistic on
  * the shared cividis scale (t from −max|t| to +max|t|; F from 0 to its maximum), and every edge of the significant finding outlined
- * (a black and a white frame, visible on any colour). Cells are quantised to
+ * (a black and a white frame, visible on any colour) while the finding holds at
+ * most a quarter of the tested edges (more would hide the colours; the
+ * subtitle then says so). Cells are quantised to
  * 41 colours and drawn as one path per colour, so the file stays small for a
  * few hundred regions.
  *
@@ -29,6 +31,8 @@ const LEVELS = 41;
 const PAD = 3;
 /** The largest cell: a few regions do not make a huge matrix. */
 const MAX_CELL = 14;
+/** The finding is outlined only while it holds at most this share of the tested edges. */
+const OUTLINE_SHARE = 0.25;
 /** The longest axis label, in points; longer labels are shortened. */
 const MAX_LABEL: Record<PrintWidth, number> = { single: 62, double: 96 };
 
@@ -51,15 +55,21 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
   const signed = contrast.summary.statistic !== "F";
   const stat = signed ? "t" : "F";
   const body: string[] = [];
+  // Outlines help while the finding is a minority of the edges; beyond OUTLINE_SHARE they hide the colours.
+  let tested = 0;
+  for (let e = 0; e < edges.statistic.length; e++) if (Number.isFinite(edges.statistic[e])) tested++;
+  const outlined = finding.edges.length > 0 && finding.edges.length <= OUTLINE_SHARE * tested;
 
   // Title and subtitle.
   const title = paragraph(PAD, PAD + ASCENT_EM * FONT_PT.title, `Edge statistics (${stat}): ${contrast.summary.name}`, W - 2 * PAD, FONT_PT.title, { weight: "bold" });
   const subtitle = paragraph(
     PAD,
     title.lastBaseline + DESCENT_EM * FONT_PT.title + TEXT_GAP + ASCENT_EM * axis,
-    finding.edges.length > 0
-      ? `${finding.edges.length} edge${finding.edges.length > 1 ? "s" : ""} of the ${finding.kind === "components" ? "significant subnetworks" : "FDR-significant set"} outlined`
-      : "no significant edges to outline",
+    finding.edges.length === 0
+      ? "no significant edges to outline"
+      : outlined
+        ? `${finding.edges.length} edge${finding.edges.length > 1 ? "s" : ""} of the ${finding.kind === "components" ? "significant subnetworks" : "FDR-significant set"} outlined`
+        : `${finding.edges.length} of ${tested} edges in the ${finding.kind === "components" ? "significant subnetworks" : "FDR-significant set"}: too many to outline (see the edge table)`,
     W - 2 * PAD,
     axis,
     { fill: "#444444" },
@@ -92,7 +102,8 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
   if (named > 0) {
     cell = named;
     const size = cell * count;
-    left = Math.max(PAD + regionLabelWidth + 3, (W - size) / 2);
+    // The labels and the matrix together, centred across the width.
+    left = Math.max(PAD, (W - (regionLabelWidth + 3 + size)) / 2) + regionLabelWidth + 3;
     top = headTop + regionLabelWidth + 3;
   } else {
     const withRight = W - groupLeft - (findingLabelWidth + 14) - PAD;
@@ -213,7 +224,7 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
 
   // Outlines of the significant edges: a frame round each cell, never smaller than 2.5 pt so that
   // it stays visible when cells are tiny (it then overlaps its neighbours a little).
-  if (finding.edges.length > 0) {
+  if (outlined) {
     const side = Math.max(cell, 2.5);
     const inset = (cell - side) / 2;
     const frame = (column: number, row: number) =>
@@ -225,8 +236,8 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
       outline.push(frame(q, p), frame(p, q));
     }
     const d = outline.join("");
-    body.push(`<path d="${d}" fill="none" stroke="#000000" stroke-width="${n(Math.max(0.7, side * 0.28))}"/>`);
-    body.push(`<path d="${d}" fill="none" stroke="#ffffff" stroke-width="${n(Math.max(0.3, side * 0.1))}"/>`);
+    body.push(`<path d="${d}" fill="none" stroke="#000000" stroke-width="${n(Math.max(0.7, Math.min(1.6, side * 0.16)))}"/>`);
+    body.push(`<path d="${d}" fill="none" stroke="#ffffff" stroke-width="${n(Math.max(0.3, Math.min(0.6, side * 0.06)))}"/>`);
   }
 
   // The finding's regions at the right, each joined to its row.
