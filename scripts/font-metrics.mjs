@@ -2,7 +2,7 @@
 // character in Basic Latin, Latin-1 Supplement and a few punctuation and math signs the
 // figures use, for DejaVu Sans and DejaVu Sans Bold, read from the TrueType files of the
 // dejavu-fonts-ttf package (the fonts the PNG rasteriser and the browser test use).
-// Widths are in thousandths of an em. The reader below follows the OpenType specification
+// Widths are in thousandths of an em, rounded up (so a sum is never short). The reader below follows the OpenType specification
 // (tables `head`, `hhea`, `hmtx` and `cmap` format 4), no font library needed.
 //
 //   node scripts/font-metrics.mjs
@@ -69,7 +69,7 @@ function readFont(file) {
   const widths = new Map();
   for (const c of characters) {
     const glyph = glyphOf(c.codePointAt(0));
-    if (glyph !== 0) widths.set(c, Math.round((1000 * advance(glyph)) / unitsPerEm));
+    if (glyph !== 0) widths.set(c, Math.ceil((1000 * advance(glyph)) / unitsPerEm));
   }
   return widths;
 }

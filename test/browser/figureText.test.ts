@@ -25,6 +25,7 @@ import { main } from "../../src/cli/main.js";
 import type { OutputSink } from "../../src/cli/outputSink.js";
 import { nullFigure } from "../../src/output/report/figures/nullFigure.js";
 import { PRINT_WIDTHS, widthSuffix } from "../../src/output/report/figures/printSize.js";
+import { textWidth } from "../../src/output/report/figures/textWidth.js";
 import { loadResults } from "../../src/output/report/loadResults.js";
 import { writeReport } from "../../src/output/report/writeReport.js";
 import { analysedCohort, GOLDEN_DESIGN, type AnalysedCohort } from "../unit/report/reportCohort.js";
@@ -203,6 +204,28 @@ describe.skipIf(!available && !mustRun)("the text of every print figure, measure
           names.some((name) => name.includes(kind) && name.endsWith(suffix)),
           `${kind}…${suffix}`,
         ).toBe(true);
+      }
+    }
+  });
+
+  it("writes the power figure at both widths as SVG and PNG, and no screen-size power.svg", () => {
+    const power = readdirSync(folders.find((f) => f.endsWith("power"))!).sort();
+    expect(power).toEqual(expect.arrayContaining(["power-180mm.png", "power-180mm.svg", "power-85mm.png", "power-85mm.svg"]));
+    expect(power).not.toContain("power.svg");
+  });
+
+  it("estimates text widths as Chromium sets them in DejaVu Sans: never narrower, at most 2% wider", async () => {
+    await page.setContent(`<!doctype html><html><head><style>${fontFaces()}</style></head><body><svg xmlns="http://www.w3.org/2000/svg" width="2000" height="100" font-family="DejaVu Sans"></svg></body></html>`, { waitUntil: "load" });
+    await page.evaluate(`Promise.all([document.fonts.load("10px 'DejaVu Sans'"), document.fonts.load("bold 10px 'DejaVu Sans'")])`);
+    const samples = ["L-vale-02 – R-knoll-04", "Null distribution of the largest component extent", "p_FWE ≤ 0.05; α = 0.05", "WMQ@%&ijl.,;:|!", "0123456789", "Ångström Ünïcödé façade"];
+    for (const bold of [false, true]) {
+      for (const sample of samples) {
+        const rendered = (await page.evaluate(
+          `(() => { const svg = document.querySelector("svg"); svg.innerHTML = ""; const t = document.createElementNS("http://www.w3.org/2000/svg", "text"); t.setAttribute("x", "0"); t.setAttribute("y", "50"); t.setAttribute("font-size", "100");${bold ? ' t.setAttribute("font-weight", "bold");' : ""} t.textContent = ${JSON.stringify(sample)}; svg.appendChild(t); return t.getComputedTextLength(); })()`,
+        )) as number;
+        const estimate = textWidth(sample, 100, bold);
+        expect(estimate, `${bold ? "bold " : ""}"${sample}": rendered ${rendered.toFixed(1)}`).toBeGreaterThanOrEqual(rendered - 0.05);
+        expect(estimate / rendered, `${bold ? "bold " : ""}"${sample}"`).toBeLessThan(1.02);
       }
     }
   });
