@@ -3,8 +3,8 @@
 // (a components run and its report on designs/clinic-contrast.yaml, a threshold sweep on
 // designs/clinic-robustness.yaml, a threshold-free run, an FDR run, a small `plexus power`,
 // `plexus strength` on designs/strength-clinic.yaml, the report cohort of the report tests
-// with 16 regions and an HTML label, and null histograms with many components of nearly one
-// size), then opens EVERY *.svg found under them (so a figure added later is covered without
+// with 16 regions and an HTML label, null histograms with many components of nearly one
+// size, and matrices of regions with no groups or with long names), then opens EVERY *.svg found under them (so a figure added later is covered without
 // touching this file) with DejaVu Sans and DejaVu Sans Bold from node_modules/dejavu-fonts-ttf
 // declared by @font-face under every family name the figures ask for, so the measures do not
 // depend on the machine's fonts. Each <text> element's box (after its transforms) is taken in
@@ -23,7 +23,9 @@ import { chromium, type Browser, type Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { main } from "../../src/cli/main.js";
 import type { OutputSink } from "../../src/cli/outputSink.js";
+import { matrixFigure } from "../../src/output/report/figures/matrixFigure.js";
 import { nullFigure } from "../../src/output/report/figures/nullFigure.js";
+import { significantEdges } from "../../src/output/report/significantEdges.js";
 import { PRINT_WIDTHS, widthSuffix } from "../../src/output/report/figures/printSize.js";
 import { textWidth } from "../../src/output/report/figures/textWidth.js";
 import { loadResults } from "../../src/output/report/loadResults.js";
@@ -125,7 +127,9 @@ function problems(file: string, measured: Measured): string[] {
     out.push(`${file}: viewBox width ${width} is not the width attribute "${measured.widthAttribute}" in points`);
   }
   const boxes = measured.boxes;
+  if (boxes.length === 0) out.push(`${file}: no text measured`);
   for (const b of boxes) {
+    if (!(b.right - b.left > 0 && b.bottom - b.top > 0)) out.push(`${file}: ${box(b)} has an empty box`);
     if (b.fontPt < MIN_FONT_PT - 1e-6) out.push(`${file}: ${box(b)} is set at ${b.fontPt.toFixed(2)} pt, below ${MIN_FONT_PT} pt`);
     if (b.left < -TOLERANCE || b.top < -TOLERANCE || b.right > width + TOLERANCE || b.bottom > height + TOLERANCE) {
       out.push(`${file}: ${box(b)} leaves the viewBox [0, 0 – ${width.toFixed(1)}, ${height.toFixed(1)}]`);
@@ -181,8 +185,16 @@ describe.skipIf(!available && !mustRun)("the text of every print figure, measure
     const contrast = results.contrasts[0];
     const sizes = [3, 3, 4, 5, 5, 5, 5, 6, 7, 7, 8, 9, 9, 10, 11, 12, 13, 14, 15];
     const many = { ...contrast, components: sizes.map((size, k) => ({ ...contrast.components[0], id: k + 1, extent: size, mass: size * 3.5, pFwe: size >= 5 ? 0.01 : 0.3 })) };
+    const byMass = { ...results.summary, options: { ...results.summary.options, inference: { ...results.summary.options.inference, size: "mass" as const } } };
+    // Matrices of regions with no hemisphere or system, and with long labels and long system names.
+    const finding = significantEdges(contrast, 0.05);
+    const bare = results.regions.map((r) => ({ label: r.label }));
+    const wordy = results.regions.map((r, k) => ({ label: `Invented region with a long name ${k + 1}`, system: `${r.system ?? "none"} and its long-named neighbours` }));
     for (const width of PRINT_WIDTHS) {
       writeFileSync(join(crowded, `null-many${widthSuffix(width)}.svg`), nullFigure(many, results.summary, width)!);
+      writeFileSync(join(crowded, `null-mass${widthSuffix(width)}.svg`), nullFigure(many, byMass, width)!);
+      writeFileSync(join(crowded, `matrix-bare${widthSuffix(width)}.svg`), matrixFigure(contrast, bare, finding, 0, width));
+      writeFileSync(join(crowded, `matrix-wordy${widthSuffix(width)}.svg`), matrixFigure(contrast, wordy, finding, 0, width));
     }
 
     browser = await chromium.launch({ executablePath: CHROMIUM, headless: true, args: ["--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-background-networking"] });
@@ -198,7 +210,7 @@ describe.skipIf(!available && !mustRun)("the text of every print figure, measure
 
   it("finds the figures of every output: null, matrix, network, robustness, power, at both widths", () => {
     const names = folders.flatMap(svgFiles).map((file) => file.slice(file.lastIndexOf("/") + 1));
-    for (const kind of ["-null-", "-matrix-", "-network-", "-robustness-", "power-", "null-many-"]) {
+    for (const kind of ["-null-", "-matrix-", "-network-", "-robustness-", "power-", "null-many-", "null-mass-", "matrix-bare-", "matrix-wordy-"]) {
       for (const suffix of ["-180mm.svg", "-85mm.svg"]) {
         expect(
           names.some((name) => name.includes(kind) && name.endsWith(suffix)),

@@ -91,7 +91,11 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
 
   // Otherwise the groups: hemisphere (outer) and system (inner) along the left, the same across the top.
   const systemLabelWidth = hasSystem ? Math.min(maxLabel, Math.max(0, ...blocks.map((b) => textWidth(clipToWidth(b.system ?? "", maxLabel, small), small)))) : 0;
-  const groupLeft = PAD + (hasHemisphere ? textHeight(axis) + 3 : 0) + (hasSystem ? systemLabelWidth + 3 : 0) + (hasHemisphere || hasSystem ? 5 : 0);
+  const hasGroups = hasHemisphere || hasSystem;
+  // Without groups, region numbers (in matrix order) along the left instead.
+  const groupLeft = hasGroups
+    ? PAD + (hasHemisphere ? textHeight(axis) + 3 : 0) + (hasSystem ? systemLabelWidth + 3 : 0) + 5
+    : PAD + textWidth(String(count), small) + 5;
   const findingLabels = [...highlightNodes].sort((a, b) => position[a] - position[b]);
   const findingLabelWidth = Math.max(0, ...findingLabels.map((r) => textWidth(clipToWidth(regions[r].label, maxLabel, small), small)));
 
@@ -108,11 +112,11 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
   } else {
     const withRight = W - groupLeft - (findingLabelWidth + 14) - PAD;
     labelsRight = findingLabels.length > 0 && withRight >= 0.55 * W && (findingLabels.length - 1) * linePitch(small) <= withRight;
-    const size = labelsRight ? withRight : W - groupLeft - PAD - (hasHemisphere || hasSystem ? 0 : 14);
+    const size = labelsRight ? withRight : W - groupLeft - PAD;
     cell = Math.min(MAX_CELL, size / Math.max(count, 1));
-    left = groupLeft + (hasHemisphere || hasSystem ? 0 : 14);
+    left = groupLeft;
     const topLabels = (hasHemisphere ? linePitch(axis) : 0) + (hasSystem ? systemLabelWidth + 3 : 0);
-    top = headTop + topLabels + (hasHemisphere || hasSystem ? 3 : 0);
+    top = headTop + topLabels + (hasGroups ? 3 : textHeight(small) / 2);
   }
   const size = cell * count;
 
@@ -213,6 +217,7 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
     if (!hasHemisphere && !hasSystem) {
       // Region numbers in matrix order along the left.
       const ticks = niceTicks(1, count, Math.max(2, Math.floor(size / 40))).filter((t) => t >= 1 && Number.isInteger(t));
+      if (ticks.length > 1 && ticks[0] > 1 && (ticks[0] - 1) * cell >= linePitch(small)) ticks.unshift(1);
       for (const t of ticks) {
         const p = position[t - 1];
         const y = top + (p + 0.5) * cell;
