@@ -118,6 +118,8 @@ export function matrixFigure(contrast: ContrastResults, regions: Region[], findi
     const topLabels = (hasHemisphere ? linePitch(axis) : 0) + (hasSystem ? systemLabelWidth + 3 : 0);
     top = headTop + topLabels + (hasGroups ? 3 : textHeight(small) / 2);
   }
+  // The cell grid's transform is written with two decimals; the outlines and labels use the same cell.
+  cell = Math.floor(cell * 100) / 100;
   const size = cell * count;
 
   // One path per quantised colour; each cell is a unit square in matrix coordinates.
