@@ -15,6 +15,8 @@ import { refuseRepeated } from "../run/repeatedScans.js";
 import { plantedEdges } from "./powerCohort.js";
 import { analysePowerCohort, POWER_METHODS, sampleSizeFor, sampleSizeSentence, sampleSizeWithInterval, summarizePower, type CohortDetections, type PowerEstimate, type PowerPlan } from "./powerStudy.js";
 import { powerCurveSvg } from "./powerCurve.js";
+import { PRINT_WIDTHS, widthSuffix } from "../output/report/figures/printSize.js";
+import { rasterise } from "../output/report/figures/rasterise.js";
 
 export interface PowerOptions {
   out: string;
@@ -177,7 +179,11 @@ export async function runPower(
         estimates.map((e) => [e.perGroup, e.method, e.cohorts, e.detected, e.power, e.low, e.high]),
       ),
     );
-    folder.write("power.svg", powerCurveSvg(estimates, target));
+    for (const width of PRINT_WIDTHS) {
+      const svg = powerCurveSvg(estimates, target, width);
+      folder.write(`power${widthSuffix(width)}.svg`, svg);
+      folder.write(`power${widthSuffix(width)}.png`, rasterise(svg, width));
+    }
     folder.write("power.md", powerMarkdown(options, plan, estimates, sampleSize, target, pilotNote));
     folder.write(
       "summary.json",
@@ -243,7 +249,9 @@ function powerMarkdown(
     "",
     "The uncorrected column tests the planted edges without any correction for the other edges; it is shown for reference only.",
     "",
-    "![Power by sample size](power.svg)",
+    "![Power by sample size](power-180mm.svg)",
+    "",
+    "The figure is also written for one journal column (power-85mm.svg) and as 300 dpi PNG (power-180mm.png, power-85mm.png).",
     "",
   ];
   return lines.join("\n");

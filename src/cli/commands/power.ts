@@ -23,7 +23,7 @@ export function registerPower(program: Command, sink: OutputSink, argv: () => st
   program
     .command("power")
     .description("estimate by simulation the power of components, max-t and FDR for a planned two-group study")
-    .requiredOption("-o, --out <dir>", "folder for power.tsv, power.md, power.svg and summary.json")
+    .requiredOption("-o, --out <dir>", "folder for power.tsv, power.md, the figure (power-180mm.svg, power-85mm.svg and their PNGs) and summary.json")
     .option("--regions <n>", "number of regions (edges simulated as independent normal values)")
     .option("--regions-file <file>", "a regions table; its coordinates place the planted subnetwork")
     .option("--pilot <design>", "a design file whose cohort is the pilot: its residual vectors are resampled, keeping their dependence")

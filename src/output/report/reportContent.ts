@@ -103,7 +103,7 @@ export function reportContent(results: LoadedResults, options: CohortOptions = {
       drawnFigure(
         `figures/${name}-matrix`,
         "matrix",
-        "The t-statistic of every edge (both triangles), regions grouped by hemisphere and system when the regions table gives them; the edges of the significant finding are outlined. Colour scale: cividis, dark blue (most negative) to yellow (most positive), lightness increasing throughout.",
+        "The t-statistic of every edge (both triangles), regions grouped by hemisphere and system when the regions table gives them; the edges of the significant finding are outlined (while they are at most a quarter of the tested edges). Colour scale: cividis, dark blue (most negative) to yellow (most positive), lightness increasing throughout.",
         (width) => matrixFigure(contrast, results.regions, finding, results.summary.edge_rules?.dropped ?? 0, width),
       ),
     );

@@ -1,8 +1,8 @@
 import { scaleColour } from "./colourScale.js";
 import { line, n, rect, text } from "./svgElements.js";
 
-/** A horizontal colour bar from −limit (0 when not `signed`) to +limit, ticked at both ends and zero, with its label. */
-export function colourBar(x: number, y: number, width: number, height: number, limit: number, label: string, signed = true): string[] {
+/** A horizontal colour bar from −limit (0 when not `signed`) to +limit, ticked at both ends and zero, with its label (font sizes: label, ticks). */
+export function colourBar(x: number, y: number, width: number, height: number, limit: number, label: string, signed = true, sizes: [number, number] = [10, 9]): string[] {
   const steps = 64;
   const out: string[] = [];
   for (let k = 0; k < steps; k++) {
@@ -22,8 +22,8 @@ export function colourBar(x: number, y: number, width: number, height: number, l
       ];
   for (const [tx, value] of ticks) {
     out.push(line(tx, y + height, tx, y + height + 3, "#333333", 0.8));
-    out.push(text(tx, y + height + 13, value, { anchor: "middle", size: 9 }));
+    out.push(text(tx, y + height + 4 + sizes[1], value, { anchor: "middle", size: sizes[1] }));
   }
-  out.push(text(x + width / 2, y - 4, label, { anchor: "middle", size: 10 }));
+  out.push(text(x + width / 2, y - 4, label, { anchor: "middle", size: sizes[0] }));
   return out;
 }

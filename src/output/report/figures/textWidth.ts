@@ -1,31 +1,38 @@
+import { DEJAVU_SANS, DEJAVU_SANS_BOLD } from "./fontMetrics.generated.js";
+
 /**
  * The width a text takes at a font size, for laying out labels without a
- * browser. Measured for the widest of the fonts a figure may be shown in
- * (DejaVu Sans, which the PNG rasteriser uses; Helvetica and Arial are
- * narrower), so a layout that fits by this measure fits in each of them.
+ * browser: the sum of the characters' advance widths in DejaVu Sans (or
+ * DejaVu Sans Bold), read from the font files by scripts/font-metrics.mjs.
+ * DejaVu Sans is the font the PNG rasteriser uses and the widest of those a
+ * figure asks for (Helvetica and Arial are narrower), and kerning only ever
+ * narrows a text, so a layout that fits by this measure fits in each of them.
+ * A character outside the table counts as one em (wider than any in it).
  * Widths are in the same unit as `size` (points, in the print figures).
  */
-const NARROW = new Set("iljtfrI.,:;'|!()[]{} ");
-const WIDE = new Set("mwMWOQGD%@");
+const FALLBACK_EM = 1;
 
-/** Advance width of one character as a fraction of the font size (upper estimates of DejaVu Sans). */
-function advance(char: string, bold: boolean): number {
-  let em: number;
-  if (NARROW.has(char)) em = 0.36;
-  else if (WIDE.has(char)) em = 0.98;
-  else if (char >= "A" && char <= "Z") em = 0.76;
-  else if (char >= "0" && char <= "9") em = 0.64;
-  else em = 0.63;
-  return bold ? em * 1.1 : em;
+function advanceTable([characters, widths]: readonly [string, readonly number[]]): Map<string, number> {
+  const table = new Map<string, number>();
+  [...characters].forEach((c, k) => table.set(c, widths[k] / 1000));
+  return table;
 }
 
+const REGULAR = advanceTable(DEJAVU_SANS);
+const BOLD = advanceTable(DEJAVU_SANS_BOLD);
+
 export function textWidth(content: string, size: number, bold = false): number {
+  const table = bold ? BOLD : REGULAR;
   let em = 0;
-  for (const char of content) em += advance(char, bold);
+  for (const char of content) em += table.get(char) ?? FALLBACK_EM;
   return em * size;
 }
 
-/** The height a line of text takes (ascender to descender) at a font size. */
+/** DejaVu Sans' ascent and descent as fractions of the font size (its hhea table: 1901 and 483 of 2048 units). */
+export const ASCENT_EM = 0.93;
+export const DESCENT_EM = 0.24;
+
+/** The height a line of text takes (ascender to descender) at a font size: the height of its box in a browser. */
 export function textHeight(size: number): number {
-  return size * 1.17;
+  return size * (ASCENT_EM + DESCENT_EM);
 }
