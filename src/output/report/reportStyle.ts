@@ -24,7 +24,7 @@ td.indent { padding-left: 26px; }
 td.hash code { font-size: 0.78em; }
 .note { font-size: 0.82rem; color: #4d4d4d; margin: 4px 0; max-width: 60rem; }
 figure { margin: 1.2rem 0 1.8rem; }
-figure .svg svg { max-width: 100%; height: auto; display: block; }
+figure .svg svg { width: 100%; height: auto; display: block; }
 figcaption { font-size: 0.86rem; color: #333333; margin-top: 6px; max-width: 60rem; }
 figcaption .file, .hint { color: #666666; font-size: 0.85rem; }
 .none { font-style: italic; }
