@@ -195,7 +195,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
   if (overrides) warnings.push(overrideWarning(overrides, design.file, inference.method !== "fdr"));
   if (excluded.length > 0) {
     warnings.push(
-      `${excluded.length} subject${excluded.length > 1 ? "s" : ""} left out for missing values: ${excluded
+      `${excluded.length} participant${excluded.length > 1 ? "s" : ""} left out for missing values: ${excluded
         .map((x) => `${printable(x.id)} (${x.reason})`)
         .join("; ")}`,
     );

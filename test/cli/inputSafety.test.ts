@@ -81,7 +81,7 @@ describe("missing-value codes", () => {
     expect(result.stdout).toMatch(/columns     intercept, group\[patient\], age\n/);
     expect(result.stdout).toMatch(/df          8\n/); // 11 subjects, 3 columns
     expect(result.stdout).toMatch(/subjects    11 used of 12 \(1 left out for missing values\)/);
-    expect(result.stderr).toMatch(/warning: 1 subject left out for missing values: sub-04 \(missing age\)/);
+    expect(result.stderr).toMatch(/warning: 1 participant left out for missing values: sub-04 \(missing age\)/);
   });
 
   it("every default code (empty, n/a, N/A, NA, NaN, nan) is missing", async () => {

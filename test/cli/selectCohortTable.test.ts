@@ -165,7 +165,7 @@ describe("select: a symptom score within patients", () => {
     expect(summary.subjects.used).toBe(R.symptom.used);
     expect(summary.subjects.not_selected).toBe(R.symptom.not_selected);
     expect(summary.subjects.excluded).toEqual([{ participant_id: "sub-05", line: 6, reason: "missing symptom" }]);
-    expect(summary.warnings).toEqual(["1 subject left out for missing values: sub-05 (missing symptom)"]);
+    expect(summary.warnings).toEqual(["1 participant left out for missing values: sub-05 (missing symptom)"]);
     // No contrast compares a factor: Table 1 describes every analysed participant in one column.
     expect(summary.cohort_table).toEqual({ by: null, by_from: "none", variables: ["symptom", "age"] });
     const methods = readFileSync(path.join(out, "methods.md"), "utf8");
