@@ -11,8 +11,9 @@ import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, 
 import { tmpdir } from "node:os";
 import { dirname, join } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
-import { chromium, type BrowserContext, type Page } from "playwright-core";
+import type { BrowserContext, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { CHROMIUM, openOffline } from "../helpers/offlinePage.js";
 import { loadResults } from "../../src/output/report/loadResults.js";
 import { reportContent } from "../../src/output/report/reportContent.js";
 import { regionOrder } from "../../src/output/report/figures/regionOrder.js";
@@ -21,7 +22,6 @@ import { RESEARCH_NOTICE } from "../../src/output/report/reportHtml.js";
 import { writeReport } from "../../src/output/report/writeReport.js";
 import { analysedCohort, GOLDEN_DESIGN, HTML_LABEL, type AnalysedCohort } from "../unit/report/reportCohort.js";
 
-const CHROMIUM = "/usr/bin/chromium";
 const available = existsSync(CHROMIUM);
 const mustRun = Boolean(process.env.CI);
 const OUTPUT = join(dirname(fileURLToPath(import.meta.url)), "..", "..", "test-output", "report");
@@ -56,37 +56,7 @@ describe.skipIf(!available && !mustRun)("report.html in headless Chromium", () =
       writeFileSync(join(cohort.results, path), text);
     });
     profile = mkdtempSync(join(tmpdir(), "plexus-chromium-profile-"));
-    context = await chromium.launchPersistentContext(profile, {
-      executablePath: CHROMIUM,
-      headless: true,
-      args: [
-        "--headless",
-        "--no-sandbox",
-        "--disable-gpu",
-        "--disable-quic",
-        "--no-first-run",
-        "--disable-background-networking",
-        "--disable-component-update",
-        "--disable-sync",
-      ],
-      viewport: { width: 1100, height: 900 },
-    });
-    await context.route("**/*", (route) => {
-      const url = route.request().url();
-      if (url.startsWith("file:")) return route.continue();
-      outsideRequests.push(url);
-      return route.abort();
-    });
-    page = context.pages()[0] ?? (await context.newPage());
-    page.on("console", (message) => {
-      if (message.type() === "error") consoleErrors.push(message.text());
-    });
-    page.on("pageerror", (error) => pageErrors.push(error.message));
-    page.on("dialog", (dialog) => {
-      dialogs.push(dialog.message());
-      void dialog.dismiss();
-    });
-    await page.goto(pathToFileURL(join(cohort.results, "report.html")).href, { waitUntil: "load" });
+    ({ context, page } = await openOffline(profile, pathToFileURL(join(cohort.results, "report.html")).href, { consoleErrors, pageErrors, dialogs, outsideRequests }));
   });
 
   afterAll(async () => {

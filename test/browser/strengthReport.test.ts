@@ -8,12 +8,12 @@ import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "no
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
-import { chromium, type BrowserContext, type Page } from "playwright-core";
+import type { BrowserContext, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { CHROMIUM, openOffline } from "../helpers/offlinePage.js";
 import { RESEARCH_NOTICE } from "../../src/output/report/reportHtml.js";
 import { groupDesignLines, numberColumn, readTable, runCli, writeDesignFile, writeSimulatedCohort } from "../unit/strength/strengthTestFiles.js";
 
-const CHROMIUM = "/usr/bin/chromium";
 const available = existsSync(CHROMIUM);
 const mustRun = Boolean(process.env.CI);
 /** Closes the data element and opens a script that would leave a mark on the page. */
@@ -60,28 +60,7 @@ describe.skipIf(!available && !mustRun)("plexus strength's report.html in headle
     expect(result.code, result.stderr).toBe(0);
 
     profile = mkdtempSync(join(tmpdir(), "plexus-chromium-profile-"));
-    context = await chromium.launchPersistentContext(profile, {
-      executablePath: CHROMIUM,
-      headless: true,
-      args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
-      viewport: { width: 1100, height: 900 },
-    });
-    await context.route("**/*", (route) => {
-      const url = route.request().url();
-      if (url.startsWith("file:")) return route.continue();
-      outsideRequests.push(url);
-      return route.abort();
-    });
-    page = context.pages()[0] ?? (await context.newPage());
-    page.on("console", (message) => {
-      if (message.type() === "error") consoleErrors.push(message.text());
-    });
-    page.on("pageerror", (error) => pageErrors.push(error.message));
-    page.on("dialog", (dialog) => {
-      dialogs.push(dialog.message());
-      void dialog.dismiss();
-    });
-    await page.goto(pathToFileURL(join(out, "report.html")).href, { waitUntil: "load" });
+    ({ context, page } = await openOffline(profile, pathToFileURL(join(out, "report.html")).href, { consoleErrors, pageErrors, dialogs, outsideRequests }));
   });
 
   afterAll(async () => {
