@@ -29,7 +29,8 @@ export function scaleColour(position: number): string {
   return toHex(interpolateCividis(position));
 }
 
-function toHex(colour: string): string {
+/** A colour from d3-scale-chromatic ("rgb(r, g, b)" or "#rrggbb") as #rrggbb. */
+export function toHex(colour: string): string {
   if (colour.startsWith("#")) return colour;
   const parts = colour.match(/\d+/g) ?? ["0", "0", "0"];
   return `#${parts

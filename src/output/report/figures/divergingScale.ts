@@ -1,4 +1,5 @@
 import { interpolateRdBu } from "d3-scale-chromatic";
+import { toHex } from "./colourScale.js";
 
 /**
  * The diverging colour scale of the nodal figure, for a signed statistic per
@@ -13,19 +14,10 @@ export const DIVERGING_SCALE_NAME = "red–blue (ColorBrewer; Harrower & Brewer 
 
 /** Colour at a position in [0, 1] of the scale (0: most negative, blue; 1: most positive, red), as #rrggbb. */
 export function divergingAt(position: number): string {
-  return hex(interpolateRdBu(1 - Math.max(0, Math.min(1, position))));
+  return toHex(interpolateRdBu(1 - Math.max(0, Math.min(1, position))));
 }
 
 /** Colour of `value` on a scale from −limit to +limit, as #rrggbb. */
 export function divergingColour(value: number, limit: number): string {
   return divergingAt(limit > 0 ? (value + limit) / (2 * limit) : 0.5);
-}
-
-function hex(colour: string): string {
-  if (colour.startsWith("#")) return colour;
-  const parts = colour.match(/\d+/g) ?? ["0", "0", "0"];
-  return `#${parts
-    .slice(0, 3)
-    .map((p) => Number(p).toString(16).padStart(2, "0"))
-    .join("")}`;
 }
