@@ -14,6 +14,8 @@
 //   (c) a text leaves the viewBox by more than TOLERANCE points,
 // or when a figure's viewBox is not its width in points (one user unit = one point).
 // The failure message names the file, the texts and their boxes.
+// PLEXUS_FIGURE_FOLDERS (folders separated by ':') adds output folders of your own to measure,
+// e.g. a study's results: PLEXUS_FIGURE_FOLDERS=results/study npx vitest run test/browser/figureText.test.ts
 // Without /usr/bin/chromium the test is skipped with a message, except under CI (CI set).
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from "node:fs";
 import { createRequire } from "node:module";
@@ -241,7 +243,8 @@ describe.skipIf(!available && !mustRun)("the text of every print figure, measure
   });
 
   it("sets no text below 7 pt, lets no two texts overlap and keeps every text inside its figure", async () => {
-    const files = folders.flatMap(svgFiles);
+    const extra = (process.env.PLEXUS_FIGURE_FOLDERS ?? "").split(":").filter((folder) => folder.length > 0);
+    const files = [...folders, ...extra].flatMap(svgFiles);
     expect(files.length).toBeGreaterThan(20);
     // One page with the fonts; each figure in turn replaces the one before it.
     await page.setContent(`<!doctype html><html><head><style>${fontFaces()}\nbody{margin:0}</style></head><body><div id="figure"></div></body></html>`, { waitUntil: "load" });
