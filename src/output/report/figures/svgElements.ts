@@ -14,17 +14,6 @@ export function n(value: number): string {
   return String(Object.is(rounded, -0) ? 0 : rounded);
 }
 
-export function svgDocument(width: number, height: number, title: string, body: string[]): string {
-  return [
-    `<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 ${n(width)} ${n(height)}" width="${n(width)}" height="${n(height)}" font-family="${FONT}" font-size="11" role="img">`,
-    `<title>${escapeHtml(title)}</title>`,
-    `<rect x="0" y="0" width="${n(width)}" height="${n(height)}" fill="#ffffff"/>`,
-    ...body,
-    "</svg>",
-    "",
-  ].join("\n");
-}
-
 export interface TextOptions {
   anchor?: "start" | "middle" | "end";
   size?: number;
