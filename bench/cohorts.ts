@@ -14,7 +14,10 @@ import { uniformSource } from "./uniformSource.js";
  *   cohort-400-npy  the same cohort as one .npy stack, and (bench/containerStacks.py) as one MATLAB .mat
  *                   file (N × N × S) and one HDF5 file (S × N × N);
  *   cohort-1000     1,000 regions, 500 subjects, one .npy stack of 500 × 1000 × 1000 (4 GB) of
- *                   uniform noise, written one matrix at a time so it is never held whole.
+ *                   uniform noise, written one matrix at a time so it is never held whole;
+ *   population-<S>x<N>  S participants at 21 sites with group, age and sex, one float32 .npy stack
+ *                   (S × N × N) of uniform noise with a site offset and a patient shift, written one
+ *                   matrix at a time (scenario D: 10,000 × 333, 4.4 GB; and 2,000 × 1,000, 8 GB).
  */
 export const CACHE = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../../.cache"); // from bench/.build/bench/
 
@@ -56,9 +59,9 @@ export function ensureSimulatedCohort(format: "tsv" | "npy", log: (line: string)
  * it out (checkNpyHeader compares the two), so the data can follow one matrix
  * at a time instead of being encoded whole.
  */
-function npyHeader(shape: number[]): Uint8Array {
+function npyHeader(shape: number[], descr: "<f8" | "<f4" = "<f8"): Uint8Array {
   const shapeText = `(${shape.join(", ")})`;
-  let dict = `{'descr': '<f8', 'fortran_order': False, 'shape': ${shapeText}, }`;
+  let dict = `{'descr': '${descr}', 'fortran_order': False, 'shape': ${shapeText}, }`;
   const unpadded = 10 + dict.length + 1;
   dict += " ".repeat((64 - (unpadded % 64)) % 64) + "\n";
   const out = new Uint8Array(10 + dict.length);
@@ -105,6 +108,59 @@ export function ensureLargeCohort(log: (line: string) => void): string {
         for (let j = i + 1; j < N; j++) {
           // A patient shift on the edges among the first 10 regions, noise elsewhere.
           const value = random() - 0.5 + (i < 10 && j < 10 ? shift : 0);
+          matrix[i * N + j] = value;
+          matrix[j * N + i] = value;
+        }
+      }
+      writeSync(file, bytes);
+    }
+  } finally {
+    closeSync(file);
+  }
+  markComplete(folder);
+  return folder;
+}
+
+/** Sites of the population cohorts. */
+export const POPULATION_SITES = 21;
+
+/**
+ * Scenario D's cohorts: `subjects` participants (a third patients) at 21 sites, one
+ * float32 .npy stack of uniform noise plus a site offset and, among the first 10
+ * regions, a patient shift; written one matrix at a time, never held whole.
+ */
+export function ensurePopulationCohort(subjects: number, regions: number, log: (line: string) => void): string {
+  const folder = path.join(CACHE, `population-${subjects}x${regions}`);
+  if (complete(folder)) return folder;
+  const S = subjects;
+  const N = regions;
+  log(`making ${folder}: ${S} matrices of ${N} × ${N} in one float32 .npy stack (${((S * N * N * 4) / 1e9).toFixed(1)} GB, once)`);
+  rmSync(folder, { recursive: true, force: true });
+  mkdirSync(folder, { recursive: true });
+  const random = uniformSource(S * 7 + N);
+  const rows = ["participant_id\tgroup\tage\tsex\tsite"];
+  const patient: boolean[] = [];
+  const site: number[] = [];
+  for (let s = 0; s < S; s++) {
+    const id = `sub-${String(s + 1).padStart(5, "0")}`;
+    patient.push(random() < 1 / 3);
+    site.push(Math.floor(random() * POPULATION_SITES));
+    const siteName = `site${String(site[s] + 1).padStart(2, "0")}`;
+    rows.push(`${id}\t${patient[s] ? "patient" : "control"}\t${(45 + 30 * random()).toFixed(1)}\t${random() < 0.5 ? "F" : "M"}\t${siteName}`);
+  }
+  writeFileSync(path.join(folder, "participants.tsv"), `${rows.join("\n")}\n`);
+  const file = openSync(path.join(folder, "connectomes.npy"), "w");
+  try {
+    writeSync(file, npyHeader([S, N, N], "<f4"));
+    const matrix = new Float32Array(N * N);
+    const bytes = new Uint8Array(matrix.buffer);
+    for (let s = 0; s < S; s++) {
+      const offset = (site[s] - POPULATION_SITES / 2) * 0.01;
+      const shift = patient[s] ? 0.08 : 0;
+      for (let i = 0; i < N; i++) {
+        matrix[i * N + i] = 0;
+        for (let j = i + 1; j < N; j++) {
+          const value = random() - 0.5 + offset + (i < 10 && j < 10 ? shift : 0);
           matrix[i * N + j] = value;
           matrix[j * N + i] = value;
         }

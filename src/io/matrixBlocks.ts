@@ -1,6 +1,7 @@
 import { MessageChannel, Worker, receiveMessageOnPort, type MessagePort } from "node:worker_threads";
 import { InputError, inputErrors, isInputError, type InputLocation } from "../errors.js";
 import { availableThreads, workerScript } from "../parallel/workerPool.js";
+import { packSharedViews } from "../parallel/sharedViews.js";
 import type { BlockLoader } from "./blockLoader.js";
 import { SUBJECT_BLOCK_SIZE } from "./connectomeEdges.js";
 import { npyBlockLoader, type NpyBlockJob } from "./npyMatrixBlocks.js";
@@ -126,7 +127,7 @@ export function loadBlocksInParallel(job: BlockJob): void {
   let worker: Worker | undefined;
   try {
     worker = new Worker(workerScript("io/matrixBlockWorker.js"), {
-      workerData: { job, control, port: channel.port2 },
+      workerData: packSharedViews({ job, control, port: channel.port2 }),
       transferList: [channel.port2],
     });
     worker.unref();

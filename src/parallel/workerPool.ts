@@ -3,10 +3,12 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
+import { packSharedViews } from "./sharedViews.js";
 
 /**
  * A small pool of worker threads: each worker gets the same `workerData`
- * (typed arrays over SharedArrayBuffers are shared, not copied), tasks are
+ * (typed arrays over SharedArrayBuffers are shared, not copied: they travel as
+ * their buffers, sharedViews.ts, and the worker reads them with `unpackSharedViews`), tasks are
  * handed out as workers fall idle, and every result is passed to `onResult`
  * as it arrives. Callers order results themselves, so nothing depends on
  * scheduling. An error in a worker or in `onResult` rejects the run and
@@ -22,13 +24,14 @@ export async function runOnWorkers<Task, Result>(options: {
   const queue = [...options.tasks];
   const threads = Math.max(1, Math.min(options.threads, queue.length));
   const workers: Worker[] = [];
+  const workerData = packSharedViews(options.workerData);
   try {
     await Promise.all(
       Array.from(
         { length: threads },
         () =>
           new Promise<void>((resolve, reject) => {
-            const worker = new Worker(options.script, { workerData: options.workerData });
+            const worker = new Worker(options.script, { workerData });
             workers.push(worker);
             const feed = () => {
               const task = queue.shift();
