@@ -3,7 +3,7 @@ import { mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import { CACHE, ensureContainerStacks, ensureLargeCohort, ensureSimulatedCohort, writeBenchDesign } from "./cohorts.js";
+import { CACHE, ensureContainerStacks, ensureLargeCohort, ensurePopulationCohort, ensureSimulatedCohort, writeBenchDesign } from "./cohorts.js";
 import type { Measurement, Request } from "./scenario.js";
 
 /**
@@ -14,6 +14,10 @@ import type { Measurement, Request } from "./scenario.js";
  * markdown report on stdout, also saved as bench/.cache/last-run.md.
  */
 const quick = process.argv.includes("--quick");
+/** `--only a,b`: run only these parts (scenarios, population, reading, tables, scaling); all by default. */
+const onlyAt = process.argv.indexOf("--only");
+const only = onlyAt >= 0 ? new Set((process.argv[onlyAt + 1] ?? "").split(",")) : undefined;
+const runs = (part: string): boolean => only === undefined || only.has(part);
 const here = path.dirname(fileURLToPath(import.meta.url));
 const scenarioScript = path.join(here, "scenario.js");
 const floorScript = path.resolve(here, "../../floor.py");
@@ -133,13 +137,23 @@ async function main(): Promise<void> {
   const kA = quick ? 500 : 5000;
   const kC = quick ? 100 : 1000;
 
+  if (runs("scenarios")) await scenarios(report, kA, kC);
+  if (runs("population")) population(report);
+  if (runs("reading")) reading(report, kA);
+  if (runs("tables")) subsetTables(report);
+  if (runs("scaling")) scaling(report);
+  report.push("", `Command: \`npm run bench${process.argv.slice(2).length ? ` -- ${process.argv.slice(2).join(" ")}` : ""}\``, "");
+  const markdown = report.join("\n");
+  process.stdout.write(markdown);
+  writeFileSync(path.join(CACHE, only ? `last-run-${[...only].join("-")}.md` : "last-run.md"), markdown);
+}
+
+async function scenarios(report: string[], kA: number, kC: number): Promise<void> {
   const text = ensureSimulatedCohort("tsv", log);
   const npy = ensureSimulatedCohort("npy", log);
   const designA = writeBenchDesign(text, `scenario-a-${kA}`, { model: "group + age + sex", permutations: kA, connectomes: "connectomes/{participant_id}.tsv", transform: "fisher-z" });
   const designB = writeBenchDesign(text, `scenario-b-${kA}`, { model: "group", permutations: kA, connectomes: "connectomes/{participant_id}.tsv", transform: "fisher-z" });
   const designBNpy = writeBenchDesign(npy, `scenario-b-npy-${kA}`, { model: "group", permutations: kA, connectomes: "connectomes.npy", transform: "fisher-z" });
-  const designNpy = writeBenchDesign(npy, "read-npy", { model: "group", permutations: 100, connectomes: "connectomes.npy", transform: "fisher-z" });
-  const containerWriters = ensureContainerStacks(npy, log);
 
   // Scenarios A and B: end to end (inputs read), the SIMD kernel and the TypeScript kernel, and the BLAS floor.
   const rows: ScenarioRow[] = [];
@@ -194,8 +208,67 @@ async function main(): Promise<void> {
   if (floorInfo) {
     report.push(`BLAS floor: numpy ${floorInfo.numpy}, ${floorInfo.blas}, OpenBLAS core type ${floorInfo.coreType ?? "?"}${avx512 ? " (pinned with OPENBLAS_CORETYPE=SkylakeX)" : ""}.`, "");
   }
+  log("A and B: plexus check's estimates");
+  const estimates = [
+    ["A", designA, rows[0].fast],
+    ["B", designB, rows[1].fast],
+  ] as const;
+  report.push("`plexus check`'s estimate of each run (inputs read, then calibrated) against the run measured above:", "", "| scenario | estimate s | measured s | estimate ÷ measured |", "|---|---|---|---|");
+  for (const [name, design, measured] of estimates) {
+    const estimate = child({ kind: "estimate", design, threads });
+    report.push(`| ${name} | ${fixed(estimate.estimateSeconds, 1)} | ${fixed(measured.seconds, 1)} | ${fixed(estimate.estimateSeconds! / measured.seconds, 2)} |`);
+  }
+  report.push("");
+}
 
-  // Input reading.
+/**
+ * Scenario D: population-scale cohorts from float32 .npy stacks, `group + age + sex + site` (21 sites).
+ * The reference kernel (TypeScript, double precision) computes the first relabelings again on its own,
+ * and their null rows must equal the fast run's, bit for bit. The BLAS floor is timed on a tenth of the
+ * rows and scaled (the product is linear in its rows), so the bench stays within the hour.
+ */
+function population(report: string[]): void {
+  const cases = [
+    { subjects: 10_000, regions: 333, permutations: quick ? 200 : 5000 },
+    { subjects: 2000, regions: 1000, permutations: quick ? 50 : 500 },
+  ];
+  const prefix = 24;
+  report.push(
+    "## Scenario D: population scale (float32 .npy stacks, `group + age + sex + site`, 21 sites, components by extent)",
+    "",
+    "| cohort | S | E | c | K | wall s end to end | permutations wall s (CPU s) | check's estimate s (÷ measured) | BLAS floor s (scaled from K/10) | permutations ÷ floor | end to end ÷ floor | peak RSS MB | bound 1.3 × S·E·8 + 500 MB | first " + prefix + " null rows = TypeScript kernel's |",
+    "|---|---|---|---|---|---|---|---|---|---|---|---|---|---|",
+  );
+  for (const { subjects, regions, permutations } of cases) {
+    const folder = ensurePopulationCohort(subjects, regions, log);
+    const name = `${subjects} × ${regions}`;
+    const model = "group + age + sex + site";
+    const design = writeBenchDesign(folder, `scenario-d-${permutations}`, { model, permutations, connectomes: "connectomes.npy" });
+    const referenceDesign = writeBenchDesign(folder, `scenario-d-reference-${prefix}`, { model, permutations: prefix, connectomes: "connectomes.npy" });
+    log(`D ${name}: plexus check's estimate`);
+    const estimate = child({ kind: "estimate", design, threads });
+    log(`D ${name}: SIMD kernel, ${permutations} relabelings`);
+    const fast = child({ kind: "analysis", name: `fast-D-${subjects}`, design, threads, prefixRows: prefix });
+    log(`D ${name}: TypeScript kernel, the first ${prefix} relabelings`);
+    const reference = child({ kind: "analysis", name: `reference-D-${subjects}`, design: referenceDesign, threads }, "typescript");
+    log(`D ${name}: BLAS floor`);
+    const tenth = blasFloor(fast.subjects!, fast.edges!, Math.ceil((fast.vectors! * fast.permutations!) / 10));
+    const floorSeconds = tenth ? tenth.seconds * 10 : undefined;
+    const dataMb = (fast.subjects! * fast.edges! * 8) / 2 ** 20;
+    report.push(
+      `| ${name} | ${fast.subjects} | ${fast.edges} | ${fast.vectors} | ${fast.permutations} | ${fixed(fast.seconds, 0)} | ${fixed(fast.nullSeconds, 0)} (${fixed(fast.nullCpuSeconds, 0)}) | ${fixed(estimate.estimateSeconds, 0)} (${fixed(estimate.estimateSeconds! / fast.seconds, 2)}) | ${fixed(floorSeconds, 0)} | ${floorSeconds ? fixed(fast.nullSeconds! / floorSeconds, 2) : "–"} | ${floorSeconds ? fixed(fast.seconds / floorSeconds, 2) : "–"} | ${fixed(fast.peakRssMegabytes, 0)} | ${fixed(1.3 * dataMb + 500, 0)} | ${reference.nullHash === fast.prefixHash ? "yes" : "**NO**"} |`,
+    );
+  }
+  report.push("", "MB here are MiB (2^20 bytes), as the kernel reports peak RSS.", "");
+}
+
+function reading(report: string[], kA: number): void {
+  const npy = ensureSimulatedCohort("npy", log);
+  const text = ensureSimulatedCohort("tsv", log);
+  const designA = writeBenchDesign(text, `scenario-a-${kA}`, { model: "group + age + sex", permutations: kA, connectomes: "connectomes/{participant_id}.tsv", transform: "fisher-z" });
+  const designNpy = writeBenchDesign(npy, "read-npy", { model: "group", permutations: 100, connectomes: "connectomes.npy", transform: "fisher-z" });
+  const containerWriters = ensureContainerStacks(npy, log);
+
   log("input reading rates");
   const textRead = child({ kind: "read", design: designA });
   const npyRead = child({ kind: "read", design: designNpy });
@@ -224,7 +297,10 @@ async function main(): Promise<void> {
     ...(containerWriters ? [`The .mat and HDF5 stacks hold the .npy stack's values, written by ${Object.entries(containerWriters).map(([k, v]) => `${k} ${v}`).join(", ")}.`, ""] : []),
   );
 
-  // The two-level screen's kernel alone, by subjects per subset-table chunk.
+}
+
+/** The two-level screen's kernel alone, by subjects per subset-table chunk. */
+function subsetTables(report: string[]): void {
   log("subset tables");
   const tables = child({ kind: "groupTables" }).groupTables ?? [];
   report.push(
@@ -238,9 +314,14 @@ async function main(): Promise<void> {
     "",
   );
 
-  // Scaling of the permutation engine alone, on invented data (c = 3). Each shape runs at two numbers of
-  // relabelings, K and 3K: the difference gives the time per relabeling without the fixed cost of starting
-  // (worker threads, the single-precision copy of the residuals each thread keeps), shown separately.
+}
+
+/**
+ * Scaling of the permutation engine alone, on invented data (c = 3). Each shape runs at two numbers of
+ * relabelings, K and 3K: the difference gives the time per relabeling without the fixed cost of starting
+ * (worker threads, the single-precision copy of the residuals each thread keeps), shown separately.
+ */
+function scaling(report: string[]): void {
   log("scaling table");
   const k1 = quick ? 200 : 1000;
   const base = { subjects: 200, regions: 400, covariates: true, threads };
@@ -264,10 +345,6 @@ async function main(): Promise<void> {
       `| ${label} | ${large.subjects} | ${large.edges} | ${request.threads} | ${fixed(small.nullSeconds, 2)} | ${fixed(large.nullSeconds, 2)} | ${fixed(large.nullCpuSeconds, 2)} | ${fixed(marginal * 1000, 3)} | ${fixed((marginal / (large.subjects! * large.edges!)) * 1e10, 2)} | ${fixed(small.nullSeconds! - marginal * k1, 2)} |`,
     );
   }
-  report.push("", `Command: \`npm run bench${quick ? " -- --quick" : ""}\``, "");
-  const markdown = report.join("\n");
-  process.stdout.write(markdown);
-  writeFileSync(path.join(CACHE, "last-run.md"), markdown);
 }
 
 main().catch((error: unknown) => {

@@ -7,6 +7,7 @@ import { runNullEngine } from "../src/permute/nullEngine.js";
 import type { NullChunk } from "../src/permute/nullRangeTypes.js";
 import { prepareAnalysis } from "../src/run/prepareAnalysis.js";
 import { runAnalysis } from "../src/run/runAnalysis.js";
+import { estimateRun } from "../src/run/runEstimate.js";
 import { CACHE } from "./cohorts.js";
 import { benchGroupTables } from "./groupTables.js";
 import { benchReadMatrixText } from "./readMatrixText.js";
@@ -18,7 +19,8 @@ import { syntheticNull } from "./syntheticNull.js";
  * JSON line. The kernel is chosen by PLEXUS_KERNEL in the environment.
  */
 export type Request =
-  | { kind: "analysis"; name: string; design: string; threads: number }
+  | { kind: "analysis"; name: string; design: string; threads: number; prefixRows?: number }
+  | { kind: "estimate"; design: string; threads: number }
   | { kind: "null"; subjects: number; regions: number; covariates: boolean; permutations: number; threads: number }
   | { kind: "read"; design: string }
   | { kind: "matrixText" }
@@ -38,6 +40,10 @@ export interface Measurement {
   permutations?: number;
   /** SHA-256 of the null rows (extent, mass, statistic), to show the kernels agree. */
   nullHash?: string;
+  /** The same hash over the first `prefixRows` relabelings only (a reference run of those alone must match). */
+  prefixHash?: string;
+  /** estimate: plexus check's estimate of the run (read time measured, the rest calibrated). */
+  estimateSeconds?: number;
   megabytes?: number;
   megabytesPerSecond?: number;
   /** groupTables: ms per relabeling for each chunk size. */
@@ -45,10 +51,10 @@ export interface Measurement {
   peakRssMegabytes: number;
 }
 
-function nullHash(rows: NullChunk): string {
+function nullHash(rows: NullChunk, count = rows.maxExtent.length): string {
   const hash = createHash("sha256");
   for (const column of [rows.maxExtent, rows.maxMass, rows.maxStatistic]) {
-    hash.update(new Uint8Array(column.buffer, column.byteOffset, column.byteLength));
+    hash.update(new Uint8Array(column.buffer, column.byteOffset, Math.min(count, column.length) * 8));
   }
   return hash.digest("hex");
 }
@@ -94,7 +100,15 @@ async function measure(request: Request): Promise<Omit<Measurement, "kernel" | "
       vectors: contrastNull?.setup.context.vectors.length,
       permutations: contrastNull?.rows.maxExtent.length,
       nullHash: contrastNull ? nullHash(contrastNull.rows) : undefined,
+      prefixHash: contrastNull && request.prefixRows ? nullHash(contrastNull.rows, request.prefixRows) : undefined,
     };
+  }
+  if (request.kind === "estimate") {
+    const start = performance.now();
+    const prepared = prepareAnalysis(request.design, { memory: { threads: request.threads } });
+    const readSeconds = (performance.now() - start) / 1000;
+    const estimate = estimateRun(prepared, { threads: request.threads });
+    return { seconds: (performance.now() - start) / 1000, estimateSeconds: readSeconds + estimate.totalSeconds };
   }
   if (request.kind === "null") {
     const context = syntheticNull(request);

@@ -22,6 +22,17 @@ export function parseShard(text: string): { index: number; count: number } {
   return { index, count };
 }
 
+/** `--memory GB`: the memory to plan for, in gigabytes (10^9 bytes), instead of this machine's. */
+export function parseMemory(text: string): number {
+  const value = /^\s*\d+(\.\d+)?\s*$/.test(text) ? Number(text) : NaN;
+  if (!(value >= 0.1 && value <= 1e6)) {
+    throw new InputError(`--memory takes the gigabytes to plan for, a number from 0.1 to 1000000 (e.g. 64), found '${text}'`, { key: "--memory" });
+  }
+  return value;
+}
+
+export const MEMORY_FLAG = ["--memory <GB>", "memory to plan for, in GB, instead of this machine's (a cluster task's request)"] as const;
+
 /** `--permutations N`: the design key's own rule (a whole number from 1 to the limit). */
 export function parsePermutations(text: string): number {
   const value = /^\s*\d+\s*$/.test(text) ? Number(text) : NaN;

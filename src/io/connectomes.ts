@@ -2,6 +2,7 @@ import { isAbsolute, resolve } from "node:path";
 import { InputError, inputErrors, isInputError, type InputLocation } from "../errors.js";
 import { edgePairs } from "../edges/edgeIndex.js";
 import { EdgeMajorWriter, type EdgeExtractionOptions } from "./connectomeEdges.js";
+import { allocateEdgeData, type EdgeDataBudget } from "./edgeData.js";
 import { loadEdgeTable } from "./edgeTable.js";
 import type { MatrixLabels } from "./matrixTextLabels.js";
 import { textLabelPlan } from "./textLabelPlan.js";
@@ -134,6 +135,8 @@ export function loadConnectomes(
   source: ConnectomeSource,
   subjects: ConnectomeSubject[],
   options: ConnectomeOptions,
+  /** Asked with the cohort's shape before the edge data are allocated (the run's memory plan). */
+  budget?: EdgeDataBudget,
 ): LoadedConnectomes {
   const choice = source.choice ?? {};
   if (source.kind === "file") {
@@ -142,7 +145,7 @@ export function loadConnectomes(
     // A file named .npy that is no NumPy array gets the .npy reader's own message about its header.
     const npyByName = format === "text" && file.toLowerCase().endsWith(".npy");
     if ((format === "npy" || npyByName) && stackAxis(file, choice) === "first") {
-      const loaded = loadFromStack(file, subjects, options);
+      const loaded = loadFromStack(file, subjects, options, budget);
       return { ...loaded, reading: { reader: "NumPy .npy", shape: loaded.stackShape, subjectsAxis: "first", labels: numberedOrTable(options) } };
     }
     if (format === "text") {
@@ -153,14 +156,14 @@ export function loadConnectomes(
           "leave out variable and subjects_axis for a text table",
         );
       }
-      return loadEdgeTable(file, subjects, options);
+      return loadEdgeTable(file, subjects, options, budget);
     }
-    return loadContainerStack(file, subjects, { ...options, ...choice });
+    return loadContainerStack(file, subjects, { ...options, ...choice }, budget);
   }
   const files = resolveAll(source.template, subjects, source.baseDir);
   const first = files.find((file) => file !== "");
-  if (first !== undefined && probeFirst(first) !== "text") return loadContainerFiles(files, subjects, { ...options, ...choice });
-  return loadFromTemplate(source.template, source.baseDir, subjects, options);
+  if (first !== undefined && probeFirst(first) !== "text") return loadContainerFiles(files, subjects, { ...options, ...choice }, budget);
+  return loadFromTemplate(source.template, source.baseDir, subjects, options, budget);
 }
 
 /**
@@ -197,7 +200,7 @@ function probeFirst(file: string): string {
   }
 }
 
-function loadFromTemplate(template: string, baseDir: string, subjects: ConnectomeSubject[], options: ConnectomeOptions): LoadedConnectomes {
+function loadFromTemplate(template: string, baseDir: string, subjects: ConnectomeSubject[], options: ConnectomeOptions, budget?: EdgeDataBudget): LoadedConnectomes {
   if (subjects.length === 0) {
     throw new InputError("no participants to load connectivity matrices for", { key: CONNECTOMES_KEY });
   }
@@ -207,7 +210,7 @@ function loadFromTemplate(template: string, baseDir: string, subjects: Connectom
   // Labels in the first file: every file must repeat them; a regions table may reorder them.
   const plan = textLabelPlan(reference.labels, reference.file, options.regionTable);
   const pairs = edgePairs(reference.size);
-  const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
+  const data = allocateEdgeData(subjects.length, pairs.edgeCount, { key: CONNECTOMES_KEY }, budget);
   const digests = sharedDigests(subjects.length);
   const job: TextBlockJob = {
     kind: "text",
@@ -292,7 +295,7 @@ const FORTRAN_ORDER_LIMIT_BYTES = 2 ** 30;
  * offset, so memory holds the edge array and one matrix, whatever the file's
  * size (a Fortran-order stack of up to 1 GiB is the exception: read whole).
  */
-function loadFromStack(file: string, subjects: ConnectomeSubject[], options: ConnectomeOptions): Omit<LoadedConnectomes, "reading"> & { stackShape: number[] } {
+function loadFromStack(file: string, subjects: ConnectomeSubject[], options: ConnectomeOptions, budget?: EdgeDataBudget): Omit<LoadedConnectomes, "reading"> & { stackShape: number[] } {
   const input = InputFile.open(file, STACK_HINT);
   try {
     const header = readStackHeader(input);
@@ -319,7 +322,7 @@ function loadFromStack(file: string, subjects: ConnectomeSubject[], options: Con
     }
     requireTwoRegions(n, { file });
     const pairs = edgePairs(n);
-    const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
+    const data = allocateEdgeData(subjects.length, pairs.edgeCount, { file }, budget);
     const matrixBytes = n * n * header.dtype.itemSize;
     if (!header.fortranOrder && worthTwoThreads(subjects.length, matrixBytes)) {
       // Many matrices: two threads read blocks of subjects (matrixBlocks.ts), with the same values and errors.

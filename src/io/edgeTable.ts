@@ -1,3 +1,4 @@
+import { allocateEdgeData, type EdgeDataBudget } from "./edgeData.js";
 import { Buffer, isAscii } from "node:buffer";
 import { sha256Text } from "../common/sha256.js";
 import { InputError, inputErrors, LISTED_PROBLEMS } from "../errors.js";
@@ -38,7 +39,7 @@ export interface EdgeTableOptions extends EdgeExtractionOptions {
 
 const HINT = "a participants × edges table is text: a header row (the participant ID column, then one column per edge) and one row per participant";
 
-export function loadEdgeTable(file: string, subjects: readonly { id: string }[], options: EdgeTableOptions): ContainerConnectomes {
+export function loadEdgeTable(file: string, subjects: readonly { id: string }[], options: EdgeTableOptions, budget?: EdgeDataBudget): ContainerConnectomes {
   const bytes = readBinaryFile(file, "the participants × edges table");
   const notText = notTextProblem(bytes, file, HINT);
   if (notText) throw notText;
@@ -61,7 +62,7 @@ export function loadEdgeTable(file: string, subjects: readonly { id: string }[],
 
   const S = subjects.length;
   const E = (columns.regionCount * (columns.regionCount - 1)) / 2;
-  const data = new Float64Array(new SharedArrayBuffer(E * S * Float64Array.BYTES_PER_ELEMENT));
+  const data = allocateEdgeData(S, E, { file }, budget);
   const subjectOf = new Map(subjects.map((subject, s) => [subject.id, s]));
   const rowOfSubject = new Int32Array(S).fill(0);
   const lineOfId = new Map<string, number>();

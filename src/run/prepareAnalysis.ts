@@ -30,6 +30,8 @@ import { applyInferenceOverrides, overrideWarning, type InferenceOverrides } fro
 import { chooseCohortTable } from "./cohortTableChoice.js";
 import { scanDifferences } from "../edges/scanDifferences.js";
 import { sharedFloat64 } from "../permute/nullContext.js";
+import { availableThreads } from "../parallel/workerPool.js";
+import { memoryBudget, type MemoryLimit } from "./memoryPlan.js";
 import {
   absorbedColumns,
   checkPersonColumns,
@@ -69,6 +71,13 @@ export interface PrepareHooks {
   beforeMatrices?: (design: DesignSpec, inputs: GuardedInputs) => void;
   /** `--permutations`/`--seed` given on the command line, replacing the design's values. */
   overrides?: InferenceOverrides;
+  /** The run's threads and memory limit (default: every core, this machine's memory), for the memory plan checked before the matrices are read. */
+  memory?: { threads?: number; limit?: MemoryLimit };
+}
+
+/** Whether the design holds the edge data twice at some moment (memoryPlan.ts). */
+export function holdsSecondCopy(design: DesignSpec): boolean {
+  return design.edges !== undefined || design.repeated !== undefined || (design.inference.method !== "fdr" && design.contrasts.length > 1);
 }
 
 /** Reads and validates every input of a design file, in the order a user would fix them. */
@@ -365,6 +374,7 @@ export function prepareFromDesign(designAsWritten: DesignSpec, hooks: PrepareHoo
         participantRowCount: participants.ids.length,
         ...(regionTable ? { regionTable: { labels: regionTable.map((r) => r.label), file: regionsPath! } } : {}),
       },
+      memoryBudget({ secondCopy: holdsSecondCopy(design), threads: hooks.memory?.threads ?? availableThreads() }, hooks.memory?.limit),
     );
   } catch (error) {
     throw withMissingEdgesHint(error, design);

@@ -2,6 +2,7 @@ import { InputError } from "../errors.js";
 import { silentProgress, type Progress } from "../common/progress.js";
 import { Checkpoint } from "../output/checkpoint.js";
 import { defaultThreads } from "../permute/nullEngine.js";
+import { givenMemory } from "./memoryPlan.js";
 import type { ContrastInference, ContrastNull, ObservedContrast } from "../output/contrastResults.js";
 import { onInterrupt } from "../output/interruptCleanup.js";
 import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
@@ -31,6 +32,8 @@ export interface RunOptions {
   shard?: { index: number; count: number };
   /** Continue an interrupted run from its checkpoint. */
   resume?: boolean;
+  /** `--memory`: the gigabytes to plan for instead of this machine's (memoryPlan.ts). */
+  memoryGigabytes?: number;
   /** Relabelings per checkpoint chunk. */
   chunkSize?: number;
   /** The command line as typed, for provenance. */
@@ -70,6 +73,7 @@ export async function runAnalysis(options: RunOptions, log: RunLog, progress: Pr
     // The output is checked (inputs, lock, --force rule, checkpoint) before any matrix is read.
     const prepared = prepareAnalysis(options.designFile, {
       ...(options.overrides ? { overrides: options.overrides } : {}),
+      memory: { threads: options.threads ?? defaultThreads(), ...(options.memoryGigabytes !== undefined ? { limit: givenMemory(options.memoryGigabytes) } : {}) },
       beforeMatrices: (design, inputs) => {
         opened.folder = ResultsFolder.open(options.out, { force: options.force ?? false, inputs, warn: log.warn });
         if (design.inference.method !== "fdr" && !options.shard && !options.resume && !options.force) refuseUnfinishedCheckpoint(options.out);

@@ -9,7 +9,10 @@ import { describeReading } from "../../io/arrays/describeReading.js";
 import { silentProgress } from "../../common/progress.js";
 import { stderrProgress } from "../progress.js";
 import type { OutputSink } from "../outputSink.js";
-import { parseOverrides, parseShard, parseThreads, PERMUTATIONS_FLAG, SEED_FLAG } from "../options.js";
+import { MEMORY_FLAG, parseMemory, parseOverrides, parseShard, parseThreads, PERMUTATIONS_FLAG, SEED_FLAG } from "../options.js";
+import { resourceLines } from "../resourceLines.js";
+import { givenMemory } from "../../run/memoryPlan.js";
+import { defaultThreads } from "../../permute/nullEngine.js";
 import { inferencePlanLines } from "../inferencePlan.js";
 import { terminalLog } from "../terminalLog.js";
 import { inferenceLine } from "../../output/summaryParts.js";
@@ -27,9 +30,17 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
     .argument("<design>", "design file (YAML)")
     .option(...PERMUTATIONS_FLAG)
     .option(...SEED_FLAG)
-    .action((designFile: string, flags: OverrideFlags) => {
+    .option("-t, --threads <n>", "plan for this many worker threads (default: all cores)")
+    .option("--shard <k/n>", "plan for one of n shards of the permutations (a cluster task)")
+    .option(...MEMORY_FLAG)
+    .action((designFile: string, flags: CheckFlags) => {
       const overrides = parseOverrides(flags);
-      const prepared = prepareAnalysis(designFile, overrides ? { overrides } : {});
+      const threads = flags.threads === undefined ? defaultThreads() : parseThreads(flags.threads);
+      const shard = flags.shard === undefined ? undefined : parseShard(flags.shard);
+      const limit = flags.memory === undefined ? undefined : givenMemory(parseMemory(flags.memory));
+      const started = performance.now();
+      const prepared = prepareAnalysis(designFile, { ...(overrides ? { overrides } : {}), memory: { threads, ...(limit ? { limit } : {}) } });
+      const readSeconds = (performance.now() - started) / 1000;
       const { matrix, connectomes, design } = prepared;
       const lines = [
         `design      ${designFile}`,
@@ -47,6 +58,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
         ),
         `inference   ${inferenceLine(design.inference)}`,
         ...inferencePlanLines(prepared),
+        ...resourceLines(prepared, { threads, shard, limit, readSeconds }),
       ];
       for (const warning of prepared.warnings) log.warn(warning);
       sink.out(`${printable(lines.join("\n"))}\nok: the design and its inputs are valid\n`);
@@ -64,8 +76,10 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
     .option("--resume", "continue an interrupted run from its checkpoint", false)
     .option(...PERMUTATIONS_FLAG)
     .option(...SEED_FLAG)
+    .option(...MEMORY_FLAG)
     .action(async (designFile: string, flags: RunFlags) => {
       const overrides = parseOverrides(flags);
+      const memoryGigabytes = flags.memory === undefined ? undefined : parseMemory(flags.memory);
       await runAnalysis(
         {
           designFile,
@@ -75,6 +89,7 @@ export function registerAnalysisCommands(program: Command, sink: OutputSink, arg
           threads: flags.threads === undefined ? undefined : parseThreads(flags.threads),
           shard: flags.shard === undefined ? undefined : parseShard(flags.shard),
           resume: flags.resume,
+          ...(memoryGigabytes !== undefined ? { memoryGigabytes } : {}),
           commandLine: ["plexus", ...argv()],
           ...(overrides ? { overrides } : {}),
         },
@@ -106,7 +121,14 @@ interface OverrideFlags {
   seed?: string;
 }
 
+interface CheckFlags extends OverrideFlags {
+  threads?: string;
+  shard?: string;
+  memory?: string;
+}
+
 interface RunFlags extends OverrideFlags {
+  memory?: string;
   out: string;
   force: boolean;
   quiet: boolean;

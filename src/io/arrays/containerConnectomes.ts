@@ -1,3 +1,4 @@
+import { allocateEdgeData, type EdgeDataBudget } from "../edgeData.js";
 import { sha256Text } from "../../common/sha256.js";
 import { InputError, inputErrors, isInputError } from "../../errors.js";
 import { edgePairs } from "../../edges/edgeIndex.js";
@@ -90,7 +91,7 @@ function stackMatrix(array: NumericArray, axis: SubjectsAxis, s: number, out: Fl
 }
 
 /** Every participant's matrix from one container file (S × N × N or N × N × S). */
-export function loadContainerStack(file: string, subjects: ContainerSubject[], options: ContainerOptions): ContainerConnectomes {
+export function loadContainerStack(file: string, subjects: ContainerSubject[], options: ContainerOptions, budget?: EdgeDataBudget): ContainerConnectomes {
   const { bytes, container } = openBinary(file, "the stack of connectivity matrices");
   const { entry, axis } = chooseStack(container, file, options);
   const count = axis === "first" ? entry.shape[0] : entry.shape[2];
@@ -107,7 +108,7 @@ export function loadContainerStack(file: string, subjects: ContainerSubject[], o
   const plan = labelPlan(container, file, options, n);
   const array = container.read(entry.name);
   const pairs = edgePairs(n);
-  const data = sharedEdges(subjects.length * pairs.edgeCount);
+  const data = allocateEdgeData(subjects.length, pairs.edgeCount, { file }, budget);
   const writer = new EdgeMajorWriter(pairs, data, subjects.length);
   const matrix = new Float64Array(n * n);
   const ordered = plan.order ? new Float64Array(n * n) : matrix;
@@ -146,7 +147,7 @@ export function loadContainerStack(file: string, subjects: ContainerSubject[], o
 }
 
 /** One container file per participant (files[s] for subjects[s]), each holding one N × N matrix. */
-export function loadContainerFiles(files: string[], subjects: ContainerSubject[], options: ContainerOptions): ContainerConnectomes {
+export function loadContainerFiles(files: string[], subjects: ContainerSubject[], options: ContainerOptions, budget?: EdgeDataBudget): ContainerConnectomes {
   const problems: InputError[] = [];
   let reference: { n: number; file: string; reading: MatrixReading; labels?: readonly string[]; order?: Int32Array } | undefined;
   let data: Float64Array | undefined;
@@ -178,7 +179,7 @@ export function loadContainerFiles(files: string[], subjects: ContainerSubject[]
           },
         };
         const pairs = edgePairs(n);
-        data = sharedEdges(subjects.length * pairs.edgeCount);
+        data = allocateEdgeData(subjects.length, pairs.edgeCount, { file }, budget);
         writer = new EdgeMajorWriter(pairs, data, subjects.length);
         for (const _ of pending) writer.skip();
       } else if (n !== reference.n) {
@@ -218,7 +219,4 @@ function sameLabels(a: readonly string[] | undefined, b: readonly string[] | und
   return a.length === b.length && a.every((label, k) => label === b[k]);
 }
 
-function sharedEdges(length: number): Float64Array {
-  return new Float64Array(new SharedArrayBuffer(length * Float64Array.BYTES_PER_ELEMENT));
-}
 

@@ -1,0 +1,138 @@
+import seedrandom from "seedrandom";
+import { edgePairs } from "../edges/edgeIndex.js";
+import { fitEdges } from "../edges/fitEdges.js";
+import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
+import { buildNullContext, sharedFloat64 } from "../permute/nullContext.js";
+import { computeNullRange } from "../permute/nullRange.js";
+import { observeContrastOn } from "./analyzeContrasts.js";
+import { needsPermutations, shardRange } from "./permutationInference.js";
+import { DEFAULT_CHUNK_SIZE } from "./runAnalysis.js";
+import { screenMemory } from "../permute/kernels/wasmKernel.js";
+
+/**
+ * How long a run will take on this machine, from a short calibration: the
+ * design's own model, contrasts and inference on invented data of the same
+ * participants and a slice of the edges (about CALIBRATION_BYTES of data),
+ * timed through the same fit, residualisation and permutation kernels the run
+ * uses, then scaled to all edges, every relabeling and the threads. The
+ * per-relabeling cost of the kernels is linear in the edges (bench/README.md,
+ * the scaling table), so the slice predicts the whole.
+ */
+export interface RunEstimate {
+  /** The fit, the observed statistics and the residualisation of every contrast. */
+  fitSeconds: number;
+  /** Each permutation contrast: relabelings, seconds per relabeling on one thread, and the contrast's wall time. */
+  contrasts: { name: string; relabelings: number; secondsPerRelabeling: number; seconds: number }[];
+  threads: number;
+  totalSeconds: number;
+}
+
+/**
+ * Bytes of invented edge data in the larger calibration slice: well beyond the processor's caches, so the
+ * kernels stream from memory as they do on a large cohort (a slice held in cache ran 3 times faster than the
+ * run it was to predict, for 10,000 participants).
+ */
+const CALIBRATION_BYTES = 192e6;
+/** Relabelings timed per contrast: two of the kernels' batches. */
+const CALIBRATION_RELABELINGS = 128;
+
+export function estimateRun(prepared: PreparedAnalysis, options: { threads: number; shard?: { index: number; count: number } }): RunEstimate {
+  const S = prepared.matrix.rows;
+  const E = prepared.connectomes.edgeCount;
+  // Two slices, the second about twice the first: each cost is a + b·edges (a: per relabeling, building its
+  // vectors; b: the products), so the two times give both parts and the whole cohort's time.
+  const small = timeSlice(prepared, calibrationRegions(S, E, CALIBRATION_BYTES / 2));
+  const large = timeSlice(prepared, calibrationRegions(S, E, CALIBRATION_BYTES));
+  const extrapolate = (t1: number, t2: number): number => {
+    if (large.edges === small.edges) return t2 * (E / large.edges);
+    const perEdge = Math.max(0, (t2 - t1) / (large.edges - small.edges));
+    return Math.max(0, t2 - perEdge * large.edges) + perEdge * E;
+  };
+  const contrasts: RunEstimate["contrasts"] = large.contrasts.map((c, k) => {
+    const { from, to } = shardRange(c.count, options.shard);
+    const relabelings = to - from;
+    const secondsPerRelabeling = extrapolate(small.contrasts[k].secondsPerRelabeling, c.secondsPerRelabeling);
+    const threads = Math.max(1, Math.min(options.threads, Math.ceil(relabelings / DEFAULT_CHUNK_SIZE)));
+    return { name: c.name, relabelings, secondsPerRelabeling, seconds: (relabelings * secondsPerRelabeling) / threads };
+  });
+  const fitSeconds = extrapolate(small.fitSeconds, large.fitSeconds);
+  const totalSeconds = fitSeconds + contrasts.reduce((sum, c) => sum + c.seconds, 0);
+  return { fitSeconds, contrasts, threads: options.threads, totalSeconds };
+}
+
+interface SliceTimes {
+  edges: number;
+  fitSeconds: number;
+  contrasts: { name: string; count: number; secondsPerRelabeling: number }[];
+}
+
+/** The fit, observation, residualisation and a batch of relabelings of every contrast, timed on invented data of `regions` regions. */
+function timeSlice(prepared: PreparedAnalysis, regions: number): SliceTimes {
+  const { matrix } = prepared;
+  const S = matrix.rows;
+  const pairs = edgePairs(regions);
+  const edges = pairs.edgeCount;
+  const data = sharedFloat64(S * edges);
+  const fill = (): void => {
+    const random = seedrandom("plexus-calibration");
+    for (let k = 0; k < data.length; k++) data[k] = random() - 0.5;
+  };
+  fill();
+  let fitSeconds = 0;
+  let start = performance.now();
+  const fit = fitEdges(matrix.values, S, matrix.cols, data, edges);
+  fitSeconds += (performance.now() - start) / 1000;
+  const contrasts: SliceTimes["contrasts"] = [];
+  for (const contrast of prepared.contrasts) {
+    start = performance.now();
+    const observed = observeContrastOn(fit, contrast, pairs, prepared.design.inference);
+    fitSeconds += (performance.now() - start) / 1000;
+    if (!needsPermutations(prepared)) continue;
+    if (contrasts.length > 0) fill(); // the previous contrast's residuals overwrote the data
+    start = performance.now();
+    const setup = buildNullContext({
+      matrix,
+      contrast: contrast.vector,
+      contrastRows: contrast.kind === "F" ? contrast.rows : undefined,
+      data,
+      inPlace: true,
+      edges,
+      pairs,
+      observed: observed.statistics.statistic,
+      inference: prepared.design.inference,
+      blocks: prepared.blocks?.codes,
+      where: { file: prepared.design.file },
+    });
+    fitSeconds += (performance.now() - start) / 1000;
+    const count = setup.context.plan.count;
+    const timed = Math.min(CALIBRATION_RELABELINGS, Math.max(1, count - 1));
+    // The run keeps single-precision residuals resident only up to a size (wasmKernel.ts); beyond it each batch
+    // converts them block by block, and so must the calibration.
+    const resident = screenMemory.residentBytes;
+    if (S * prepared.connectomes.edgeCount * 4 > resident) screenMemory.residentBytes = 0;
+    start = performance.now();
+    try {
+      computeNullRange(setup.context, 2, 2 + timed);
+    } finally {
+      screenMemory.residentBytes = resident;
+    }
+    contrasts.push({ name: contrast.name, count, secondsPerRelabeling: (performance.now() - start) / 1000 / timed });
+  }
+  return { edges, fitSeconds, contrasts };
+}
+
+/** The regions of a calibration slice: about `bytes` of data, at least 12 regions, never more edges than the cohort's. */
+function calibrationRegions(subjects: number, edges: number, bytes: number): number {
+  const wanted = Math.min(edges, Math.max(66, Math.floor(bytes / (8 * subjects))));
+  let n = 2;
+  while ((n * (n - 1)) / 2 < wanted) n++;
+  return n;
+}
+
+/** "40 s", "12 min", "2.5 h". */
+export function formatDuration(seconds: number): string {
+  if (seconds < 1) return "under 1 s";
+  if (seconds < 90) return `${Math.round(seconds)} s`;
+  if (seconds < 5400) return `${Math.round(seconds / 60)} min`;
+  return `${(seconds / 3600).toFixed(1)} h`;
+}
