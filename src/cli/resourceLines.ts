@@ -26,9 +26,9 @@ export function resourceLines(
   return [
     `memory      edge data ${formatBytes(plan.dataBytes)} (${S} participants × ${E} edges in double precision); peak about ${formatBytes(plan.peakBytes)}; ${limit.source} ${formatBytes(plan.limitBytes)}` +
       (options.shard ? `; request ${requestGigabytes(plan.peakBytes)} GB per shard task (each holds all the data)` : ""),
-    `time        about ${formatDuration(total)}${options.shard ? ` for shard ${options.shard.index}/${options.shard.count}` : ""} on ${options.threads} thread${options.threads === 1 ? "" : "s"} of this machine: inputs read in ${formatDuration(options.readSeconds)} (this check), ` +
+    `time        ${total < 1 ? "" : "about "}${formatDuration(total)}${options.shard ? ` for shard ${options.shard.index}/${options.shard.count}` : ""} on ${options.threads} thread${options.threads === 1 ? "" : "s"} of this machine: inputs read in ${formatDuration(options.readSeconds)} (this check), ` +
       `fit ${formatDuration(estimate.fitSeconds)}` +
       (perContrast.length ? `, ${perContrast.join("; ")}` : "") +
-      " (calibrated on invented data of this design's shape)",
+      `, results ${formatDuration(estimate.writeSeconds)} (calibrated on invented data of this design's shape)`,
   ];
 }

@@ -32,6 +32,16 @@ export interface NullRunOptions {
   progress: Progress;
 }
 
+/**
+ * Relabelings per chunk: the run's chunk size, whose grid a checkpoint keeps; a shard (never checkpointed)
+ * cuts its share finer when that keeps more threads busy (250 relabelings on 4 threads: chunks of 63), so a
+ * cluster task's cores all work. The null rows do not depend on the chunks.
+ */
+export function engineChunkSize(relabelings: number, options: { threads: number; chunkSize: number; shard?: unknown; checkpoint?: unknown }): number {
+  if (!options.shard || options.checkpoint) return options.chunkSize;
+  return Math.max(1, Math.min(options.chunkSize, Math.ceil(relabelings / Math.max(1, options.threads))));
+}
+
 export function needsPermutations(prepared: PreparedAnalysis): boolean {
   return prepared.design.inference.method !== "fdr";
 }
@@ -74,7 +84,7 @@ export async function computeNull(setup: NullSetup, contrastName: string, option
     threads: options.threads,
     from: range.from,
     to: range.to,
-    chunkSize: options.chunkSize,
+    chunkSize: engineChunkSize(range.to - range.from, options),
     done,
     onChunk: (chunk, fresh) => {
       if (fresh) options.checkpoint?.save(contrastName, chunk);

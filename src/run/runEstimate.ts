@@ -5,7 +5,7 @@ import type { PreparedAnalysis } from "../output/preparedAnalysis.js";
 import { buildNullContext, sharedFloat64 } from "../permute/nullContext.js";
 import { computeNullRange } from "../permute/nullRange.js";
 import { observeContrastOn } from "./analyzeContrasts.js";
-import { needsPermutations, shardRange } from "./permutationInference.js";
+import { engineChunkSize, needsPermutations, shardRange } from "./permutationInference.js";
 import { DEFAULT_CHUNK_SIZE } from "./runAnalysis.js";
 import { screenMemory } from "../permute/kernels/wasmKernel.js";
 
@@ -21,6 +21,8 @@ import { screenMemory } from "../permute/kernels/wasmKernel.js";
 export interface RunEstimate {
   /** The fit, the observed statistics and the residualisation of every contrast. */
   fitSeconds: number;
+  /** Starting the worker threads, writing the results folder, its figures and the report (a fixed allowance). */
+  writeSeconds: number;
   /** Each permutation contrast: relabelings, seconds per relabeling on one thread, and the contrast's wall time. */
   contrasts: { name: string; relabelings: number; secondsPerRelabeling: number; seconds: number }[];
   threads: number;
@@ -33,6 +35,13 @@ export interface RunEstimate {
  * run it was to predict, for 10,000 participants).
  */
 const CALIBRATION_BYTES = 192e6;
+/**
+ * What every run adds whatever its size: worker threads started, the results folder, its print figures (PNG
+ * at 300 dpi) and the report written. About 3 s for the demo cohort and for 100 participants at 90 regions
+ * on the project's 2-core machine (a shard writes no report: under a second).
+ */
+const WRITE_SECONDS = 3;
+const WRITE_SHARD_SECONDS = 0.5;
 /** Relabelings timed per contrast: two of the kernels' batches. */
 const CALIBRATION_RELABELINGS = 128;
 
@@ -52,12 +61,14 @@ export function estimateRun(prepared: PreparedAnalysis, options: { threads: numb
     const { from, to } = shardRange(c.count, options.shard);
     const relabelings = to - from;
     const secondsPerRelabeling = extrapolate(small.contrasts[k].secondsPerRelabeling, c.secondsPerRelabeling);
-    const threads = Math.max(1, Math.min(options.threads, Math.ceil(relabelings / DEFAULT_CHUNK_SIZE)));
+    const chunk = engineChunkSize(relabelings, { threads: options.threads, chunkSize: DEFAULT_CHUNK_SIZE, shard: options.shard });
+    const threads = Math.max(1, Math.min(options.threads, Math.ceil(relabelings / chunk)));
     return { name: c.name, relabelings, secondsPerRelabeling, seconds: (relabelings * secondsPerRelabeling) / threads };
   });
   const fitSeconds = extrapolate(small.fitSeconds, large.fitSeconds);
-  const totalSeconds = fitSeconds + contrasts.reduce((sum, c) => sum + c.seconds, 0);
-  return { fitSeconds, contrasts, threads: options.threads, totalSeconds };
+  const writeSeconds = options.shard ? WRITE_SHARD_SECONDS : WRITE_SECONDS;
+  const totalSeconds = fitSeconds + writeSeconds + contrasts.reduce((sum, c) => sum + c.seconds, 0);
+  return { fitSeconds, writeSeconds, contrasts, threads: options.threads, totalSeconds };
 }
 
 interface SliceTimes {

@@ -188,8 +188,9 @@ const caseArbitrary = fc.record({
   // --permutations / --seed on the command line (check and run): valid, equal to the design's, or malformed.
   override: fc.option(
     fc.record({
-      flag: fc.constantFrom("--permutations", "--seed"),
-      value: fc.constantFrom("19", "40", "7", "0", "-2", "x", "1e3", "2.5", "", "9007199254740993"),
+      flag: fc.constantFrom("--permutations", "--seed", "--memory"),
+      // --memory: plenty, too little for any cohort (refused before the matrices are loaded), or malformed.
+      value: fc.constantFrom("19", "40", "7", "0", "-2", "x", "1e3", "2.5", "", "9007199254740993", "0.1", "64"),
     }),
     { nil: undefined },
   ),
