@@ -410,8 +410,3 @@ function requireTwoRegions(size: number, location: InputLocation): void {
     throw new InputError(`a ${size} × ${size} matrix has no edges; at least 2 regions are needed`, location);
   }
 }
-
-/** A Float64Array in a SharedArrayBuffer, so permutation workers read the data without copies. */
-export function sharedEdgeArray(length: number): Float64Array {
-  return new Float64Array(new SharedArrayBuffer(length * Float64Array.BYTES_PER_ELEMENT));
-}

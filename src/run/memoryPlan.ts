@@ -87,15 +87,11 @@ export function memoryBudget(needs: Omit<MemoryNeeds, "subjects" | "edges">, lim
     throw new InputError(
       `this cohort does not fit in memory: the edge data of ${subjects} participants × ${edges} edges take ${formatBytes(plan.dataBytes)} ` +
         `(double precision${needs.secondCopy ? ", held twice for a while by this design" : ""}), and the run would need about ${formatBytes(plan.peakBytes)} at its peak; ` +
-        `${limitSentence(plan)}; the matrices were not loaded`,
+        `${plan.limitSource} ${formatBytes(plan.limitBytes)}; the matrices were not loaded`,
       location,
       `run it where at least ${request} GB of memory is free. On a cluster, \`plexus run DESIGN --out DIR --shard k/n\` splits the permutations across n tasks, ` +
         `but every task holds all the edge data, so request ${request} GB per task (about ${formatBytes(plan.peakBytes)} at peak), then combine the shards with \`plexus merge\`; ` +
         "`plexus check DESIGN --memory <GB>` plans for a task of that size",
     );
   };
-}
-
-function limitSentence(plan: MemoryPlan): string {
-  return `${plan.limitSource} ${formatBytes(plan.limitBytes)}`;
 }

@@ -7,9 +7,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { InputError } from "../../../src/errors.js";
 import { edgeIndexOf, edgePairs } from "../../../src/edges/edgeIndex.js";
 import { writeMatrixEdges } from "../../../src/io/connectomeEdges.js";
+import { allocateEdgeData } from "../../../src/io/edgeData.js";
 import {
   loadConnectomes,
-  sharedEdgeArray,
   type ConnectomeOptions,
   type ConnectomeSubject,
   type LoadedConnectomes,
@@ -88,7 +88,7 @@ function wholeFileLoad(file: string, subjects: ConnectomeSubject[], options: Con
   }
   if (n < 2) throw new InputError(`a ${n} × ${n} matrix has no edges; at least 2 regions are needed`, { file });
   const pairs = edgePairs(n);
-  const data = sharedEdgeArray(subjects.length * pairs.edgeCount);
+  const data = allocateEdgeData(subjects.length, pairs.edgeCount, {});
   subjects.forEach((s, k) =>
     writeMatrixEdges(
       stack.data,
