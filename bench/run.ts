@@ -153,6 +153,7 @@ async function scenarios(report: string[], kA: number, kC: number): Promise<void
   const npy = ensureSimulatedCohort("npy", log);
   const designA = writeBenchDesign(text, `scenario-a-${kA}`, { model: "group + age + sex", permutations: kA, connectomes: "connectomes/{participant_id}.tsv", transform: "fisher-z" });
   const designB = writeBenchDesign(text, `scenario-b-${kA}`, { model: "group", permutations: kA, connectomes: "connectomes/{participant_id}.tsv", transform: "fisher-z" });
+  const designANpy = writeBenchDesign(npy, `scenario-a-npy-${kA}`, { model: "group + age + sex", permutations: kA, connectomes: "connectomes.npy", transform: "fisher-z" });
   const designBNpy = writeBenchDesign(npy, `scenario-b-npy-${kA}`, { model: "group", permutations: kA, connectomes: "connectomes.npy", transform: "fisher-z" });
 
   // Scenarios A and B: end to end (inputs read), the SIMD kernel and the TypeScript kernel, and the BLAS floor.
@@ -172,9 +173,12 @@ async function scenarios(report: string[], kA: number, kC: number): Promise<void
     rows.push({ name, fast, unscreened, reference, floor });
   }
 
-  // Scenario B once more with its input as a .npy stack: the same permutations, no text to parse.
+  // Scenarios A and B once more with their input as a .npy stack: the same permutations, no text to parse.
+  log("A from the .npy stack: SIMD kernel");
+  const aNpy = child({ kind: "analysis", name: "fast-A-npy", design: designANpy, threads });
   log("B from the .npy stack: SIMD kernel");
   const bNpy = child({ kind: "analysis", name: "fast-B-npy", design: designBNpy, threads });
+  rows.push({ name: "A: group + age + sex, input from the .npy stack", fast: aNpy, floor: rows[0].floor });
   rows.push({ name: "B: group, input from the .npy stack", fast: bNpy, floor: rows[1].floor });
 
   // Scenario C: scale and memory. End to end from the .npy stack; where that fails (the
@@ -212,6 +216,8 @@ async function scenarios(report: string[], kA: number, kC: number): Promise<void
   const estimates = [
     ["A", designA, rows[0].fast],
     ["B", designB, rows[1].fast],
+    ["A from the .npy stack", designANpy, rows[2].fast],
+    ["B from the .npy stack", designBNpy, rows[3].fast],
   ] as const;
   report.push("`plexus check`'s estimate of each run (inputs read, then calibrated) against the run measured above:", "", "| scenario | estimate s | measured s | estimate ÷ measured |", "|---|---|---|---|");
   for (const [name, design, measured] of estimates) {

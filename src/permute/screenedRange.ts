@@ -2,24 +2,26 @@ import { studentTUpperTail } from "../statistics/studentT.js";
 import { statisticsAtEdges, type KernelData } from "./permutedStatistics.js";
 import { groupStatisticsAtEdges, residualSums, type TwoLevelEffect } from "./kernels/groupSums.js";
 import { screeningInstance, type KernelChoice } from "./kernels/selectKernel.js";
-import type { GroupSumBounds } from "./kernels/wasmKernel.js";
+import { quantizedResident, type GroupSumBounds } from "./kernels/wasmKernel.js";
 import type { Tail } from "../common/inferenceOptions.js";
 import type { NullMaxima } from "./nullMaxima.js";
 import type { NullContext, NullRecorder, ScreenTally } from "./nullRangeTypes.js";
 import { relabelingWriter } from "./relabelingWriter.js";
 import {
   groupSumBounds,
+  quantizedScales,
   residualScales,
   screenThreshold,
   screeningApplies,
   tailSides,
   vectorScales,
+  type QuantizedScales,
   type ResidualScales,
 } from "./screening.js";
 
 /**
  * The screened path (screening.ts explains why it is exact): per batch, the
- * single-precision kernel lists for each relabeling the edges whose statistic
+ * screening kernel (integer products, or single-precision group sums) lists for each relabeling the edges whose statistic
  * could reach the lowest threshold; those are recomputed with the reference
  * order of operations (statisticAt, groupStatisticAt) and measured
  * (NullMaxima.measureListed). A relabeling where no listed edge passes the
@@ -51,8 +53,15 @@ export interface PreparedScreen {
   near?: { counts: Int32Array; lists: Int32Array; capacity: number; threshold: number };
 }
 
-/** Rows (relabelings × vectors) per screened batch: the f32 panel of weights stays in the level-2 cache. */
+/** Rows (relabelings × vectors) per screened batch: the panel of weights stays in the level-2 cache. */
 const SCREEN_ROWS = 192;
+/**
+ * Rows per batch when the residuals are too large to stay resident and each batch converts them again
+ * (10,000 subjects × 55,278 edges): four times as many relabelings share each conversion. Each chunk of
+ * 256 subjects of the panel (768 rows: 393 kB) still stays in the level-2 cache.
+ */
+const STREAMED_SCREEN_ROWS = 768;
+const STREAMED_MAX_RELABELINGS = 128;
 /** Relabelings per screened batch on the two-level path (each tile's subset tables serve the whole batch). */
 const GROUP_SCREEN_BATCH = 512;
 /**
@@ -73,6 +82,7 @@ const NEAR_CAPACITY = 256;
 const DIRECT_LIMIT = 4;
 
 const scalesOf = new WeakMap<KernelData, ResidualScales>();
+const quantizedOf = new WeakMap<KernelData, QuantizedScales>();
 const PADDING = 64;
 
 function scalesFor(data: KernelData): ResidualScales {
@@ -80,6 +90,15 @@ function scalesFor(data: KernelData): ResidualScales {
   if (!scales) {
     scales = residualScales(data, PADDING);
     scalesOf.set(data, scales);
+  }
+  return scales;
+}
+
+function quantizedFor(data: KernelData): QuantizedScales {
+  let scales = quantizedOf.get(data);
+  if (!scales) {
+    scales = quantizedScales(data, PADDING);
+    quantizedOf.set(data, scales);
   }
   return scales;
 }
@@ -125,7 +144,6 @@ export function prepareScreen(
   if (!norms) return undefined;
   const instance = screeningInstance(choice);
   if (!instance) return undefined;
-  const scales = scalesFor(kernel);
   const E = kernel.edges;
   const S = kernel.subjects;
   const c = vectors.length;
@@ -134,6 +152,7 @@ export function prepareScreen(
   const capacity = capacityOverride ?? Math.min(E, Math.max(Math.ceil(CAPACITY_FACTOR * expected * E) + CAPACITY_FLOOR, Math.ceil(CAPACITY_FRACTION * E)));
   const writer = relabelingWriter(context);
   if (level) {
+    const scales = scalesFor(kernel);
     const sums = residualSums(kernel);
     const boundsAt = (threshold: number) => cachedGroupSumBounds(kernel, level, sums, scales, threshold, context.tail);
     const nearThreshold = lowest * RETRY_FACTOR;
@@ -156,10 +175,13 @@ export function prepareScreen(
       near: near && { counts: batch.nearCounts, lists: batch.nearLists, capacity: near.capacity, threshold: nearThreshold },
     };
   }
-  const batchSize = Math.max(1, Math.floor(SCREEN_ROWS / c));
+  const batchSize = quantizedResident(S, E)
+    ? Math.max(1, Math.floor(SCREEN_ROWS / c))
+    : Math.max(1, Math.min(STREAMED_MAX_RELABELINGS, Math.floor(STREAMED_SCREEN_ROWS / c)));
+  const quantized = quantizedFor(kernel);
   const batch = instance.prepareScreen(kernel, batchSize, c, {
-    scale: scales.scale,
-    valid: screenedEdges(kernel.valid, scales.forced),
+    quantized,
+    valid: screenedEdges(kernel.valid, quantized.forced),
     norms,
     threshold: screenThreshold(lowest),
     upper,
@@ -172,7 +194,7 @@ export function prepareScreen(
     counts: batch.counts,
     lists: batch.lists,
     capacity,
-    forced: scales.forced,
+    forced: quantized.forced,
     lowest,
     run: batch.run,
     retarget: (threshold) => batch.setThreshold(screenThreshold(threshold)),

@@ -4,9 +4,11 @@ import type { KernelData } from "./permutedStatistics.js";
 import type { TwoLevelEffect } from "./kernels/groupSums.js";
 
 /**
- * Screening in single precision with exact answers. The permuted sums are
- * computed first in single precision (twice the SIMD lanes of double); a
- * rigorous bound on their error then tells which (relabeling, edge) pairs could
+ * Screening with exact answers. The permuted sums are computed first
+ * approximately and fast (the products of weights and residuals in 16-bit
+ * integers, quantizedScales below; the two-level path's group sums in single
+ * precision, twice the SIMD lanes of double); a rigorous bound on their error
+ * then tells which (relabeling, edge) pairs could
  * possibly have |t| at or above the lowest threshold, and only those are
  * recomputed in double precision with the reference kernel's order of
  * operations. Every other pair is certainly below every threshold, so the null
@@ -14,8 +16,8 @@ import type { TwoLevelEffect } from "./kernels/groupSums.js";
  * threshold) are the reference kernel's to the last bit; a relabeling where no
  * edge passes is recomputed whole.
  *
- * The bound (Higham 2002, Accuracy and Stability of Numerical Algorithms, 2nd
- * ed., SIAM, §3.1, eq. 3.5): a sum of n products evaluated in any order with
+ * The single-precision bound (Higham 2002, Accuracy and Stability of Numerical
+ * Algorithms, 2nd ed., SIAM, §3.1, eq. 3.5): a sum of n products evaluated in any order with
  * unit roundoff u is within γ_n·Σ|w_s||r_s| of the exact sum, γ_n = n·u/(1 − n·u).
  * Rounding the inputs to single precision adds two more factors (1 + u), so the
  * single-precision sum is within γ_{S+2}(2⁻²⁴)·‖w‖∞·‖R_e‖₁ of the exact one, and
@@ -53,6 +55,18 @@ export interface ResidualScales {
   forced: Int32Array;
 }
 
+/** ‖R_e‖₁ and ‖R_e‖∞ of the S residuals from `at`. */
+function edgeNorms(residuals: Float64Array, at: number, S: number): { l1: number; largest: number } {
+  let l1 = 0;
+  let largest = 0;
+  for (let s = 0; s < S; s++) {
+    const v = Math.abs(residuals[at + s]);
+    l1 += v;
+    if (v > largest) largest = v;
+  }
+  return { l1, largest };
+}
+
 /** Each edge's error scale, and the edges outside the screen's range. Invalid edges are neither (they stay NaN). */
 export function residualScales(data: KernelData, padding: number): ResidualScales {
   const { subjects: S, edges: E, residuals, valid } = data;
@@ -61,20 +75,81 @@ export function residualScales(data: KernelData, padding: number): ResidualScale
   const forced: number[] = [];
   for (let e = 0; e < E; e++) {
     if (valid[e] === 0) continue;
-    let l1 = 0;
-    let largest = 0;
-    const at = e * S;
-    for (let s = 0; s < S; s++) {
-      const v = Math.abs(residuals[at + s]);
-      l1 += v;
-      if (v > largest) largest = v;
-    }
+    const { l1, largest } = edgeNorms(residuals, e * S, S);
     if (!(largest >= SCALE_LOW && largest <= SCALE_HIGH)) forced.push(e);
     // κ carries a factor 4 over the bound it needs (u = 2⁻²³ instead of 2⁻²⁴, then × 2), far more than
     // covers the double-precision rounding of ‖R_e‖₁ itself and the reference sum's own error.
     scale[e] = kappa * l1 + S * UNDERFLOW_PER_SUBJECT;
   }
   return { scale, forced: Int32Array.from(forced) };
+}
+
+/**
+ * The products screen in 16-bit integers (kernels/build/quantizedScreenWat.mjs). Each edge's
+ * residuals are rounded to integers q_R = nearest(R / σ_e) on the step σ_e = ‖R_e‖∞ / 4095
+ * (rounded up to single precision), each relabeled vector's weights to q_w = nearest(w / τ_k),
+ * τ_k = ‖v_k‖∞ / 2047; 256 products of such integers sum exactly in 32 bits. With
+ * |ε_R| ≤ σ_e/2 and |ε_w| ≤ τ_k/2 the rounding errors, the exact identity
+ *   Σ w·R − τσ·Σ q_w·q_R = Σ (w·ε_R + ε_w·R − ε_w·ε_R)
+ * bounds the integer product's error by ‖v_k‖∞·(S·σ_e/2 + ‖R_e‖₁/(2·2047) + S·σ_e/(4·2047)).
+ * The integer sums of each 256 subjects are then converted to single precision, added and
+ * multiplied by σ_e and τ_k: n + 3 roundings for n chunks, within γ_{n+3}(2⁻²⁴)·τσ·Σ|q_w||q_R|
+ * ≤ γ_{n+3}(2⁻²⁴)·‖v_k‖∞·(‖R_e‖₁ + S·σ_e/2) (Higham 2002, §3.1, Lemma 3.1 and eq. 3.5). The
+ * reference double-precision sum is within γ_S(2⁻⁵³)·‖v_k‖∞·‖R_e‖₁ of the exact one, counted
+ * twice over. So, as for the single-precision path, an error bound is ‖v_k‖∞ times a per-edge
+ * scale, and the screen's test (screenKernelWat.mjs $screenTile) is the same.
+ */
+export const RESIDUAL_LEVELS = 4095;
+export const WEIGHT_LEVELS = 2047;
+/** Subjects per exact 32-bit sum: 256 · 2047 · 4095 < 2³¹. */
+export const SUBJECTS_PER_SUM = 256;
+/** Covers the rounding of nearest(x · 1/step) against x / step (relative 2⁻⁵¹ of at most 4095). */
+const HALF_STEP = 0.5 + 2 ** -38;
+/** Covers the double-precision evaluation of the bound itself. */
+const BOUND_SLACK = 1 + 2 ** -20;
+
+export interface QuantizedScales {
+  /** σ_e (single-precision values), then `padding` zeros; 0 for edges not screened. */
+  step: Float32Array;
+  /** 1 / σ_e, or 0 for edges not screened (their integers are 0). */
+  inverse: Float64Array;
+  /** The per-edge scale: multiplied by ‖v_k‖∞ it bounds the quantized product's error against the reference's. */
+  bound: Float64Array;
+  forced: Int32Array;
+}
+
+/** Each edge's quantization step and error scale; forced edges (residualScales) and invalid edges get 0. */
+export function quantizedScales(data: KernelData, padding: number): QuantizedScales {
+  const { subjects: S, edges: E, residuals, valid } = data;
+  const { forced } = residualScales(data, 0);
+  const skip = new Uint8Array(E);
+  for (const e of forced) skip[e] = 1;
+  const step = new Float32Array(E + padding);
+  const inverse = new Float64Array(E + padding);
+  const bound = new Float64Array(E + padding);
+  const reference = 2 * gamma(S + 2, 2 ** -53);
+  const sums = Math.ceil(S / SUBJECTS_PER_SUM);
+  const conversion = gamma(sums + 3, 2 ** -24);
+  const wStep = (1 + 2 ** -22) / WEIGHT_LEVELS;
+  for (let e = 0; e < E; e++) {
+    if (valid[e] === 0 || skip[e] === 1) continue;
+    const { l1, largest } = edgeNorms(residuals, e * S, S);
+    const sigma = float32AtLeast(largest / RESIDUAL_LEVELS);
+    step[e] = sigma;
+    inverse[e] = 1 / sigma;
+    const roundR = S * sigma * HALF_STEP;
+    const roundW = HALF_STEP * wStep * l1;
+    const both = S * sigma * HALF_STEP * HALF_STEP * wStep;
+    const converted = conversion * (1 + 2 ** -22) * (l1 + S * sigma * HALF_STEP);
+    bound[e] = BOUND_SLACK * (reference * l1 + S * UNDERFLOW_PER_SUBJECT + roundR + roundW + both + converted);
+  }
+  return { step, inverse, bound, forced };
+}
+
+/** τ_k (single-precision values, rounded up) and 1/τ_k for each relabeled vector from its ‖v_k‖∞. */
+export function weightSteps(norms: Float64Array): { step: Float64Array; inverse: Float64Array } {
+  const step = norms.map((n) => float32AtLeast(n / WEIGHT_LEVELS));
+  return { step, inverse: step.map((t) => 1 / t) };
 }
 
 /** ‖v‖∞ of each relabeled vector, or undefined when one lies outside the screen's range. */

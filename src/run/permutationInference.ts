@@ -33,14 +33,19 @@ export interface NullRunOptions {
 }
 
 /**
- * Relabelings per chunk: the run's chunk size, whose grid a checkpoint keeps; a shard (never checkpointed)
- * cuts its share finer when that keeps more threads busy (250 relabelings on 4 threads: chunks of 63), so a
- * cluster task's cores all work. The null rows do not depend on the chunks.
+ * Relabelings per chunk: the run's chunk size, cut so that a run has at least MIN_CHUNKS chunks (500
+ * relabelings of a large cohort would otherwise be one chunk on one thread). That depends on the count
+ * alone, so a checkpoint's grid is the same whatever the threads of the resumed run. A shard (never
+ * checkpointed) cuts its share finer still when that keeps more threads busy (250 relabelings on 4
+ * threads: chunks of 63), so a cluster task's cores all work. The null rows do not depend on the chunks.
  */
 export function engineChunkSize(relabelings: number, options: { threads: number; chunkSize: number; shard?: unknown; checkpoint?: unknown }): number {
-  if (!options.shard || options.checkpoint) return options.chunkSize;
-  return Math.max(1, Math.min(options.chunkSize, Math.ceil(relabelings / Math.max(1, options.threads))));
+  const perChunk = Math.max(1, Math.min(options.chunkSize, Math.ceil(relabelings / MIN_CHUNKS)));
+  if (!options.shard || options.checkpoint) return perChunk;
+  return Math.max(1, Math.min(perChunk, Math.ceil(relabelings / Math.max(1, options.threads))));
 }
+/** Chunks a run is cut into at least (fewer only when it has fewer relabelings). */
+const MIN_CHUNKS = 8;
 
 export function needsPermutations(prepared: PreparedAnalysis): boolean {
   return prepared.design.inference.method !== "fdr";

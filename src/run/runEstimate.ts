@@ -62,8 +62,9 @@ export function estimateRun(prepared: PreparedAnalysis, options: { threads: numb
     const relabelings = to - from;
     const secondsPerRelabeling = extrapolate(small.contrasts[k].secondsPerRelabeling, c.secondsPerRelabeling);
     const chunk = engineChunkSize(relabelings, { threads: options.threads, chunkSize: DEFAULT_CHUNK_SIZE, shard: options.shard });
-    const threads = Math.max(1, Math.min(options.threads, Math.ceil(relabelings / chunk)));
-    return { name: c.name, relabelings, secondsPerRelabeling, seconds: (relabelings * secondsPerRelabeling) / threads };
+    // Threads take chunks as they finish: the run lasts as many rounds of chunks as the threads need.
+    const rounds = Math.ceil(Math.ceil(relabelings / chunk) / Math.max(1, options.threads));
+    return { name: c.name, relabelings, secondsPerRelabeling, seconds: Math.min(relabelings, rounds * chunk) * secondsPerRelabeling };
   });
   const fitSeconds = extrapolate(small.fitSeconds, large.fitSeconds);
   const writeSeconds = options.shard ? WRITE_SHARD_SECONDS : WRITE_SECONDS;

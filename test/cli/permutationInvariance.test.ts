@@ -13,10 +13,11 @@ import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { DEFAULT_CHUNK_SIZE, runAnalysis } from "../../src/run/runAnalysis.js";
 import { runSimulation } from "../../src/simulate/runSimulation.js";
+import { engineChunkSize } from "../../src/run/permutationInference.js";
 import { scratchFolder } from "../unit/permute/cohortFiles.js";
 
-/** The checkpoint file of the first chunk of relabelings. */
-const FIRST_CHUNK = `patient_gt_control.1-${DEFAULT_CHUNK_SIZE + 1}.json`;
+/** The checkpoint file of the first chunk of design.yaml's 600 relabelings (chunks of 75: at least eight per run). */
+const FIRST_CHUNK = `patient_gt_control.1-${engineChunkSize(600, { threads: 1, chunkSize: DEFAULT_CHUNK_SIZE, checkpoint: true }) + 1}.json`;
 
 const ROOT = resolve(dirname(fileURLToPath(import.meta.url)), "../..");
 const BIN = join(ROOT, "bin", "plexus.js");

@@ -2,6 +2,7 @@ import type { KernelData } from "../permutedStatistics.js";
 import { residualSums, type TwoLevelEffect } from "./groupSums.js";
 import { PERMUTE_KERNEL_BASE64, PERMUTE_KERNEL_TILE } from "./generated/permuteKernelBytes.js";
 import type { KernelExports } from "./generated/kernelSignatures.js";
+import { weightSteps, type QuantizedScales } from "../screening.js";
 
 /**
  * The WebAssembly SIMD permutation kernel (source: build/permuteKernelWat.mjs).
@@ -125,8 +126,8 @@ export interface GroupScreenBatch {
 
 /** What the products screen needs beyond the kernel data. */
 export interface ScreenSettings {
-  /** Per-edge error scale (screening.ts residualScales), with at least one tile of padding. */
-  scale: Float64Array;
+  /** Per-edge quantization steps and error scales (screening.ts quantizedScales), with at least one tile of padding. */
+  quantized: QuantizedScales;
   /** Edges the kernel may list (1) or not (0): the valid edges the screen can bound. */
   valid: Uint8Array;
   /** ‖v_k‖∞ of each relabeled vector. */
@@ -139,12 +140,16 @@ export interface ScreenSettings {
 }
 
 /**
- * On the products screen, up to this many bytes of single-precision residuals
- * stay in a screening instance's memory for the whole run (no copy per batch);
- * larger data (1,000 regions × 500 subjects) are copied in block by block for
- * each batch instead. (The two-level screen always converts per batch.)
+ * On the products screen, up to this many bytes of integer residuals (2 bytes a
+ * value) stay in a screening instance's memory for the whole run (no copy per
+ * batch); larger data (1,000 regions × 500 subjects) are copied in and converted
+ * block by block for each batch instead. (The two-level screen always converts per batch.)
  */
 const RESIDENT_BYTES = 160 * 1024 * 1024;
+/** Edges per block of the quantized products (the f32 sums of a block: 64 × rows × 4 bytes). */
+const QUANTIZED_BLOCK_EDGES = 64;
+/** Bytes of double-precision residuals copied per block when they are not resident (64 edges up to S = 16,000). */
+const QUANTIZED_STAGING_BYTES = 8 * 1024 * 1024;
 /**
  * Subjects per chunk of the group-sum subset tables, chosen per run from the
  * batch: each relabeling's sum is ⌈S/k⌉ table entries (one load and add of a
@@ -173,6 +178,16 @@ const MAX_CHUNK_SUBJECTS = 8;
 /** The resident limit in force (tests lower it to exercise the block-by-block path). */
 export const screenMemory = { residentBytes: RESIDENT_BYTES };
 
+/** Bytes of the products screen's integer residuals (tiles of 4 edges, pairs of subjects). */
+function quantizedResidentBytes(subjects: number, edges: number): number {
+  return Math.ceil(edges / 4) * Math.ceil(subjects / 2) * 16;
+}
+
+/** Whether the products screen keeps these residuals resident (otherwise each batch converts them block by block). */
+export function quantizedResident(subjects: number, edges: number): boolean {
+  return quantizedResidentBytes(subjects, edges) <= screenMemory.residentBytes;
+}
+
 /** Bytes of residuals per block on the two-level paths (copied, then transposed beside the copy: in double precision, or rounded to single). */
 const GROUP_BLOCK_BYTES = 128 * 1024;
 
@@ -183,7 +198,7 @@ export class WasmPermutationKernel {
   readonly rowsPerTile: number = PERMUTE_KERNEL_TILE.rowPairs * 2;
   readonly edgesPerTile: number = PERMUTE_KERNEL_TILE.edgesPerTile;
   readonly groupEdgesPerTile: number = PERMUTE_KERNEL_TILE.groupPairs * 2;
-  /** The screen's tiles: rows per f32 tile, 4 edges per tile, and edges per group-sum tile. */
+  /** The screen's tiles: rows per products tile, 4 edges per tile, and edges per group-sum tile. */
   readonly screenRowsPerTile: number = PERMUTE_KERNEL_TILE.rowQuads * 4;
   readonly screenEdgesPerTile = 4;
   readonly screenGroupEdgesPerTile: number = PERMUTE_KERNEL_TILE.groupQuads * 4;
@@ -260,45 +275,72 @@ export class WasmPermutationKernel {
     }
   }
 
-  /** As packWeights, in single precision with tiles of screenRowsPerTile rows. */
-  private packWeights32(weights: Float64Array, rows: number, S: number, rowTiles: number, at: number): void {
+  /**
+   * Packs rows × S weights as 16-bit integers by row tiles and subject pairs (screening.ts
+   * quantizedScales): panel[t][j][r] = (q(s = 2j), q(2j + 1)) of row t·RT + r, with q = nearest(w / τ_k)
+   * for the row's vector k = row mod vectors; zero past the last row and the last subject.
+   */
+  private packQuantizedWeights(weights: Float64Array, rows: number, vectors: number, S: number, rowTiles: number, inverse: Float64Array, at: number): void {
     const RT = this.screenRowsPerTile;
-    const f32 = new Float32Array(this.exports.memory.buffer, at, rowTiles * RT * S);
+    const S2 = Math.ceil(S / 2);
+    const i16 = new Int16Array(this.exports.memory.buffer, at, rowTiles * RT * S2 * 2);
     let o = 0;
     for (let t = 0; t < rowTiles; t++) {
-      for (let s = 0; s < S; s++) {
+      for (let j = 0; j < S2; j++) {
+        const s = 2 * j;
         for (let r = 0; r < RT; r++) {
-          const j = t * RT + r;
-          f32[o++] = j < rows ? weights[j * S + s] : 0;
+          const row = t * RT + r;
+          if (row >= rows) {
+            i16[o++] = 0;
+            i16[o++] = 0;
+            continue;
+          }
+          const inv = inverse[row % vectors];
+          const at = row * S + s;
+          i16[o++] = Math.round(weights[at] * inv);
+          i16[o++] = s + 1 < S ? Math.round(weights[at + 1] * inv) : 0;
         }
       }
     }
   }
 
+  /** The rows' weight steps τ (single precision) at `at`, zero past the last row. */
+  private writeRowSteps(step: Float64Array, rows: number, paddedRows: number, at: number): void {
+    const f32 = new Float32Array(this.exports.memory.buffer, at, paddedRows);
+    const vectors = step.length;
+    for (let j = 0; j < paddedRows; j++) f32[j] = j < rows ? step[j % vectors] : 0;
+  }
+
   /**
-   * The screened batch (../screening.ts): single-precision products and a
+   * The screened batch (../screening.ts): products in 16-bit integers (quantizedScales), a
    * double-precision screen; undefined if that much WebAssembly memory is refused.
    */
   prepareScreen(data: KernelData, batchSize: number, vectors: number, settings: ScreenSettings): ScreenBatch | undefined {
     const { subjects: S, edges: E, residuals, effectNorm2, df } = data;
     const RT = this.screenRowsPerTile;
     const P = this.screenEdgesPerTile;
+    const S2 = Math.ceil(S / 2);
     const paddedRows = Math.max(1, Math.ceil((batchSize * vectors) / RT)) * RT;
-    const W = this.blockWidth(S, E, P);
-    const { capacity } = settings;
-    // Residuals of up to RESIDENT_BYTES stay in memory in single precision, interleaved, for every batch of the run.
-    const tiles = Math.ceil(E / P);
-    const residentBytes = tiles * P * S * 4;
-    const resident = residentBytes <= screenMemory.residentBytes;
-    const layout = `interleaved:${S}:${E}`;
+    const maxRowTiles = paddedRows / RT;
+    // Blocks of at most 64 edges: each chunk of the panel serves the block's 16 tiles from the cache.
+    const W = Math.min(QUANTIZED_BLOCK_EDGES, this.blockWidth(S, E, P, QUANTIZED_STAGING_BYTES));
+    const { capacity, quantized } = settings;
+    // Residuals of up to RESIDENT_BYTES stay in memory as integers, interleaved, for every batch of the run.
+    const residentBytes = quantizedResidentBytes(S, E);
+    const resident = quantizedResident(S, E);
+    const layout = `quantized:${S}:${E}`;
     const sumSquaresAt = resident ? alignUp(residentBytes) : 0;
-    const scaleAt = alignUp(sumSquaresAt + (E + P) * 8);
-    const maskAt = alignUp(scaleAt + (E + P) * 8);
-    const normsAt = alignUp(maskAt + (E + P) * 8);
-    const panelAt = alignUp(normsAt + vectors * 8);
-    const stagingAt = alignUp(panelAt + paddedRows * S * 4);
+    const boundAt = alignUp(sumSquaresAt + (E + P) * 8);
+    const maskAt = alignUp(boundAt + (E + P) * 8);
+    const inverseAt = alignUp(maskAt + (E + P) * 8);
+    const edgeStepAt = alignUp(inverseAt + (E + P) * 8);
+    const normsAt = alignUp(edgeStepAt + (E + P) * 4);
+    const rowStepAt = alignUp(normsAt + vectors * 8);
+    const panelAt = alignUp(rowStepAt + paddedRows * 4);
+    const stagingAt = alignUp(panelAt + paddedRows * S2 * 4);
     const residualsAt = alignUp(stagingAt + W * S * 8);
-    const productsAt = alignUp(residualsAt + W * S * 4);
+    const scratchAt = alignUp(residualsAt + (W / P) * S2 * P * 4);
+    const productsAt = alignUp(scratchAt + (W / P) * maxRowTiles * RT * P * 4);
     const countsAt = alignUp(productsAt + paddedRows * P * 4);
     const listsAt = alignUp(countsAt + batchSize * 4);
     const end = listsAt + batchSize * capacity * 4;
@@ -306,16 +348,25 @@ export class WasmPermutationKernel {
     const token = {};
     const kept = resident && this.resident?.data === data && this.resident.layout === layout;
     this.claim(token, kept);
+    this.f64.set(quantized.inverse.subarray(0, E), inverseAt / 8);
+    this.f64.fill(0, inverseAt / 8 + E, inverseAt / 8 + E + P);
     if (resident && !kept) {
-      this.eachBlock(residuals, S, E, W, stagingAt, (e0, width) => this.exports.interleaveBlock(stagingAt, e0 * S * 4, S, Math.ceil(width / P)));
+      this.eachBlock(residuals, S, E, W, stagingAt, (e0, width) =>
+        this.exports.quantizeInterleaveBlock(stagingAt, e0 * S2 * 4, S, Math.ceil(width / P), inverseAt + e0 * 8),
+      );
       this.resident = { data, layout };
     }
     this.f64.set(data.sumSquares, sumSquaresAt / 8);
     this.f64.fill(0, sumSquaresAt / 8 + E, sumSquaresAt / 8 + E + P);
-    this.f64.set(settings.scale.subarray(0, E), scaleAt / 8);
+    this.f64.set(quantized.bound.subarray(0, E), boundAt / 8);
+    this.f64.fill(0, boundAt / 8 + E, boundAt / 8 + E + P);
     this.writeValidMask(settings.valid, maskAt, P);
-    this.f64.set(settings.norms, normsAt / 8);
     const buffer = this.exports.memory.buffer;
+    const edgeStep = new Float32Array(buffer, edgeStepAt, E + P);
+    edgeStep.fill(0);
+    edgeStep.set(quantized.step.subarray(0, E));
+    this.f64.set(settings.norms, normsAt / 8);
+    const steps = weightSteps(settings.norms);
     const counts = new Int32Array(buffer, countsAt, batchSize);
     const lists = new Int32Array(buffer, listsAt, batchSize * capacity);
     const weights = new Float64Array(batchSize * vectors * S);
@@ -326,27 +377,31 @@ export class WasmPermutationKernel {
       if (E === 0 || batch === 0) return;
       const rows = batch * vectors;
       const rowTiles = Math.ceil(rows / RT);
-      this.packWeights32(weights, rows, S, rowTiles, panelAt);
+      this.packQuantizedWeights(weights, rows, vectors, S, rowTiles, steps.inverse, panelAt);
+      this.writeRowSteps(steps.step, rows, rowTiles * RT, rowStepAt);
       const f64 = this.f64;
       for (let e0 = 0; e0 < E; e0 += W) {
         const width = Math.min(W, E - e0);
-        let block = e0 * S * 4;
+        let block = e0 * S2 * 4;
         if (!resident) {
           f64.set(residuals.subarray(e0 * S, (e0 + width) * S), stagingAt / 8);
-          this.exports.interleaveBlock(stagingAt, residualsAt, S, Math.ceil(width / P));
+          this.exports.quantizeInterleaveBlock(stagingAt, residualsAt, S, Math.ceil(width / P), inverseAt + e0 * 8);
           block = residualsAt;
         }
-        this.exports.screenBlock(
+        this.exports.quantizedScreenBlock(
           panelAt,
           rowTiles,
-          S,
+          S2,
           block,
           width,
+          scratchAt,
+          rowStepAt,
+          edgeStepAt + e0 * 4,
           productsAt,
           batch,
           vectors,
           sumSquaresAt + e0 * 8,
-          scaleAt + e0 * 8,
+          boundAt + e0 * 8,
           maskAt + e0 * 8,
           normsAt,
           1 / effectNorm2,
@@ -488,21 +543,36 @@ export class WasmPermutationKernel {
     return { members, counts, lists, capacity, nearCounts, nearLists, nearCapacity, run, setBounds };
   }
 
-  /** Single-precision products of one tile of 4 edges (for tests; residuals edge-major, 4 × S): products[j·4 + p] for rows j. */
-  tileProducts32(weights: Float64Array, rows: number, S: number, residuals: Float64Array, products: Float32Array): boolean {
+  /**
+   * The quantized products of one tile of 4 edges (for tests; residuals edge-major, 4 × S):
+   * products[j·4 + p] for rows j, each row's vector k = j mod vectors.
+   */
+  quantizedTileProducts(weights: Float64Array, rows: number, vectors: number, S: number, residuals: Float64Array, quantized: QuantizedScales, norms: Float64Array, products: Float32Array): boolean {
     const RT = this.screenRowsPerTile;
+    const P = this.screenEdgesPerTile;
+    const S2 = Math.ceil(S / 2);
     const rowTiles = Math.ceil(rows / RT);
     const panelAt = 0;
-    const residualsAt = alignUp(panelAt + rowTiles * RT * S * 4);
-    const productsAt = alignUp(residualsAt + 4 * S * 4);
-    if (!this.reserve(productsAt + rowTiles * RT * 4 * 4)) return false;
+    const rowStepAt = alignUp(panelAt + rowTiles * RT * S2 * 4);
+    const edgeStepAt = alignUp(rowStepAt + rowTiles * RT * 4);
+    const inverseAt = alignUp(edgeStepAt + P * 4);
+    const stagingAt = alignUp(inverseAt + P * 8);
+    const residualsAt = alignUp(stagingAt + P * S * 8);
+    const scratchAt = alignUp(residualsAt + S2 * P * 4);
+    const productsAt = alignUp(scratchAt + rowTiles * RT * P * 4);
+    if (!this.reserve(productsAt + rowTiles * RT * P * 4)) return false;
     this.claim(undefined);
-    this.packWeights32(weights, rows, S, rowTiles, panelAt);
-    const block = new Float32Array(this.exports.memory.buffer, residualsAt, 4 * S);
-    block.fill(0);
-    for (let p = 0; p < 4; p++) for (let s = 0; s < S && p * S + s < residuals.length; s++) block[s * 4 + p] = residuals[p * S + s];
-    this.exports.tileProducts32(panelAt, rowTiles, S, residualsAt, productsAt);
-    products.set(new Float32Array(this.exports.memory.buffer, productsAt, rows * 4));
+    const steps = weightSteps(norms);
+    this.packQuantizedWeights(weights, rows, vectors, S, rowTiles, steps.inverse, panelAt);
+    this.writeRowSteps(steps.step, rows, rowTiles * RT, rowStepAt);
+    const buffer = this.exports.memory.buffer;
+    new Float32Array(buffer, edgeStepAt, P).set(quantized.step.subarray(0, P));
+    this.f64.set(quantized.inverse.subarray(0, P), inverseAt / 8);
+    this.f64.fill(0, stagingAt / 8, stagingAt / 8 + P * S);
+    this.f64.set(residuals.subarray(0, P * S), stagingAt / 8);
+    this.exports.quantizeInterleaveBlock(stagingAt, residualsAt, S, 1, inverseAt);
+    this.exports.quantizedTileProducts(panelAt, rowTiles, S2, residualsAt, scratchAt, rowStepAt, edgeStepAt, productsAt);
+    products.set(new Float32Array(buffer, productsAt, rows * P));
     return true;
   }
 

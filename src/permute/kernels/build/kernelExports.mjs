@@ -23,16 +23,16 @@ export const KERNEL_FUNCTIONS = {
   ),
   tileProducts: parameters("panel i32, rowTiles i32, S i32, res i32, prod i32"),
   // screenKernelWat.mjs: the single-precision screen
-  demoteBlock: parameters("src i32, dst i32, n i32"),
   transposeDemoteBlock: parameters("src i32, dst i32, S i32, W i32"),
-  interleaveBlock: parameters("src i32, dst i32, S i32, tiles i32"),
-  screenBlock: parameters(
-    "panel i32, rowTiles i32, S i32, res i32, width i32, prod i32, batch i32, vectors i32, ss i32, l1 i32, mask i32, norms i32, invNorm f64, df f64, rhs f64, upper i32, lower i32, first i32, lists i32, counts i32, capacity i32",
-  ),
   groupTableScreenBlock: parameters(
     "blockT i32, W i32, width i32, S i32, chunkSize i32, offsets i32, chunks i32, batch i32, tables i32, sLo i32, sHi i32, first i32, lists i32, counts i32, capacity i32, nLo i32, nHi i32, nearLists i32, nearCounts i32, nearCapacity i32",
   ),
-  tileProducts32: parameters("panel i32, rowTiles i32, S i32, res i32, prod i32"),
+  // quantizedScreenWat.mjs: the products screen in 16-bit integers
+  quantizeInterleaveBlock: parameters("src i32, dst i32, S i32, tiles i32, inverse i32"),
+  quantizedScreenBlock: parameters(
+    "panel i32, rowTiles i32, S2 i32, res i32, width i32, scratch i32, rowScale i32, edgeScale i32, prod i32, batch i32, vectors i32, ss i32, l1 i32, mask i32, norms i32, invNorm f64, df f64, rhs f64, upper i32, lower i32, first i32, lists i32, counts i32, capacity i32",
+  ),
+  quantizedTileProducts: parameters("panel i32, rowTiles i32, S2 i32, res i32, scratch i32, rowScale i32, edgeScale i32, prod i32"),
 };
 
 /** Parameters per line of the WebAssembly text. */

@@ -31,6 +31,7 @@
 
 import { emitExportedFunction } from "./kernelExports.mjs";
 import { screenKernelFields } from "./screenKernelWat.mjs";
+import { quantizedScreenFields } from "./quantizedScreenWat.mjs";
 
 /** Rows per f64x2 accumulator. */
 const LANES = 2;
@@ -294,6 +295,7 @@ export function permuteKernelWat({ rowPairs, edgesPerTile, groupPairs, rowQuads,
   emit(2, "(call $tileProducts (local.get $panel) (local.get $rowTiles) (local.get $S) (local.get $res) (local.get $prod))");
   emit(1, ")");
   lines.push(...screenKernelFields({ rowQuads, groupQuads }));
+  lines.push(...quantizedScreenFields({ rowQuads }));
   emit(0, ")");
   return lines.join("\n") + "\n";
 }

@@ -1,15 +1,13 @@
 // The screening half of the SIMD kernel (src/permute/screening.ts explains it): the
-// same sums as the exact kernel, in single precision (f32x4 lanes: twice the lanes
-// of f64x2), used only to decide which (relabeling, edge) pairs could possibly lie
-// above the lowest threshold. Those pairs are listed per relabeling; the caller
-// recomputes them in double precision with the reference order of operations, so
-// nothing a screen computes ever reaches a result.
+// same sums as the exact kernel, approximately and fast (the products in 16-bit
+// integers, quantizedScreenWat.mjs; the group sums in single precision, f32x4 lanes),
+// used only to decide which (relabeling, edge) pairs could possibly lie above the
+// lowest threshold. Those pairs are listed per relabeling; the caller recomputes them
+// in double precision with the reference order of operations, so nothing a screen
+// computes ever reaches a result.
 //
 // Memory layout (byte offsets from src/permute/kernels/wasmKernel.ts):
-//   panel32   weights packed by tiles of 4·rowQuads rows, f32: panel[t][s][r]
-//   res32     a block of edges in f32, interleaved by tiles of 4 edges (interleaveBlock of the
-//             copied f64 block): subject s of edge 4t + p at [(t·S + s)·4 + p]
-//   prod32    scratch of paddedRows × 4 f32: prod[j·4 + p]
+//   prod32    paddedRows × 4 f32 approximate products of one tile of 4 edges: prod[j·4 + p]
 //   ss, l1    ‖R_e‖² and the per-edge error scale (f64), mask (64-bit valid masks),
 //             all with room for one tile past the last edge
 //   norms     ‖v_k‖∞ of each relabeled vector (f64)
@@ -20,21 +18,15 @@
 
 import { emitExportedFunction } from "./kernelExports.mjs";
 
-/** Edges per tile of the screened products: one f32x4 holds four rows of one edge; the stores transpose 4 × 4. */
-const SCREEN_EDGES = 4;
-
 /**
  * @param {{ rowQuads: number, groupQuads: number }} tile
- *   rowQuads × 4 f32x4 accumulators for the products (4 rows each); groupQuads f32x4
+ *   rows per products tile (4·rowQuads, quantizedScreenWat.mjs); groupQuads f32x4
  *   accumulators (4 edges each) for the group sums.
  * @returns {string[]} lines of WebAssembly text (module fields)
  */
 export function screenKernelFields({ rowQuads, groupQuads }) {
-  const Q = rowQuads;
-  const P = SCREEN_EDGES;
-  const RT = 4 * Q;
+  const RT = 4 * rowQuads;
   const range = (n) => Array.from({ length: n }, (_, i) => i);
-  const acc = (k, p) => `$acc_${k}_${p}`;
   const lines = [];
   const emit = (indent, text) => lines.push("  ".repeat(indent) + text);
   const lane32 = (vector, i) => [4 * i, 4 * i + 1, 4 * i + 2, 4 * i + 3].map((b) => b + 16 * vector);
@@ -42,34 +34,6 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
 
   emit(1, `(global (export "screenRowsPerTile") i32 (i32.const ${RT}))`);
   emit(1, `(global (export "screenGroupEdgesPerTile") i32 (i32.const ${4 * groupQuads}))`);
-
-  // ---- f64 → f32, round to nearest (f32x4.demote_f64x2_zero rounds as f32.demote_f64 does) ----
-  emitExportedFunction(emit, 1, "demoteBlock", "demote");
-  emit(2, "(local $end i32)");
-  emit(2, "(local.set $end (i32.add (local.get $src) (i32.shl (i32.and (local.get $n) (i32.const -4)) (i32.const 3))))");
-  emit(2, "(block $quadsDone");
-  emit(3, "(loop $quads");
-  emit(4, "(br_if $quadsDone (i32.ge_u (local.get $src) (local.get $end)))");
-  emit(
-    4,
-    `(v128.store (local.get $dst) ${shuffle([...lane32(0, 0), ...lane32(0, 1), ...lane32(1, 0), ...lane32(1, 1)], "(f32x4.demote_f64x2_zero (v128.load (local.get $src)))", "(f32x4.demote_f64x2_zero (v128.load offset=16 (local.get $src)))")})`,
-  );
-  emit(4, "(local.set $src (i32.add (local.get $src) (i32.const 32)))");
-  emit(4, "(local.set $dst (i32.add (local.get $dst) (i32.const 16)))");
-  emit(4, "(br $quads)");
-  emit(3, ")");
-  emit(2, ")");
-  emit(2, "(local.set $end (i32.add (local.get $end) (i32.shl (i32.and (local.get $n) (i32.const 3)) (i32.const 3))))");
-  emit(2, "(block $restDone");
-  emit(3, "(loop $rest");
-  emit(4, "(br_if $restDone (i32.ge_u (local.get $src) (local.get $end)))");
-  emit(4, "(f32.store (local.get $dst) (f32.demote_f64 (f64.load (local.get $src))))");
-  emit(4, "(local.set $src (i32.add (local.get $src) (i32.const 8)))");
-  emit(4, "(local.set $dst (i32.add (local.get $dst) (i32.const 4)))");
-  emit(4, "(br $rest)");
-  emit(3, ")");
-  emit(2, ")");
-  emit(1, ")");
 
   // Edge p of four at $a (edges $stride bytes apart), and one subject of each rounded to single precision at target.
   const edgeAddress = (p) => (p === 0 ? "(local.get $a)" : `(i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const ${p})))`);
@@ -113,83 +77,6 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(5, "))");
   emit(4, "(local.set $i (i32.add (local.get $i) (i32.const 4)))");
   emit(4, "(br $edges)");
-  emit(3, ")");
-  emit(2, ")");
-  emit(1, ")");
-
-  // ---- f64 edge-major block → f32 interleaved by tiles of 4 edges: dst[(t·S + s)·4 + p] = src[(4t + p)·S + s] ----
-  emitExportedFunction(emit, 1, "interleaveBlock");
-  emit(2, "(local $t i32) (local $s i32) (local $a i32) (local $stride i32)");
-  emit(2, "(local.set $stride (i32.shl (local.get $S) (i32.const 3)))");
-  emit(2, "(block $tilesDone");
-  emit(3, "(loop $tileLoop");
-  emit(4, "(br_if $tilesDone (i32.ge_u (local.get $t) (local.get $tiles)))");
-  emit(4, "(local.set $a (i32.add (local.get $src) (i32.mul (local.get $t) (i32.shl (local.get $stride) (i32.const 2)))))");
-  emit(4, "(local.set $s (i32.const 0))");
-  emit(4, "(block $subjectsDone");
-  emit(5, "(loop $subjectLoop");
-  emit(6, "(br_if $subjectsDone (i32.ge_u (local.get $s) (local.get $S)))");
-  emitRoundFourEdges(6, "$dst");
-  emit(6, "(local.set $a (i32.add (local.get $a) (i32.const 8)))");
-  emit(6, "(local.set $dst (i32.add (local.get $dst) (i32.const 16)))");
-  emit(6, "(local.set $s (i32.add (local.get $s) (i32.const 1)))");
-  emit(6, "(br $subjectLoop)");
-  emit(5, ")");
-  emit(4, ")");
-  emit(4, "(local.set $t (i32.add (local.get $t) (i32.const 1)))");
-  emit(4, "(br $tileLoop)");
-  emit(3, ")");
-  emit(2, ")");
-  emit(1, ")");
-
-  // ---- single-precision products of one tile of 4 edges against every row tile ----
-  emit(1, "(func $tileProducts32");
-  emit(2, "(param $panel i32) (param $rowTiles i32) (param $S i32) (param $res i32) (param $prod i32)");
-  emit(2, "(local $t i32) (local $wp i32) (local $end i32) (local $rp i32) (local $rowAt i32)");
-  for (const k of range(Q)) emit(2, `(local $w${k} v128)`);
-  emit(2, "(local $x v128) (local $t0 v128) (local $t1 v128) (local $t2 v128) (local $t3 v128)");
-  for (const k of range(Q)) for (const p of range(P)) emit(2, `(local ${acc(k, p)} v128)`);
-  emit(2, "(local.set $wp (local.get $panel))");
-  emit(2, "(block $rowsDone");
-  emit(3, "(loop $rows");
-  emit(4, "(br_if $rowsDone (i32.ge_u (local.get $t) (local.get $rowTiles)))");
-  for (const k of range(Q)) for (const p of range(P)) emit(4, `(local.set ${acc(k, p)} (v128.const f32x4 0 0 0 0))`);
-  emit(4, ";; the tile's residuals are interleaved (interleaveBlock): subject s of edge p at res + (s·4 + p)·4");
-  emit(4, "(local.set $rp (local.get $res))");
-  emit(4, `(local.set $end (i32.add (local.get $wp) (i32.mul (local.get $S) (i32.const ${RT * 4}))))`);
-  emit(4, "(block $subjectsDone");
-  emit(5, "(br_if $subjectsDone (i32.ge_u (local.get $wp) (local.get $end)))");
-  emit(5, "(loop $subjects");
-  for (const k of range(Q)) emit(6, `(local.set $w${k} (v128.load offset=${k * 16} (local.get $wp)))`);
-  for (const p of range(P)) {
-    emit(6, `(local.set $x (v128.load32_splat offset=${4 * p} (local.get $rp)))`);
-    for (const k of range(Q)) {
-      emit(6, `(local.set ${acc(k, p)} (f32x4.add (local.get ${acc(k, p)}) (f32x4.mul (local.get $w${k}) (local.get $x))))`);
-    }
-  }
-  emit(6, `(local.set $rp (i32.add (local.get $rp) (i32.const ${4 * P})))`);
-  emit(6, `(local.set $wp (i32.add (local.get $wp) (i32.const ${RT * 4})))`);
-  emit(6, "(br_if $subjects (i32.lt_u (local.get $wp) (local.get $end)))");
-  emit(5, ")");
-  emit(4, ")");
-  emit(4, ";; transpose each 4 rows × 4 edges block so that prod[j·4 + p] holds row j, edge p");
-  emit(4, `(local.set $rowAt (i32.add (local.get $prod) (i32.mul (local.get $t) (i32.const ${RT * P * 4}))))`);
-  for (const k of range(Q)) {
-    const a = (p) => `(local.get ${acc(k, p)})`;
-    emit(4, `(local.set $t0 ${shuffle([...lane32(0, 0), ...lane32(1, 0), ...lane32(0, 1), ...lane32(1, 1)], a(0), a(1))})`);
-    emit(4, `(local.set $t1 ${shuffle([...lane32(0, 2), ...lane32(1, 2), ...lane32(0, 3), ...lane32(1, 3)], a(0), a(1))})`);
-    emit(4, `(local.set $t2 ${shuffle([...lane32(0, 0), ...lane32(1, 0), ...lane32(0, 1), ...lane32(1, 1)], a(2), a(3))})`);
-    emit(4, `(local.set $t3 ${shuffle([...lane32(0, 2), ...lane32(1, 2), ...lane32(0, 3), ...lane32(1, 3)], a(2), a(3))})`);
-    const low = [...lane32(0, 0), ...lane32(0, 1), ...lane32(1, 0), ...lane32(1, 1)];
-    const high = [...lane32(0, 2), ...lane32(0, 3), ...lane32(1, 2), ...lane32(1, 3)];
-    const rowBytes = P * 4;
-    emit(4, `(v128.store offset=${(4 * k + 0) * rowBytes} (local.get $rowAt) ${shuffle(low, "(local.get $t0)", "(local.get $t2)")})`);
-    emit(4, `(v128.store offset=${(4 * k + 1) * rowBytes} (local.get $rowAt) ${shuffle(high, "(local.get $t0)", "(local.get $t2)")})`);
-    emit(4, `(v128.store offset=${(4 * k + 2) * rowBytes} (local.get $rowAt) ${shuffle(low, "(local.get $t1)", "(local.get $t3)")})`);
-    emit(4, `(v128.store offset=${(4 * k + 3) * rowBytes} (local.get $rowAt) ${shuffle(high, "(local.get $t1)", "(local.get $t3)")})`);
-  }
-  emit(4, "(local.set $t (i32.add (local.get $t) (i32.const 1)))");
-  emit(4, "(br $rows)");
   emit(3, ")");
   emit(2, ")");
   emit(1, ")");
@@ -272,26 +159,6 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(4, `(local.set $row (i32.add (local.get $row) (i32.shl (local.get $vectors) (i32.const 4))))`);
   emit(4, "(local.set $b (i32.add (local.get $b) (i32.const 1)))");
   emit(4, "(br $relabelings)");
-  emit(3, ")");
-  emit(2, ")");
-  emit(1, ")");
-
-  // ---- a block of edges: tiles of 4 edges, single-precision products then the screen ----
-  emitExportedFunction(emit, 1, "screenBlock");
-  emit(2, "(local $i i32) (local $count i32) (local $up v128) (local $down v128)");
-  emit(2, "(local.set $up (i64x2.splat (i64.sub (i64.const 0) (i64.extend_i32_u (local.get $upper)))))");
-  emit(2, "(local.set $down (i64x2.splat (i64.sub (i64.const 0) (i64.extend_i32_u (local.get $lower)))))");
-  emit(2, "(block $done");
-  emit(3, "(loop $tiles");
-  emit(4, "(br_if $done (i32.ge_u (local.get $i) (local.get $width)))");
-  emit(4, "(call $tileProducts32 (local.get $panel) (local.get $rowTiles) (local.get $S) (i32.add (local.get $res) (i32.shl (i32.mul (local.get $i) (local.get $S)) (i32.const 2))) (local.get $prod))");
-  emit(4, `(local.set $count (select (i32.const ${P}) (i32.sub (local.get $width) (local.get $i)) (i32.le_u (i32.add (local.get $i) (i32.const ${P})) (local.get $width))))`);
-  emit(
-    4,
-    "(call $screenTile (local.get $prod) (local.get $count) (local.get $batch) (local.get $vectors) (i32.add (local.get $ss) (i32.shl (local.get $i) (i32.const 3))) (i32.add (local.get $l1) (i32.shl (local.get $i) (i32.const 3))) (i32.add (local.get $mask) (i32.shl (local.get $i) (i32.const 3))) (local.get $norms) (local.get $invNorm) (local.get $df) (local.get $rhs) (local.get $up) (local.get $down) (i32.add (local.get $first) (local.get $i)) (local.get $lists) (local.get $counts) (local.get $capacity))",
-  );
-  emit(4, `(local.set $i (i32.add (local.get $i) (i32.const ${P})))`);
-  emit(4, "(br $tiles)");
   emit(3, ")");
   emit(2, ")");
   emit(1, ")");
@@ -412,9 +279,5 @@ export function screenKernelFields({ rowQuads, groupQuads }) {
   emit(2, ")");
   emit(1, ")");
 
-  // ---- single-precision products only (for tests): prod[j·4 + p] for one tile of 4 edges ----
-  emitExportedFunction(emit, 1, "tileProducts32");
-  emit(2, "(call $tileProducts32 (local.get $panel) (local.get $rowTiles) (local.get $S) (local.get $res) (local.get $prod))");
-  emit(1, ")");
   return lines;
 }
