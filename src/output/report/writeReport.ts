@@ -4,7 +4,7 @@ import type { KnownResults } from "../writeResults.js";
 import { loadResults, type LoadedResults } from "./loadResults.js";
 import { methodsMarkdown } from "./methodsText.js";
 import { figureFileNames, reportContent, type ReportContent } from "./reportContent.js";
-import { rasterise } from "./figures/rasterise.js";
+import { rasteriseInBackground } from "./figures/rasterise.js";
 import { resultsMarkdown } from "./resultsText.js";
 import { reportHtml } from "./reportHtml.js";
 import { tablesLatex, tablesMarkdown } from "./tablesDocuments.js";
@@ -37,20 +37,34 @@ export function reportFiles(results: LoadedResults, options: ReportOptions = {},
   return files;
 }
 
-/** The report's binary files (tables.docx, the figures' PNGs), whose writer is asynchronous; from the same content as reportFiles. */
+/**
+ * The report's binary files (tables.docx, the figures' PNGs), whose writers are asynchronous; from the
+ * same content as reportFiles. The figures start rendering on Node's thread pool at once, so the caller
+ * can build the text files while they draw.
+ */
 export async function reportDocuments(results: LoadedResults, content: ReportContent): Promise<Map<string, Uint8Array>> {
-  const files = new Map<string, Uint8Array>([["tables.docx", await tablesDocx(content.tables, results.summary.tool.version)]]);
+  const names: string[] = ["tables.docx"];
+  const pending: Promise<Uint8Array>[] = [tablesDocx(content.tables, results.summary.tool.version)];
   for (const contrast of content.contrasts) {
-    for (const figure of contrast.figures) for (const names of figureFileNames(figure)) files.set(names.png, rasterise(figure.svg[names.width], names.width));
+    for (const figure of contrast.figures) {
+      for (const file of figureFileNames(figure)) {
+        names.push(file.png);
+        pending.push(rasteriseInBackground(figure.svg[file.width], file.width));
+      }
+    }
   }
-  return files;
+  const bytes = await Promise.all(pending);
+  return new Map(names.map((name, i) => [name, bytes[i]]));
 }
 
 /** Every report file: reportFiles' text and reportDocuments' bytes, from one ReportContent. */
 export async function allReportFiles(results: LoadedResults, options: ReportOptions = {}): Promise<Map<string, string | Uint8Array>> {
   const content = reportContent(results, options);
+  const documents = reportDocuments(results, content);
+  // Handled here too, so that an error in the text files below does not leave it unhandled.
+  documents.catch(() => undefined);
   const files = new Map<string, string | Uint8Array>(reportFiles(results, options, content));
-  for (const [file, bytes] of await reportDocuments(results, content)) files.set(file, bytes);
+  for (const [file, bytes] of await documents) files.set(file, bytes);
   return files;
 }
 
@@ -68,6 +82,8 @@ export async function writeReport(
   // The caller awaits this before it commits the folder, so nothing is moved into place half-written.
   const results = loadResults(resultsDir, known);
   const content = reportContent(results, options);
+  const documents = reportDocuments(results, content);
+  documents.catch(() => undefined);
   for (const [file, text] of reportFiles(results, options, content)) write(file, text);
-  for (const [file, bytes] of await reportDocuments(results, content)) write(file, bytes);
+  for (const [file, bytes] of await documents) write(file, bytes);
 }
