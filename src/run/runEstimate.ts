@@ -7,7 +7,7 @@ import { computeNullRange } from "../permute/nullRange.js";
 import { observeContrastOn } from "./analyzeContrasts.js";
 import { engineChunkSize, needsPermutations, shardRange } from "./permutationInference.js";
 import { DEFAULT_CHUNK_SIZE } from "./runAnalysis.js";
-import { screenMemory } from "../permute/kernels/wasmKernel.js";
+import { quantizedResident, screenMemory } from "../permute/kernels/wasmKernel.js";
 
 /**
  * How long a run will take on this machine, from a short calibration: the
@@ -44,6 +44,13 @@ const WRITE_SECONDS = 3;
 const WRITE_SHARD_SECONDS = 0.5;
 /** Relabelings timed per contrast: two of the kernels' batches. */
 const CALIBRATION_RELABELINGS = 128;
+/**
+ * When a whole chunk of the run would take at most this long on the slice, a whole chunk is timed instead:
+ * each chunk prepares its screen once (bounds, tables) and the two-level path's subset tables serve a
+ * batch of up to 512 relabelings, so 128 relabelings alone overstate the time of a small cohort's
+ * relabeling about twofold (200 participants, `model: group`).
+ */
+const CHUNK_CALIBRATION_SECONDS = 2;
 
 export function estimateRun(prepared: PreparedAnalysis, options: { threads: number; shard?: { index: number; count: number } }): RunEstimate {
   const S = prepared.matrix.rows;
@@ -117,18 +124,24 @@ function timeSlice(prepared: PreparedAnalysis, regions: number): SliceTimes {
     });
     fitSeconds += (performance.now() - start) / 1000;
     const count = setup.context.plan.count;
-    const timed = Math.min(CALIBRATION_RELABELINGS, Math.max(1, count - 1));
-    // The run keeps single-precision residuals resident only up to a size (wasmKernel.ts); beyond it each batch
+    // The run keeps integer residuals resident only up to a size (wasmKernel.ts); beyond it each batch
     // converts them block by block, and so must the calibration.
     const resident = screenMemory.residentBytes;
-    if (S * prepared.connectomes.edgeCount * 4 > resident) screenMemory.residentBytes = 0;
-    start = performance.now();
+    if (!quantizedResident(S, prepared.connectomes.edgeCount)) screenMemory.residentBytes = 0;
+    const timeRelabelings = (n: number): number => {
+      const begin = performance.now();
+      computeNullRange(setup.context, 2, 2 + n);
+      return (performance.now() - begin) / 1000 / n;
+    };
     try {
-      computeNullRange(setup.context, 2, 2 + timed);
+      const timed = Math.min(CALIBRATION_RELABELINGS, Math.max(1, count - 1));
+      let secondsPerRelabeling = timeRelabelings(timed);
+      const chunk = Math.min(engineChunkSize(count, { threads: 1, chunkSize: DEFAULT_CHUNK_SIZE }), Math.max(1, count - 1));
+      if (chunk > timed && secondsPerRelabeling * chunk <= CHUNK_CALIBRATION_SECONDS) secondsPerRelabeling = timeRelabelings(chunk);
+      contrasts.push({ name: contrast.name, count, secondsPerRelabeling });
     } finally {
       screenMemory.residentBytes = resident;
     }
-    contrasts.push({ name: contrast.name, count, secondsPerRelabeling: (performance.now() - start) / 1000 / timed });
   }
   return { edges, fitSeconds, contrasts };
 }
