@@ -118,12 +118,10 @@ export interface QuantizedScales {
   forced: Int32Array;
 }
 
-/** Each edge's quantization step and error scale; forced edges (residualScales) and invalid edges get 0. */
+/** Each edge's quantization step and error scale; invalid edges, and those outside the screen's range (forced), get 0. */
 export function quantizedScales(data: KernelData, padding: number): QuantizedScales {
   const { subjects: S, edges: E, residuals, valid } = data;
-  const { forced } = residualScales(data, 0);
-  const skip = new Uint8Array(E);
-  for (const e of forced) skip[e] = 1;
+  const forced: number[] = [];
   const step = new Float32Array(E + padding);
   const inverse = new Float64Array(E + padding);
   const bound = new Float64Array(E + padding);
@@ -132,8 +130,13 @@ export function quantizedScales(data: KernelData, padding: number): QuantizedSca
   const conversion = gamma(sums + 3, 2 ** -24);
   const wStep = (1 + 2 ** -22) / WEIGHT_LEVELS;
   for (let e = 0; e < E; e++) {
-    if (valid[e] === 0 || skip[e] === 1) continue;
+    if (valid[e] === 0) continue;
     const { l1, largest } = edgeNorms(residuals, e * S, S);
+    // As for residualScales: edges outside the screen's range are recomputed for every relabeling.
+    if (!(largest >= SCALE_LOW && largest <= SCALE_HIGH)) {
+      forced.push(e);
+      continue;
+    }
     const sigma = float32AtLeast(largest / RESIDUAL_LEVELS);
     step[e] = sigma;
     inverse[e] = 1 / sigma;
@@ -143,7 +146,7 @@ export function quantizedScales(data: KernelData, padding: number): QuantizedSca
     const converted = conversion * (1 + 2 ** -22) * (l1 + S * sigma * HALF_STEP);
     bound[e] = BOUND_SLACK * (reference * l1 + S * UNDERFLOW_PER_SUBJECT + roundR + roundW + both + converted);
   }
-  return { step, inverse, bound, forced };
+  return { step, inverse, bound, forced: Int32Array.from(forced) };
 }
 
 /** τ_k (single-precision values, rounded up) and 1/τ_k for each relabeled vector from its ‖v_k‖∞. */
