@@ -21,7 +21,7 @@ export function resourceLines(
   const estimate = estimateRun(prepared, { threads: options.threads, ...(options.shard ? { shard: options.shard } : {}) });
   const total = estimate.totalSeconds + options.readSeconds;
   const perContrast = estimate.contrasts.map(
-    (c) => `${c.name}: ${c.relabelings} relabelings × ${c.secondsPerRelabeling < 0.1 ? `${(c.secondsPerRelabeling * 1000).toFixed(1)} ms` : `${c.secondsPerRelabeling.toFixed(2)} s`} on one thread`,
+    (c) => `${c.name}: ${c.relabelings} relabelings × ${perRelabeling(c.secondsPerRelabeling)} on one thread`,
   );
   return [
     `memory      edge data ${formatBytes(plan.dataBytes)} (${S} participants × ${E} edges in double precision); peak about ${formatBytes(plan.peakBytes)}; ${limit.source} ${formatBytes(plan.limitBytes)}` +
@@ -31,4 +31,11 @@ export function resourceLines(
       (perContrast.length ? `, ${perContrast.join("; ")}` : "") +
       `, results ${formatDuration(estimate.writeSeconds)} (calibrated on invented data of this design's shape)`,
   ];
+}
+
+/** "35 µs", "1.6 ms", "0.41 s": a relabeling's time on one thread. */
+function perRelabeling(seconds: number): string {
+  if (seconds < 1e-4) return `${Math.max(1, Math.round(seconds * 1e6))} µs`;
+  if (seconds < 0.1) return `${(seconds * 1000).toFixed(1)} ms`;
+  return `${seconds.toFixed(2)} s`;
 }

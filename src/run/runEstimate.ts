@@ -37,10 +37,10 @@ export interface RunEstimate {
 const CALIBRATION_BYTES = 192e6;
 /**
  * What every run adds whatever its size: worker threads started, the results folder, its print figures (PNG
- * at 300 dpi) and the report written. About 3 s for the demo cohort and for 100 participants at 90 regions
- * on the project's 2-core machine (a shard writes no report: under a second).
+ * at 300 dpi, drawn on the thread pool) and the report written. About 1.3–2 s for the demo cohort and for
+ * 135 participants at 90 regions on the project's 2-core machine (a shard writes no report: under a second).
  */
-const WRITE_SECONDS = 3;
+const WRITE_SECONDS = 2;
 const WRITE_SHARD_SECONDS = 0.5;
 /** Relabelings timed per contrast: two of the kernels' batches. */
 const CALIBRATION_RELABELINGS = 128;

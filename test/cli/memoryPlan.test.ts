@@ -71,7 +71,7 @@ describe("plexus check's resource lines", () => {
       `memory      edge data ${Math.round(bytes / 1e3)} kB (${SUBJECTS} participants × ${edges} edges in double precision); peak about 460 MB; --memory gives 16.00 GB`,
     );
     const time = result.stdout.split("\n").find((line) => line.startsWith("time "));
-    expect(time).toMatch(/^time {8}about .+ on 2 threads of this machine: inputs read in .+ \(this check\), fit .+, up: 200 relabelings × [\d.]+ (ms|s) on one thread, results .+ \(calibrated on invented data of this design's shape\)$/);
+    expect(time).toMatch(/^time {8}about .+ on 2 threads of this machine: inputs read in .+ \(this check\), fit .+, up: 200 relabelings × [\d.]+ (µs|ms|s) on one thread, results .+ \(calibrated on invented data of this design's shape\)$/);
   });
 
   it("plans one shard of the permutations: its share of the relabelings and the memory to request per task", async () => {
