@@ -55,6 +55,11 @@ export interface ResidualScales {
   forced: Int32Array;
 }
 
+/** Whether an edge's largest residual (or a vector's largest weight) lies where the screen's bounds hold. */
+function inScreenRange(largest: number): boolean {
+  return largest >= SCALE_LOW && largest <= SCALE_HIGH;
+}
+
 /** ‖R_e‖₁ and ‖R_e‖∞ of the S residuals from `at`. */
 function edgeNorms(residuals: Float64Array, at: number, S: number): { l1: number; largest: number } {
   let l1 = 0;
@@ -76,7 +81,7 @@ export function residualScales(data: KernelData, padding: number): ResidualScale
   for (let e = 0; e < E; e++) {
     if (valid[e] === 0) continue;
     const { l1, largest } = edgeNorms(residuals, e * S, S);
-    if (!(largest >= SCALE_LOW && largest <= SCALE_HIGH)) forced.push(e);
+    if (!inScreenRange(largest)) forced.push(e);
     // κ carries a factor 4 over the bound it needs (u = 2⁻²³ instead of 2⁻²⁴, then × 2), far more than
     // covers the double-precision rounding of ‖R_e‖₁ itself and the reference sum's own error.
     scale[e] = kappa * l1 + S * UNDERFLOW_PER_SUBJECT;
@@ -99,9 +104,9 @@ export function residualScales(data: KernelData, padding: number): ResidualScale
  * twice over. So, as for the single-precision path, an error bound is ‖v_k‖∞ times a per-edge
  * scale, and the screen's test (screenKernelWat.mjs $screenTile) is the same.
  */
-export const RESIDUAL_LEVELS = 4095;
-export const WEIGHT_LEVELS = 2047;
-/** Subjects per exact 32-bit sum: 256 · 2047 · 4095 < 2³¹. */
+const RESIDUAL_LEVELS = 4095;
+const WEIGHT_LEVELS = 2047;
+/** Subjects per exact 32-bit sum: 256 · 2047 · 4095 < 2³¹ (the kernel's quantizedPairsPerChunk, twice; kernelSignatures.test.ts). */
 export const SUBJECTS_PER_SUM = 256;
 /** Covers the rounding of nearest(x · 1/step) against x / step (relative 2⁻⁵¹ of at most 4095). */
 const HALF_STEP = 0.5 + 2 ** -38;
@@ -133,7 +138,7 @@ export function quantizedScales(data: KernelData, padding: number): QuantizedSca
     if (valid[e] === 0) continue;
     const { l1, largest } = edgeNorms(residuals, e * S, S);
     // As for residualScales: edges outside the screen's range are recomputed for every relabeling.
-    if (!(largest >= SCALE_LOW && largest <= SCALE_HIGH)) {
+    if (!inScreenRange(largest)) {
       forced.push(e);
       continue;
     }
@@ -161,7 +166,7 @@ export function vectorScales(vectors: Float64Array[]): Float64Array | undefined 
   for (let k = 0; k < vectors.length; k++) {
     let largest = 0;
     for (const v of vectors[k]) largest = Math.max(largest, Math.abs(v));
-    if (!(largest >= SCALE_LOW && largest <= SCALE_HIGH)) return undefined;
+    if (!inScreenRange(largest)) return undefined;
     out[k] = largest;
   }
   return out;

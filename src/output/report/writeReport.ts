@@ -80,10 +80,5 @@ export async function writeReport(
   known?: KnownResults,
 ): Promise<void> {
   // The caller awaits this before it commits the folder, so nothing is moved into place half-written.
-  const results = loadResults(resultsDir, known);
-  const content = reportContent(results, options);
-  const documents = reportDocuments(results, content);
-  documents.catch(() => undefined);
-  for (const [file, text] of reportFiles(results, options, content)) write(file, text);
-  for (const [file, bytes] of await documents) write(file, bytes);
+  for (const [file, content] of await allReportFiles(loadResults(resultsDir, known), options)) write(file, content);
 }

@@ -7,6 +7,7 @@
 import wabtFactory from "wabt";
 import { describe, expect, it } from "vitest";
 import { PERMUTE_KERNEL_BASE64, PERMUTE_KERNEL_TILE } from "../../../src/permute/kernels/generated/permuteKernelBytes.js";
+import { SUBJECTS_PER_SUM } from "../../../src/permute/screening.js";
 import { KERNEL_FUNCTION_TYPES } from "../../../src/permute/kernels/generated/kernelSignatures.js";
 
 /** The part of the WebAssembly JavaScript API used here (the compiler settings do not declare it). */
@@ -60,5 +61,7 @@ describe("the kernel module's exports match their generated declarations", () =>
     expect(value("groupEdgesPerTile")).toBe(PERMUTE_KERNEL_TILE.groupPairs * 2);
     expect(value("screenRowsPerTile")).toBe(PERMUTE_KERNEL_TILE.rowQuads * 4);
     expect(value("screenGroupEdgesPerTile")).toBe(PERMUTE_KERNEL_TILE.groupQuads * 4);
+    // The integer screen's exact 32-bit sums: the bound (screening.ts quantizedScales) counts one conversion per sum.
+    expect(value("quantizedPairsPerChunk")).toBe(SUBJECTS_PER_SUM / 2);
   });
 });
